@@ -1,0 +1,73 @@
+/**
+ * Per-cell flag bits of the assessment (written to flags.tif as UInt8).
+ * Effect bits say what is wrong with the cell; cause bits say why.
+ */
+export const FLAG_COARSE = 1;
+export const FLAG_FINE = 2;
+export const FLAG_FEW_IMAGES = 4;
+export const FLAG_CEILING = 8;
+export const FLAG_CLEARANCE = 16;
+export const FLAG_NODATA = 32;
+export const FLAG_UNFLYABLE = 64;
+
+export interface FlagKind {
+  bit: number;
+  key: "coarse" | "fine" | "fewImages" | "ceiling" | "clearance" | "nodata" | "unflyable";
+  label: string;
+  /** Plain words for the report and the terminal summary. */
+  explanation: string;
+  /** What the user can do about it. */
+  remedy: string;
+}
+
+export const FLAG_KINDS: readonly FlagKind[] = [
+  {
+    bit: FLAG_COARSE,
+    key: "coarse",
+    label: "coarser than the band",
+    explanation: "The camera is too high above this ground: pixels are larger than the tolerance allows.",
+    remedy: "Raise the tolerance, accept a coarser target, or get permission to fly a lower minimum over the obstacle that forced the climb.",
+  },
+  {
+    bit: FLAG_FINE,
+    key: "fine",
+    label: "finer than the band",
+    explanation: "The camera is closer to this ground than the band wants: more detail, but smaller footprints and less overlap.",
+    remedy: "Usually harmless; change the heading to fly along the slope, or split the site so each part has its own height.",
+  },
+  {
+    bit: FLAG_FEW_IMAGES,
+    key: "fewImages",
+    label: "too few images",
+    explanation: "Fewer overlapping photos see this ground than required, so the reconstruction may have holes.",
+    remedy: "Raise the overlaps, change the heading, or add a cross-hatch flight over the area.",
+  },
+  {
+    bit: FLAG_CEILING,
+    key: "ceiling",
+    label: "limited by the ceiling",
+    explanation: "The legal height ceiling keeps the aircraft lower than the detail band needs over this ground.",
+    remedy: "Use a finer target or a wider tolerance, choose the ceiling rule your rules allow, or get permission to fly higher.",
+  },
+  {
+    bit: FLAG_CLEARANCE,
+    key: "clearance",
+    label: "limited by clearance or climb",
+    explanation: "Terrain clearance or the aircraft's climb and descent limits hold it higher or lower than the band needs here.",
+    remedy: "Fly a heading along the slope, lower the speed, raise the tolerance, or split the site.",
+  },
+  {
+    bit: FLAG_NODATA,
+    key: "nodata",
+    label: "no DEM data",
+    explanation: "The elevation model has no height here, so the plan cannot know the ground.",
+    remedy: "Fill the DEM from another source, or give a safe --assume-ground height after checking the site.",
+  },
+  {
+    bit: FLAG_UNFLYABLE,
+    key: "unflyable",
+    label: "under an unflyable section",
+    explanation: "Clearance and the ceiling conflict over this ground: no legal, safe height exists for the strip here.",
+    remedy: "Get permission for a higher ceiling, use the `surface` ceiling rule where it applies, or survey this part from another site.",
+  },
+];

@@ -1,0 +1,60 @@
+import type { Feature, MultiPolygon } from "geojson";
+import type { GeoTransform } from "../dem/grid.js";
+
+/** One photo: camera position (local frame, metres AMSL) and the track heading. */
+export interface Exposure {
+  x: number;
+  y: number;
+  altitudeAmslM: number;
+  /** Unit vector along the track (the image's along-track axis). */
+  ux: number;
+  uy: number;
+  strip: number;
+}
+
+/** Rasters on the (metric, working) DEM window's grid, row-major. */
+export interface AssessmentRasters {
+  width: number;
+  height: number;
+  transform: GeoTransform;
+  /** Nadir GSD in cm/px from the most nadir exposure; NaN outside the site or unseen. */
+  gsdCm: Float32Array;
+  /** Number of exposures whose footprint covers the cell. */
+  images: Uint16Array;
+  /** Bitmask, see flags.ts. 0 outside the site. */
+  flags: Uint8Array;
+  /** 1 for cells whose centre lies inside the site. */
+  inSite: Uint8Array;
+}
+
+export interface GsdStats {
+  min: number;
+  p5: number;
+  median: number;
+  p95: number;
+  max: number;
+}
+
+export interface AssessmentStats {
+  siteCells: number;
+  cellAreaM2: number;
+  gsdCm: GsdStats;
+  withinBandPct: number;
+  images: { min: number; median: number };
+  flagged: {
+    cells: number;
+    areaM2: number;
+    byKind: Record<string, { cells: number; areaM2: number; pct: number }>;
+  };
+  perStrip: { strip: number; cells: number; gsdCm: GsdStats; withinBandPct: number }[];
+}
+
+/** One layer per flag kind, polygons in WGS84. */
+export type FlagPolygons = Record<string, Feature<MultiPolygon, { kind: string; bit: number; areaM2: number }>>;
+
+export interface Assessment {
+  rasters: AssessmentRasters;
+  stats: AssessmentStats;
+  polygons: FlagPolygons;
+  exposures: Exposure[];
+}

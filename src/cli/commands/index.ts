@@ -1,0 +1,9 @@
+import type { Command } from "commander";
+
+/**
+ * Every subcommand registers itself here. Command modules must keep heavy
+ * imports (geotiff, turf, proj4) inside their action handlers.
+ */
+export function registerCommands(program: Command): void {
+  void program;
+}

@@ -1,0 +1,62 @@
+import type { Polygon, MultiPolygon } from "geojson";
+
+/** A 2-D point in the local frame, metres. */
+export type XY = [number, number];
+
+/** The site to image, in the local frame and in WGS84. */
+export interface Site {
+  /** Outer rings and holes in local-frame metres (GeoJSON geometry, not WGS84). */
+  local: Polygon | MultiPolygon;
+  /** The same site in WGS84 (RFC 7946 winding). */
+  wgs84: Polygon | MultiPolygon;
+  areaM2: number;
+  /** Name for reports (from the file's properties or its file name). */
+  name: string;
+}
+
+/** One straight leg of the flight path, in flight order. */
+export interface LayoutLeg {
+  /** `strip`: photos are taken along it; `transit`: none. */
+  kind: "strip" | "transit";
+  /** 1-based strip number in flight order; a transit carries the strip it leads into. */
+  strip: number;
+  from: XY;
+  to: XY;
+  lengthM: number;
+}
+
+export interface Layout {
+  /** Strip direction, degrees clockwise from grid north in the local frame, [0, 180). */
+  headingDeg: number;
+  /** Distance between neighbouring strips (footprint across * (1 - side overlap)). */
+  spacingM: number;
+  /** Distance between exposures along a strip (footprint along * (1 - front overlap)). */
+  triggerM: number;
+  /** Nadir footprint across and along the track at the target height over flat ground. */
+  footprintAcrossM: number;
+  footprintAlongM: number;
+  /** Legs in flight order, starting with the transit from take-off (the take-off point is legs[0].from). */
+  legs: LayoutLeg[];
+  takeoff: XY;
+  /** Candidate headings and their scores, best first (for `auto`). */
+  headingCandidates: { headingDeg: number; flightTimeS: number; altitudeChangeM: number; score: number }[];
+  headingReason: string;
+}
+
+/**
+ * Sample points along one leg: s is the along-track distance from the leg's
+ * start, (x, y) the position. Typed arrays of equal length.
+ */
+export interface Stations {
+  s: Float64Array;
+  x: Float64Array;
+  y: Float64Array;
+  /** Unit vector of the leg direction. */
+  ux: number;
+  uy: number;
+  /** Spacing between samples, metres. */
+  stepM: number;
+  /** Zone each station images best: half the strip spacing across, half the step along. */
+  zoneHalfAcrossM: number;
+  zoneHalfAlongM: number;
+}

@@ -1,0 +1,95 @@
+import type { XY } from "../layout/types.js";
+
+/** Station status, as stored in `StationProfile.status`. */
+export const STATUS_OK = 0;
+export const STATUS_DETAIL_LIMITED = 1;
+export const STATUS_UNFLYABLE = 2;
+export type StationStatusName = "ok" | "detail-limited" | "unflyable";
+export const STATUS_NAMES: readonly StationStatusName[] = ["ok", "detail-limited", "unflyable"];
+
+/** Cause bits, as stored in `StationProfile.cause`: which bound cut the detail band. */
+export const CAUSE_CEILING = 1;
+export const CAUSE_CLEARANCE = 2;
+export const CAUSE_CLIMB = 4;
+export const CAUSE_NODATA = 8;
+
+export type CeilingReference = "ground" | "surface" | "takeoff";
+
+export interface SolverOptions {
+  ceiling: { heightM: number; reference: CeilingReference };
+  /** Ground height (AMSL) at the take-off point, for the `takeoff` ceiling. */
+  takeoffGroundM: number;
+  clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number };
+  aircraft: {
+    type: "multirotor" | "fixed-wing";
+    /** Ground speed on photo legs (already capped by trigger interval and blur). */
+    speedMps: number;
+    /** Transit speed (cruise). */
+    transitSpeedMps: number;
+    minSpeedMps: number;
+    maxClimbMps: number;
+    maxDescentMps: number;
+  };
+  /** Heights above ground giving the band's finest and coarsest GSD: H_min = low GSD / ifov, H_max = high GSD / ifov. */
+  band: { hMinM: number; hMaxM: number; hTargetM: number };
+  /** Half the strip spacing: the across-track half-width of each strip's own zone. */
+  zoneHalfAcrossM: number;
+  /** Station spacing along legs, metres (DEM cell size or finer). */
+  stationStepM: number;
+  onConflict: "skip" | "clearance";
+  /** Height to assume where the DEM has no data; undefined: nodata is unflyable. */
+  assumeGroundM?: number;
+}
+
+/** Per-station corridor and result along one leg (all heights metres AMSL). */
+export interface StationProfile {
+  s: Float64Array;
+  x: Float64Array;
+  y: Float64Array;
+  /** Ground straight below (NaN where nodata). */
+  groundM: Float64Array;
+  hardLowM: Float64Array;
+  hardHighM: Float64Array;
+  bandLowM: Float64Array;
+  bandHighM: Float64Array;
+  /** Altitude the flown path has at this station. */
+  altitudeM: Float64Array;
+  status: Uint8Array;
+  cause: Uint8Array;
+}
+
+export interface Waypoint {
+  x: number;
+  y: number;
+  /** Along-track distance on its leg. */
+  s: number;
+  altitudeAmslM: number;
+  groundAmslM: number;
+  heightAboveGroundM: number;
+  /** Ground speed on the leg segment that ends at this waypoint (0 for a leg's first waypoint). */
+  speedMps: number;
+}
+
+export interface SolvedLeg {
+  kind: "strip" | "transit";
+  strip: number;
+  from: XY;
+  to: XY;
+  /** Vertices of the altitude profile, first and last included. */
+  waypoints: Waypoint[];
+  profile: StationProfile;
+  lengthM: number;
+  timeS: number;
+}
+
+export interface SolveWarning {
+  code: string;
+  message: string;
+}
+
+export interface SolveResult {
+  legs: SolvedLeg[];
+  warnings: SolveWarning[];
+  /** Count of stations by status over all strip legs. */
+  counts: { ok: number; detailLimited: number; unflyable: number };
+}
