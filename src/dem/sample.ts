@@ -1,0 +1,260 @@
+import type { CrsInfo, DemGrid } from "./grid.js";
+
+/**
+ * Sampling a DEM window: point heights and local extrema, vectorised over
+ * many points with caller-supplied output arrays so hot loops allocate nothing.
+ * Coordinates are in the grid's own CRS units (for the working grid, metres of
+ * the local frame). NaN means nodata or outside the grid: the planner never
+ * guesses ground it does not know.
+ */
+
+/**
+ * Centre of cell (col, row) in CRS units.
+ * @example cellCentre(grid, 0, 0) // [x0 + dx/2, y0 + dy/2]
+ */
+export function cellCentre(grid: DemGrid, col: number, row: number): [number, number] {
+  const t = grid.transform;
+  return [t.x0 + (col + 0.5) * t.dx, t.y0 + (row + 0.5) * t.dy];
+}
+
+/**
+ * Fractional column and row of a point, with cell centres at integers
+ * (col = (x - x0) / dx - 0.5), the frame bilinear interpolation works in.
+ * @example toColRow(grid, ...cellCentre(grid, 3, 4)) // [3, 4]
+ */
+export function toColRow(grid: DemGrid, x: number, y: number): [number, number] {
+  const t = grid.transform;
+  return [(x - t.x0) / t.dx - 0.5, (y - t.y0) / t.dy - 0.5];
+}
+
+/**
+ * Bilinear height between the four surrounding cell centres. NaN when any of
+ * them is nodata or outside the grid (a sample touching nodata is nodata).
+ * Points exactly on the outer half-cell rim snap to the edge cells.
+ * @example sampleBilinear(grid, [x], [y])[0]
+ */
+export function sampleBilinear(
+  grid: DemGrid,
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  out: Float64Array = new Float64Array(xs.length),
+): Float64Array {
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  for (let i = 0; i < xs.length; i++) {
+    let c = (xs[i] - x0) / dx - 0.5;
+    let r = (ys[i] - y0) / dy - 0.5;
+    // Within the outer half cell there is only one cell to use on that side.
+    if (c < 0 && c >= -0.5) c = 0;
+    if (r < 0 && r >= -0.5) r = 0;
+    if (c > w - 1 && c <= w - 0.5) c = w - 1;
+    if (r > h - 1 && r <= h - 0.5) r = h - 1;
+    if (!(c >= 0 && r >= 0 && c <= w - 1 && r <= h - 1)) {
+      out[i] = NaN;
+      continue;
+    }
+    let c0 = Math.floor(c);
+    let r0 = Math.floor(r);
+    if (c0 === w - 1 && w > 1) c0 = w - 2;
+    if (r0 === h - 1 && h > 1) r0 = h - 2;
+    const fc = c - c0;
+    const fr = r - r0;
+    const c1 = w > 1 ? c0 + 1 : c0;
+    const r1 = h > 1 ? r0 + 1 : r0;
+    const z00 = heights[r0 * w + c0];
+    const z01 = heights[r0 * w + c1];
+    const z10 = heights[r1 * w + c0];
+    const z11 = heights[r1 * w + c1];
+    // NaN propagates through the arithmetic: nodata anywhere gives NaN.
+    out[i] = (z00 * (1 - fc) + z01 * fc) * (1 - fr) + (z10 * (1 - fc) + z11 * fc) * fr;
+  }
+  return out;
+}
+
+/**
+ * Max (and optionally min) height over the cells whose centres lie within
+ * `radiusM` of each point, always including the cell under the point. NaN
+ * where any such cell is nodata or the disc leaves the grid.
+ * @example extremaInRadius(grid, xs, ys, 15, maxOut, minOut)
+ */
+export function extremaInRadius(
+  grid: DemGrid,
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  radiusM: number,
+  outMax: Float64Array,
+  outMin?: Float64Array,
+): void {
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const r2 = radiusM * radiusM;
+  for (let i = 0; i < xs.length; i++) {
+    const px = xs[i];
+    const py = ys[i];
+    const pc = Math.floor((px - x0) / dx);
+    const pr = Math.floor((py - y0) / dy);
+    // Rows whose centres can be within the radius (dy < 0: rows grow southwards).
+    const rLo = Math.min(Math.ceil((py + radiusM - y0) / dy - 0.5), pr);
+    const rHi = Math.max(Math.floor((py - radiusM - y0) / dy - 0.5), pr);
+    let mx = -Infinity;
+    let mn = Infinity;
+    let bad = pc < 0 || pr < 0 || pc >= w || pr >= h;
+    for (let r = rLo; r <= rHi && !bad; r++) {
+      const ddy = y0 + (r + 0.5) * dy - py;
+      const rem = r2 - ddy * ddy;
+      let ca = Infinity;
+      let cb = -Infinity;
+      if (rem >= 0) {
+        const half = Math.sqrt(rem);
+        ca = Math.ceil((px - half - x0) / dx - 0.5);
+        cb = Math.floor((px + half - x0) / dx - 0.5);
+      }
+      if (r === pr) {
+        ca = Math.min(ca, pc);
+        cb = Math.max(cb, pc);
+      }
+      if (ca > cb) continue;
+      if (r < 0 || r >= h || ca < 0 || cb >= w) {
+        bad = true;
+        break;
+      }
+      const base = r * w;
+      for (let c = ca; c <= cb; c++) {
+        const z = heights[base + c];
+        if (z !== z) {
+          bad = true;
+          break;
+        }
+        if (z > mx) mx = z;
+        if (z < mn) mn = z;
+      }
+    }
+    outMax[i] = bad || mx === -Infinity ? NaN : mx;
+    if (outMin) outMin[i] = bad || mn === Infinity ? NaN : mn;
+  }
+}
+
+/**
+ * Max and min height over the cells whose centres lie in an oriented
+ * rectangle around each point: `halfAlongM` along the unit vector (ux, uy)
+ * and `halfAcrossM` across it; the cell under the point always counts. NaN
+ * where any such cell is nodata or the rectangle leaves the grid.
+ * @example extremaInOrientedRect(grid, xs, ys, 1, 0, 2.5, 40, maxOut, minOut)
+ */
+export function extremaInOrientedRect(
+  grid: DemGrid,
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  ux: number,
+  uy: number,
+  halfAlongM: number,
+  halfAcrossM: number,
+  outMax: Float64Array,
+  outMin: Float64Array,
+): void {
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const norm = Math.hypot(ux, uy);
+  const ax = ux / norm;
+  const ay = uy / norm;
+  // across-track unit vector (left of the track)
+  const bx = -ay;
+  const by = ax;
+  const extX = Math.abs(ax) * halfAlongM + Math.abs(bx) * halfAcrossM;
+  const extY = Math.abs(ay) * halfAlongM + Math.abs(by) * halfAcrossM;
+  const eps = 1e-9;
+  for (let i = 0; i < xs.length; i++) {
+    const px = xs[i];
+    const py = ys[i];
+    const pc = Math.floor((px - x0) / dx);
+    const pr = Math.floor((py - y0) / dy);
+    let bad = pc < 0 || pr < 0 || pc >= w || pr >= h;
+    let mx = -Infinity;
+    let mn = Infinity;
+    if (!bad) {
+      const z = heights[pr * w + pc];
+      if (z !== z) bad = true;
+      else mx = mn = z;
+    }
+    const cLo = Math.ceil((px - extX - x0) / dx - 0.5);
+    const cHi = Math.floor((px + extX - x0) / dx - 0.5);
+    const rLo = Math.ceil((py + extY - y0) / dy - 0.5);
+    const rHi = Math.floor((py - extY - y0) / dy - 0.5);
+    for (let r = rLo; r <= rHi && !bad; r++) {
+      const ry = y0 + (r + 0.5) * dy - py;
+      for (let c = cLo; c <= cHi; c++) {
+        const rx = x0 + (c + 0.5) * dx - px;
+        const along = rx * ax + ry * ay;
+        const across = rx * bx + ry * by;
+        if (Math.abs(along) > halfAlongM + eps || Math.abs(across) > halfAcrossM + eps) continue;
+        if (r < 0 || r >= h || c < 0 || c >= w) {
+          bad = true;
+          break;
+        }
+        const z = heights[r * w + c];
+        if (z !== z) {
+          bad = true;
+          break;
+        }
+        if (z > mx) mx = z;
+        if (z < mn) mn = z;
+      }
+    }
+    outMax[i] = bad ? NaN : mx;
+    outMin[i] = bad ? NaN : mn;
+  }
+}
+
+const DEFAULT_CRS: CrsInfo = {
+  proj4: "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs",
+  epsg: 32633,
+  name: "WGS 84 / UTM zone 33N",
+  geographic: false,
+  linearUnitM: 1,
+};
+
+/**
+ * An in-memory north-up metric DemGrid, for synthetic terrain and tests.
+ * `heights` is row-major (row 0 = north edge) or a function of the cell
+ * centre; NaN marks nodata.
+ * @example makeGrid({ width: 100, height: 80, x0: 500000, y0: 4_600_000, cellM: 1, heights: (x, y) => 0.1 * x })
+ */
+export function makeGrid(opts: {
+  width: number;
+  height: number;
+  x0: number;
+  y0: number;
+  cellM: number;
+  heights: Float32Array | ((x: number, y: number) => number);
+  crsProj4?: string;
+  epsg?: number | null;
+}): DemGrid {
+  const { width, height, x0, y0, cellM } = opts;
+  let heights: Float32Array;
+  if (typeof opts.heights === "function") {
+    heights = new Float32Array(width * height);
+    for (let r = 0; r < height; r++) {
+      const y = y0 - (r + 0.5) * cellM;
+      for (let c = 0; c < width; c++) heights[r * width + c] = opts.heights(x0 + (c + 0.5) * cellM, y);
+    }
+  } else {
+    if (opts.heights.length !== width * height) throw new Error("makeGrid: heights length must be width * height");
+    heights = opts.heights;
+  }
+  const valid = new Uint8Array(width * height);
+  for (let i = 0; i < valid.length; i++) valid[i] = heights[i] === heights[i] ? 1 : 0;
+  const crs: CrsInfo = opts.crsProj4
+    ? { proj4: opts.crsProj4, epsg: opts.epsg ?? null, name: "custom", geographic: false, linearUnitM: 1 }
+    : { ...DEFAULT_CRS, epsg: opts.epsg === undefined ? DEFAULT_CRS.epsg : opts.epsg };
+  return {
+    width,
+    height,
+    heights,
+    valid,
+    transform: { x0, y0, dx: cellM, dy: -cellM },
+    crs,
+    cellSizeM: [cellM, cellM],
+    verticalDatum: "egm96",
+    verticalUnit: "metre",
+  };
+}
