@@ -1,0 +1,216 @@
+import proj4 from "proj4";
+import { InputError } from "../errors.js";
+import type { CrsInfo } from "../dem/grid.js";
+import type { LocalFrame } from "./frame.js";
+import { normaliseLonDeg } from "./longitude.js";
+import { pointScaleFactors } from "./scaleFactor.js";
+import { UTM_NORTH_LIMIT_DEG, UTM_SOUTH_LIMIT_DEG, utmZoneOf } from "./utmZone.js";
+
+export { utmZoneOf } from "./utmZone.js";
+
+/**
+ * A LocalFrame with the reason it was chosen (for the summary and report).
+ * `scaleFactor` is the frame's point scale at the site centre (worst of the
+ * east and north directions): frame metres per true metre on the ellipsoid.
+ */
+export interface SiteFrame extends LocalFrame {
+  source: "dem" | "utm" | "ups";
+  reason: string;
+  scaleFactor: number;
+}
+
+/**
+ * Largest departure of the frame's point scale from 1 that we accept when
+ * adopting the DEM's own CRS (0.5 %). Our engineering choice: a typical GSD
+ * tolerance is 5-10 %, and a frame that mis-states distances by more than
+ * half a percent would quietly eat part of it. UTM stays within about
+ * 0.1 % inside its zone, national grids usually less.
+ */
+export const MAX_FRAME_SCALE_ERROR = 0.005;
+
+/** UPS North / South (EPSG 32661 / 32761), as the EPSG registry defines them. */
+const UPS_NORTH = "+proj=stere +lat_0=90 +lon_0=0 +k=0.994 +x_0=2000000 +y_0=2000000 +datum=WGS84 +units=m +no_defs";
+const UPS_SOUTH = "+proj=stere +lat_0=-90 +lon_0=0 +k=0.994 +x_0=2000000 +y_0=2000000 +datum=WGS84 +units=m +no_defs";
+
+type Converter = proj4.Converter;
+const converters = new Map<string, Converter>();
+
+/** One proj4 converter per definition string: building one parses the string. */
+function converterFor(def: string): Converter {
+  let c = converters.get(def);
+  if (!c) {
+    c = proj4("WGS84", def);
+    converters.set(def, c);
+  }
+  return c;
+}
+
+/**
+ * A LocalFrame from a proj4 definition (projected, metric). Longitudes
+ * going out are normalised to [-180, 180].
+ *
+ * @example frameFromProj4("+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs", 32633, "WGS 84 / UTM zone 33N")
+ */
+export function frameFromProj4(def: string, epsg: number | null, name: string): LocalFrame {
+  let conv: Converter;
+  try {
+    conv = converterFor(def);
+  } catch (e) {
+    throw new InputError("crs", def, "a proj4 definition the proj4 library understands", (e as Error).message);
+  }
+  return {
+    proj4: def,
+    epsg,
+    name,
+    fromWgs84(lon: number, lat: number): [number, number] {
+      const p = conv.forward({ x: normaliseLonDeg(lon), y: lat });
+      return [p.x, p.y];
+    },
+    toWgs84(x: number, y: number): [number, number] {
+      const p = conv.inverse({ x, y });
+      return [normaliseLonDeg(p.x), p.y];
+    },
+  };
+}
+
+/**
+ * The metric working frame for a site centred at (lon, lat) in WGS84.
+ * Uses the DEM's own CRS when it is projected, metric (linearUnitM === 1),
+ * usable by proj4 and true to scale at the site within MAX_FRAME_SCALE_ERROR
+ * (so the DEM need not be resampled); otherwise the WGS84 UTM zone of the
+ * centre, or UPS beyond UTM's 84 N / 80 S.
+ *
+ * @example localFrameFor(15.2, 52.1).epsg              // 32633
+ * @example localFrameFor(-2, 54, dem.crs).source       // "dem" for a British National Grid DEM
+ */
+export function localFrameFor(lonDeg: number, latDeg: number, demCrs?: CrsInfo): SiteFrame {
+  if (!Number.isFinite(lonDeg)) throw new InputError("site centre longitude", lonDeg, "a finite number of degrees");
+  if (!Number.isFinite(latDeg) || latDeg < -90 || latDeg > 90) {
+    throw new InputError("site centre latitude", latDeg, "a number of degrees in [-90, 90]");
+  }
+  const lon = normaliseLonDeg(lonDeg);
+  let whyNotDem = "";
+  if (demCrs) {
+    if (demCrs.geographic) whyNotDem = "the DEM's CRS is geographic (degrees)";
+    else if (demCrs.linearUnitM !== 1) whyNotDem = `the DEM's CRS unit is not the metre (${demCrs.linearUnitM} m per unit)`;
+    else {
+      const tried = tryDemFrame(demCrs, lon, latDeg);
+      if (typeof tried === "string") whyNotDem = tried;
+      else return tried;
+    }
+  }
+  const polar = latDeg > UTM_NORTH_LIMIT_DEG || latDeg < UTM_SOUTH_LIMIT_DEG;
+  if (polar) {
+    const north = latDeg > 0;
+    const frame = frameFromProj4(north ? UPS_NORTH : UPS_SOUTH, north ? 32661 : 32761, north ? "WGS 84 / UPS North (N,E)" : "WGS 84 / UPS South (N,E)");
+    return withReason(frame, "ups", `site centre at latitude ${latDeg.toFixed(3)} is beyond UTM's ${north ? "84 N" : "80 S"}: Universal Polar Stereographic`, whyNotDem, lon, latDeg);
+  }
+  const z = utmZoneOf(lon, latDeg);
+  const frame = frameFromProj4(z.proj4, z.epsg, z.name);
+  return withReason(frame, "utm", `UTM zone of the site centre (${lon.toFixed(4)}, ${latDeg.toFixed(4)})`, whyNotDem, lon, latDeg);
+}
+
+function withReason(frame: LocalFrame, source: SiteFrame["source"], reason: string, whyNotDem: string, lon: number, lat: number): SiteFrame {
+  return {
+    ...frame,
+    source,
+    reason: whyNotDem ? `${reason}; not the DEM's CRS because ${whyNotDem}` : reason,
+    scaleFactor: worstScale(frame, lon, lat),
+  };
+}
+
+/** The frame's point scale furthest from 1 (east or north) at a point; NaN if the transform fails there. */
+function worstScale(frame: LocalFrame, lon: number, lat: number): number {
+  // East-west scale is undefined at a pole itself; measure just off it.
+  const latM = Math.max(-89.99, Math.min(89.99, lat));
+  const [kE, kN] = pointScaleFactors(frame.fromWgs84, lon, latM);
+  return Math.abs(kE - 1) >= Math.abs(kN - 1) ? kE : kN;
+}
+
+function tryDemFrame(crs: CrsInfo, lon: number, lat: number): SiteFrame | string {
+  let frame: LocalFrame;
+  try {
+    frame = frameFromProj4(crs.proj4, crs.epsg, crs.name);
+  } catch {
+    return "proj4 cannot use its definition";
+  }
+  let k: number;
+  try {
+    const [x, y] = frame.fromWgs84(lon, lat);
+    const [lonBack, latBack] = frame.toWgs84(x, y);
+    if (![x, y, lonBack, latBack].every(Number.isFinite) || Math.abs(latBack - lat) > 1e-7 || Math.abs(normaliseLonDeg(lonBack - lon)) > 1e-7) {
+      return "its transform does not round-trip at the site";
+    }
+    k = worstScale(frame, lon, lat);
+  } catch {
+    return "its transform fails at the site";
+  }
+  if (!(Math.abs(k - 1) <= MAX_FRAME_SCALE_ERROR)) {
+    return `its scale at the site is ${k.toFixed(4)}, more than ${MAX_FRAME_SCALE_ERROR * 100} % from true`;
+  }
+  return { ...frame, source: "dem", reason: `the DEM's own metric CRS (${crs.name}), scale ${k.toFixed(6)} at the site`, scaleFactor: k };
+}
+
+/**
+ * Frame x/y (metres) of many points to WGS84 lon/lat (degrees, lon in
+ * [-180, 180]). Our loop allocates nothing per point; proj4 itself makes a
+ * small object per call (its API is per point), which is the price of using
+ * the well-kept library rather than our own projection code.
+ *
+ * @example const { lon, lat } = toWgs84Many(frame, xs, ys)
+ */
+export function toWgs84Many(
+  frame: LocalFrame,
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  out?: { lon: Float64Array; lat: Float64Array },
+): { lon: Float64Array; lat: Float64Array } {
+  const n = checkLengths(xs, ys, out && [out.lon, out.lat]);
+  const lon = out?.lon ?? new Float64Array(n);
+  const lat = out?.lat ?? new Float64Array(n);
+  const conv = converterFor(frame.proj4);
+  const p = { x: 0, y: 0 };
+  for (let i = 0; i < n; i++) {
+    p.x = xs[i];
+    p.y = ys[i];
+    const q = conv.inverse(p);
+    lon[i] = normaliseLonDeg(q.x);
+    lat[i] = q.y;
+  }
+  return { lon, lat };
+}
+
+/**
+ * WGS84 lon/lat (degrees) of many points to frame x/y (metres). Longitudes
+ * may be given in any wrap (190 and -170 are the same place).
+ *
+ * @example const { x, y } = fromWgs84Many(frame, lons, lats)
+ */
+export function fromWgs84Many(
+  frame: LocalFrame,
+  lons: ArrayLike<number>,
+  lats: ArrayLike<number>,
+  out?: { x: Float64Array; y: Float64Array },
+): { x: Float64Array; y: Float64Array } {
+  const n = checkLengths(lons, lats, out && [out.x, out.y]);
+  const x = out?.x ?? new Float64Array(n);
+  const y = out?.y ?? new Float64Array(n);
+  const conv = converterFor(frame.proj4);
+  const p = { x: 0, y: 0 };
+  for (let i = 0; i < n; i++) {
+    p.x = normaliseLonDeg(lons[i]);
+    p.y = lats[i];
+    const q = conv.forward(p);
+    x[i] = q.x;
+    y[i] = q.y;
+  }
+  return { x, y };
+}
+
+function checkLengths(a: ArrayLike<number>, b: ArrayLike<number>, outs?: Float64Array[]): number {
+  if (a.length !== b.length) throw new RangeError(`coordinate arrays differ in length (${a.length} vs ${b.length})`);
+  for (const o of outs ?? []) {
+    if (o.length < a.length) throw new RangeError(`output array too short (${o.length} < ${a.length})`);
+  }
+  return a.length;
+}
