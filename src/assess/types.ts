@@ -25,6 +25,8 @@ export interface AssessmentRasters {
   flags: Uint8Array;
   /** 1 for cells whose centre lies inside the site. */
   inSite: Uint8Array;
+  /** Strip number of the most nadir exposure seeing the cell; 0 where none (added by the assessment). */
+  nadirStrip?: Uint16Array;
 }
 
 export interface GsdStats {
@@ -46,7 +48,14 @@ export interface AssessmentStats {
     areaM2: number;
     byKind: Record<string, { cells: number; areaM2: number; pct: number }>;
   };
-  perStrip: { strip: number; cells: number; gsdCm: GsdStats; withinBandPct: number }[];
+  perStrip: {
+    strip: number;
+    cells: number;
+    gsdCm: GsdStats;
+    withinBandPct: number;
+    /** Flagged cells of this strip by flag key; pct is of the strip's own cells (added by the assessment). */
+    flagged?: Record<string, { cells: number; areaM2: number; pct: number }>;
+  }[];
 }
 
 /** One layer per flag kind, polygons in WGS84. */

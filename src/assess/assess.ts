@@ -1,0 +1,76 @@
+import type { MultiPolygon, Polygon } from "geojson";
+import type { Camera, Requirement } from "../camera/types.js";
+import type { DemGrid } from "../dem/grid.js";
+import { InputError } from "../errors.js";
+import { computeCoverage } from "./coverage.js";
+import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
+import { effectFlags, paintCauseZones } from "./flagRaster.js";
+import { flagPolygons, type ToWgs84 } from "./flagPolygons.js";
+import { rasteriseSite } from "./siteMask.js";
+import { assessmentStats } from "./stats.js";
+import type { Assessment } from "./types.js";
+
+/**
+ * The independent check of a plan: from the final waypoints, place the
+ * photos, intersect their footprints with the terrain at full DEM resolution
+ * and measure every site cell's GSD and image count; flag what is wrong
+ * (the assessment's own measurement) and why (the solver's causes, painted
+ * from its stations); summarise and vectorise the flags.
+ */
+
+export interface AssessOptions {
+  /** Distance between photos along a strip, metres. */
+  triggerM: number;
+  /** Fewest photos a cell must be in; fewer sets the too-few-images flag. Default 2 (stereo minimum). */
+  minImages?: number;
+  /** Across-track half-width of each station's zone (half the strip spacing), metres. */
+  zoneHalfAcrossM: number;
+  /** Local frame to WGS84 for the flag polygons. */
+  toWgs84: ToWgs84;
+  /** Where the first photo of each strip falls (see exposuresFromLegs). */
+  phase?: ExposureOptions["phase"];
+}
+
+/**
+ * @example
+ * const a = assessPlan(grid, site.local, solved.legs, camera, requirement, {
+ *   triggerM: layout.triggerM, zoneHalfAcrossM: layout.spacingM / 2, toWgs84: frame.toWgs84,
+ * });
+ * a.stats.withinBandPct; a.rasters.gsdCm; a.polygons.coarse;
+ */
+export function assessPlan(
+  grid: DemGrid,
+  site: Polygon | MultiPolygon,
+  legs: readonly AssessedLeg[],
+  camera: Camera,
+  requirement: Pick<Requirement, "lowGsdM" | "highGsdM">,
+  opts: AssessOptions,
+): Assessment {
+  const minImages = opts.minImages ?? 2;
+  if (!Number.isInteger(minImages) || minImages < 1 || minImages > 65535) {
+    throw new InputError("minImages", minImages, "a whole number from 1 to 65535", "minimum image count out of range");
+  }
+  if (!(opts.zoneHalfAcrossM >= 0) || !Number.isFinite(opts.zoneHalfAcrossM)) {
+    throw new InputError("zoneHalfAcrossM", opts.zoneHalfAcrossM, "a finite number of metres >= 0");
+  }
+  if (!(requirement.lowGsdM > 0 && requirement.highGsdM >= requirement.lowGsdM)) {
+    throw new InputError("requirement", requirement, "0 < lowGsdM <= highGsdM", "GSD band is empty");
+  }
+  const { width, height, transform } = grid;
+  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+
+  const inSite = rasteriseSite(site, width, height, transform);
+  const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
+  const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera);
+  const flags = effectFlags(grid, inSite, gsdCm, images, requirement.lowGsdM * 100, requirement.highGsdM * 100, minImages);
+  paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
+
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2 });
+  const polygons = flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
+  return {
+    rasters: { width, height, transform, gsdCm, images, flags, inSite, nadirStrip },
+    stats,
+    polygons,
+    exposures,
+  };
+}

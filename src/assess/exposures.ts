@@ -1,0 +1,84 @@
+import { InputError } from "../errors.js";
+import type { SolvedLeg, Waypoint } from "../solve/types.js";
+import type { Exposure } from "./types.js";
+
+/**
+ * Places the photos of a plan from its final waypoints.
+ *
+ * The check must see what the aircraft will fly, not what the solver
+ * intended: altitudes come from the straight segments between waypoints
+ * (linear in along-track distance), never from the solver's station profile.
+ */
+
+/** Along-track stretches of a leg where no photos are taken, [sStartM, sEndM] from the leg start. */
+export type NoPhotoIntervals = ReadonlyArray<readonly [number, number]>;
+
+/** A solved leg that layout may have marked with stretches without photos. */
+export type AssessedLeg = SolvedLeg & { noPhotoIntervals?: NoPhotoIntervals };
+
+export interface ExposureOptions {
+  /**
+   * Where the first photo of each strip falls: `start` at s = 0 then every
+   * trigger distance up to the leg end; `centred` spreads the remainder of
+   * lengthM / triggerM evenly over both ends. Default `start`.
+   */
+  phase?: "start" | "centred";
+}
+
+/**
+ * Photos along every `strip` leg, every `triggerM` metres of along-track distance.
+ * @example
+ * const exposures = exposuresFromLegs(solved.legs, layout.triggerM);
+ * exposures[0]; // { x, y, altitudeAmslM, ux, uy, strip }
+ */
+export function exposuresFromLegs(legs: readonly AssessedLeg[], triggerM: number, opts: ExposureOptions = {}): Exposure[] {
+  if (!(triggerM > 0) || !Number.isFinite(triggerM)) {
+    throw new InputError("triggerM", triggerM, "a finite number of metres > 0", "trigger distance must be positive");
+  }
+  const phase = opts.phase ?? "start";
+  const out: Exposure[] = [];
+  for (const leg of legs) {
+    if (leg.kind !== "strip") continue;
+    const ddx = leg.to[0] - leg.from[0];
+    const ddy = leg.to[1] - leg.from[1];
+    const len = Math.hypot(ddx, ddy);
+    if (!(len > 0) || leg.waypoints.length === 0) continue;
+    const ux = ddx / len;
+    const uy = ddy / len;
+    // Half a millimetre of slack keeps a photo that lands on the leg end despite rounding.
+    const n = Math.floor(len / triggerM + 1e-9);
+    const s0 = phase === "centred" ? (len - n * triggerM) / 2 : 0;
+    const gaps = leg.noPhotoIntervals ?? [];
+    const wps = leg.waypoints;
+    let seg = 0;
+    for (let k = 0; k <= n; k++) {
+      const s = s0 + k * triggerM;
+      if (inAnyInterval(s, gaps)) continue;
+      while (seg + 1 < wps.length - 1 && wps[seg + 1].s < s) seg++;
+      out.push({
+        x: leg.from[0] + s * ux,
+        y: leg.from[1] + s * uy,
+        altitudeAmslM: altitudeOnSegment(wps, seg, s),
+        ux,
+        uy,
+        strip: leg.strip,
+      });
+    }
+  }
+  return out;
+}
+
+function inAnyInterval(s: number, gaps: NoPhotoIntervals): boolean {
+  for (const [a, b] of gaps) if (s >= Math.min(a, b) && s <= Math.max(a, b)) return true;
+  return false;
+}
+
+/** Altitude at s on the straight segment from waypoint seg to seg + 1 (held flat beyond the ends). */
+function altitudeOnSegment(wps: readonly Waypoint[], seg: number, s: number): number {
+  const a = wps[seg];
+  if (wps.length === 1 || s <= a.s) return a.altitudeAmslM;
+  const b = wps[seg + 1];
+  if (s >= b.s) return b.altitudeAmslM;
+  const t = (s - a.s) / (b.s - a.s);
+  return a.altitudeAmslM + t * (b.altitudeAmslM - a.altitudeAmslM);
+}

@@ -1,0 +1,98 @@
+import { contours } from "d3-contour";
+import type { Position } from "geojson";
+import type { GeoTransform } from "../dem/grid.js";
+import type { FlagPolygons } from "./types.js";
+import { FLAG_KINDS } from "./flags.js";
+
+/**
+ * Flagged cells as polygons, one MultiPolygon layer per flag kind, for the
+ * GeoJSON and KML exports and the report map.
+ *
+ * d3-contour's marching squares traces the 0.5 level of a 0/1 mask per flag
+ * bit. The mask is cropped to the bit's bounding box and padded by one empty
+ * cell on every side, so rings close at the grid edge instead of running off
+ * it. Traced vertices sit on cell edges (d3 puts value i at pixel i + 0.5),
+ * with corners cut diagonally, so the outline differs from the cells by less
+ * than half a cell along its length. Collinear vertices are dropped in pixel
+ * space, where the coordinates are exact multiples of one half.
+ */
+
+/** Frame x/y (metres) to WGS84 longitude/latitude (degrees), e.g. LocalFrame.toWgs84. */
+export type ToWgs84 = (x: number, y: number) => [number, number];
+
+/**
+ * @example
+ * const layers = flagPolygons(flags, grid.width, grid.height, grid.transform, frame.toWgs84, 0.25);
+ * layers.coarse?.geometry.coordinates; // MultiPolygon in WGS84
+ * @returns one Feature per flag kind that has flagged cells (kinds without cells are left out),
+ *   keyed by FlagKind.key; `areaM2` is the flagged cell area (cells x cellAreaM2).
+ */
+export function flagPolygons(
+  flags: Uint8Array,
+  width: number,
+  height: number,
+  transform: GeoTransform,
+  toWgs84: ToWgs84,
+  cellAreaM2: number,
+): FlagPolygons {
+  const out: FlagPolygons = {};
+  const { x0, y0, dx, dy } = transform;
+  for (const kind of FLAG_KINDS) {
+    const bit = kind.bit;
+    let c0 = width;
+    let c1 = -1;
+    let r0 = height;
+    let r1 = -1;
+    let cells = 0;
+    for (let r = 0; r < height; r++) {
+      const base = r * width;
+      for (let c = 0; c < width; c++) {
+        if (flags[base + c] & bit) {
+          cells++;
+          if (c < c0) c0 = c;
+          if (c > c1) c1 = c;
+          if (r < r0) r0 = r;
+          if (r > r1) r1 = r;
+        }
+      }
+    }
+    if (cells === 0) continue;
+    const mw = c1 - c0 + 3;
+    const mh = r1 - r0 + 3;
+    const mask = new Uint8Array(mw * mh);
+    for (let r = r0; r <= r1; r++) {
+      const src = r * width;
+      const dst = (r - r0 + 1) * mw + 1 - c0;
+      for (let c = c0; c <= c1; c++) if (flags[src + c] & bit) mask[dst + c] = 1;
+    }
+    // d3 reads values by index only, so a typed array serves as its number[].
+    const traced = contours().size([mw, mh]).contour(mask as unknown as number[], 0.5);
+    const toWorld = (p: Position): Position => toWgs84(x0 + (p[0] - 1 + c0) * dx, y0 + (p[1] - 1 + r0) * dy);
+    const coordinates = traced.coordinates.map((polygon) => polygon.map((ring) => dropCollinear(ring).map(toWorld)));
+    out[kind.key] = {
+      type: "Feature",
+      properties: { kind: kind.key, bit, areaM2: cells * cellAreaM2 },
+      geometry: { type: "MultiPolygon", coordinates },
+    };
+  }
+  return out;
+}
+
+/** Remove vertices lying on the straight line through their neighbours (closed ring in, closed ring out). */
+function dropCollinear(ring: Position[]): Position[] {
+  const n = ring.length - 1; // last repeats first
+  if (n < 4) return ring;
+  const kept: Position[] = [];
+  for (let i = 0; i < n; i++) {
+    const a = ring[(i - 1 + n) % n];
+    const b = ring[i];
+    const c = ring[(i + 1) % n];
+    const cross = (b[0] - a[0]) * (c[1] - b[1]) - (b[1] - a[1]) * (c[0] - b[0]);
+    const dot = (b[0] - a[0]) * (c[0] - b[0]) + (b[1] - a[1]) * (c[1] - b[1]);
+    if (cross === 0 && dot > 0) continue;
+    kept.push(b);
+  }
+  if (kept.length < 3) return ring;
+  kept.push(kept[0]);
+  return kept;
+}

@@ -1,0 +1,121 @@
+import type { DemGrid } from "../dem/grid.js";
+import {
+  CAUSE_CEILING,
+  CAUSE_CLEARANCE,
+  CAUSE_CLIMB,
+  CAUSE_NODATA,
+  STATUS_UNFLYABLE,
+  type SolvedLeg,
+} from "../solve/types.js";
+import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA, FLAG_UNFLYABLE } from "./flags.js";
+import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
+
+/**
+ * The per-cell flag bitmask, in two independent halves:
+ * - effect bits (coarse, fine, too few images) are the assessment's own
+ *   measurement from the photos placed on the final waypoints;
+ * - cause bits (ceiling, clearance or climb, unflyable) are the solver's
+ *   explanation, painted from its station statuses onto the zone each
+ *   station images best. No-data comes from the DEM itself.
+ * Keeping them apart lets a test check that the two agree: every cell the
+ * measurement finds out of band should carry a cause the solver gave.
+ */
+
+/**
+ * Relative slack on the band edges: GSD is stored as float32 (about 6e-8
+ * relative), so a cell flown exactly at a band edge must not flip out of band
+ * by rounding.
+ */
+const BAND_SLACK = 1e-6;
+
+/**
+ * Effect bits and the no-data bit for site cells; 0 outside the site.
+ * @example
+ * const flags = effectFlags(grid, inSite, coverage.gsdCm, coverage.images, 2.7, 3.3, 2);
+ */
+export function effectFlags(
+  grid: DemGrid,
+  inSite: Uint8Array,
+  gsdCm: Float32Array,
+  images: Uint16Array,
+  lowGsdCm: number,
+  highGsdCm: number,
+  minImages: number,
+): Uint8Array {
+  const n = grid.width * grid.height;
+  const flags = new Uint8Array(n);
+  const lo = lowGsdCm * (1 - BAND_SLACK);
+  const hi = highGsdCm * (1 + BAND_SLACK);
+  const valid = grid.valid;
+  for (let i = 0; i < n; i++) {
+    if (inSite[i] === 0) continue;
+    if (valid[i] === 0) {
+      flags[i] = FLAG_NODATA;
+      continue;
+    }
+    let f = 0;
+    const g = gsdCm[i];
+    if (g > hi) f |= FLAG_COARSE;
+    else if (g < lo) f |= FLAG_FINE;
+    if (images[i] < minImages) f |= FLAG_FEW_IMAGES;
+    flags[i] = f;
+  }
+  return flags;
+}
+
+/** Flag bits a station paints: the solver's cause bits mapped onto the assessment's. */
+export function stationFlagBits(status: number, cause: number): number {
+  let f = 0;
+  if (cause & CAUSE_CEILING) f |= FLAG_CEILING;
+  if (cause & (CAUSE_CLEARANCE | CAUSE_CLIMB)) f |= FLAG_CLEARANCE;
+  if (cause & CAUSE_NODATA) f |= FLAG_NODATA;
+  if (status === STATUS_UNFLYABLE) f |= FLAG_UNFLYABLE;
+  return f;
+}
+
+/**
+ * OR each strip station's cause bits into the site cells of its zone: the
+ * rectangle around the station reaching `zoneHalfAcrossM` across the track
+ * and half the station step along it (half the gap to each neighbour, so
+ * zones tile the strip without holes where stations are unevenly spaced).
+ * @example
+ * paintCauseZones(flags, grid, inSite, solved.legs, layout.spacingM / 2);
+ */
+export function paintCauseZones(
+  flags: Uint8Array,
+  grid: DemGrid,
+  inSite: Uint8Array,
+  legs: readonly SolvedLeg[],
+  zoneHalfAcrossM: number,
+): void {
+  const { width, height } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const rows = new Int32Array(2);
+  const span = new Int32Array(2);
+  for (const leg of legs) {
+    if (leg.kind !== "strip") continue;
+    const p = leg.profile;
+    const m = p.s.length;
+    if (m === 0) continue;
+    const len = Math.hypot(leg.to[0] - leg.from[0], leg.to[1] - leg.from[1]);
+    if (!(len > 0)) continue;
+    const ux = (leg.to[0] - leg.from[0]) / len;
+    const uy = (leg.to[1] - leg.from[1]) / len;
+    for (let k = 0; k < m; k++) {
+      const bits = stationFlagBits(p.status[k], p.cause[k]);
+      if (bits === 0) continue;
+      const back = k > 0 ? p.s[k] - p.s[k - 1] : k + 1 < m ? p.s[k + 1] - p.s[k] : 0;
+      const ahead = k + 1 < m ? p.s[k + 1] - p.s[k] : back;
+      // Symmetric half-length covering half of the larger gap keeps neighbouring zones touching.
+      const halfAlong = Math.max(back, ahead) / 2;
+      const px = p.x[k];
+      const py = p.y[k];
+      orientedRectRowRange(py, ux, uy, halfAlong, zoneHalfAcrossM, y0, dy, height, rows);
+      for (let r = rows[0]; r <= rows[1]; r++) {
+        orientedRectColSpan(y0 + (r + 0.5) * dy, px, py, ux, uy, halfAlong, zoneHalfAcrossM, x0, dx, width, span);
+        const base = r * width;
+        for (let c = span[0]; c <= span[1]; c++) if (inSite[base + c] === 1) flags[base + c] |= bits;
+      }
+    }
+  }
+}
