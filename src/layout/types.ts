@@ -12,6 +12,8 @@ export interface Site {
   areaM2: number;
   /** Name for reports (from the file's properties or its file name). */
   name: string;
+  /** Silent fixes made while reading (e.g. a ring rewound to RFC 7946 winding), for the summary. */
+  notes?: string[];
 }
 
 /** One straight leg of the flight path, in flight order. */
@@ -23,6 +25,12 @@ export interface LayoutLeg {
   from: XY;
   to: XY;
   lengthM: number;
+  /**
+   * Strip legs only: along-track intervals [start, end] in metres from `from`
+   * where no photo is needed (the strip's whole zone lies over a hole of the
+   * site, e.g. an excluded courtyard). Sorted, disjoint; absent when none.
+   */
+  noPhotoIntervals?: [number, number][];
 }
 
 export interface Layout {
