@@ -1,0 +1,55 @@
+import { describe, it, expect } from "vitest";
+import fc from "fast-check";
+import { countStats, quantilesFloat32 } from "../../src/assess/quantiles.js";
+
+/**
+ * Straightforward reference: sort, then interpolate linearly at h = (n - 1) p
+ * (Hyndman & Fan 1996, type 7, the default of R and NumPy).
+ */
+function sortedQuantile(values: number[], p: number): number {
+  const s = values.filter((v) => !Number.isNaN(v)).sort((a, b) => a - b);
+  if (s.length === 0) return NaN;
+  const h = (s.length - 1) * p;
+  const lo = Math.floor(h);
+  const hi = Math.min(s.length - 1, lo + 1);
+  return s[lo] + (h - lo) * (s[hi] - s[lo]);
+}
+
+const PS = [0, 0.05, 0.5, 0.95, 1];
+
+describe("exact quantiles by radix selection", () => {
+  it("agree with a sort on random float32 samples (with NaN and negatives)", () => {
+    fc.assert(
+      fc.property(fc.array(fc.oneof(fc.float({ noNaN: true, noDefaultInfinity: true, min: -1e6, max: 1e6 }), fc.constant(NaN)), { minLength: 1, maxLength: 400 }), (raw) => {
+        const values = Float32Array.from(raw);
+        const got = quantilesFloat32(values, PS);
+        const want = PS.map((p) => sortedQuantile(Array.from(values), p));
+        for (let k = 0; k < PS.length; k++) {
+          if (Number.isNaN(want[k])) expect(got[k]).toBeNaN();
+          else expect(got[k]).toBeCloseTo(want[k], 6);
+        }
+      }),
+      { numRuns: 300 },
+    );
+  });
+
+  it("agree with a sort on a large GSD-like sample with many ties", () => {
+    const n = 200_001;
+    const values = new Float32Array(n);
+    let seed = 12345;
+    for (let i = 0; i < n; i++) {
+      seed = (seed * 1103515245 + 12345) >>> 0;
+      values[i] = 2 + Math.round((seed / 2 ** 32) * 1000) / 1000;
+    }
+    const want = PS.map((p) => sortedQuantile(Array.from(values), p));
+    expect(quantilesFloat32(values, PS)).toEqual(want);
+  });
+
+  it("count stats: min and median of the included cells", () => {
+    const v = Uint16Array.from([5, 1, 9, 7, 3, 100, 0]);
+    const inc = Uint8Array.from([1, 1, 1, 1, 1, 1, 0]);
+    // Included: 1 3 5 7 9 100 -> median (5 + 7) / 2 = 6.
+    expect(countStats(v, inc)).toEqual({ min: 1, median: 6 });
+    expect(countStats(v, new Uint8Array(7))).toEqual({ min: NaN, median: NaN });
+  });
+});
