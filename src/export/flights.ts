@@ -1,0 +1,226 @@
+/**
+ * Splits the solved path into flights (one battery each) at strip ends, by
+ * usable endurance and the autopilot's waypoint budget. Every flight starts
+ * and ends at the take-off point.
+ *
+ * The legs to and from take-off are made by the caller's `transitLeg`
+ * function, so the integrator can have the solver fly them over the terrain
+ * (the better choice), or use `straightTransitLeg` below: two waypoints at one
+ * safe altitude the caller names. The path's own first leg (the solver's
+ * transit from take-off) is kept for the first flight.
+ */
+import type { XY } from "../layout/types.js";
+import type { SolvedLeg, SolveWarning, StationProfile, Waypoint } from "../solve/types.js";
+import { countRows, legsJoin } from "./rows.js";
+
+export interface Flight {
+  /** 1-based. */
+  index: number;
+  /** Transit from take-off, strips and their connecting transits, transit back to take-off. */
+  legs: SolvedLeg[];
+  /** Strip numbers flown, in order. */
+  strips: number[];
+  /** Leg times plus the vertical moves between legs and at take-off and landing. */
+  timeS: number;
+  lengthM: number;
+  /** Distinct waypoints (rows of waypoints.csv). */
+  waypoints: number;
+}
+
+export interface FlightSplitOptions {
+  takeoff: XY;
+  enduranceMin: number;
+  /** Percent of endurance kept in reserve (default 20). */
+  reservePct?: number;
+  /** Autopilot waypoint limit per flight; null or undefined: none. */
+  maxWaypoints?: number | null;
+  /** Makes a transit leg from `from` to `to`; `strip` is the number the leg carries. */
+  transitLeg: (from: XY, to: XY, strip: number, direction: "out" | "back") => SolvedLeg;
+  /** For the time of vertical moves: climb and descent rates, m/s. */
+  maxClimbMps?: number;
+  maxDescentMps?: number;
+  /** Ground at take-off (same datum as the legs): adds the climb after take-off and the descent to land. */
+  takeoffGroundM?: number;
+}
+
+export interface FlightSplit {
+  flights: Flight[];
+  /** Equal to flights.length: one battery per flight. */
+  batteries: number;
+  warnings: SolveWarning[];
+}
+
+/**
+ * @example
+ *   const { flights, batteries } = splitFlights(solved.legs, {
+ *     takeoff: layout.takeoff, enduranceMin: 20, reservePct: 20, maxWaypoints: 99,
+ *     transitLeg: (a, b, strip) => straightTransitLeg(a, b, strip, { altitudeAmslM: 650, speedMps: 12 }),
+ *   });
+ */
+export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions): FlightSplit {
+  const usableS = o.enduranceMin * 60 * (1 - (o.reservePct ?? 20) / 100);
+  const maxWp = o.maxWaypoints ?? Infinity;
+  const warnings: SolveWarning[] = [];
+  const blocks = stripBlocks(legs);
+  const flights: SolvedLeg[][] = [];
+  let current: SolvedLeg[] = [];
+
+  const opening = (b: Block, first: boolean): SolvedLeg[] => {
+    if (first && b.leading.length && near(b.leading[0].from, o.takeoff)) return [...b.leading, ...b.body];
+    return [o.transitLeg(o.takeoff, b.body[0].from, b.strip, "out"), ...b.body];
+  };
+  const close = (f: SolvedLeg[]): SolvedLeg[] => {
+    const last = f[f.length - 1];
+    return [...f, o.transitLeg(last.to, o.takeoff, last.strip, "back")];
+  };
+  const fits = (f: SolvedLeg[]) => flightTimeS(f, o) <= usableS && countRows(f) <= maxWp;
+
+  blocks.forEach((b, bi) => {
+    if (current.length) {
+      const extended = [...current, ...b.leading, ...b.body];
+      if (fits(close(extended))) {
+        current = extended;
+        return;
+      }
+      flights.push(close(current));
+    }
+    current = opening(b, bi === 0);
+    const alone = close(current);
+    if (flightTimeS(alone, o) > usableS) {
+      warnings.push({
+        code: "strip-exceeds-endurance",
+        message: `strip ${b.strip} alone needs ${(flightTimeS(alone, o) / 60).toFixed(1)} min with its transits, more than the usable ${(usableS / 60).toFixed(1)} min (endurance less ${o.reservePct ?? 20} % reserve); shorten the strips or split the site`,
+      });
+    }
+    if (countRows(alone) > maxWp) {
+      warnings.push({
+        code: "strip-exceeds-waypoints",
+        message: `strip ${b.strip} alone needs ${countRows(alone)} waypoints with its transits, more than the autopilot's ${maxWp}`,
+      });
+    }
+  });
+  if (current.length) flights.push(close(current));
+
+  const out = flights.map((f, i) => ({
+    index: i + 1,
+    legs: f,
+    strips: [...new Set(f.filter((l) => l.kind === "strip").map((l) => l.strip))],
+    timeS: flightTimeS(f, o),
+    lengthM: f.reduce((a, l) => a + l.lengthM, 0),
+    waypoints: countRows(f),
+  }));
+  return { flights: out, batteries: out.length, warnings };
+}
+
+interface Block {
+  strip: number;
+  /** Transits before the block's first strip leg (replaced when a flight starts here). */
+  leading: SolvedLeg[];
+  body: SolvedLeg[];
+}
+
+/** Groups consecutive legs by strip number: a strip, the gaps cut in it, and the transits leading in. */
+function stripBlocks(legs: readonly SolvedLeg[]): Block[] {
+  const blocks: Block[] = [];
+  for (const leg of legs) {
+    let b = blocks[blocks.length - 1];
+    if (!b || b.strip !== leg.strip) {
+      b = { strip: leg.strip, leading: [], body: [] };
+      blocks.push(b);
+    }
+    if (!b.body.length && leg.kind === "transit") b.leading.push(leg);
+    else b.body.push(leg);
+  }
+  // A block of transits only (no photos) flies on with the next block.
+  for (let i = blocks.length - 2; i >= 0; i--) {
+    if (!blocks[i].body.length) {
+      blocks[i + 1].leading.unshift(...blocks[i].leading);
+      blocks.splice(i, 1);
+    }
+  }
+  return blocks.filter((b) => b.body.length);
+}
+
+function near(a: XY, b: XY): boolean {
+  return Math.hypot(a[0] - b[0], a[1] - b[1]) <= 0.01;
+}
+
+/** Leg times, plus vertical moves where legs meet at different altitudes, plus take-off climb and landing descent. */
+export function flightTimeS(legs: readonly SolvedLeg[], o: Pick<FlightSplitOptions, "maxClimbMps" | "maxDescentMps" | "takeoffGroundM">): number {
+  const climb = o.maxClimbMps ?? Infinity;
+  const descent = o.maxDescentMps ?? Infinity;
+  const vertical = (dz: number) => (dz > 0 ? dz / climb : -dz / descent);
+  let t = 0;
+  for (let i = 0; i < legs.length; i++) {
+    t += legs[i].timeS;
+    if (i > 0 && !legsJoin(legs[i - 1], legs[i])) {
+      const a = legs[i - 1].waypoints[legs[i - 1].waypoints.length - 1];
+      const b = legs[i].waypoints[0];
+      if (a && b) t += vertical(b.altitudeAmslM - a.altitudeAmslM);
+    }
+  }
+  if (o.takeoffGroundM !== undefined && legs.length) {
+    const first = legs[0].waypoints[0];
+    const lastLeg = legs[legs.length - 1];
+    const last = lastLeg.waypoints[lastLeg.waypoints.length - 1];
+    if (first) t += vertical(first.altitudeAmslM - o.takeoffGroundM);
+    if (last) t += vertical(o.takeoffGroundM - last.altitudeAmslM);
+  }
+  return t;
+}
+
+export interface StraightTransitOptions {
+  /** The safe altitude to fly at, metres (the legs' datum). */
+  altitudeAmslM: number;
+  speedMps: number;
+  /** Ground height at a local point, for the waypoints' AGL; omitted: NaN. */
+  groundAt?: (x: number, y: number) => number;
+}
+
+/**
+ * A straight transit leg of two waypoints at one altitude. The caller must
+ * choose an altitude that clears everything between the ends (for example
+ * the highest ground in a buffer around the line plus clearance, under the
+ * ceiling); this function does not look at the terrain.
+ *
+ * @example straightTransitLeg([0, 0], [300, 400], 1, { altitudeAmslM: 650, speedMps: 10 }).lengthM // 500
+ */
+export function straightTransitLeg(from: XY, to: XY, strip: number, p: StraightTransitOptions): SolvedLeg {
+  const lengthM = Math.hypot(to[0] - from[0], to[1] - from[1]);
+  const ground = (xy: XY) => (p.groundAt ? p.groundAt(xy[0], xy[1]) : NaN);
+  const wp = (xy: XY, s: number, speedMps: number): Waypoint => ({
+    x: xy[0],
+    y: xy[1],
+    s,
+    altitudeAmslM: p.altitudeAmslM,
+    groundAmslM: ground(xy),
+    heightAboveGroundM: p.altitudeAmslM - ground(xy),
+    speedMps,
+  });
+  const f64 = (a: number, b: number) => Float64Array.of(a, b);
+  const g0 = ground(from);
+  const g1 = ground(to);
+  const profile: StationProfile = {
+    s: f64(0, lengthM),
+    x: f64(from[0], to[0]),
+    y: f64(from[1], to[1]),
+    groundM: f64(g0, g1),
+    hardLowM: f64(NaN, NaN),
+    hardHighM: f64(NaN, NaN),
+    bandLowM: f64(NaN, NaN),
+    bandHighM: f64(NaN, NaN),
+    altitudeM: f64(p.altitudeAmslM, p.altitudeAmslM),
+    status: new Uint8Array(2),
+    cause: new Uint8Array(2),
+  };
+  return {
+    kind: "transit",
+    strip,
+    from,
+    to,
+    waypoints: [wp(from, 0, 0), wp(to, lengthM, p.speedMps)],
+    profile,
+    lengthM,
+    timeS: lengthM / p.speedMps,
+  };
+}

@@ -1,0 +1,127 @@
+/**
+ * The waypoint table every exporter shares: one row per distinct waypoint in
+ * flight order, with all three altitude references.
+ *
+ * Joined legs: when a leg's last waypoint and the next leg's first are the
+ * same point (within 1 cm horizontally and vertically), one row stands for
+ * both, and it carries the leg that ENDS there (its segment, strip and speed).
+ * When they differ in altitude only, both rows appear: the second is a
+ * vertical move without photos and is labelled `transit` with speed 0, like a
+ * flight's first row (the take-off point). So `segment` always names the leg
+ * that ends at the row, and photos are taken on the `strip` rows' legs.
+ */
+import type { VerticalDatum } from "../dem/grid.js";
+import type { SolvedLeg, Waypoint } from "../solve/types.js";
+
+export interface WaypointRow {
+  /** 1-based flight (battery) number. */
+  flight: number;
+  /** 1-based strip number; transit rows carry the strip they lead into, a flight's return leg the strip it leaves. */
+  strip: number;
+  /** 1-based within the strip number in this flight. */
+  index: number;
+  segment: "strip" | "transit";
+  /** Local frame metres. */
+  x: number;
+  y: number;
+  longitude: number;
+  latitude: number;
+  altitudeAmslM: number;
+  altitudeEllipsoidM: number;
+  /** Above the take-off point's ground. */
+  altitudeTakeoffM: number;
+  groundAmslM: number;
+  heightAboveGroundM: number;
+  /** Ground speed on the leg ending here; 0 on a flight's first row and on vertical-only moves. */
+  speedMps: number;
+}
+
+/** How the legs' heights relate to sea level and the ellipsoid. */
+export interface HeightReference {
+  /**
+   * Datum of every height in the legs and of `takeoffGroundM` (the DEM's).
+   * `ellipsoid`: heights are ellipsoidal and AMSL = h - N; anything else is
+   * taken as orthometric (AMSL) and ellipsoidal = H + N.
+   */
+  datum: VerticalDatum;
+  /** Geoid undulation N (metres) of the DEM's geoid at a WGS84 point, e.g. EGM96. */
+  undulationM: (lon: number, lat: number) => number;
+  /** Ground height at the take-off point, in `datum`. */
+  takeoffGroundM: number;
+}
+
+const JOIN_TOLERANCE_M = 0.01;
+
+/** True when `b`'s first waypoint is the same point as `a`'s last (one row for both). */
+export function legsJoin(a: SolvedLeg, b: SolvedLeg): boolean {
+  const p = a.waypoints[a.waypoints.length - 1];
+  const q = b.waypoints[0];
+  if (!p || !q) return false;
+  return (
+    Math.hypot(p.x - q.x, p.y - q.y) <= JOIN_TOLERANCE_M && Math.abs(p.altitudeAmslM - q.altitudeAmslM) <= JOIN_TOLERANCE_M
+  );
+}
+
+/** Number of rows a flight's legs give (the autopilot's waypoint count). */
+export function countRows(legs: readonly SolvedLeg[]): number {
+  let n = 0;
+  for (let i = 0; i < legs.length; i++) {
+    n += legs[i].waypoints.length;
+    if (i > 0 && legsJoin(legs[i - 1], legs[i])) n -= 1;
+  }
+  return n;
+}
+
+/**
+ * Flattens flights of legs into waypoint rows, in flight order.
+ *
+ * @example
+ *   const rows = waypointRows(flights.map((f) => f.legs), frame.toWgs84,
+ *     { datum: "egm96", undulationM: (lon, lat) => meanSeaLevel(lat, lon), takeoffGroundM: 412.3 });
+ */
+export function waypointRows(
+  flights: readonly (readonly SolvedLeg[])[],
+  toWgs84: (x: number, y: number) => [number, number],
+  heights: HeightReference,
+): WaypointRow[] {
+  const rows: WaypointRow[] = [];
+  const ellipsoidal = heights.datum === "ellipsoid";
+  flights.forEach((legs, fi) => {
+    let strip = -1;
+    let index = 0;
+    const push = (leg: SolvedLeg, w: Waypoint, segment: "strip" | "transit", speedMps: number) => {
+      if (leg.strip !== strip) {
+        strip = leg.strip;
+        index = 0;
+      }
+      index += 1;
+      const [lon, lat] = toWgs84(w.x, w.y);
+      const n = heights.undulationM(lon, lat);
+      rows.push({
+        flight: fi + 1,
+        strip: leg.strip,
+        index,
+        segment,
+        x: w.x,
+        y: w.y,
+        longitude: lon,
+        latitude: lat,
+        altitudeAmslM: ellipsoidal ? w.altitudeAmslM - n : w.altitudeAmslM,
+        altitudeEllipsoidM: ellipsoidal ? w.altitudeAmslM : w.altitudeAmslM + n,
+        altitudeTakeoffM: w.altitudeAmslM - heights.takeoffGroundM,
+        groundAmslM: ellipsoidal ? w.groundAmslM - n : w.groundAmslM,
+        heightAboveGroundM: w.heightAboveGroundM,
+        speedMps,
+      });
+    };
+    legs.forEach((leg, li) => {
+      const joined = li > 0 && legsJoin(legs[li - 1], leg);
+      leg.waypoints.forEach((w, wi) => {
+        if (wi === 0) {
+          if (!joined) push(leg, w, "transit", 0);
+        } else push(leg, w, leg.kind, w.speedMps);
+      });
+    });
+  });
+  return rows;
+}
