@@ -1,9 +1,10 @@
 import type { Command } from "commander";
+import { registerInspect } from "./inspect.js";
 
 /**
  * Every subcommand registers itself here. Command modules must keep heavy
  * imports (geotiff, turf, proj4) inside their action handlers.
  */
 export function registerCommands(program: Command): void {
-  void program;
+  registerInspect(program);
 }
