@@ -13,6 +13,8 @@
  */
 import { mergeIntervals, type Interval } from "./intervals.js";
 
+const SLIVER_M = 1e-6;
+
 /** Polygon edges in strip coordinates, one entry per edge. */
 export interface StripFrameEdges {
   a0: Float64Array;
@@ -81,7 +83,8 @@ export function bandProjection(edges: StripFrameEdges, cLo: number, cHi: number)
   for (let j = 0; j + 1 < cuts.length; j++) {
     const s0 = cuts[j];
     const s1 = cuts[j + 1];
-    if (!(s1 > s0)) continue;
+    // Slivers thinner than a micrometre are rounding (a lon/lat round trip), not ground.
+    if (!(s1 - s0 > SLIVER_M)) continue;
     atLo.length = 0;
     atHi.length = 0;
     for (let i = 0; i < n; i++) {

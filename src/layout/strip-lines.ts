@@ -71,14 +71,18 @@ export function stripLegsAtHeading(site: Site, headingDeg: number, opts: StripLi
     const c = firstC + k * spacingM;
     const lo = c - spacingM / 2;
     const hi = c + spacingM / 2;
-    const spans = expandIntervals(bandProjection(outerEdges, lo, hi), footprintAlongM / 2);
-    if (spans.length === 0) continue;
-    const photo = hasHoles ? expandIntervals(bandProjection(allEdges, lo, hi), holeMarginM) : spans;
-    const pieces = spans.map(([a0, a1]): Piece => {
-      const inside = photo.filter((iv) => iv[1] > a0 && iv[0] < a1);
-      return { a0, a1, noPhoto: hasHoles ? subtractIntervals([a0, a1], inside, 1e-6) : [] };
-    });
-    lines.push({ c, pieces });
+    // No photos where the zone lies over holes only: the site's own extent along
+    // the line minus the extent with holes taken out (grown by the hole margin).
+    // The run-on past the outer boundary keeps its photos.
+    const ground = bandProjection(outerEdges, lo, hi);
+    const photo = hasHoles ? expandIntervals(bandProjection(allEdges, lo, hi), holeMarginM) : [];
+    const noPhoto = hasHoles ? ground.flatMap((iv) => subtractIntervals(iv, photo, 1e-6)) : [];
+    const pieces = expandIntervals(ground, footprintAlongM / 2).map(([a0, a1]): Piece => ({
+      a0,
+      a1,
+      noPhoto: noPhoto.filter((iv) => iv[0] >= a0 && iv[1] <= a1),
+    }));
+    if (pieces.length) lines.push({ c, pieces });
   }
 
   const toXY = (a: number, c: number): XY => [a * ux + c * uy, a * uy - c * ux];
