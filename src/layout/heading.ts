@@ -113,7 +113,8 @@ export function chooseHeading(site: Site, opts: StripLineOptions & HeadingCostOp
     candidates.push(scoreHeading(site, hd, opts));
   }
   // Ties (a square over flat ground) go to the smaller heading, so the choice is stable.
-  candidates.sort((p, q) => p.score - q.score || p.headingDeg - q.headingDeg);
+  // (Scores are compared to the microsecond so float noise does not break ties.)
+  candidates.sort((p, q) => Math.round(p.score * 1e6) - Math.round(q.score * 1e6) || p.headingDeg - q.headingDeg);
   return { candidates, reason: headingReason(candidates, opts.grid !== undefined, climb) };
 }
 
@@ -144,13 +145,13 @@ function headingReason(c: HeadingCandidate[], withTerrain: boolean, climbMps: nu
   const tail = withTerrain
     ? `; score = flight time + altitude change / ${climbMps} m/s`
     : "; no DEM given, so only flight time counted";
-  return `${head}: ${terms.join(" and ")} than the best heading more than 10 degrees away (${nextText})${tail}`;
+  return `${head}: ${terms.join(" and ")}, compared with the best heading more than 10 degrees away (${nextText})${tail}`;
 }
 
 function compare(best: number, other: number, what: string): string {
-  if (other <= 0 && best <= 0) return `the same ${what}`;
+  if (other <= 0 && best <= 0) return `equal ${what}`;
   const pct = ((other - best) / Math.max(other, 1e-12)) * 100;
-  if (Math.abs(pct) < 0.5) return `about the same ${what}`;
+  if (Math.abs(pct) < 0.5) return `about equal ${what}`;
   return pct > 0 ? `${Math.round(pct)}% less ${what}` : `${Math.round(-pct)}% more ${what}`;
 }
 
