@@ -12,6 +12,8 @@ export const CAUSE_CEILING = 1;
 export const CAUSE_CLEARANCE = 2;
 export const CAUSE_CLIMB = 4;
 export const CAUSE_NODATA = 8;
+/** The zone's own relief is wider than the band: no single height gives the whole zone its GSD. */
+export const CAUSE_RELIEF = 16;
 
 export type CeilingReference = "ground" | "surface" | "takeoff";
 
@@ -39,6 +41,8 @@ export interface SolverOptions {
   onConflict: "skip" | "clearance";
   /** Height to assume where the DEM has no data; undefined: nodata is unflyable. */
   assumeGroundM?: number;
+  /** Camera pixel pitch / focal length (GSD = height * ifov); lets input errors say which GSD range is legal. */
+  ifov?: number;
 }
 
 /** Per-station corridor and result along one leg (all heights metres AMSL). */
@@ -80,6 +84,8 @@ export interface SolvedLeg {
   profile: StationProfile;
   lengthM: number;
   timeS: number;
+  /** True for a transit that bridges a stretch of a strip skipped as unflyable (`onConflict: "skip"`). */
+  conflictGap?: boolean;
 }
 
 export interface SolveWarning {

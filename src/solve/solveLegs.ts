@@ -1,0 +1,334 @@
+import type { DemGrid } from "../dem/grid.js";
+import { InputError } from "../errors.js";
+import type { LayoutLeg, XY } from "../layout/types.js";
+import { corridorAlong } from "./corridor.js";
+import { gradientLimits, segmentSpeed } from "./gradient.js";
+import { minLinkPath } from "./minLinkPath.js";
+import { stationsAlongLeg } from "./stations.js";
+import { hardEnvelope, targetGates } from "./targetGates.js";
+import {
+  CAUSE_CLIMB,
+  CAUSE_NODATA,
+  STATUS_DETAIL_LIMITED,
+  STATUS_OK,
+  STATUS_UNFLYABLE,
+  type SolvedLeg,
+  type SolveResult,
+  type SolverOptions,
+  type SolveWarning,
+  type StationProfile,
+  type Waypoint,
+} from "./types.js";
+import { gsdRange, validateSolverOptions } from "./validate.js";
+
+interface Piece {
+  kind: "strip" | "transit";
+  strip: number;
+  profile: StationProfile;
+  conflictGap: boolean;
+  /** Waypoints added after the path: a vertical step onto the next leg's start height. */
+  stepToM?: number;
+}
+
+/**
+ * Waypoint altitudes for every leg of a layout: strips through the detail
+ * band, transits with clearance, fewest waypoints (see minLinkPath).
+ *
+ * - Strips are solved first, each on its own; transits after, starting at the
+ *   previous leg's end height and ending at the next strip's start height.
+ * - `onConflict: "skip"` ends a strip before an unflyable stretch (or nodata)
+ *   and resumes after it; the gap becomes a transit (`conflictGap`) that keeps
+ *   clearance. `"clearance"` flies conflicts keeping clearance and reports the
+ *   ceiling breach. Nodata is never flown as a strip.
+ * - Stations whose band was met pointwise but not reachable within the climb
+ *   and descent limits become detail-limited with CAUSE_CLIMB.
+ * Every altitude is metres AMSL; the result is a plan to check, not a permit:
+ * local rules, airspace and the pilot in command decide.
+ * @example solvePlan(grid, layout.legs, opts).legs[1].waypoints
+ */
+export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions): SolveResult {
+  validateSolverOptions(opts);
+  const work = opts.assumeGroundM !== undefined ? fillNodata(grid, opts.assumeGroundM) : grid;
+  const warnings: SolveWarning[] = [];
+  const pieces: Piece[] = [];
+  const stripProfiles: StationProfile[] = [];
+  const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
+
+  for (const leg of legs) {
+    const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM);
+    const prof = corridorAlong(work, st, opts, { band: leg.kind === "strip" });
+    if (leg.kind === "transit") {
+      pieces.push({ kind: "transit", strip: leg.strip, profile: prof, conflictGap: false });
+      continue;
+    }
+    stripProfiles.push(prof);
+    splitStrip(prof, leg.strip, opts.onConflict, pieces);
+  }
+  checkTargetReachable(stripProfiles, opts);
+
+  const paths: (Float64Array | null)[] = pieces.map(() => null);
+  const vertices: (Int32Array | null)[] = pieces.map(() => null);
+  const solveOne = (i: number, pinStart?: number, pinEnd?: number) => {
+    const p = pieces[i];
+    const r = solvePiece(p, opts, bandWidthM, pinStart, pinEnd, warnings);
+    paths[i] = r.altitudeM;
+    vertices[i] = r.vertexStation;
+    if (r.stepToM !== undefined) p.stepToM = r.stepToM;
+  };
+  pieces.forEach((p, i) => { if (p.kind === "strip") solveOne(i); });
+  pieces.forEach((p, i) => {
+    if (p.kind !== "transit") return;
+    const prev = i > 0 ? paths[i - 1] : null;
+    const pinStart = prev ? (pieces[i - 1].stepToM ?? prev[prev.length - 1]) : undefined;
+    const next = i + 1 < pieces.length && pieces[i + 1].kind === "strip" ? paths[i + 1] : null;
+    solveOne(i, pinStart, next ? next[0] : undefined);
+  });
+
+  const out: SolvedLeg[] = pieces.map((p, i) => buildLeg(p, paths[i]!, vertices[i]!, opts));
+  const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
+  for (const leg of out) {
+    if (leg.kind !== "strip" && !leg.conflictGap) continue;
+    const st = leg.profile.status;
+    const n = st.length;
+    for (let k = 0; k < n; k++) {
+      // A gap shares its end stations with the strips beside it: count only its own.
+      if (leg.conflictGap && st[k] !== STATUS_UNFLYABLE) continue;
+      if (st[k] === STATUS_OK) counts.ok++;
+      else if (st[k] === STATUS_DETAIL_LIMITED) counts.detailLimited++;
+      else counts.unflyable++;
+    }
+  }
+  ceilingBreaches(out, warnings);
+  warnings.push({
+    code: "ceiling-rule",
+    message: `Ceiling applied: ${opts.ceiling.heightM} m ${ceilingWords(opts.ceiling.reference)}. Check the rules where you fly; local limits, airspace restrictions and permissions override this plan.`,
+  });
+  if (opts.clearance.obstacleMarginM === 0) {
+    warnings.push({ code: "obstacle-margin", message: "No obstacle margin: a bare-earth DEM does not show trees, masts or buildings; verify clearance on site." });
+  }
+  return { legs: out, warnings, counts };
+}
+
+function ceilingWords(ref: SolverOptions["ceiling"]["reference"]): string {
+  if (ref === "ground") return "above the ground straight below";
+  if (ref === "surface") return "from the closest point of the terrain surface";
+  return "above the take-off point";
+}
+
+/** Strip stations into flyable runs (strip pieces) and, for `skip`, unflyable gaps (transit pieces). */
+function splitStrip(prof: StationProfile, strip: number, mode: SolverOptions["onConflict"], pieces: Piece[]): void {
+  const n = prof.s.length;
+  // nodata is never flown as a strip; plain conflicts only under `skip`
+  const cut = new Uint8Array(n);
+  for (let i = 0; i < n; i++) {
+    cut[i] = prof.status[i] === STATUS_UNFLYABLE && (mode === "skip" || (prof.cause[i] & CAUSE_NODATA) !== 0) ? 1 : 0;
+  }
+  // Runs of fewer than two flyable stations cannot hold a strip segment: fold them into the gap.
+  for (let i = 0; i < n; ) {
+    if (cut[i]) { i++; continue; }
+    let j = i;
+    while (j + 1 < n && !cut[j + 1]) j++;
+    if (j === i) cut[i] = 1;
+    i = j + 1;
+  }
+  let i = 0;
+  while (i < n) {
+    if (!cut[i]) {
+      let j = i;
+      while (j + 1 < n && !cut[j + 1]) j++;
+      pieces.push({ kind: "strip", strip, profile: sliceProfile(prof, i, j), conflictGap: false });
+      i = j + 1;
+    } else {
+      let j = i;
+      while (j + 1 < n && cut[j + 1]) j++;
+      const a = Math.max(0, i - 1), b = Math.min(n - 1, j + 1);
+      pieces.push({ kind: "transit", strip, profile: sliceProfile(prof, a, b), conflictGap: true });
+      i = j + 1;
+    }
+  }
+}
+
+function sliceProfile(p: StationProfile, a: number, b: number): StationProfile {
+  const s0 = p.s[a];
+  const s = p.s.slice(a, b + 1);
+  for (let i = 0; i < s.length; i++) s[i] -= s0;
+  return {
+    s,
+    x: p.x.slice(a, b + 1),
+    y: p.y.slice(a, b + 1),
+    groundM: p.groundM.slice(a, b + 1),
+    hardLowM: p.hardLowM.slice(a, b + 1),
+    hardHighM: p.hardHighM.slice(a, b + 1),
+    bandLowM: p.bandLowM.slice(a, b + 1),
+    bandHighM: p.bandHighM.slice(a, b + 1),
+    altitudeM: p.altitudeM.slice(a, b + 1),
+    status: p.status.slice(a, b + 1),
+    cause: p.cause.slice(a, b + 1),
+  };
+}
+
+function solvePiece(
+  p: Piece, opts: SolverOptions, bandWidthM: number, pinStart: number | undefined, pinEnd: number | undefined, warnings: SolveWarning[],
+): { altitudeM: Float64Array; vertexStation: Int32Array; stepToM?: number } {
+  const prof = p.profile;
+  const n = prof.s.length;
+  const lo = new Float64Array(n), hi = new Float64Array(n);
+  let knownLow = -Infinity;
+  for (let k = 0; k < n; k++) if (prof.hardLowM[k] === prof.hardLowM[k]) knownLow = Math.max(knownLow, prof.hardLowM[k]);
+  for (let k = 0; k < n; k++) {
+    lo[k] = prof.hardLowM[k];
+    hi[k] = prof.hardHighM[k];
+    if (lo[k] !== lo[k]) {
+      // Unknown ground under a transit: hold the highest clearance known on this leg.
+      lo[k] = knownLow > -Infinity ? knownLow : 0;
+      hi[k] = Infinity;
+    }
+    if (!(hi[k] >= lo[k])) hi[k] = lo[k] + bandWidthM; // conflict flown keeping clearance; breach reported later
+  }
+  const { gMin, gMax } = gradientLimits(opts, p.kind);
+  const eLo = new Float64Array(n), eHi = new Float64Array(n);
+  const tryEnvelope = (ps?: number, pe?: number) => {
+    const l = lo.slice(), h = hi.slice();
+    // A pin below clearance (only after a breach elsewhere) is raised to it.
+    if (ps !== undefined) { l[0] = h[0] = Math.max(ps, l[0]); }
+    if (pe !== undefined) { l[n - 1] = h[n - 1] = Math.max(pe, l[n - 1]); }
+    return hardEnvelope(prof.s, l, h, gMin, gMax, eLo, eHi);
+  };
+  let stepToM: number | undefined;
+  let ok = tryEnvelope(pinStart, pinEnd) < 0;
+  if (!ok && pinEnd !== undefined) {
+    ok = tryEnvelope(pinStart, undefined) < 0;
+    if (ok) {
+      stepToM = pinEnd;
+      warnings.push({ code: "vertical-step", message: `Leg into strip ${p.strip} is too short to reach the strip's start height within the climb limits: the plan changes height on the spot at its end (a multirotor hovers; a fixed-wing needs a loiter).` });
+    }
+  }
+  if (!ok) {
+    // Clearance and the climb limits cannot both hold under the ceiling: keep clearance.
+    hi.fill(Infinity);
+    ok = tryEnvelope(pinStart, stepToM === undefined ? pinEnd : undefined) < 0;
+    warnings.push({ code: "climb-ceiling", message: `${p.kind === "strip" ? "Strip" : "Leg into strip"} ${p.strip}: clearance cannot be kept under the ceiling within the climb and descent limits; the plan keeps clearance (see the ceiling breaches).` });
+  }
+  const tLo = new Float64Array(n), tHi = new Float64Array(n), pref = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const bl = Math.min(prof.bandLowM[k], prof.bandHighM[k]);
+    const bh = Math.max(prof.bandLowM[k], prof.bandHighM[k]);
+    pref[k] = p.kind === "strip" && bl === bl ? (bl + bh) / 2 : prof.groundM[k] + opts.band.hTargetM;
+    if (pref[k] !== pref[k]) pref[k] = eLo[k];
+    if (p.kind !== "strip" || bl !== bl) { tLo[k] = eLo[k]; tHi[k] = eHi[k]; continue; }
+    const a = Math.max(bl, eLo[k]), b = Math.min(bh, eHi[k]);
+    if (a <= b) { tLo[k] = a; tHi[k] = b; }
+    else if (bl > eHi[k]) { tLo[k] = Math.max(eLo[k], eHi[k] - bandWidthM); tHi[k] = eHi[k]; }
+    else { tLo[k] = eLo[k]; tHi[k] = Math.min(eHi[k], eLo[k] + bandWidthM); }
+  }
+  const gates = targetGates(prof.s, eLo, eHi, tLo, tHi, gMin, gMax);
+  const path = minLinkPath(prof.s, gates.lo, gates.hi, gMin, gMax, pref);
+  if (!path) throw new Error(`solver: no path through the gates of strip ${p.strip} (internal error)`);
+  const alt = prof.altitudeM;
+  for (let v = 0; v + 1 < path.vertexStation.length; v++) {
+    const a = path.vertexStation[v], b = path.vertexStation[v + 1];
+    const za = path.vertexHeightM[v], zb = path.vertexHeightM[v + 1];
+    const D = prof.s[b] - prof.s[a];
+    for (let k = a; k <= b; k++) alt[k] = za + ((zb - za) * (prof.s[k] - prof.s[a])) / D;
+  }
+  if (path.vertexStation.length === 1) alt[0] = path.vertexHeightM[0];
+  if (p.kind === "strip") {
+    for (let k = 0; k < n; k++) {
+      // The band met the hard corridor here, yet the gradient limits kept the path off it.
+      if (prof.status[k] === STATUS_OK && gates.offTarget[k]) {
+        prof.status[k] = STATUS_DETAIL_LIMITED;
+        prof.cause[k] |= CAUSE_CLIMB;
+      }
+    }
+  }
+  return { altitudeM: alt, vertexStation: path.vertexStation, stepToM };
+}
+
+function buildLeg(p: Piece, alt: Float64Array, vs: Int32Array, opts: SolverOptions): SolvedLeg {
+  const prof = p.profile;
+  const n = prof.s.length;
+  const wps: Waypoint[] = [];
+  let timeS = 0;
+  for (let v = 0; v < vs.length; v++) {
+    const k = vs[v];
+    let speed = 0;
+    if (v > 0) {
+      const a = vs[v - 1];
+      const D = prof.s[k] - prof.s[a];
+      const g = (alt[k] - alt[a]) / D;
+      speed = segmentSpeed(opts, p.kind, g);
+      timeS += D / speed;
+    }
+    wps.push(waypoint(prof, k, alt[k], speed));
+  }
+  if (p.stepToM !== undefined) {
+    const dz = p.stepToM - alt[n - 1];
+    const rate = dz > 0 ? opts.aircraft.maxClimbMps : opts.aircraft.maxDescentMps;
+    timeS += Math.abs(dz) / rate;
+    wps.push(waypoint(prof, n - 1, p.stepToM, 0));
+  }
+  const from: XY = [prof.x[0], prof.y[0]];
+  const to: XY = [prof.x[n - 1], prof.y[n - 1]];
+  return { kind: p.kind, strip: p.strip, from, to, waypoints: wps, profile: prof, lengthM: prof.s[n - 1], timeS, ...(p.conflictGap ? { conflictGap: true } : {}) };
+}
+
+function waypoint(prof: StationProfile, k: number, altM: number, speedMps: number): Waypoint {
+  const g = prof.groundM[k];
+  return { x: prof.x[k], y: prof.y[k], s: prof.s[k], altitudeAmslM: altM, groundAmslM: g, heightAboveGroundM: altM - g, speedMps };
+}
+
+/** Warn, per leg, where the flown height passes the ceiling: place, length and height over it. */
+function ceilingBreaches(legs: SolvedLeg[], warnings: SolveWarning[]): void {
+  for (const leg of legs) {
+    const p = leg.profile;
+    const n = p.s.length;
+    for (let i = 0; i < n; ) {
+      if (!(p.altitudeM[i] > p.hardHighM[i] + 1e-6)) { i++; continue; }
+      let j = i, over = 0;
+      while (j < n && p.altitudeM[j] > p.hardHighM[j] + 1e-6) { over = Math.max(over, p.altitudeM[j] - p.hardHighM[j]); j++; }
+      const len = p.s[j - 1] - p.s[i];
+      warnings.push({
+        code: "ceiling-breach",
+        message: `${leg.kind === "strip" ? "Strip" : leg.conflictGap ? "Bridge over an unflyable stretch of strip" : "Transit into strip"} ${leg.strip}: above the ceiling from (${p.x[i].toFixed(1)}, ${p.y[i].toFixed(1)}) for ${len.toFixed(0)} m, up to ${over.toFixed(1)} m over it, to keep terrain clearance. Get permission or change the layout before flying.`,
+      });
+      i = j;
+    }
+  }
+}
+
+/** InputError when the target height is above the ceiling, or below clearance, at every strip station. */
+function checkTargetReachable(profiles: StationProfile[], o: SolverOptions): void {
+  let seen = 0, underCeiling = 0, aboveClearance = 0;
+  let lowAgl = Infinity, highAgl = -Infinity;
+  for (const p of profiles) {
+    for (let k = 0; k < p.s.length; k++) {
+      const g = p.groundM[k];
+      if (g !== g || p.hardLowM[k] !== p.hardLowM[k]) continue;
+      seen++;
+      const z = g + o.band.hTargetM;
+      if (z <= p.hardHighM[k]) underCeiling++;
+      if (z >= p.hardLowM[k]) aboveClearance++;
+      lowAgl = Math.min(lowAgl, p.hardLowM[k] - g);
+      highAgl = Math.max(highAgl, p.hardHighM[k] - g);
+    }
+  }
+  if (seen === 0) return;
+  if (underCeiling === 0) {
+    throw new InputError("band.hTargetM", o.band.hTargetM, `a height above ground under the ceiling somewhere on the strips (up to ${highAgl.toFixed(1)} m)${gsdRange(o, Math.max(0, lowAgl), highAgl)}`,
+      "the target height is above the legal ceiling over every strip");
+  }
+  if (aboveClearance === 0) {
+    throw new InputError("band.hTargetM", o.band.hTargetM, `a height above ground that keeps clearance somewhere on the strips (at least ${lowAgl.toFixed(1)} m)${gsdRange(o, Math.max(0, lowAgl), highAgl)}`,
+      "the target height is below the terrain clearance over every strip");
+  }
+}
+
+/** A copy of the grid with nodata replaced by `heightM` (the user's --assume-ground). */
+function fillNodata(grid: DemGrid, heightM: number): DemGrid {
+  let any = false;
+  for (let i = 0; i < grid.valid.length; i++) if (!grid.valid[i]) { any = true; break; }
+  if (!any) return grid;
+  const heights = grid.heights.slice();
+  for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = heightM;
+  return { ...grid, heights, valid: new Uint8Array(heights.length).fill(1) };
+}
