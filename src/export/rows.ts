@@ -52,6 +52,16 @@ export interface HeightReference {
 
 const JOIN_TOLERANCE_M = 0.01;
 
+/**
+ * A height in the legs' datum as [AMSL, ellipsoidal] at a WGS84 point.
+ *
+ * @example heightReferences(500, 12.5, 47.1, { datum: "egm96", undulationM: () => 48.9, takeoffGroundM: 0 }) // [500, 548.9]
+ */
+export function heightReferences(h: number, lon: number, lat: number, heights: HeightReference): [number, number] {
+  const n = heights.undulationM(lon, lat);
+  return heights.datum === "ellipsoid" ? [h - n, h] : [h, h + n];
+}
+
 /** True when `b`'s first waypoint is the same point as `a`'s last (one row for both). */
 export function legsJoin(a: SolvedLeg, b: SolvedLeg): boolean {
   const p = a.waypoints[a.waypoints.length - 1];
@@ -85,7 +95,6 @@ export function waypointRows(
   heights: HeightReference,
 ): WaypointRow[] {
   const rows: WaypointRow[] = [];
-  const ellipsoidal = heights.datum === "ellipsoid";
   flights.forEach((legs, fi) => {
     let strip = -1;
     let index = 0;
@@ -96,7 +105,7 @@ export function waypointRows(
       }
       index += 1;
       const [lon, lat] = toWgs84(w.x, w.y);
-      const n = heights.undulationM(lon, lat);
+      const [altitudeAmslM, altitudeEllipsoidM] = heightReferences(w.altitudeAmslM, lon, lat, heights);
       rows.push({
         flight: fi + 1,
         strip: leg.strip,
@@ -106,10 +115,10 @@ export function waypointRows(
         y: w.y,
         longitude: lon,
         latitude: lat,
-        altitudeAmslM: ellipsoidal ? w.altitudeAmslM - n : w.altitudeAmslM,
-        altitudeEllipsoidM: ellipsoidal ? w.altitudeAmslM : w.altitudeAmslM + n,
+        altitudeAmslM,
+        altitudeEllipsoidM,
         altitudeTakeoffM: w.altitudeAmslM - heights.takeoffGroundM,
-        groundAmslM: ellipsoidal ? w.groundAmslM - n : w.groundAmslM,
+        groundAmslM: heightReferences(w.groundAmslM, lon, lat, heights)[0],
         heightAboveGroundM: w.heightAboveGroundM,
         speedMps,
       });
