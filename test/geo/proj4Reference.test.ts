@@ -14,13 +14,15 @@ const AIRY_GEOG = "+proj=longlat +ellps=airy +no_defs";
 const TX_SC = "+proj=lcc +lat_0=27.8333333333333 +lon_0=-99 +lat_1=28.3833333333333 +lat_2=30.2833333333333 +x_0=609601.219202438 +y_0=0 +ellps=clrk66 +units=us-ft +no_defs";
 const CLRK66_GEOG = "+proj=longlat +ellps=clrk66 +no_defs";
 
+// IOGP Publication 373-7-2 (Guidance Note 7 part 2). The figures below are from memory; they are
+// the ones many open projection libraries quote in their own tests. IOGP gives them to the
+// centimetre (0.01 ft for Texas), so they are checked to just over a centimetre.
 describe("proj4 against IOGP Guidance Note 7-2 worked examples (values from memory)", () => {
   it("Transverse Mercator: 50d30'N 0d30'E on OSGB 1936 / British National Grid", () => {
     // IOGP GN 7-2, TM worked example (from memory): E = 577 274.99 m, N = 69 740.50 m.
-    // Recalled to the centimetre only, so checked to 5 cm.
     const [e, n] = proj4(AIRY_GEOG, BNG_AIRY, [0.5, 50.5]);
-    expect(Math.abs(e - 577274.99)).toBeLessThan(0.05);
-    expect(Math.abs(n - 69740.5)).toBeLessThan(0.05);
+    expect(Math.abs(e - 577274.99)).toBeLessThan(0.011);
+    expect(Math.abs(n - 69740.5)).toBeLessThan(0.011);
     // and back (the example's reverse case)
     const [lon, lat] = proj4(BNG_AIRY, AIRY_GEOG, [577274.99, 69740.5]);
     expect(Math.abs(lon - 0.5)).toBeLessThan(1e-6);
@@ -30,8 +32,8 @@ describe("proj4 against IOGP Guidance Note 7-2 worked examples (values from memo
   it("Lambert Conic Conformal 2SP: 28d30'N 96d00'W on NAD27 / Texas South Central", () => {
     // IOGP GN 7-2, LCC 2SP worked example (from memory): E = 2 963 503.91 ftUS, N = 254 759.80 ftUS.
     const [e, n] = proj4(CLRK66_GEOG, TX_SC, [-96, 28.5]);
-    expect(Math.abs(e - 2963503.91)).toBeLessThan(0.05);
-    expect(Math.abs(n - 254759.8)).toBeLessThan(0.05);
+    expect(Math.abs(e - 2963503.91)).toBeLessThan(0.011);
+    expect(Math.abs(n - 254759.8)).toBeLessThan(0.011);
   });
 });
 
