@@ -1,0 +1,69 @@
+/** Legends with units, as small SVGs. */
+import { divergingTable256, gsdAtScalePosition, gsdScalePosition, tableColour, viridisTable256 } from "./colour.js";
+import { esc } from "./escape.js";
+import { fmt } from "./format.js";
+import { hatchPattern } from "./map.js";
+import { niceStep, ticks } from "./nice.js";
+
+function bar(table: Uint8Array, x: number, y: number, w: number, h: number, steps = 64): string {
+  let s = "";
+  for (let i = 0; i < steps; i++) {
+    s += `<rect x="${(x + (i * w) / steps).toFixed(1)}" y="${y}" width="${(w / steps + 0.6).toFixed(1)}" height="${h}" fill="${tableColour(table, (i + 0.5) / steps)}"/>`;
+  }
+  return s + `<rect x="${x}" y="${y}" width="${w}" height="${h}" fill="none" stroke="#555" stroke-width="0.6"/>`;
+}
+
+/**
+ * GSD legend: the diverging bar from twice the band half-width finer to twice coarser,
+ * the band marked, and the hatch that marks cells outside it.
+ */
+export function gsdLegend(targetCm: number, lowCm: number, highCm: number, hatchId: string): string {
+  const W = 460, x0 = 10, y0 = 22, bw = 300, bh = 14;
+  const table = divergingTable256();
+  const pos = (g: number) => x0 + gsdScalePosition(g, targetCm, lowCm, highCm) * bw;
+  const marks = [gsdAtScalePosition(0, targetCm, lowCm, highCm), lowCm, targetCm, highCm, gsdAtScalePosition(1, targetCm, lowCm, highCm)];
+  let t = "";
+  for (const g of marks) {
+    const x = pos(g).toFixed(1);
+    t += `<line x1="${x}" x2="${x}" y1="${y0 + bh}" y2="${y0 + bh + 4}" stroke="#333"/><text x="${x}" y="${y0 + bh + 15}" text-anchor="middle">${fmt(g, 2)}</text>`;
+  }
+  const bx = pos(lowCm), ex = pos(highCm);
+  return (
+    `<svg class="legend" viewBox="0 0 ${W} 72" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="GSD colour scale in cm per pixel">` +
+    `<defs>${hatchPattern(hatchId, "#111", 45, 6)}</defs>` +
+    `<text x="${x0}" y="12" font-weight="600">Nadir GSD, cm/px</text>` +
+    `<text x="${(bx + ex) / 2}" y="12" text-anchor="middle" class="small">band</text>` +
+    `<path d="M${bx.toFixed(1)},${y0 - 3}V${y0 - 6}H${ex.toFixed(1)}V${y0 - 3}" fill="none" stroke="#333"/>` +
+    bar(table, x0, y0, bw, bh) +
+    t +
+    `<rect x="${x0 + bw + 22}" y="${y0}" width="22" height="${bh}" fill="#ddd" stroke="#555" stroke-width="0.6"/>` +
+    `<rect x="${x0 + bw + 22}" y="${y0}" width="22" height="${bh}" fill="url(#${esc(hatchId)})"/>` +
+    `<text x="${x0 + bw + 50}" y="${y0 + 11}">outside band</text>` +
+    `<text x="${x0}" y="${y0 + bh + 30}" class="small">finer ← → coarser; ends saturate at twice the band half-width</text></svg>`
+  );
+}
+
+/**
+ * A sequential (viridis) legend from `lo` to `hi` with nice ticks.
+ *
+ * @example sequentialLegend("Height above ground", "m", 80, 120)
+ */
+export function sequentialLegend(title: string, unit: string, lo: number, hi: number, extra = ""): string {
+  const W = 460, x0 = 10, y0 = 22, bw = 300, bh = 14;
+  const table = viridisTable256();
+  const span = hi - lo || 1;
+  const step = niceStep(span, 5);
+  let t = "";
+  for (const v of ticks(lo, hi, step)) {
+    const x = (x0 + ((v - lo) / span) * bw).toFixed(1);
+    t += `<line x1="${x}" x2="${x}" y1="${y0 + bh}" y2="${y0 + bh + 4}" stroke="#333"/><text x="${x}" y="${y0 + bh + 15}" text-anchor="middle">${fmt(v)}</text>`;
+  }
+  return (
+    `<svg class="legend" viewBox="0 0 ${W} 72" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="${esc(title)} in ${esc(unit)}">` +
+    `<text x="${x0}" y="12" font-weight="600">${esc(title)}, ${esc(unit)}</text>` +
+    bar(table, x0, y0, bw, bh) +
+    t +
+    extra +
+    `</svg>`
+  );
+}

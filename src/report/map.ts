@@ -1,0 +1,251 @@
+/**
+ * SVG layers of the report maps. Map units: nominal pixels, `k` per local-frame metre,
+ * x to the right = east, y down = south (grid north up). Every layer is a string of SVG
+ * elements; render.ts stacks them.
+ */
+import type { MultiPolygon, Polygon } from "geojson";
+import type { GeoTransform } from "../dem/grid.js";
+import type { XY } from "../layout/types.js";
+import type { ReportGrid, ReportLeg } from "./model.js";
+import { contourInterval, contourLines, type Polyline } from "./contours.js";
+import { tableColour, viridisTable256 } from "./colour.js";
+import { esc } from "./escape.js";
+import { fmt } from "./format.js";
+import { niceFloor } from "./nice.js";
+
+export interface MapView {
+  /** Width and height in SVG units. */
+  w: number;
+  h: number;
+  xMin: number;
+  yMax: number;
+  /** SVG units per metre. */
+  k: number;
+}
+
+/**
+ * The view that shows the whole DEM window `widthPx` units across.
+ *
+ * @example const v = mapView(dem); // v.w === 1000
+ */
+export function mapView(dem: ReportGrid, widthPx = 1000): MapView {
+  const t = dem.transform;
+  const wM = dem.width * Math.abs(t.dx);
+  const hM = dem.height * Math.abs(t.dy);
+  const k = widthPx / wM;
+  return { w: widthPx, h: Math.round(hM * k), xMin: Math.min(t.x0, t.x0 + dem.width * t.dx), yMax: Math.max(t.y0, t.y0 + dem.height * t.dy), k };
+}
+
+const r1 = (v: number) => Math.round(v * 10) / 10;
+export const vx = (v: MapView, x: number) => r1((x - v.xMin) * v.k);
+export const vy = (v: MapView, y: number) => r1((v.yMax - y) * v.k);
+
+/** Path data for flat [c, r, ...] grid-space polylines on grid `t`. */
+function gridPath(v: MapView, t: GeoTransform, lines: Polyline[], close: boolean): string {
+  let d = "";
+  for (const l of lines) {
+    for (let i = 0; i < l.length; i += 2) d += (i ? "L" : "M") + vx(v, t.x0 + l[i] * t.dx) + "," + vy(v, t.y0 + l[i + 1] * t.dy);
+    if (close) d += "Z";
+  }
+  return d;
+}
+
+/** A raster on grid `t` as an <image>. */
+export function rasterImage(v: MapView, t: GeoTransform, w: number, h: number, uri: string, cls: string): string {
+  const x = vx(v, Math.min(t.x0, t.x0 + w * t.dx));
+  const y = vy(v, Math.max(t.y0, t.y0 + h * t.dy));
+  const ww = r1(w * Math.abs(t.dx) * v.k);
+  const hh = r1(h * Math.abs(t.dy) * v.k);
+  return `<image class="${cls}" href="${uri}" x="${x}" y="${y}" width="${ww}" height="${hh}" preserveAspectRatio="none"/>`;
+}
+
+/** Mask outline rings (contours.ts maskOutline) as one evenodd path. */
+export function outlinePath(v: MapView, t: GeoTransform, rings: Polyline[], attrs: string): string {
+  if (!rings.length) return "";
+  return `<path d="${gridPath(v, t, rings, true)}" fill-rule="evenodd" ${attrs}/>`;
+}
+
+/**
+ * Contour lines with labelled heights. Every fifth line (the index contour, common
+ * cartographic practice) is drawn heavier and carries the labels.
+ */
+export function contourLayer(v: MapView, dem: ReportGrid): { svg: string; intervalM: number } {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const z of dem.heights) {
+    if (z < lo) lo = z;
+    if (z > hi) hi = z;
+  }
+  if (!(hi > lo)) return { svg: "", intervalM: 0 };
+  const intervalM = contourInterval(lo, hi);
+  const levels = contourLines(dem, intervalM);
+  const indexStep = intervalM * 5;
+  // With few lines, label them all; otherwise only the index contours.
+  const labelAll = levels.length <= 12;
+  let minor = "";
+  let major = "";
+  let labels = "";
+  let nLabels = 0;
+  for (const lv of levels) {
+    const isIndex = Math.abs(lv.valueM / indexStep - Math.round(lv.valueM / indexStep)) < 1e-6;
+    const d = gridPath(v, dem.transform, lv.lines, false);
+    if (isIndex) major += `<path d="${d}"/>`;
+    else minor += `<path d="${d}"/>`;
+    if (!(labelAll || isIndex) || nLabels > 60) continue;
+    for (const l of lv.lines) {
+      const n = l.length / 2;
+      if (n < 8) continue;
+      const m = Math.floor(n / 2);
+      const x = vx(v, dem.transform.x0 + l[2 * m] * dem.transform.dx);
+      const y = vy(v, dem.transform.y0 + l[2 * m + 1] * dem.transform.dy);
+      const x2 = vx(v, dem.transform.x0 + l[2 * m + 2] * dem.transform.dx);
+      const y2 = vy(v, dem.transform.y0 + l[2 * m + 3] * dem.transform.dy);
+      let ang = (Math.atan2(y2 - y, x2 - x) * 180) / Math.PI;
+      if (ang > 90) ang -= 180;
+      if (ang < -90) ang += 180;
+      labels += `<text x="${x}" y="${y}" transform="rotate(${r1(ang)} ${x} ${y})">${fmt(lv.valueM)}</text>`;
+      nLabels++;
+      break;
+    }
+  }
+  const svg =
+    `<g class="contours" fill="none" stroke="#5b4636" stroke-linejoin="round">` +
+    `<g stroke-width="0.6" stroke-opacity="0.55">${minor}</g>` +
+    `<g stroke-width="1.2" stroke-opacity="0.8">${major}</g></g>` +
+    `<g class="contour-labels">${labels}</g>`;
+  return { svg, intervalM };
+}
+
+/** The site outline (local-frame metres). */
+export function sitePath(v: MapView, site: Polygon | MultiPolygon, attrs: string): string {
+  const polys = site.type === "Polygon" ? [site.coordinates] : site.coordinates;
+  let d = "";
+  for (const poly of polys)
+    for (const ring of poly) {
+      ring.forEach((p, i) => (d += (i ? "L" : "M") + vx(v, p[0]) + "," + vy(v, p[1])));
+      d += "Z";
+    }
+  return `<path class="site" d="${d}" fill-rule="evenodd" ${attrs}/>`;
+}
+
+/** Range of height above ground over all strip stations (for the leg colour scale). */
+export function aglRange(legs: ReportLeg[]): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const leg of legs) {
+    if (leg.kind !== "strip") continue;
+    const p = leg.profile;
+    for (let i = 0; i < p.s.length; i++) {
+      const a = p.altitudeM[i] - p.groundM[i];
+      if (a < lo) lo = a;
+      if (a > hi) hi = a;
+    }
+  }
+  if (!(hi >= lo)) return [0, 1];
+  if (hi === lo) return [lo - 1, hi + 1];
+  return [lo, hi];
+}
+
+/**
+ * Legs: strips as runs of stations coloured by height above ground (12 viridis classes,
+ * so a run of one class is one path), transits dashed, waypoints as dots.
+ */
+export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]): string {
+  const table = viridisTable256();
+  const classes = 12;
+  const cls = (a: number) => Math.max(0, Math.min(classes - 1, Math.floor(((a - agl[0]) / (agl[1] - agl[0])) * classes)));
+  const runs: string[][] = Array.from({ length: classes }, () => []);
+  let transit = "";
+  let casing = "";
+  let dots = "";
+  for (const leg of legs) {
+    if (leg.kind === "transit") {
+      transit += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
+      continue;
+    }
+    const p = leg.profile;
+    const n = p.s.length;
+    casing += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
+    let start = 0;
+    while (start < n - 1) {
+      const c = cls(p.altitudeM[start] - p.groundM[start]);
+      let end = start + 1;
+      while (end < n - 1 && cls(p.altitudeM[end] - p.groundM[end]) === c) end++;
+      let d = `M${vx(v, p.x[start])},${vy(v, p.y[start])}`;
+      // Straight legs: the run's two ends are enough.
+      d += `L${vx(v, p.x[end])},${vy(v, p.y[end])}`;
+      runs[Number.isFinite(c) ? c : 0].push(d);
+      start = end;
+    }
+    for (const w of leg.waypoints) dots += `<circle cx="${vx(v, w.x)}" cy="${vy(v, w.y)}" r="2.6"/>`;
+  }
+  let coloured = "";
+  runs.forEach((ds, c) => {
+    if (ds.length) coloured += `<path stroke="${tableColour(table, (c + 0.5) / classes)}" d="${ds.join("")}"/>`;
+  });
+  return (
+    `<g class="legs" fill="none" stroke-linecap="round">` +
+    `<path class="transit" d="${transit}" stroke="#222" stroke-width="1.4" stroke-dasharray="5 4" stroke-opacity="0.8"/>` +
+    `<path d="${casing}" stroke="#fff" stroke-width="5.5" stroke-opacity="0.85"/>` +
+    `<g stroke-width="3.2">${coloured}</g></g>` +
+    `<g class="waypoints" fill="#fff" stroke="#111" stroke-width="1">${dots}</g>`
+  );
+}
+
+/** Take-off marker: a triangle with a label. */
+export function takeoffMarker(v: MapView, xy: XY): string {
+  const x = vx(v, xy[0]);
+  const y = vy(v, xy[1]);
+  return (
+    `<g class="takeoff"><path d="M${x},${r1(y - 9)}L${r1(x + 8)},${r1(y + 6)}L${r1(x - 8)},${r1(y + 6)}Z" fill="#d62728" stroke="#fff" stroke-width="1.5"/>` +
+    `<text x="${r1(x + 11)}" y="${r1(y + 4)}" class="halo">Take-off</text></g>`
+  );
+}
+
+/** A scale bar of a nice length (1, 2 or 5 x 10^k m) about a fifth of the map wide. */
+export function scaleBar(v: MapView): string {
+  const lenM = niceFloor(v.w / v.k / 5);
+  const len = r1(lenM * v.k);
+  const x = 16;
+  const y = v.h - 18;
+  const label = lenM >= 1000 ? `${fmt(lenM / 1000)} km` : `${fmt(lenM)} m`;
+  const half = r1(len / 2);
+  return (
+    `<g class="scalebar" data-length-m="${lenM}">` +
+    `<rect x="${x - 6}" y="${y - 22}" width="${len + 12 + 40}" height="32" fill="#fff" fill-opacity="0.8" rx="3"/>` +
+    `<rect x="${x}" y="${y}" width="${half}" height="5" fill="#111"/>` +
+    `<rect x="${r1(x + half)}" y="${y}" width="${r1(len - half)}" height="5" fill="#fff" stroke="#111" stroke-width="1"/>` +
+    `<text x="${x}" y="${y - 5}">0</text><text x="${r1(x + len)}" y="${y - 5}" text-anchor="middle">${label}</text></g>`
+  );
+}
+
+/** North arrow for grid north, with the convergence to true north when known. */
+export function northArrow(v: MapView, convergenceDeg?: number): string {
+  const x = v.w - 44;
+  const y = 16;
+  let note = "grid north";
+  if (convergenceDeg !== undefined && Number.isFinite(convergenceDeg)) {
+    const a = Math.abs(convergenceDeg);
+    note = a < 0.05 ? "grid ≈ true north" : `true N ${fmt(a, 1)}° ${convergenceDeg > 0 ? "E" : "W"}`;
+  }
+  return (
+    `<g class="north"><rect x="${x - 40}" y="${y - 6}" width="74" height="64" fill="#fff" fill-opacity="0.8" rx="3"/>` +
+    `<path d="M${x},${y}L${x + 9},${y + 30}L${x},${y + 24}L${x - 9},${y + 30}Z" fill="#111"/>` +
+    `<text x="${x}" y="${y + 44}" text-anchor="middle" font-weight="700">N</text>` +
+    `<text x="${x}" y="${y + 55}" text-anchor="middle" class="small">${esc(note)}</text></g>`
+  );
+}
+
+/** An <svg> wrapper with the view's size. */
+export function mapSvg(v: MapView, id: string, label: string, body: string, defs = ""): string {
+  return (
+    `<svg class="map" id="${esc(id)}" viewBox="0 0 ${v.w} ${v.h}" role="img" aria-label="${esc(label)}" xmlns="http://www.w3.org/2000/svg">` +
+    (defs ? `<defs>${defs}</defs>` : "") +
+    `<rect width="${v.w}" height="${v.h}" fill="#f4f4f2"/>${body}</svg>`
+  );
+}
+
+/** A diagonal hatch pattern (for out-of-band and flagged cells). */
+export function hatchPattern(id: string, colour: string, angleDeg: number, gap = 7): string {
+  return `<pattern id="${esc(id)}" patternUnits="userSpaceOnUse" width="${gap}" height="${gap}" patternTransform="rotate(${angleDeg})"><line x1="0" y1="0" x2="0" y2="${gap}" stroke="${colour}" stroke-width="1.6"/></pattern>`;
+}

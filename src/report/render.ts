@@ -1,0 +1,361 @@
+/**
+ * The self-contained HTML report: one file, no network (a Content-Security-Policy forbids
+ * any fetch and lets only our own inline script run, by hash), system fonts, inline CSS,
+ * SVG charts and PNG data-URI rasters, print rules for A4 and US Letter.
+ */
+import { createHash } from "node:crypto";
+import { FLAG_KINDS } from "../assess/flags.js";
+import type { ReportInput, ReportSummary } from "./model.js";
+import { compactReportInput } from "./serialize.js";
+import { hillshade } from "./hillshade.js";
+import { gsdRgba, imagesRgba, pngDataUri, shadeRgba } from "./png.js";
+import { maskOutline } from "./contours.js";
+import {
+  aglRange, contourLayer, hatchPattern, legsLayer, mapSvg, mapView, northArrow, outlinePath,
+  rasterImage, scaleBar, sitePath, takeoffMarker, type MapView,
+} from "./map.js";
+import { gsdLegend, sequentialLegend } from "./legend.js";
+import { profileLegend, stripProfiles } from "./profiles.js";
+import { gsdHistogramSvg } from "./charts.js";
+import { esc, jsonForScript } from "./escape.js";
+import { fmt, fmtArea, fmtDuration } from "./format.js";
+import { REPORT_CSS } from "./style.js";
+
+/** Cautions every report carries, whatever the plan says (domain practice). */
+export const STANDARD_CAUTIONS: readonly string[] = [
+  "Fly only within the law where you are, with the permissions it requires; local rules and special zones override the ceiling used here.",
+  "Check airspace and temporary restrictions before the flight.",
+  "The elevation model is not a survey of obstacles: trees, masts, wires and buildings may be missing from it.",
+  "Keep visual line of sight where the rules require it.",
+  "Verify the first waypoint heights on site before flying the plan.",
+  "This tool plans; the pilot in command decides.",
+];
+
+/** Colour and hatch angle per flag kind on the flags map. */
+const FLAG_STYLE: Record<string, { colour: string; angle: number }> = {
+  coarse: { colour: "#b40426", angle: 45 },
+  fine: { colour: "#3b4cc0", angle: -45 },
+  fewImages: { colour: "#7b3294", angle: 0 },
+  ceiling: { colour: "#e66101", angle: 90 },
+  clearance: { colour: "#8c510a", angle: 30 },
+  nodata: { colour: "#444444", angle: -30 },
+  unflyable: { colour: "#d62728", angle: 60 },
+};
+
+const EFFECT_KEYS = new Set(["coarse", "fine", "fewImages"]);
+
+/** A number in a cell, with its summary key and exact value for machines and tests. */
+function num(key: string, v: unknown, text?: string): string {
+  const exact = typeof v === "number" ? String(v) : "";
+  return `<span class="num" data-key="${esc(key)}" data-value="${esc(exact)}">${esc(text ?? fmt(v))}</span>`;
+}
+
+/** Numeric leaves of the summary with their dotted keys, in document order. */
+export function flattenNumbers(obj: unknown, prefix = "", out: [string, number][] = []): [string, number][] {
+  if (typeof obj === "number") out.push([prefix, obj]);
+  else if (obj && typeof obj === "object" && !Array.isArray(obj))
+    for (const [k, v] of Object.entries(obj)) flattenNumbers(v, prefix ? `${prefix}.${k}` : k, out);
+  return out;
+}
+
+/** Words for a summary key in the numbers table. */
+const KEY_LABELS: Record<string, string> = {
+  strips: "Strips",
+  waypoints: "Waypoints",
+  photos: "Photos",
+  flights: "Flights",
+  batteries: "Batteries",
+  pathLengthM: "Path length, m",
+  flightTimeS: "Flight time, s",
+  headingDeg: "Strip heading, ° from grid north",
+  lineSpacingM: "Strip spacing, m",
+  triggerDistanceM: "Trigger distance, m",
+  speedMps: "Ground speed, m/s",
+  withinBandPct: "Site within the GSD band, %",
+  "gsdCm.target": "GSD target, cm/px",
+  "gsdCm.low": "GSD band low, cm/px",
+  "gsdCm.high": "GSD band high, cm/px",
+  "gsdCm.min": "GSD min, cm/px",
+  "gsdCm.p5": "GSD 5th percentile, cm/px",
+  "gsdCm.median": "GSD median, cm/px",
+  "gsdCm.p95": "GSD 95th percentile, cm/px",
+  "gsdCm.max": "GSD max, cm/px",
+  "images.min": "Images per cell, min",
+  "images.median": "Images per cell, median",
+  "flagged.cells": "Flagged cells",
+  "flagged.areaM2": "Flagged area, m²",
+  "ceiling.heightM": "Ceiling, m",
+  "takeoff.lon": "Take-off longitude, °",
+  "takeoff.lat": "Take-off latitude, °",
+  "takeoff.groundAmslM": "Take-off ground, m AMSL",
+};
+
+function labelFor(key: string): string {
+  if (KEY_LABELS[key]) return KEY_LABELS[key];
+  const m = /^flagged\.byKind\.([^.]+)\.(cells|areaM2|pct)$/.exec(key);
+  if (m) {
+    const kind = FLAG_KINDS.find((k) => k.key === m[1]);
+    const what = m[2] === "cells" ? "cells" : m[2] === "areaM2" ? "area, m²" : "% of site";
+    return `Flagged “${kind ? kind.label : m[1]}”, ${what}`;
+  }
+  return key;
+}
+
+function decimalsFor(key: string): number | undefined {
+  if (key.startsWith("gsdCm.")) return 2;
+  if (key === "takeoff.lon" || key === "takeoff.lat") return 6;
+  return undefined;
+}
+
+/**
+ * Render the report as one HTML document.
+ *
+ * @example writeFileSync(tmp, renderReport(input)); renameSync(tmp, join(out, "report.html"));
+ */
+export function renderReport(input: ReportInput): string {
+  const inp = compactReportInput(input, 1000);
+  const s = inp.summary;
+  const g = s.gsdCm;
+  const view = mapView(inp.dem, 1000);
+  const r = inp.rasters;
+  const shadeUri = pngDataUri(inp.dem.width, inp.dem.height, shadeRgba(hillshade().azimuth(315).altitude(45).zFactor(1)(inp.dem)));
+  const shadeImg = (cls: string) => rasterImage(view, inp.dem.transform, inp.dem.width, inp.dem.height, shadeUri, cls);
+  const site = (attrs: string) => sitePath(view, inp.site, attrs);
+  const overlays = scaleBar(view) + northArrow(view, inp.gridConvergenceDeg);
+  // The side-by-side maps get a narrower view so their labels print at a readable size.
+  const small = mapView(inp.dem, 620);
+  const smallShade = (cls: string) => rasterImage(small, inp.dem.transform, inp.dem.width, inp.dem.height, shadeUri, cls);
+  const smallSite = (attrs: string) => sitePath(small, inp.site, attrs);
+  const smallOverlays = scaleBar(small) + northArrow(small, inp.gridConvergenceDeg);
+
+  // 1. Map
+  const contours = contourLayer(view, inp.dem);
+  const agl = aglRange(inp.legs);
+  const mainMap = mapSvg(
+    view,
+    "map-main",
+    "Map: hill shade, contours, site, legs, waypoints and take-off",
+    shadeImg("shade") +
+      `<g class="layer" data-layer="contours">${contours.svg}</g>` +
+      site(`fill="#ffffff" fill-opacity="0.12" stroke="#111" stroke-width="2" stroke-dasharray="8 4"`) +
+      `<g class="layer" data-layer="legs">${legsLayer(view, inp.legs, agl)}</g>` +
+      takeoffMarker(view, inp.takeoff) +
+      overlays,
+  );
+
+  // 2. GSD and image maps
+  const outBand = new Uint8Array(r.width * r.height);
+  for (let i = 0; i < outBand.length; i++) {
+    const v = r.gsdCm[i];
+    outBand[i] = r.inSite[i] && v === v && (v < g.low || v > g.high) ? 1 : 0;
+  }
+  const gsdUri = pngDataUri(r.width, r.height, gsdRgba(r, g.target, g.low, g.high));
+  const gsdMap = mapSvg(
+    small,
+    "map-gsd",
+    "Map of nadir GSD over the site",
+    smallShade("shade faint") +
+      rasterImage(small, r.transform, r.width, r.height, gsdUri, "raster") +
+      outlinePath(small, r.transform, maskOutline(outBand, r.width, r.height), `fill="url(#hatch-outband)" stroke="#111" stroke-width="1.2"`) +
+      smallSite(`fill="none" stroke="#111" stroke-width="1.5"`) +
+      smallOverlays,
+    hatchPattern("hatch-outband", "#111", 45, 6),
+  );
+  let maxImages = 0;
+  for (let i = 0; i < r.images.length; i++) if (r.inSite[i] && r.images[i] > maxImages) maxImages = r.images[i];
+  const minImages = inp.minImages;
+  const fewMask = new Uint8Array(r.width * r.height);
+  if (minImages !== undefined) for (let i = 0; i < fewMask.length; i++) fewMask[i] = r.inSite[i] && r.images[i] < minImages ? 1 : 0;
+  const imgMap = mapSvg(
+    small,
+    "map-images",
+    "Map of image count per ground cell",
+    smallShade("shade faint") +
+      rasterImage(small, r.transform, r.width, r.height, pngDataUri(r.width, r.height, imagesRgba(r, maxImages)), "raster") +
+      outlinePath(small, r.transform, maskOutline(fewMask, r.width, r.height), `fill="url(#hatch-few)" stroke="#d62728" stroke-width="1.2"`) +
+      smallSite(`fill="none" stroke="#111" stroke-width="1.5"`) +
+      smallOverlays,
+    hatchPattern("hatch-few", "#d62728", -45, 6),
+  );
+
+  // 3. Flags
+  let flagLayers = "";
+  let flagDefs = "";
+  for (const k of FLAG_KINDS) {
+    const mask = new Uint8Array(r.width * r.height);
+    let any = false;
+    for (let i = 0; i < mask.length; i++) if (r.flags[i] & k.bit) (mask[i] = 1), (any = true);
+    if (!any) continue;
+    const st = FLAG_STYLE[k.key];
+    flagDefs += hatchPattern(`hatch-flag-${k.key}`, st.colour, st.angle, 7);
+    flagLayers += `<g class="flag-layer" data-kind="${esc(k.key)}">${outlinePath(view, r.transform, maskOutline(mask, r.width, r.height), `fill="url(#hatch-flag-${k.key})" stroke="${st.colour}" stroke-width="1.4"`)}</g>`;
+  }
+  const flagMap = mapSvg(
+    view,
+    "map-flags",
+    "Map of flagged ground by kind",
+    shadeImg("shade") + site(`fill="#fff" fill-opacity="0.25" stroke="#111" stroke-width="1.5"`) + flagLayers + overlays,
+    flagDefs,
+  );
+  const byKind = s.flagged?.byKind ?? {};
+  let flagRows = "";
+  for (const k of FLAG_KINDS) {
+    const f = byKind[k.key];
+    const st = FLAG_STYLE[k.key];
+    const has = f && f.cells > 0;
+    flagRows +=
+      `<tr class="${has ? "flag-present" : "flag-absent"}" data-kind="${esc(k.key)}">` +
+      `<td><svg class="swatch" viewBox="0 0 20 14" width="20" height="14"><rect width="20" height="14" fill="${st.colour}" fill-opacity="0.35" stroke="${st.colour}"/></svg></td>` +
+      `<td><strong>${esc(k.label)}</strong><br><span class="muted">${EFFECT_KEYS.has(k.key) ? "effect" : "cause"}</span></td>` +
+      `<td class="r">${f ? num(`flagged.byKind.${k.key}.areaM2`, f.areaM2, fmtArea(f.areaM2)) : "–"}</td>` +
+      `<td class="r">${f && f.pct !== undefined ? num(`flagged.byKind.${k.key}.pct`, f.pct, fmt(f.pct, 1) + " %") : "–"}</td>` +
+      `<td>${esc(k.explanation)}</td><td>${esc(k.remedy)}</td></tr>`;
+  }
+
+  // 4. Profiles
+  const profiles = stripProfiles(inp.legs);
+  const profileHtml = profiles
+    .map((p) => `<figure class="profile" data-strip="${esc(p.strip)}">${p.svg}</figure>`)
+    .join("");
+
+  // 5. Comparison
+  const b = inp.baseline;
+  const cmpRow = (label: string, planKey: string, planV: number | undefined, baseKey: string, baseV: number | undefined, d?: number) =>
+    `<tr><th>${esc(label)}</th><td class="r">${planV === undefined ? "–" : num(planKey, planV, fmt(planV, d))}</td><td class="r">${baseV === undefined ? "–" : num(baseKey, baseV, fmt(baseV, d))}</td></tr>`;
+  const spread = (x: { p5: number; p95: number }) => x.p95 - x.p5;
+  const comparison = b
+    ? `<p class="lead">At one constant altitude of ${num("baseline.altitudeAmslM", b.altitudeAmslM, fmt(b.altitudeAmslM, 1))} m AMSL ` +
+      `(${num("baseline.heightAboveMedianGroundM", b.heightAboveMedianGroundM, fmt(b.heightAboveMedianGroundM, 1))} m above the site's median ground), ` +
+      `${fmt(b.withinBandPct, 1)} % of the site would be inside the GSD band; terrain following gives ${fmt(s.withinBandPct, 1)} %.</p>` +
+      `<table class="cmp"><thead><tr><th></th><th class="r">This plan</th><th class="r">One constant altitude</th></tr></thead><tbody>` +
+      cmpRow("Within the band, %", "withinBandPct", s.withinBandPct, "baseline.withinBandPct", b.withinBandPct, 1) +
+      cmpRow("GSD 5th percentile, cm/px", "gsdCm.p5", g.p5, "baseline.gsdCm.p5", b.gsdCm.p5, 2) +
+      cmpRow("GSD median, cm/px", "gsdCm.median", g.median, "baseline.gsdCm.median", b.gsdCm.median, 2) +
+      cmpRow("GSD 95th percentile, cm/px", "gsdCm.p95", g.p95, "baseline.gsdCm.p95", b.gsdCm.p95, 2) +
+      cmpRow("GSD spread p95 − p5, cm/px", "derived.plan.gsdSpreadCm", spread(g), "derived.baseline.gsdSpreadCm", spread(b.gsdCm), 2) +
+      cmpRow("GSD min, cm/px", "gsdCm.min", g.min, "baseline.gsdCm.min", b.gsdCm.min, 2) +
+      cmpRow("GSD max, cm/px", "gsdCm.max", g.max, "baseline.gsdCm.max", b.gsdCm.max, 2) +
+      cmpRow("Ceiling breaches, cells", "planCeilingBreaches.cells", inp.planCeilingBreaches?.cells, "baseline.ceilingBreaches.cells", b.ceilingBreaches.cells) +
+      cmpRow("Ceiling breaches, m²", "planCeilingBreaches.areaM2", inp.planCeilingBreaches?.areaM2, "baseline.ceilingBreaches.areaM2", b.ceilingBreaches.areaM2, 0) +
+      cmpRow("Images per cell, min", "images.min", s.images?.min, "baseline.images.min", b.images?.min) +
+      `</tbody></table><p class="muted">Both columns come from the same independent per-cell check of the flown exposures.</p>`
+    : `<p class="muted">The constant-altitude comparison was not computed for this plan.</p>`;
+
+  // 6. Numbers
+  let numberRows = "";
+  for (const [key, v] of flattenNumbers(s)) {
+    numberRows += `<tr><th>${esc(labelFor(key))}</th><td class="r">${num(key, v, fmt(v, decimalsFor(key)))}</td></tr>`;
+  }
+  const words: [string, unknown][] = [
+    ["Binding speed limit", s.speedLimit],
+    ["Ceiling reference", s.ceiling?.reference],
+    ["Vertical datum", s.verticalDatum],
+  ];
+  for (const [label, v] of words) if (v !== undefined) numberRows += `<tr><th>${esc(label)}</th><td class="r">${esc(v)}</td></tr>`;
+  const hist = inp.gsdHistogram!;
+  const cautions = [...new Set([...inp.cautions, ...(s.cautions ?? []), ...STANDARD_CAUTIONS])];
+  const warnings = (s.warnings ?? []).map((w) => (typeof w === "string" ? w : w.message));
+  const a = inp.assumptions;
+  const surfaceText =
+    a.surfaceModel === "DTM"
+      ? "DTM (bare earth): trees, buildings and masts are not in it. Clearance includes the obstacle margin only."
+      : a.surfaceModel === "DSM"
+        ? "DSM (surface with trees and buildings): clearance is to the mapped surface; thin obstacles such as wires may still be missing."
+        : "Unknown whether the DEM is bare earth or surface: treat it as bare earth and allow for obstacles.";
+
+  const headline = [
+    ["Within band", num("withinBandPct", s.withinBandPct, fmt(s.withinBandPct, 1)), "% of site"],
+    ["Median GSD", num("gsdCm.median", g.median, fmt(g.median, 2)), `cm/px (target ${fmt(g.target, 2)})`],
+    ["Flights", s.flights !== undefined ? num("flights", s.flights) : "–", s.batteries !== undefined ? `${fmt(s.batteries)} ${s.batteries === 1 ? "battery" : "batteries"}` : ""],
+    ["Flight time", s.flightTimeS !== undefined ? num("flightTimeS", s.flightTimeS, fmtDuration(s.flightTimeS)) : "–", ""],
+    ["Waypoints", s.waypoints !== undefined ? num("waypoints", s.waypoints) : "–", s.strips !== undefined ? `${fmt(s.strips)} strips` : ""],
+    ["Flagged", s.flagged ? num("flagged.areaM2", s.flagged.areaM2, fmtArea(s.flagged.areaM2)) : "–", "of ground"],
+  ]
+    .map(([t, v, u]) => `<div class="kpi"><div class="kpi-t">${t}</div><div class="kpi-v">${v}</div><div class="kpi-u">${esc(u)}</div></div>`)
+    .join("");
+
+  const script = LAYER_SCRIPT;
+  const scriptHash = createHash("sha256").update(script, "utf8").digest("base64");
+  const csp = `default-src 'none'; img-src data:; style-src 'unsafe-inline'; script-src 'sha256-${scriptHash}'; base-uri 'none'; form-action 'none'`;
+  const title = `GSD report — ${inp.siteName}`;
+  const files = inp.files;
+  const fileList = [
+    files.planFile ? ["Plan file", files.planFile] : null,
+    files.dem ? ["DEM", files.dem] : null,
+    files.area ? ["Site", files.area] : null,
+  ].filter(Boolean) as [string, string][];
+
+  return `<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8">
+<meta http-equiv="Content-Security-Policy" content="${esc(csp)}">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>${esc(title)}</title>
+<style>${REPORT_CSS}</style></head>
+<body>
+<header class="top">
+<div><div class="eyebrow">gsdplan · GSD-variation report</div><h1 id="site-name">${esc(inp.siteName)}</h1>
+<p class="muted">${fileList.map(([k, v]) => `${esc(k)}: <code>${esc(v)}</code>`).join(" · ")}${inp.generatedAt ? ` · generated ${esc(inp.generatedAt)}` : ""}${inp.toolVersion ? ` · gsdplan ${esc(inp.toolVersion)}` : ""}</p></div>
+</header>
+<div class="kpis">${headline}</div>
+<aside class="caution-box"><strong>Before you fly.</strong> ${esc(STANDARD_CAUTIONS[0])} ${esc(STANDARD_CAUTIONS[5])}</aside>
+
+<section id="map"><h2>1 · Map</h2>
+<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, waypoints as dots. ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
+<div class="toggles no-print"><label><input type="checkbox" data-toggle="contours" checked> contours</label><label><input type="checkbox" data-toggle="legs" checked> legs and waypoints</label></div>
+<figure class="mapfig">${mainMap}<figcaption>${sequentialLegend("Height above ground on the strips", "m", agl[0], agl[1])}</figcaption></figure>
+</section>
+
+<section id="gsd"><h2>2 · Ground sample distance</h2>
+<div class="two">
+<figure class="mapfig">${gsdMap}<figcaption>${gsdLegend(g.target, g.low, g.high, "hatch-legend-outband")}</figcaption></figure>
+<figure class="mapfig">${imgMap}<figcaption>${sequentialLegend("Images per ground cell", "count", 0, Math.max(1, maxImages), minImages !== undefined ? `<text x="320" y="32" class="small">hatched: fewer than ${esc(minImages)}</text>` : "")}</figcaption></figure>
+</div>
+<p class="muted">GSD is the nadir figure from the most nadir exposure over each ground cell, from the independent check of the final waypoints. Map cells are ${fmt(r.transform.dx, 1)} m; the figures in the tables are at full DEM resolution.</p>
+</section>
+
+<section id="flags"><h2>3 · Flags</h2>
+<figure class="mapfig narrow">${flagMap}</figure>
+<table class="flags"><thead><tr><th></th><th>Kind</th><th class="r">Area</th><th class="r">Share</th><th>What it means</th><th>What you can do</th></tr></thead><tbody>${flagRows}</tbody></table>
+<p class="muted">Effects say what is wrong with the ground cell; causes say why the plan could not do better there. A cell can carry several.</p>
+</section>
+
+<section id="profiles"><h2>4 · Strip profiles</h2>
+<div class="profile-legend">${profileLegend()}</div>
+<div class="profiles">${profileHtml || '<p class="muted">No strips.</p>'}</div>
+</section>
+
+<section id="compare"><h2>5 · What terrain following buys</h2>${comparison}</section>
+
+<section id="numbers"><h2>6 · Numbers</h2>
+<div class="two">
+<div><h3>Summary</h3><table class="numbers" id="summary-table"><tbody>${numberRows}</tbody></table></div>
+<div>
+<h3>GSD distribution</h3>${gsdHistogramSvg(hist, g.target, g.low, g.high, inp.baselineHistogram)}
+<h3>Flights and batteries</h3>
+<p>${s.flights !== undefined ? num("flights", s.flights) : "–"} ${s.flights === 1 ? "flight" : "flights"}, ${s.batteries !== undefined ? num("batteries", s.batteries) : "–"} ${s.batteries === 1 ? "battery" : "batteries"}, ${s.flightTimeS !== undefined ? esc(fmtDuration(s.flightTimeS)) : "–"} in the air over ${s.pathLengthM !== undefined ? esc(fmt(s.pathLengthM / 1000, 2)) : "–"} km. Each flight starts and ends at the take-off point.</p>
+<h3>Vertical references</h3>
+<table class="numbers"><tbody>
+<tr><th>DEM heights</th><td>${esc(inp.verticalReferences.demDatum)}</td></tr>
+<tr><th>Geoid model</th><td>${esc(inp.verticalReferences.geoidModel)}</td></tr>
+${inp.verticalReferences.altitudes.map((x) => `<tr><th><code>${esc(x.name)}</code></th><td>${esc(x.reference)}</td></tr>`).join("")}
+</tbody></table>
+<h3>Assumptions</h3>
+<ul><li>${esc(surfaceText)}</li>
+<li>DEM vertical accuracy: ${a.demAccuracyM !== undefined ? `${esc(fmt(a.demAccuracyM, 1))} m` : "not stated"}; clearance can be trusted only to within it.</li>
+${(a.notes ?? []).map((n) => `<li>${esc(n)}</li>`).join("")}</ul>
+</div></div>
+${warnings.length ? `<h3>Warnings</h3><ul class="warnings">${warnings.map((w) => `<li>${esc(w)}</li>`).join("")}</ul>` : ""}
+<h3>Cautions</h3><ul class="cautions">${cautions.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>
+</section>
+<footer class="muted">Generated by gsdplan. This report supports planning; it is not permission to fly.</footer>
+<script type="application/json" id="summary-data">${jsonForScript(s)}</script>
+<script>${script}</script>
+</body></html>
+`;
+}
+
+/** Layer toggles: the only script on the page (allowed by its hash in the CSP). */
+const LAYER_SCRIPT = `(function(){var b=document.querySelectorAll('input[data-toggle]');for(var i=0;i<b.length;i++){b[i].addEventListener('change',function(e){var t=e.target,k=t.getAttribute('data-toggle'),g=document.querySelectorAll('#map-main [data-layer="'+k+'"]');for(var j=0;j<g.length;j++){g[j].style.display=t.checked?'':'none';}});}})();`;
+
+export type { ReportInput, ReportSummary };
+export type { MapView };

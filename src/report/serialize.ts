@@ -1,0 +1,135 @@
+/**
+ * `report-data.json`: the report's input written beside the other outputs so that
+ * `gsdplan report <out-dir>` can re-render the page without re-running the plan.
+ *
+ * Chosen over reading the GeoTIFFs back because the report also needs the legs' station
+ * profiles, the baseline comparison and the histograms, which no GeoTIFF holds. The file
+ * stays compact: rasters are block-reduced to at most `maxPx` across (downsample.ts), the
+ * GSD histogram is computed first at full resolution, and every typed array is stored as
+ * `{ "$typed": "<Float32Array|...>", "deflate": "<base64 of zlib-deflated little-endian bytes>" }`.
+ */
+import { deflateSync, inflateSync } from "node:zlib";
+import { InputFileError } from "../errors.js";
+import type { ReportInput } from "./model.js";
+import { blockFactor, downsampleGrid, downsampleRasters } from "./downsample.js";
+import { gsdBinEdges, histogram } from "./histogram.js";
+
+export const REPORT_DATA_FORMAT = "gsdplan-report-data";
+export const REPORT_DATA_VERSION = 1;
+
+const TYPED = {
+  Float64Array,
+  Float32Array,
+  Uint8Array,
+  Uint16Array,
+  Uint32Array,
+  Int16Array,
+  Int32Array,
+} as const;
+type TypedName = keyof typeof TYPED;
+
+/**
+ * Fill in what the report computes from full-resolution data (the GSD histogram), then
+ * reduce the rasters to at most `maxPx` across. `renderReport` calls it too, so the HTML
+ * is the same whether rendered directly or from report-data.json.
+ *
+ * @example const compact = compactReportInput(input, 1000);
+ */
+export function compactReportInput(input: ReportInput, maxPx = 1000): ReportInput {
+  const g = input.summary.gsdCm;
+  let gsdHistogram = input.gsdHistogram;
+  if (!gsdHistogram) {
+    const edges = gsdBinEdges(g.low, g.high, g.min, g.max, 30);
+    gsdHistogram = histogram(input.rasters.gsdCm, input.rasters.inSite, edges);
+  }
+  const kd = blockFactor(input.dem.width, input.dem.height, maxPx);
+  const kr = blockFactor(input.rasters.width, input.rasters.height, maxPx);
+  return {
+    ...input,
+    gsdHistogram,
+    dem: downsampleGrid(input.dem, kd),
+    rasters: downsampleRasters(input.rasters, kr),
+  };
+}
+
+/**
+ * The report input as report-data.json text (compacted, typed arrays deflated).
+ *
+ * @example writeFileSync(tmp, serializeReportInput(input)); renameSync(tmp, "report-data.json");
+ */
+export function serializeReportInput(input: ReportInput, opts: { maxPx?: number } = {}): string {
+  const compact = compactReportInput(input, opts.maxPx ?? 1000);
+  return JSON.stringify(
+    { format: REPORT_DATA_FORMAT, version: REPORT_DATA_VERSION, input: compact },
+    (_key, value: unknown) => {
+      if (ArrayBuffer.isView(value) && !(value instanceof DataView)) {
+        const name = value.constructor.name as TypedName;
+        if (!(name in TYPED)) throw new Error(`serializeReportInput: unsupported typed array ${name}`);
+        const bytes = Buffer.from(value.buffer, value.byteOffset, value.byteLength);
+        return { $typed: name, length: (value as unknown as { length: number }).length, deflate: deflateSync(bytes).toString("base64") };
+      }
+      // JSON has no NaN or Infinity; keep them distinguishable from null.
+      if (typeof value === "number" && !Number.isFinite(value)) return { $number: String(value) };
+      return value;
+    },
+  );
+}
+
+/**
+ * Read report-data.json text back into a ReportInput. Throws InputFileError naming the
+ * file and the problem when the text is not a report-data file of this version.
+ *
+ * @example const input = parseReportInput(readFileSync(p, "utf8"), p);
+ */
+export function parseReportInput(text: string, file = "report-data.json"): ReportInput {
+  let doc: unknown;
+  try {
+    doc = JSON.parse(text, (_key, value: unknown) => {
+      if (value && typeof value === "object" && "$typed" in value) {
+        const v = value as { $typed: string; length: number; deflate: string };
+        if (!(v.$typed in TYPED)) throw new Error(`unknown typed array ${v.$typed}`);
+        const Ctor = TYPED[v.$typed as TypedName];
+        const bytes = inflateSync(Buffer.from(v.deflate, "base64"));
+        if (bytes.byteLength !== v.length * Ctor.BYTES_PER_ELEMENT) throw new Error(`typed array of wrong length`);
+        // Copy into a fresh, aligned buffer.
+        const ab = new ArrayBuffer(bytes.byteLength);
+        new Uint8Array(ab).set(bytes);
+        return new Ctor(ab);
+      }
+      if (value && typeof value === "object" && "$number" in value) return Number((value as { $number: string }).$number);
+      return value;
+    });
+  } catch (e) {
+    throw new InputFileError(file, `not a readable report-data file (${(e as Error).message})`);
+  }
+  const d = doc as { format?: unknown; version?: unknown; input?: Partial<ReportInput> };
+  if (!d || d.format !== REPORT_DATA_FORMAT) throw new InputFileError(file, `not a ${REPORT_DATA_FORMAT} file`);
+  if (d.version !== REPORT_DATA_VERSION) {
+    throw new InputFileError(file, `report-data version ${String(d.version)} is not supported (this gsdplan reads version ${REPORT_DATA_VERSION})`);
+  }
+  const inp = d.input;
+  const problem = checkShape(inp);
+  if (problem) throw new InputFileError(file, problem);
+  return inp as ReportInput;
+}
+
+function checkShape(inp: Partial<ReportInput> | undefined): string | null {
+  if (!inp || typeof inp !== "object") return "missing the report input";
+  if (typeof inp.siteName !== "string") return "missing siteName";
+  const g = inp.summary?.gsdCm;
+  if (!g || !["target", "low", "high"].every((k) => typeof (g as unknown as Record<string, unknown>)[k] === "number")) {
+    return "summary.gsdCm must give target, low and high";
+  }
+  const dem = inp.dem;
+  if (!dem || !(dem.heights instanceof Float32Array) || dem.heights.length !== dem.width * dem.height) return "dem heights do not match its size";
+  const r = inp.rasters;
+  if (!r) return "missing rasters";
+  const n = r.width * r.height;
+  if (!(r.gsdCm instanceof Float32Array) || r.gsdCm.length !== n) return "rasters.gsdCm does not match the raster size";
+  if (!(r.images instanceof Uint16Array) || r.images.length !== n) return "rasters.images does not match the raster size";
+  if (!(r.flags instanceof Uint8Array) || r.flags.length !== n) return "rasters.flags does not match the raster size";
+  if (!(r.inSite instanceof Uint8Array) || r.inSite.length !== n) return "rasters.inSite does not match the raster size";
+  if (!Array.isArray(inp.legs)) return "missing legs";
+  if (!inp.site || (inp.site.type !== "Polygon" && inp.site.type !== "MultiPolygon")) return "site must be a Polygon or MultiPolygon";
+  return null;
+}
