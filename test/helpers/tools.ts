@@ -30,4 +30,4 @@ export function requireTool(cmd: string, pkg: string, args?: string[]): boolean 
 }
 
 export const HAS_GDAL = requireTool("gdalinfo", "gdal-bin");
-export const HAS_PROJ = requireTool("cs2cs", "proj-bin");
+export const HAS_PROJ = requireTool("cs2cs", "proj-bin", ["-l"]);
