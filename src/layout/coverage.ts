@@ -73,6 +73,11 @@ export function siteCoverage(site: Site, grid: DemGrid): SiteCoverage {
   const message =
     missing === 0
       ? ""
-      : `${(fraction * 100).toFixed(1)} % of the site (${Math.round(outsideAreaM2).toLocaleString("en-US")} m²) has no DEM heights (outside the DEM or nodata); no strip can be planned safely there — extend the DEM or trim the site`;
+      : `${formatPct(fraction * 100)} % of the site (${Math.round(outsideAreaM2).toLocaleString("en-US")} m²) has no DEM heights (outside the DEM or nodata); no strip can be planned safely there — extend the DEM or trim the site`;
   return { outsideAreaM2, outsideFraction: fraction, message };
+}
+
+/** Percent with enough digits that a small uncovered part does not print as 0.0. */
+function formatPct(pct: number): string {
+  return pct >= 1 ? pct.toFixed(1) : pct.toPrecision(2);
 }
