@@ -210,6 +210,8 @@ function solvePiece(
     warnings.push({ code: "climb-ceiling", message: `${p.kind === "strip" ? "Strip" : "Leg into strip"} ${p.strip}: clearance cannot be kept under the ceiling within the climb and descent limits; the plan keeps clearance (see the ceiling breaches).` });
   }
   const tLo = new Float64Array(n), tHi = new Float64Array(n), pref = new Float64Array(n);
+  // 1 where the band meets the hard corridor but not its gradient-feasible envelope.
+  const envelopeCut = new Uint8Array(n);
   for (let k = 0; k < n; k++) {
     const bl = Math.min(prof.bandLowM[k], prof.bandHighM[k]);
     const bh = Math.max(prof.bandLowM[k], prof.bandHighM[k]);
@@ -218,8 +220,8 @@ function solvePiece(
     if (p.kind !== "strip" || bl !== bl) { tLo[k] = eLo[k]; tHi[k] = eHi[k]; continue; }
     const a = Math.max(bl, eLo[k]), b = Math.min(bh, eHi[k]);
     if (a <= b) { tLo[k] = a; tHi[k] = b; }
-    else if (bl > eHi[k]) { tLo[k] = Math.max(eLo[k], eHi[k] - bandWidthM); tHi[k] = eHi[k]; }
-    else { tLo[k] = eLo[k]; tHi[k] = Math.min(eHi[k], eLo[k] + bandWidthM); }
+    else if (bl > eHi[k]) { envelopeCut[k] = 1; tLo[k] = Math.max(eLo[k], eHi[k] - bandWidthM); tHi[k] = eHi[k]; }
+    else { envelopeCut[k] = 1; tLo[k] = eLo[k]; tHi[k] = Math.min(eHi[k], eLo[k] + bandWidthM); }
   }
   const gates = targetGates(prof.s, eLo, eHi, tLo, tHi, gMin, gMax);
   const path = minLinkPath(prof.s, gates.lo, gates.hi, gMin, gMax, pref);
@@ -235,7 +237,7 @@ function solvePiece(
   if (p.kind === "strip") {
     for (let k = 0; k < n; k++) {
       // The band met the hard corridor here, yet the gradient limits kept the path off it.
-      if (prof.status[k] === STATUS_OK && gates.offTarget[k]) {
+      if (prof.status[k] === STATUS_OK && (gates.offTarget[k] || envelopeCut[k])) {
         prof.status[k] = STATUS_DETAIL_LIMITED;
         prof.cause[k] |= CAUSE_CLIMB;
       }
