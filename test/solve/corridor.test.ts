@@ -1,0 +1,104 @@
+import { describe, it, expect } from "vitest";
+import { execFileSync } from "node:child_process";
+import { mkdtempSync, writeFileSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { fromFile } from "geotiff";
+import { makeGrid } from "../../src/dem/sample.js";
+import { corridorAlong } from "../../src/solve/corridor.js";
+import { surfaceCeiling } from "../../src/solve/surfaceCeiling.js";
+import { stationsAlongLeg } from "../../src/solve/stations.js";
+import { solvePlan } from "../../src/solve/solveLegs.js";
+import { HAS_GDAL } from "../helpers/tools.js";
+import { options, strip } from "./fixtures.js";
+
+describe("ceiling rules against their published text", () => {
+  it("14 CFR 107.51(b): 400 ft above ground level = 121.92 m (international foot = 0.3048 m exactly)", () => {
+    const C = 400 * 0.3048;
+    expect(C).toBeCloseTo(121.92, 12);
+    const grid = makeGrid({ width: 200, height: 60, x0: 0, y0: 60, cellM: 1, heights: (x) => 50 + 0.3 * x });
+    const p = corridorAlong(grid, stationsAlongLeg(strip(30.5, 170.5), 1, 20), options({ ceiling: { heightM: C, reference: "ground" } }));
+    for (let k = 0; k < p.s.length; k++) expect(p.hardHighM[k] - p.groundM[k]).toBeCloseTo(121.92, 9);
+  });
+
+  it("Reg (EU) 2019/947 UAS.OPEN.010: 120 m from the closest point of the surface; flat ground gives ground + 120", () => {
+    const grid = makeGrid({ width: 300, height: 300, x0: 0, y0: 300, cellM: 1, heights: () => 70 });
+    const out = new Float64Array(1);
+    surfaceCeiling(grid, [150.5], [150.5], 120, out);
+    expect(out[0]).toBeCloseTo(190, 9);
+  });
+
+  it("on a 45-degree slope the surface rule allows C / cos(a) above the ground below, C (sqrt 2 - 1) more than the ground rule", () => {
+    // Derivation: ground z = x tan a. A point at height z_p above (x_p, 0) is within C
+    // of the surface point at horizontal offset u uphill iff z_p <= h(x_p) + u tan a
+    // + sqrt(C^2 - u^2). The right side is largest at u = C sin a, where it equals
+    // h(x_p) + C sin^2 a / cos a + C cos a = h(x_p) + C / cos a. For a = 45 deg,
+    // C = 120: 169.706 m above the ground below, i.e. 49.706 m above the ground rule.
+    // The 1 m cells miss the continuous optimum by < 0.5 |f''| (0.5 m)^2 = 0.003 m.
+    const C = 120;
+    const grid = makeGrid({ width: 400, height: 60, x0: 0, y0: 60, cellM: 1, heights: (x) => x });
+    const st = stationsAlongLeg(strip(150.5, 250.5), 1, 20);
+    const surf = corridorAlong(grid, st, options({ ceiling: { heightM: C, reference: "surface" } }));
+    const gnd = corridorAlong(grid, st, options({ ceiling: { heightM: C, reference: "ground" } }));
+    for (let k = 0; k < st.s.length; k++) {
+      expect(surf.hardHighM[k] - surf.groundM[k]).toBeCloseTo(C / Math.cos(Math.PI / 4), 2);
+      expect(surf.hardHighM[k] - gnd.hardHighM[k]).toBeCloseTo(C * (Math.SQRT2 - 1), 2);
+    }
+  });
+
+  it("the branch-and-bound surface ceiling equals a full scan of the disc on rough terrain", () => {
+    let seed = 12345;
+    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    const grid = makeGrid({ width: 120, height: 120, x0: 0, y0: 120, cellM: 1, heights: (x, y) => 30 * Math.sin(x / 9) * Math.cos(y / 13) + 20 * rnd() });
+    const xs = [60.2, 30.7, 90.1, 10.5], ys = [60.9, 80.3, 20.2, 10.5];
+    const out = new Float64Array(xs.length);
+    surfaceCeiling(grid, xs, ys, 40, out);
+    for (let i = 0; i < xs.length; i++) {
+      let best = -Infinity;
+      for (let r = 0; r < 120; r++) for (let c = 0; c < 120; c++) {
+        const dx = c + 0.5 - xs[i], dy = 120 - (r + 0.5) - ys[i];
+        const rem = 1600 - dx * dx - dy * dy;
+        if (rem >= 0) best = Math.max(best, grid.heights[r * 120 + c] + Math.sqrt(rem));
+      }
+      expect(out[i]).toBeCloseTo(best, 9);
+    }
+  });
+});
+
+describe.skipIf(!HAS_GDAL)("ground under waypoints vs GDAL", () => {
+  it("matches gdallocationinfo on a GDAL-written GeoTIFF", async () => {
+    // GDAL 3.6's gdallocationinfo has no -r bilinear, so the check is at cell
+    // centres (where bilinear equals the cell value): stations are placed on them.
+    const dir = mkdtempSync(join(tmpdir(), "gsdplan-solve-"));
+    try {
+      const w = 80, h = 40;
+      const rows: string[] = [];
+      for (let r = 0; r < h; r++) {
+        const vals: string[] = [];
+        for (let c = 0; c < w; c++) vals.push((200 + 15 * Math.sin(c / 7) + 0.37 * r + 0.01 * c * r).toFixed(3));
+        rows.push(vals.join(" "));
+      }
+      const asc = join(dir, "dem.asc");
+      writeFileSync(asc, `ncols ${w}\nnrows ${h}\nxllcorner 500000\nyllcorner 4600000\ncellsize 1\nNODATA_value -9999\n${rows.join("\n")}\n`);
+      const tif = join(dir, "dem.tif");
+      execFileSync("gdal_translate", ["-q", "-of", "GTiff", "-a_srs", "EPSG:32633", "-ot", "Float32", asc, tif]);
+      const img = await (await fromFile(tif)).getImage();
+      const [ox, oy] = img.getOrigin();
+      const [rx] = img.getResolution();
+      const ras = (await img.readRasters({ interleave: true })) as Float32Array;
+      const grid = makeGrid({ width: img.getWidth(), height: img.getHeight(), x0: ox, y0: oy, cellM: rx, heights: Float32Array.from(ras) });
+      const y = oy - 20.5;
+      const opts = options({ zoneHalfAcrossM: 5, clearance: { minM: 10, safetyRadiusM: 5, obstacleMarginM: 0 } });
+      const r = solvePlan(grid, [{ kind: "strip", strip: 1, from: [ox + 10.5, y], to: [ox + 69.5, y], lengthM: 59 }], opts);
+      const wps = r.legs[0].waypoints;
+      expect(wps.length).toBeGreaterThanOrEqual(2);
+      for (const wp of wps) {
+        const g = Number(execFileSync("gdallocationinfo", ["-valonly", "-geoloc", tif, String(wp.x), String(wp.y)]).toString().trim());
+        expect(wp.groundAmslM).toBeCloseTo(g, 3);
+        expect(wp.heightAboveGroundM).toBeCloseTo(wp.altitudeAmslM - g, 3);
+      }
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
