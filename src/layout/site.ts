@@ -5,7 +5,7 @@
  * cannot trust: self-intersecting ones and ones with fewer than three corners.
  */
 import type { MultiPolygon, Polygon, Position } from "geojson";
-import { kinks, lineString, polygon as turfPolygon } from "@turf/turf";
+import { featureCollection, intersect, kinks, lineString, polygon as turfPolygon } from "@turf/turf";
 import { InputError } from "../errors.js";
 import type { LocalFrame } from "../geo/frame.js";
 import { normaliseLonDeg } from "../geo/longitude.js";
@@ -86,6 +86,8 @@ export function siteFromLonLat(polygons: readonly LonLatPolygon[], frame: SiteFr
     cleaned.push(rings);
   });
 
+  checkNoOverlap(cleaned, source);
+
   const localPolys: Position[][][] = cleaned.map((rings) =>
     rings.map((ring) => closeRing(ring.map(([lon, lat]) => frame.fromWgs84(lon, lat)))),
   );
@@ -161,6 +163,22 @@ function checkSimple(rings: number[][][], pi: number, nPolys: number, source: st
       const [lon, lat] = k.geometry.coordinates;
       const label = nPolys > 1 ? `${source} polygon ${pi + 1}` : source;
       throw new InputError(label, `rings cross at ${fmtLonLat(lon, lat)}`, "holes that lie inside the outer ring without touching it", "a hole crosses another ring");
+    }
+  }
+}
+
+/**
+ * Polygons of one site must not overlap: strips read the site by the even-odd
+ * rule, under which an overlap would count as outside. Touching is fine.
+ */
+function checkNoOverlap(polys: number[][][][], source: string): void {
+  if (polys.length < 2 || polys.length > 200) return;
+  const features = polys.map((rings) => turfPolygon(rings.map(closeRing)));
+  for (let i = 0; i < features.length; i++) {
+    for (let j = i + 1; j < features.length; j++) {
+      if (intersect(featureCollection([features[i], features[j]]))) {
+        throw new InputError(source, `polygons ${i + 1} and ${j + 1}`, "polygons that do not overlap (merge overlapping ones into one)", "two polygons of the site overlap");
+      }
     }
   }
 }

@@ -141,6 +141,13 @@ describe("readSite: bad input is refused with one clear line", () => {
     expect(e.message).toMatch(/crosses/);
   });
 
+  it("overlapping polygons in one site are refused (touching ones are fine)", () => {
+    const mp = (a: number[][], b: number[][]) => JSON.stringify({ type: "MultiPolygon", coordinates: [[lonLatRing(a)], [lonLatRing(b)]] });
+    const e = inputError(() => readSite(mp(rect(0, 0, 100, 100), rect(50, 50, 150, 150)), UTM33));
+    expect(e.message).toMatch(/overlap/);
+    expect(readSite(mp(rect(0, 0, 100, 100), rect(200, 0, 300, 100)), UTM33).areaM2).toBeCloseTo(20_000, -1);
+  });
+
   it("fewer than three distinct corners", () => {
     const e = inputError(() => readSite(polygonText([[[0, 0], [100, 0], [0, 0], [100, 0], [0, 0]]]), UTM33));
     expect(e.message).toMatch(/only 2 distinct corners/);
