@@ -18,7 +18,7 @@ code{font-family:ui-monospace,"SFMono-Regular",Menlo,Consolas,"Liberation Mono",
 .caution-box{border-left:4px solid #e66101;background:#fff6ee;padding:8px 12px;font-size:.9rem;margin:8px 0 0}
 figure{margin:0}
 .mapfig{background:var(--panel);border:1px solid var(--line);border-radius:6px;padding:8px}
-.mapfig.narrow{max-width:820px}
+.mapfig.narrow{max-width:680px}
 svg.map{display:block;width:100%;height:auto;font-size:13px}
 svg.map text{font-family:inherit;fill:#111}
 svg.map .contour-labels text{font-size:11px;fill:#4a3526;paint-order:stroke;stroke:#fff;stroke-width:3px;stroke-opacity:.85;text-anchor:middle;dominant-baseline:middle}

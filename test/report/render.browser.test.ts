@@ -69,7 +69,7 @@ describe.skipIf(!HAS_CHROMIUM)("report in headless Chromium", () => {
     }
     // Every embedded raster decoded (a broken PNG has naturalWidth 0 in an <img>; for SVG
     // <image> we check the rendered size instead).
-    const imageBoxes = await page.locator("svg.map image").evaluateAll((els) => els.map((e) => (e as SVGGraphicsElement).getBBox().width));
+    const imageBoxes = await page.locator("svg.map image").evaluateAll((els) => els.map((e) => (e as unknown as { getBBox(): { width: number } }).getBBox().width));
     expect(imageBoxes.length).toBeGreaterThanOrEqual(6);
     for (const w of imageBoxes) expect(w).toBeGreaterThan(0);
 
@@ -135,14 +135,14 @@ describe.skipIf(!HAS_CHROMIUM)("report in headless Chromium", () => {
     input.summary.warnings = [`</script><script>window.__pwned=4</script>`];
     const { page, consoleErrors, dialogs } = await open(renderReport(input), "hostile.html");
     expect(dialogs).toEqual([]);
-    expect(await page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined();
+    expect(await page.evaluate(() => (globalThis as unknown as { __pwned?: number }).__pwned)).toBeUndefined();
     expect(await page.locator("#site-name").textContent()).toBe(HOSTILE);
     expect(await page.title()).toBe(`GSD report — ${HOSTILE}`);
     // Our two script elements only (the JSON data block and the layer toggles); no <img>.
     expect(await page.locator("script").count()).toBe(2);
     expect(await page.locator("img").count()).toBe(0);
     // The inline JSON parses back to the same warnings.
-    const warnings = await page.evaluate(() => JSON.parse(document.getElementById("summary-data")!.textContent!).warnings);
+    const warnings = await page.locator("#summary-data").evaluate((e) => JSON.parse(e.textContent!).warnings);
     expect(warnings).toEqual(input.summary.warnings);
     expect(consoleErrors).toEqual([]);
     await page.close();

@@ -1,0 +1,145 @@
+import { describe, it, expect } from "vitest";
+import { srgbToLab, labToSrgb, labRamp, VIRIDIS_STOPS, DIVERGING_STOPS, gsdScalePosition, gsdAtScalePosition } from "../../src/report/colour.js";
+import { esc, jsonForScript } from "../../src/report/escape.js";
+import { contourInterval, contourLines, maskOutline } from "../../src/report/contours.js";
+import { niceFloor, niceStep } from "../../src/report/nice.js";
+import { histogram } from "../../src/report/histogram.js";
+import { parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
+import { renderReport } from "../../src/report/render.js";
+import { InputFileError } from "../../src/errors.js";
+import { makeReportInput } from "./fixture.js";
+
+describe("sRGB to CIELAB (IEC 61966-2-1 sRGB, CIE 15 L*a*b*, D65)", () => {
+  // Reference values as tabulated by common colour calculators for sRGB/D65 (from memory):
+  // red (53.24, 80.09, 67.20), green (87.73, -86.18, 83.18), blue (32.30, 79.19, -107.86).
+  const cases: [[number, number, number], [number, number, number]][] = [
+    [[255, 255, 255], [100, 0, 0]],
+    [[0, 0, 0], [0, 0, 0]],
+    [[255, 0, 0], [53.24, 80.09, 67.2]],
+    [[0, 255, 0], [87.73, -86.18, 83.18]],
+    [[0, 0, 255], [32.3, 79.19, -107.86]],
+  ];
+  for (const [rgb, lab] of cases)
+    it(`rgb(${rgb}) -> Lab(${lab})`, () => {
+      const got = srgbToLab(rgb);
+      for (let i = 0; i < 3; i++) expect(Math.abs(got[i] - lab[i])).toBeLessThan(0.05);
+      expect(labToSrgb(got)).toEqual(rgb);
+    });
+
+  it("viridis ramp lightness rises monotonically (its published design criterion)", () => {
+    const t = labRamp(VIRIDIS_STOPS, 64);
+    let prev = -1;
+    for (let i = 0; i < 64; i++) {
+      const L = srgbToLab([t[3 * i], t[3 * i + 1], t[3 * i + 2]])[0];
+      expect(L).toBeGreaterThan(prev - 0.5); // allow sRGB rounding
+      prev = L;
+    }
+  });
+
+  it("diverging ramp: lightest at the centre, falling on both sides", () => {
+    const t = labRamp(DIVERGING_STOPS, 65);
+    const L = (i: number) => srgbToLab([t[3 * i], t[3 * i + 1], t[3 * i + 2]])[0];
+    for (let i = 1; i <= 32; i++) expect(L(i)).toBeGreaterThan(L(i - 1) - 0.5);
+    for (let i = 33; i < 65; i++) expect(L(i)).toBeLessThan(L(i - 1) + 0.5);
+  });
+
+  it("GSD scale: target at the centre, band edges at the quarter marks, and back", () => {
+    expect(gsdScalePosition(3, 3, 2.7, 3.3)).toBe(0.5);
+    expect(gsdScalePosition(2.7, 3, 2.7, 3.3)).toBeCloseTo(0.25, 12);
+    expect(gsdScalePosition(3.3, 3, 2.7, 3.3)).toBeCloseTo(0.75, 12);
+    expect(gsdAtScalePosition(0.9, 3, 2.7, 3.3)).toBeCloseTo(3.48, 12);
+  });
+});
+
+describe("escaping (HTML Standard text, attribute and script-data contexts)", () => {
+  it("escapes the five HTML-significant characters", () => {
+    expect(esc(`<a href="x">'&'</a>`)).toBe("&lt;a href=&quot;x&quot;&gt;&#39;&amp;&#39;&lt;/a&gt;");
+  });
+  it("inline JSON cannot close its script element and parses back unchanged", () => {
+    const v = { name: "</script><!-- \u2028 & >" };
+    const s = jsonForScript(v);
+    expect(s).not.toMatch(/[<>&\u2028]/);
+    expect(JSON.parse(s)).toEqual(v);
+  });
+  it("a hostile site name never reaches the HTML unescaped", () => {
+    const name = `<script>alert(1)</script>`;
+    const html = renderReport(makeReportInput({ siteName: name, demFile: `"><img src=x onerror=alert(1)>` }));
+    expect(html).not.toContain(name);
+    expect(html).not.toContain("<img");
+    expect(html).toContain("&lt;script&gt;alert(1)&lt;/script&gt;");
+    // Exactly our two script elements.
+    expect(html.match(/<script[\s>]/g)?.length).toBe(2);
+  });
+});
+
+describe("nice numbers and contour intervals (1-2-5 series, common practice)", () => {
+  it("picks 1, 2 or 5 x 10^k", () => {
+    expect(niceStep(230, 12)).toBe(20);
+    expect(niceFloor(740)).toBe(500);
+    expect(niceFloor(0.3)).toBeCloseTo(0.2, 12);
+  });
+  it("contour interval gives 10 to 20 lines", () => {
+    for (const [lo, hi] of [[212, 398], [0, 1000], [1203.5, 1210.2], [-5, 3000]]) {
+      const k = contourInterval(lo, hi);
+      const n = Math.floor(hi / k) - Math.ceil(lo / k) + 1;
+      expect(n).toBeGreaterThanOrEqual(10);
+      expect(n).toBeLessThanOrEqual(20);
+      expect([1, 2, 5]).toContain(Math.round(k / Math.pow(10, Math.floor(Math.log10(k) + 1e-9))));
+    }
+  });
+  it("contour of a plane z = x lies at the height's column (cell centres at +0.5) and avoids the frame", () => {
+    const w = 10, h = 6;
+    const heights = new Float32Array(w * h);
+    for (let r = 0; r < h; r++) for (let c = 0; c < w; c++) heights[r * w + c] = c; // z = column index
+    const lines = contourLines({ width: w, height: h, heights }, 3);
+    const at3 = lines.find((l) => l.valueM === 3)!;
+    expect(at3.lines.length).toBe(1);
+    const l = at3.lines[0];
+    for (let i = 0; i < l.length; i += 2) expect(l[i]).toBeCloseTo(3.5, 9);
+  });
+  it("mask outline of one cell encloses its centre", () => {
+    const m = new Uint8Array(16);
+    m[5] = 1;
+    const rings = maskOutline(m, 4, 4);
+    expect(rings.length).toBe(1);
+    const xs = rings[0].filter((_, i) => i % 2 === 0);
+    expect(Math.min(...xs)).toBe(1);
+    expect(Math.max(...xs)).toBe(2);
+  });
+});
+
+describe("histogram", () => {
+  it("counts in-site finite values into half-open bins", () => {
+    const h = histogram([1, 1.5, 2, 2.5, 3, NaN, 0.5, 9], [1, 1, 1, 1, 1, 1, 1, 0], [1, 2, 3]);
+    expect(h.counts).toEqual([2, 2]);
+    expect(h.under).toBe(1);
+    expect(h.over).toBe(1);
+  });
+});
+
+describe("report-data.json", () => {
+  it("round-trips the report input, typed arrays included", () => {
+    const input = makeReportInput();
+    const back = parseReportInput(serializeReportInput(input));
+    expect(back.summary).toEqual(input.summary);
+    expect(back.rasters.gsdCm).toBeInstanceOf(Float32Array);
+    expect(Array.from(back.rasters.flags)).toEqual(Array.from(input.rasters.flags));
+    expect(back.legs[1].profile.altitudeM).toEqual(input.legs[1].profile.altitudeM);
+    expect(back.legs.length).toBe(input.legs.length);
+  });
+  it("block-reduces large rasters and keeps every flag bit", () => {
+    const input = makeReportInput();
+    const back = parseReportInput(serializeReportInput(input, { maxPx: 40 }));
+    expect(Math.max(back.rasters.width, back.rasters.height)).toBeLessThanOrEqual(40);
+    let orIn = 0, orOut = 0;
+    for (const f of input.rasters.flags) orIn |= f;
+    for (const f of back.rasters.flags) orOut |= f;
+    expect(orOut).toBe(orIn);
+    expect(back.gsdHistogram!.counts).toEqual(input.gsdHistogram!.counts);
+  });
+  it("rejects other files with one clear InputFileError", () => {
+    expect(() => parseReportInput("{}", "out/report-data.json")).toThrow(InputFileError);
+    expect(() => parseReportInput("not json", "out/report-data.json")).toThrow(/out\/report-data.json/);
+    expect(() => parseReportInput(JSON.stringify({ format: "gsdplan-report-data", version: 99 }))).toThrow(/version 99/);
+  });
+});
