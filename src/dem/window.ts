@@ -3,6 +3,7 @@ import type { DemGrid } from "./grid.js";
 import { demHandles, type DemSource } from "./source.js";
 import { cellSizeMetres, metresPerDegree } from "./cellsize.js";
 import { transformBounds, type Bounds } from "./bounds.js";
+import { decodeWindowDirect } from "./tiles.js";
 
 /** Options of readWindow. */
 export interface ReadWindowOptions {
@@ -53,7 +54,8 @@ export function nativeBounds(source: DemSource): Bounds {
 
 /**
  * Reads the cells under a box (plus a margin) into a DemGrid of heights in metres.
- * Only the strips/tiles that intersect the window are fetched and decoded. GDAL
+ * Only the strips/tiles that intersect the window are fetched and decoded, each straight
+ * into the output. GDAL
  * scale/offset and the vertical unit are applied; nodata becomes NaN with valid = 0.
  * @example
  * const dem = await openDem("fixtures/gdal/hills_utm33_f32.tif");
@@ -83,13 +85,17 @@ export async function readCells(source: DemSource, win: CellWindow): Promise<Dem
   const { image } = demHandles(source);
   const width = win.col1 - win.col0;
   const height = win.row1 - win.row0;
-  const rasters = (await image.readRasters({
-    window: [win.col0, win.row0, win.col1, win.row1],
-    samples: [source.band - 1],
-    interleave: false,
-  })) as unknown as ArrayLike<number>[];
-  const raw = rasters[0];
-  const { heights, valid } = toMetres(raw, source);
+  let heights: Float32Array = new Float32Array(width * height);
+  let valid: Uint8Array = new Uint8Array(width * height);
+  if (!(await decodeWindowDirect(source, image, win, heights, valid))) {
+    // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).
+    const rasters = (await image.readRasters({
+      window: [win.col0, win.row0, win.col1, win.row1],
+      samples: [source.band - 1],
+      interleave: false,
+    })) as unknown as ArrayLike<number>[];
+    ({ heights, valid } = toMetres(rasters[0], source));
+  }
 
   const { x0, y0, dx, dy } = source.transform;
   const transform = { x0: x0 + win.col0 * dx, y0: y0 + win.row0 * dy, dx, dy };
