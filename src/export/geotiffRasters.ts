@@ -85,7 +85,35 @@ export function rasterGeoTiff(
     ProjectedCSTypeGeoKey: 0,
   };
   if (nodata !== undefined) meta.GDAL_NODATA = nodata;
-  return writeArrayBuffer(values, meta);
+  return withPixels(values, meta);
+}
+
+/**
+ * geotiff.js 3.0.5 encodes pixels one by one through a fresh DataView each
+ * (about 1 µs a pixel: 18 s for 4000 x 4000), so we let it write the header
+ * for a one-pixel stand-in with the real sizes declared, then append the
+ * pixels ourselves, big-endian like its header ("MM"), in one pass.
+ */
+function withPixels(values: Float32Array | Uint16Array | Uint8Array, meta: GeotiffWriterMetadata & Record<string, unknown>): ArrayBuffer {
+  const size = values.BYTES_PER_ELEMENT;
+  const head = new Uint8Array(
+    writeArrayBuffer(values.subarray(0, 1), {
+      ...meta,
+      SamplesPerPixel: 1,
+      BitsPerSample: [8 * size],
+      SampleFormat: [values instanceof Float32Array ? 3 : 1],
+      StripByteCounts: [values.length * size],
+    }),
+  );
+  // The header ends where the writer put its one stand-in pixel: the strip offset.
+  const offset = head.length - size;
+  const out = new Uint8Array(offset + values.length * size);
+  out.set(head.subarray(0, offset));
+  const view = new DataView(out.buffer, offset);
+  if (values instanceof Float32Array) for (let i = 0; i < values.length; i++) view.setFloat32(4 * i, values[i], false);
+  else if (values instanceof Uint16Array) for (let i = 0; i < values.length; i++) view.setUint16(2 * i, values[i], false);
+  else out.set(values, offset);
+  return out.buffer;
 }
 
 /** GeoKeys for a CRS: EPSG code when known, else a user-defined transverse Mercator key set. */
