@@ -43,45 +43,53 @@ function pct(part: number, whole: number): number {
 export function assessmentStats(input: StatsInput): AssessmentStats {
   const { gsdCm, images, flags, inSite, valid, nadirStrip, cellAreaM2 } = input;
   const n = inSite.length;
-  let siteCells = 0;
   let maxStrip = 0;
-  let flaggedCells = 0;
-  let inBand = 0;
-  const kindCells = new Float64Array(FLAG_KINDS.length);
+  for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
+
+  // One pass: a histogram of flag bytes per strip (strip 0: cells no photo sees) gives every
+  // count; flag kinds are read off the 256 bins afterwards instead of testing 7 bits per cell.
+  const flagHist = new Float64Array((maxStrip + 1) * 256);
+  const seenCount = new Int32Array(maxStrip + 2);
   const withData = new Uint8Array(n);
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
-    siteCells++;
-    if (valid[i] === 1) withData[i] = 1;
-    const f = flags[i];
-    if (f !== 0) flaggedCells++;
-    for (let k = 0; k < FLAG_KINDS.length; k++) if (f & FLAG_KINDS[k].bit) kindCells[k]++;
-    if (gsdCm[i] === gsdCm[i] && (f & (FLAG_COARSE | FLAG_FINE)) === 0) inBand++;
-    if (nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
+    withData[i] = valid[i];
+    const s = nadirStrip[i];
+    flagHist[s * 256 + flags[i]]++;
+    if (gsdCm[i] === gsdCm[i]) seenCount[s + 1]++;
   }
-
-  // Group the seen cells by strip (counting sort), so each strip's GSD is one contiguous run.
-  const perStripCount = new Int32Array(maxStrip + 2);
-  for (let i = 0; i < n; i++) if (inSite[i] === 1 && gsdCm[i] === gsdCm[i]) perStripCount[nadirStrip[i] + 1]++;
   const start = new Int32Array(maxStrip + 2);
-  for (let s = 0; s <= maxStrip; s++) start[s + 1] = start[s] + perStripCount[s + 1];
+  for (let s = 0; s <= maxStrip; s++) start[s + 1] = start[s] + seenCount[s + 1];
   const grouped = new Float32Array(start[maxStrip + 1]);
   const fill = start.slice();
-  const stripInBand = new Float64Array(maxStrip + 1);
-  const stripKind = Array.from({ length: maxStrip + 1 }, () => new Float64Array(FLAG_KINDS.length));
-  const stripCells = new Float64Array(maxStrip + 1);
+  // Seen cells in band, per strip: no coarse/fine bit and a GSD.
+  const inBandSeen = new Float64Array(maxStrip + 1);
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
+    const g = gsdCm[i];
+    if (g !== g) continue;
     const s = nadirStrip[i];
-    const seen = gsdCm[i] === gsdCm[i];
-    if (seen) grouped[fill[s]++] = gsdCm[i];
-    if (s === 0) continue;
-    stripCells[s]++;
-    const f = flags[i];
-    for (let k = 0; k < FLAG_KINDS.length; k++) if (f & FLAG_KINDS[k].bit) stripKind[s][k]++;
-    if (seen && (f & (FLAG_COARSE | FLAG_FINE)) === 0) stripInBand[s]++;
+    grouped[fill[s]++] = g;
+    if ((flags[i] & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[s]++;
   }
 
+  const kindCounts = (s0: number, s1: number): { cells: Float64Array; all: number; flagged: number } => {
+    const cells = new Float64Array(FLAG_KINDS.length);
+    let all = 0;
+    let flagged = 0;
+    for (let s = s0; s <= s1; s++) {
+      for (let f = 0; f < 256; f++) {
+        const c = flagHist[s * 256 + f];
+        if (c === 0) continue;
+        all += c;
+        if (f !== 0) flagged += c;
+        FLAG_KINDS.forEach((kind, k) => {
+          if (f & kind.bit) cells[k] += c;
+        });
+      }
+    }
+    return { cells, all, flagged };
+  };
   const byKind = (counts: Float64Array, whole: number): Record<string, { cells: number; areaM2: number; pct: number }> => {
     const out: Record<string, { cells: number; areaM2: number; pct: number }> = {};
     FLAG_KINDS.forEach((kind, k) => {
@@ -92,23 +100,27 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
 
   const perStrip: AssessmentStats["perStrip"] = [];
   for (let s = 1; s <= maxStrip; s++) {
-    if (stripCells[s] === 0) continue;
+    const k = kindCounts(s, s);
+    if (k.all === 0) continue;
     perStrip.push({
       strip: s,
-      cells: stripCells[s],
+      cells: k.all,
       gsdCm: gsdStats(grouped.subarray(start[s], start[s + 1])),
-      withinBandPct: pct(stripInBand[s], stripCells[s]),
-      flagged: byKind(stripKind[s], stripCells[s]),
+      withinBandPct: pct(inBandSeen[s], k.all),
+      flagged: byKind(k.cells, k.all),
     });
   }
 
+  const site = kindCounts(0, maxStrip);
+  let inBand = 0;
+  for (let s = 0; s <= maxStrip; s++) inBand += inBandSeen[s];
   return {
-    siteCells,
+    siteCells: site.all,
     cellAreaM2,
     gsdCm: gsdStats(grouped),
-    withinBandPct: pct(inBand, siteCells),
+    withinBandPct: pct(inBand, site.all),
     images: countStats(images, withData),
-    flagged: { cells: flaggedCells, areaM2: flaggedCells * cellAreaM2, byKind: byKind(kindCells, siteCells) },
+    flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all) },
     perStrip,
   };
 }
