@@ -1,4 +1,7 @@
 import { execFileSync } from "node:child_process";
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 
 /** The parts of `gdalinfo -json` (GDAL, Debian gdal-bin) the DEM tests compare against. */
 export interface GdalInfo {
@@ -40,4 +43,20 @@ export function sampleCells(width: number, height: number, n: number, seed = 123
   const out: [number, number][] = [[0, 0], [width - 1, height - 1], [width - 1, 0], [0, height - 1]];
   while (out.length < n) out.push([Math.floor(next() * width), Math.floor(next() * height)]);
   return out;
+}
+
+/**
+ * Band statistics freshly computed by GDAL (`gdal_translate -stats` into a VRT, then
+ * `gdalinfo -json`), ignoring any statistics stored in the file's own metadata.
+ */
+export function gdalComputedStats(file: string, band = 1): { minimum: number; maximum: number; mean: number; validPercent: number } {
+  const dir = mkdtempSync(join(tmpdir(), "gsdplan-stats-"));
+  try {
+    const vrt = join(dir, "s.vrt");
+    execFileSync("gdal_translate", ["-q", "-stats", "-b", String(band), "-of", "VRT", file, vrt], { env: { ...process.env, GDAL_PAM_ENABLED: "NO" } });
+    const b = gdalinfo(vrt).bands[0] as unknown as { minimum: number; maximum: number; mean: number; metadata: Record<string, Record<string, string>> };
+    return { minimum: b.minimum, maximum: b.maximum, mean: b.mean, validPercent: Number(b.metadata[""].STATISTICS_VALID_PERCENT) };
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
 }
