@@ -39,22 +39,34 @@ export interface AssessmentTiffs {
  *   await writeOutputSet(out, Object.entries(tiffs).map(([name, data]) => ({ name, data })));
  */
 export function assessmentGeoTiffs(r: AssessmentRasters, crs: RasterCrs): AssessmentTiffs {
-  const n = r.width * r.height;
-  const gsd = new Float32Array(n);
-  const images = new Uint16Array(n);
-  const flags = new Uint8Array(n);
-  for (let i = 0; i < n; i++) {
-    const inside = r.inSite[i] === 1;
-    gsd[i] = inside ? r.gsdCm[i] : NaN;
-    images[i] = inside ? Math.min(r.images[i], IMAGES_NODATA - 1) : IMAGES_NODATA;
-    flags[i] = inside ? r.flags[i] : FLAGS_NODATA;
-  }
-  const grid = { width: r.width, height: r.height, transform: r.transform };
   return {
-    "gsd.tif": rasterGeoTiff(gsd, grid, crs, "nan"),
-    "images.tif": rasterGeoTiff(images, grid, crs, String(IMAGES_NODATA)),
-    "flags.tif": rasterGeoTiff(flags, grid, crs, String(FLAGS_NODATA)),
+    "gsd.tif": assessmentGeoTiff(r, crs, "gsd.tif"),
+    "images.tif": assessmentGeoTiff(r, crs, "images.tif"),
+    "flags.tif": assessmentGeoTiff(r, crs, "flags.tif"),
   };
+}
+
+/**
+ * One of the three assessment rasters (so a writer can make them one at a time).
+ *
+ * @example assessmentGeoTiff(assessment.rasters, dem.crs, "gsd.tif")
+ */
+export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): ArrayBuffer {
+  const n = r.width * r.height;
+  const grid = { width: r.width, height: r.height, transform: r.transform };
+  if (which === "gsd.tif") {
+    const gsd = new Float32Array(n);
+    for (let i = 0; i < n; i++) gsd[i] = r.inSite[i] === 1 ? r.gsdCm[i] : NaN;
+    return rasterGeoTiff(gsd, grid, crs, "nan");
+  }
+  if (which === "images.tif") {
+    const images = new Uint16Array(n);
+    for (let i = 0; i < n; i++) images[i] = r.inSite[i] === 1 ? Math.min(r.images[i], IMAGES_NODATA - 1) : IMAGES_NODATA;
+    return rasterGeoTiff(images, grid, crs, String(IMAGES_NODATA));
+  }
+  const flags = new Uint8Array(n);
+  for (let i = 0; i < n; i++) flags[i] = r.inSite[i] === 1 ? r.flags[i] : FLAGS_NODATA;
+  return rasterGeoTiff(flags, grid, crs, String(FLAGS_NODATA));
 }
 
 /**

@@ -355,3 +355,47 @@ export function buildPlanFileSchema(): z.ZodType {
   for (const [g, shape] of Object.entries(groups)) top[g] = z.strictObject(shape).optional();
   return z.strictObject(top);
 }
+
+function defaultText(s: PlanOptionSpec): string {
+  if (s.default === undefined) return "";
+  return typeof s.default === "string" ? s.default : JSON.stringify(s.default);
+}
+
+/**
+ * The keys as a Markdown table (key, flag, meaning, default) for the README.
+ *
+ * @example planOptionsMarkdown().split("\n")[0] // "| key | flag | meaning | default |"
+ */
+export function planOptionsMarkdown(): string {
+  const esc = (t: string) => t.replace(/\|/g, "\\|");
+  const lines = ["| key | flag | meaning | default |", "| --- | --- | --- | --- |"];
+  for (const s of PLAN_OPTION_SPECS) {
+    const d = defaultText(s);
+    const note = s.defaultNote ? ` (${s.defaultNote})` : "";
+    lines.push(`| \`${s.key}\` | \`${s.flag}\` | ${esc(s.description)} Allowed: ${esc(s.allowed)}. | ${d ? `\`${esc(d)}\`${esc(note)}` : ""} |`);
+  }
+  return lines.join("\n");
+}
+
+/**
+ * One help line per key for `gsdplan plan --help`: flag, meaning, default.
+ *
+ * @example planOptionsHelp()[0] // "--name <text>  Plan name ..."
+ */
+export function planOptionsHelp(): { flags: string; description: string }[] {
+  const arg: Record<OptionKind, string> = {
+    number: "<n>",
+    integer: "<n>",
+    string: "<text>",
+    path: "<file>",
+    enum: "<choice>",
+    boolean: "[bool]",
+    lonlat: "<lon,lat>",
+    heading: "<deg|auto>",
+  };
+  return PLAN_OPTION_SPECS.map((s) => {
+    const d = defaultText(s);
+    const choices = s.kind === "enum" ? ` (${(s.choices ?? []).join("|")})` : "";
+    return { flags: `${s.flag} ${arg[s.kind]}`, description: `${s.description}${choices} [key ${s.key}${d ? `; default ${d}` : ""}]` };
+  });
+}

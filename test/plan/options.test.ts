@@ -221,3 +221,13 @@ describe("loadPlanFile", () => {
     await expect(loadPlanFile(dup)).rejects.toThrow(/dup\.yaml: not valid YAML: Map keys must be unique/);
   });
 });
+
+describe("documentation tables", async () => {
+  const { planOptionsHelp, planOptionsMarkdown } = await import("../../src/plan/optionsSchema.js");
+  it("lists every key once in the README table and the help", () => {
+    const md = planOptionsMarkdown().split("\n");
+    expect(md).toHaveLength(PLAN_OPTION_SPECS.length + 2);
+    for (const s of PLAN_OPTION_SPECS) expect(md.filter((l) => l.startsWith(`| \`${s.key}\` |`))).toHaveLength(1);
+    expect(planOptionsHelp().map((h) => h.flags.split(" ")[0])).toEqual(PLAN_OPTION_SPECS.map((s) => s.flag));
+  });
+});
