@@ -1,7 +1,11 @@
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera } from "../camera/types.js";
 import type { Exposure } from "./types.js";
-import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
+import { existsSync } from "node:fs";
+import { availableParallelism } from "node:os";
+import { fileURLToPath } from "node:url";
+import { Worker } from "node:worker_threads";
+import { blockMinima, sweepExposures, type SweepInput } from "./coverageKernel.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -16,8 +20,9 @@ import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
  * footprint, (along / halfAlong)^2 + (across / halfAcross)^2.
  *
  * The work goes photo by photo over the footprint each one could have over
- * the lowest ground of the site, row by row over the exact span of that
- * rectangle, with every per-cell result in typed arrays.
+ * the lowest ground beneath it, row by row over the exact span of that
+ * rectangle, with every per-cell result in typed arrays (coverageKernel.ts),
+ * split by rows over worker threads when the grid is large.
  */
 
 export interface Coverage {
@@ -36,163 +41,115 @@ export function footprintPixels(camera: Camera): { alongPx: number; acrossPx: nu
     : { alongPx: camera.imageHeightPx, acrossPx: camera.imageWidthPx };
 }
 
+export interface CoverageOptions {
+  /**
+   * Threads to share the rows between (the main thread counts as one). Default:
+   * the machine's available parallelism, at most 4; grids under a million cells
+   * always run on the main thread. Worker threads are used only from the built
+   * library (dist), where the compiled worker module sits next to this one.
+   */
+  threads?: number;
+}
+
+const MIN_CELLS_FOR_THREADS = 1_000_000;
+
 /**
  * GSD and image count per cell of `grid` where `inSite` is 1.
  * @example
  * const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera);
  */
-export function computeCoverage(grid: DemGrid, inSite: Uint8Array, exposures: readonly Exposure[], camera: Camera): Coverage {
+export function computeCoverage(
+  grid: DemGrid,
+  inSite: Uint8Array,
+  exposures: readonly Exposure[],
+  camera: Camera,
+  opts: CoverageOptions = {},
+): Coverage {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const n = width * height;
-  const gsdCm = new Float32Array(n).fill(NaN);
-  const images = new Uint16Array(n);
-  const nadirStrip = new Uint16Array(n);
+  const workerUrl = new URL("./coverageWorker.js", import.meta.url);
+  let threads = Math.max(1, Math.floor(opts.threads ?? Math.min(4, availableParallelism())));
+  if (n < MIN_CELLS_FOR_THREADS || !existsSync(fileURLToPath(workerUrl))) threads = 1;
+  // Shared memory only when other threads write into it.
+  const buffer = (bytes: number): ArrayBufferLike => (threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
+
+  const images = new Uint16Array(buffer(2 * n));
   // Offset of the best photo so far; starts above any covered value (<= 2).
-  const best = new Float32Array(n).fill(Infinity);
-  const bestIdx = new Int32Array(n).fill(-1);
-
+  const best = new Float32Array(buffer(4 * n)).fill(Infinity);
+  const bestIdx = new Int32Array(buffer(4 * n)).fill(-1);
   // Site ground: NaN outside the site and where the DEM has no data, so one test skips both.
-  const siteGround = new Float32Array(n).fill(NaN);
+  const siteGround = new Float32Array(buffer(4 * n)).fill(NaN);
   for (let i = 0; i < n; i++) if (inSite[i] === 1) siteGround[i] = heights[i];
-  const blocks = blockMinima(grid, inSite);
-  if (blocks.globalMin === Infinity) return { gsdCm, images, nadirStrip };
+  const blocks = blockMinima(siteGround, width, height);
 
-  const ifov = camera.ifov;
+  const m = exposures.length;
+  const cols = { ex: new Float64Array(m), ey: new Float64Array(m), ez: new Float64Array(m), eux: new Float64Array(m), euy: new Float64Array(m) };
+  exposures.forEach((e, k) => {
+    cols.ex[k] = e.x;
+    cols.ey[k] = e.y;
+    cols.ez[k] = e.altitudeAmslM;
+    cols.eux[k] = e.ux;
+    cols.euy[k] = e.uy;
+  });
   const { alongPx, acrossPx } = footprintPixels(camera);
-  const kAlong = (ifov * alongPx) / 2;
-  const kAcross = (ifov * acrossPx) / 2;
-  const gsdPerM = ifov * 100;
-  const invKA2 = 1 / (kAlong * kAlong);
-  const invKC2 = 1 / (kAcross * kAcross);
-  const rows = new Int32Array(2);
-  const span = new Int32Array(2);
-
-  for (let e = 0; e < exposures.length; e++) {
-    const { x: ex, y: ey, ux, uy, altitudeAmslM: ez } = exposures[e];
-    // Footprint reach over the lowest ground it can fall on: start from the site minimum and
-    // tighten with the block minima under that footprint's box (each round stays an outer bound).
-    let dMax = ez - blocks.globalMin;
-    for (let round = 0; round < 3 && dMax > 0; round++) {
-      const g = blocks.minUnder(ex, ey, ux, uy, dMax * kAlong, dMax * kAcross);
-      if (!(g < Infinity)) {
-        dMax = 0;
-        break;
-      }
-      dMax = ez - g;
-    }
-    if (!(dMax > 0)) continue;
-    // Across-track unit (vx, vy) = (uy, -ux); the footprint is symmetric, so its sign does not matter.
-    const vx = uy;
-    const vy = -ux;
-    const hAlongMax = dMax * kAlong;
-    const hAcrossMax = dMax * kAcross;
-    orientedRectRowRange(ey, ux, uy, hAlongMax, hAcrossMax, y0, dy, height, rows);
-    for (let r = rows[0]; r <= rows[1]; r++) {
-      const cy = y0 + (r + 0.5) * dy;
-      orientedRectColSpan(cy, ex, ey, ux, uy, hAlongMax, hAcrossMax, x0, dx, width, span);
-      if (span[0] > span[1]) continue;
-      const ddy = cy - ey;
-      const ddx0 = x0 + (span[0] + 0.5) * dx - ex;
-      sweepRow(
-        siteGround, images, best, bestIdx,
-        r * width + span[0], r * width + span[1],
-        ez, ddx0 * ux + ddy * uy, ddx0 * vx + ddy * vy, dx * ux, dx * vx,
-        kAlong, kAcross, invKA2, invKC2, e,
-      );
-    }
+  const base: SweepInput = {
+    width, height, x0, y0, dx, dy, siteGround, images, best, bestIdx, ...cols,
+    kAlong: (camera.ifov * alongPx) / 2,
+    kAcross: (camera.ifov * acrossPx) / 2,
+    blocks,
+    rowLo: 0,
+    rowHi: height - 1,
+  };
+  if (blocks.globalMin < Infinity) {
+    if (threads === 1) sweepExposures(base);
+    else sweepInThreads(base, inSite, threads, workerUrl);
   }
+
   // GSD and strip from each cell's most nadir photo.
+  const gsdCm = new Float32Array(n).fill(NaN);
+  const nadirStrip = new Uint16Array(n);
+  const gsdPerM = camera.ifov * 100;
   for (let i = 0; i < n; i++) {
     const k = bestIdx[i];
     if (k < 0) continue;
-    gsdCm[i] = (exposures[k].altitudeAmslM - siteGround[i]) * gsdPerM;
+    gsdCm[i] = (cols.ez[k] - siteGround[i]) * gsdPerM;
     nadirStrip[i] = exposures[k].strip;
   }
   return { gsdCm, images, nadirStrip };
 }
 
-/** Side of the square blocks whose lowest site ground bounds the footprints, in cells. */
-const BLOCK = 32;
-
 /**
- * Lowest site ground per BLOCK x BLOCK cells, to bound each footprint by the
- * ground it can actually fall on rather than the lowest point of the whole
- * site: with 60 m of relief under a 100 m flight the site minimum alone would
- * more than double the cells visited per photo.
+ * Bands of rows with equal numbers of site cells, one per thread; the main
+ * thread sweeps the first band while the workers do the others, then waits
+ * on their flags (Atomics.wait is allowed on Node's main thread), which keeps
+ * the assessment a plain synchronous function.
  */
-function blockMinima(grid: DemGrid, inSite: Uint8Array) {
-  const { width, height, heights } = grid;
-  const { x0, y0, dx, dy } = grid.transform;
-  const bw = Math.ceil(width / BLOCK);
-  const bh = Math.ceil(height / BLOCK);
-  const mins = new Float64Array(bw * bh).fill(Infinity);
-  let globalMin = Infinity;
-  for (let r = 0; r < height; r++) {
-    const brow = ((r / BLOCK) | 0) * bw;
-    const base = r * width;
-    for (let c = 0; c < width; c++) {
-      if (inSite[base + c] === 0) continue;
-      const g = heights[base + c];
-      if (!(g === g)) continue;
-      const b = brow + ((c / BLOCK) | 0);
-      if (g < mins[b]) mins[b] = g;
-      if (g < globalMin) globalMin = g;
-    }
+function sweepInThreads(base: SweepInput, inSite: Uint8Array, threads: number, workerUrl: URL): void {
+  const { width, height } = base;
+  let total = 0;
+  for (let i = 0; i < inSite.length; i++) total += inSite[i];
+  const bounds = [0];
+  let acc = 0;
+  for (let r = 0; r < height && bounds.length < threads; r++) {
+    for (let c = 0; c < width; c++) acc += inSite[r * width + c];
+    if (acc >= (total * bounds.length) / threads) bounds.push(r + 1);
   }
-  /** Lowest site ground in the blocks touching the box of an oriented rectangle; Infinity when none. */
-  const minUnder = (px: number, py: number, ux: number, uy: number, halfAlongM: number, halfAcrossM: number): number => {
-    const ex = Math.abs(ux) * halfAlongM + Math.abs(uy) * halfAcrossM;
-    const ey = Math.abs(uy) * halfAlongM + Math.abs(ux) * halfAcrossM;
-    const c0 = Math.max(0, Math.floor((px - ex - x0) / dx / BLOCK));
-    const c1 = Math.min(bw - 1, Math.floor((px + ex - x0) / dx / BLOCK));
-    const r0 = Math.max(0, Math.floor((py + ey - y0) / dy / BLOCK));
-    const r1 = Math.min(bh - 1, Math.floor((py - ey - y0) / dy / BLOCK));
-    let m = Infinity;
-    for (let br = r0; br <= r1; br++) for (let bc = c0; bc <= c1; bc++) if (mins[br * bw + bc] < m) m = mins[br * bw + bc];
-    return m;
-  };
-  return { globalMin, minUnder };
-}
-
-/**
- * One row of one footprint: cells i0..i1, along/across offsets of the first
- * cell a0/q0 stepping by da/dq per cell. Kept apart, with flat arguments, so
- * the engine compiles the hot loop once for fixed array types. The best photo
- * is remembered by index only (one store instead of three), and compared
- * without a division: num / d^2 < best  <=>  num < best * d^2.
- */
-function sweepRow(
-  siteGround: Float32Array,
-  images: Uint16Array,
-  best: Float32Array,
-  bestIdx: Int32Array,
-  i0: number,
-  i1: number,
-  ez: number,
-  a0: number,
-  q0: number,
-  da: number,
-  dq: number,
-  kAlong: number,
-  kAcross: number,
-  invKA2: number,
-  invKC2: number,
-  e: number,
-): void {
-  let a = a0;
-  let q = q0;
-  for (let i = i0; i <= i1; i++, a += da, q += dq) {
-    const d = ez - siteGround[i];
-    // Written so that NaN ground (outside the site, nodata) fails too.
-    if (!(Math.abs(a) <= d * kAlong && Math.abs(q) <= d * kAcross && d > 0)) continue;
-    if (images[i] < 65535) images[i]++;
-    // (a / hA)^2 + (q / hC)^2 = num / d^2.
-    const num = a * a * invKA2 + q * q * invKC2;
-    const d2 = d * d;
-    if (num < best[i] * d2) {
-      best[i] = num / d2;
-      bestIdx[i] = e;
-    }
+  bounds.push(height);
+  const done = new Int32Array(new SharedArrayBuffer(4 * threads));
+  const workers: Worker[] = [];
+  for (let t = 1; t + 1 < bounds.length; t++) {
+    const input: SweepInput = { ...base, rowLo: bounds[t], rowHi: bounds[t + 1] - 1 };
+    workers.push(new Worker(workerUrl, { workerData: { input, done, slot: t } }));
   }
+  sweepExposures({ ...base, rowLo: bounds[0], rowHi: bounds[1] - 1 });
+  let failed = false;
+  for (let t = 1; t + 1 < bounds.length; t++) {
+    // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
+    const deadline = Date.now() + 600_000;
+    while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
+    if (Atomics.load(done, t) !== 1) failed = true;
+  }
+  for (const w of workers) void w.terminate();
+  if (failed) throw new Error("coverage: a worker thread failed");
 }

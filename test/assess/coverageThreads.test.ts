@@ -1,0 +1,34 @@
+import { describe, it, expect } from "vitest";
+import { existsSync } from "node:fs";
+import { fileURLToPath } from "node:url";
+import { makeGrid } from "../../src/dem/sample.js";
+import type { Exposure } from "../../src/assess/types.js";
+import type { computeCoverage as ComputeCoverage } from "../../src/assess/coverage.js";
+import { genericCamera } from "./helpers.js";
+
+// Worker threads run only from the built library (`npm test` builds it first).
+const distCoverage = new URL("../../dist/assess/coverage.js", import.meta.url);
+const HAS_DIST = existsSync(fileURLToPath(distCoverage)) && existsSync(fileURLToPath(new URL("coverageWorker.js", distCoverage)));
+if (!HAS_DIST) process.stderr.write("NOTICE: dist/ not built; skipping the threaded coverage comparison (run npm run build)\n");
+
+describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
+  it("gives the same rasters as one thread", async () => {
+    const { computeCoverage } = (await import(distCoverage.href)) as { computeCoverage: typeof ComputeCoverage };
+    const grid = makeGrid({ width: 1100, height: 1000, x0: 0, y0: 500, cellM: 0.5, heights: (x, y) => 200 + 20 * Math.sin(x / 40) * Math.cos(y / 55) });
+    const inSite = new Uint8Array(grid.width * grid.height).fill(1);
+    const ex: Exposure[] = [];
+    const h = (30 * Math.PI) / 180;
+    for (let j = 0; j < 14; j++) for (let k = 0; k < 25; k++) {
+      ex.push({ x: 20 + k * 22 * Math.sin(h) + j * 40 * Math.cos(h), y: -100 + k * 22 * Math.cos(h) - j * 40 * Math.sin(h) + 300, altitudeAmslM: 300 + (k % 3), ux: Math.sin(h), uy: Math.cos(h), strip: j + 1 });
+    }
+    const camera = genericCamera();
+    const one = computeCoverage(grid, inSite, ex, camera, { threads: 1 });
+    const three = computeCoverage(grid, inSite, ex, camera, { threads: 3 });
+    let seen = 0;
+    for (let i = 0; i < one.images.length; i++) if (one.images[i] > 0) seen++;
+    expect(seen).toBeGreaterThan(100_000);
+    expect(Buffer.from(three.images.buffer).equals(Buffer.from(one.images.buffer))).toBe(true);
+    expect(Buffer.from(three.gsdCm.buffer).equals(Buffer.from(one.gsdCm.buffer))).toBe(true);
+    expect(Buffer.from(three.nadirStrip.buffer).equals(Buffer.from(one.nadirStrip.buffer))).toBe(true);
+  });
+});
