@@ -26,6 +26,8 @@ export interface SummaryInput {
   verticalDatum: VerticalDatum;
   takeoff: { lon: number; lat: number; groundAmslM: number };
   warnings: readonly (string | SolveWarning)[];
+  /** Replaces the standard CAUTIONS below (e.g. one shared list for all outputs); the ceiling caution stays first. */
+  cautions?: readonly string[];
 }
 
 export interface Summary {
@@ -134,7 +136,7 @@ export function buildSummary(s: SummaryInput): Summary {
     warnings,
     cautions: [
       `The ceiling of ${s.ceiling.heightM} m above ${REFERENCE_WORDS[s.ceiling.reference]} is a check, not legal advice: local rules and special zones override it.`,
-      ...CAUTIONS,
+      ...(s.cautions ?? CAUTIONS),
     ],
   };
 }
