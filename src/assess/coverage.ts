@@ -79,8 +79,8 @@ export function computeCoverage(
   const best = new Float32Array(buffer(4 * n)).fill(Infinity);
   const bestIdx = new Int32Array(buffer(4 * n)).fill(-1);
   // Site ground: NaN outside the site and where the DEM has no data, so one test skips both.
-  const siteGround = new Float32Array(buffer(4 * n)).fill(NaN);
-  for (let i = 0; i < n; i++) if (inSite[i] === 1) siteGround[i] = heights[i];
+  const siteGround = new Float32Array(buffer(4 * n));
+  for (let i = 0; i < n; i++) siteGround[i] = inSite[i] === 1 ? heights[i] : NaN;
   const blocks = blockMinima(siteGround, width, height);
 
   const m = exposures.length;
@@ -107,14 +107,19 @@ export function computeCoverage(
   }
 
   // GSD and strip from each cell's most nadir photo.
-  const gsdCm = new Float32Array(n).fill(NaN);
+  const gsdCm = new Float32Array(n);
   const nadirStrip = new Uint16Array(n);
   const gsdPerM = camera.ifov * 100;
+  const strips = Uint16Array.from(exposures, (e) => e.strip);
+  const ez = cols.ez;
   for (let i = 0; i < n; i++) {
     const k = bestIdx[i];
-    if (k < 0) continue;
-    gsdCm[i] = (cols.ez[k] - siteGround[i]) * gsdPerM;
-    nadirStrip[i] = exposures[k].strip;
+    if (k < 0) {
+      gsdCm[i] = NaN;
+      continue;
+    }
+    gsdCm[i] = (ez[k] - siteGround[i]) * gsdPerM;
+    nadirStrip[i] = strips[k];
   }
   return { gsdCm, images, nadirStrip };
 }

@@ -37,26 +37,36 @@ export function flagPolygons(
 ): FlagPolygons {
   const out: FlagPolygons = {};
   const { x0, y0, dx, dy } = transform;
+  // One pass for all kinds: flag-byte histogram (cell counts) and the OR of each row and
+  // column (bounding boxes), instead of one scan of the grid per kind.
+  const hist = new Float64Array(256);
+  const rowOr = new Uint8Array(height);
+  const colOr = new Uint8Array(width);
+  for (let r = 0; r < height; r++) {
+    const base = r * width;
+    let ro = 0;
+    for (let c = 0; c < width; c++) {
+      const f = flags[base + c];
+      if (f === 0) continue;
+      hist[f]++;
+      ro |= f;
+      colOr[c] |= f;
+    }
+    rowOr[r] = ro;
+  }
   for (const kind of FLAG_KINDS) {
     const bit = kind.bit;
-    let c0 = width;
-    let c1 = -1;
-    let r0 = height;
-    let r1 = -1;
     let cells = 0;
-    for (let r = 0; r < height; r++) {
-      const base = r * width;
-      for (let c = 0; c < width; c++) {
-        if (flags[base + c] & bit) {
-          cells++;
-          if (c < c0) c0 = c;
-          if (c > c1) c1 = c;
-          if (r < r0) r0 = r;
-          if (r > r1) r1 = r;
-        }
-      }
-    }
+    for (let f = 1; f < 256; f++) if (f & bit) cells += hist[f];
     if (cells === 0) continue;
+    let c0 = 0;
+    while (!(colOr[c0] & bit)) c0++;
+    let c1 = width - 1;
+    while (!(colOr[c1] & bit)) c1--;
+    let r0 = 0;
+    while (!(rowOr[r0] & bit)) r0++;
+    let r1 = height - 1;
+    while (!(rowOr[r1] & bit)) r1--;
     const mw = c1 - c0 + 3;
     const mh = r1 - r0 + 3;
     const mask = new Uint8Array(mw * mh);

@@ -34,15 +34,19 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
     const h = (n - 1) * p;
     ranks.push(Math.floor(h), Math.min(n - 1, Math.floor(h) + 1));
   }
-  // For each wanted rank: its high-16 bin and its rank within the bin.
-  const binOf: number[] = [];
-  const within: number[] = [];
-  for (const r of ranks) {
+  // For each wanted rank: its high-16 bin and its rank within the bin, in one walk over the
+  // bins with the ranks taken in ascending order.
+  const order = ranks.map((_, j) => j).sort((a, b) => ranks[a] - ranks[b]);
+  const binOf = new Array<number>(ranks.length);
+  const within = new Array<number>(ranks.length);
+  {
     let acc = 0;
     let b = 0;
-    while (acc + hist[b] <= r) acc += hist[b++];
-    binOf.push(b);
-    within.push(r - acc);
+    for (const j of order) {
+      while (acc + hist[b] <= ranks[j]) acc += hist[b++];
+      binOf[j] = b;
+      within[j] = ranks[j] - acc;
+    }
   }
   const bins = [...new Set(binOf)];
   const slot = new Int32Array(65536).fill(-1);
@@ -57,13 +61,16 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
   }
   const f32 = new Float32Array(1);
   const u32 = new Uint32Array(f32.buffer);
-  const orderStat = ranks.map((_, j) => {
-    const s = slot[binOf[j]];
+  const orderStat = new Array<number>(ranks.length);
+  bins.forEach((bin, s) => {
+    const mine = order.filter((j) => binOf[j] === bin).sort((a, b) => within[a] - within[b]);
     let acc = 0;
     let b = 0;
-    while (acc + low[s * 65536 + b] <= within[j]) acc += low[s * 65536 + b++];
-    u32[0] = fromSortKey(((binOf[j] << 16) | b) >>> 0);
-    return f32[0];
+    for (const j of mine) {
+      while (acc + low[s * 65536 + b] <= within[j]) acc += low[s * 65536 + b++];
+      u32[0] = fromSortKey(((bin << 16) | b) >>> 0);
+      orderStat[j] = f32[0];
+    }
   });
   return ps.map((p, j) => {
     const h = (n - 1) * p;
