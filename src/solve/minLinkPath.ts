@@ -106,6 +106,10 @@ export function minLinkPath(
   const pieces = new Growable();
   // Union of pieces of levels <= k at each station, flat [lo, hi, lo, hi, ...] sorted.
   const union: (number[] | null)[] = new Array(n).fill(null);
+  // Provenance: piece p (other than the first) was reached from the pieces
+  // provFrom[pieces.from[p] .. provEnd[p]) of the previous level.
+  const provFrom: number[] = [];
+  const provEnd: number[] = [0];
   pieces.push(0, lo[0], hi[0], -1);
   union[0] = [lo[0], hi[0]];
   let frontier: number[] = [0];
@@ -117,6 +121,11 @@ export function minLinkPath(
   // Polygon buffers in (z0, g) space.
   let ax = new Float64Array(32), ay = new Float64Array(32);
   let bx = new Float64Array(32), by = new Float64Array(32);
+
+  const swap = () => {
+    const tx = ax, ty = ay;
+    ax = bx; ay = by; bx = tx; by = ty;
+  };
 
   let level = 0;
   while (union[n - 1] === null) {
@@ -147,11 +156,36 @@ export function minLinkPath(
           if (z < zMin) zMin = z;
           if (z > zMax) zMax = z;
         }
+        const u = union[m];
+        if (u !== null) {
+          // Exact pruning (see the header): segments through heights already in
+          // S_k here are continued by other sweeps, so drop them. When S_k covers
+          // one end of the reached range, dropping them is one more half-plane.
+          if (covers(u, Math.max(zMin, lo[m]), Math.min(zMax, hi[m]))) break;
+          for (let i = 0; i < u.length; i += 2) {
+            const u0 = u[i], u1 = u[i + 1];
+            if (u0 <= zMin + 1e-9 && u1 > zMin && u1 < zMax) {
+              if (bx.length < cnt + 2) { bx = new Float64Array(2 * cnt + 4); by = new Float64Array(2 * cnt + 4); }
+              cnt = clipHalfPlane(ax, ay, cnt, bx, by, d, u1, 1);
+              swap();
+            } else if (u1 >= zMax - 1e-9 && u0 < zMax && u0 > zMin) {
+              if (bx.length < cnt + 2) { bx = new Float64Array(2 * cnt + 4); by = new Float64Array(2 * cnt + 4); }
+              cnt = clipHalfPlane(ax, ay, cnt, bx, by, d, u0, -1);
+              swap();
+            } else continue;
+            if (cnt === 0) break;
+            zMin = Infinity; zMax = -Infinity;
+            for (let v = 0; v < cnt; v++) {
+              const z = ax[v] + ay[v] * d;
+              if (z < zMin) zMin = z;
+              if (z > zMax) zMax = z;
+            }
+          }
+          if (cnt === 0) break;
+        }
         zMin = Math.max(zMin, lo[m]);
         zMax = Math.min(zMax, hi[m]);
         if (zMin > zMax) { const c = (zMin + zMax) / 2; zMin = zMax = c; }
-        const u = union[m];
-        if (u !== null && covers(u, zMin, zMax)) break; // exact pruning, see the header
         const ci = cand.push(m, zMin, zMax, p);
         if (candNext.length < cand.station.length) { const nn = new Int32Array(cand.station.length); nn.set(candNext); candNext = nn; }
         if (candHead[m] === -1) touched.push(m);
@@ -159,20 +193,35 @@ export function minLinkPath(
         candHead[m] = ci;
       }
     }
-    // Merge this level's candidates into the union; what is new becomes the next frontier.
+    // Merge this level's candidates into the union; what is new becomes the next
+    // frontier as maximal intervals (one piece per new stretch, not per sweep),
+    // each remembering the sweeps that reached it for the back-tracking.
     const next: number[] = [];
     for (const m of touched) {
       const list: number[] = [];
       for (let c = candHead[m]; c !== -1; c = candNext[c]) list.push(c);
       candHead[m] = -1;
       list.sort((a, b) => cand.lo[a] - cand.lo[b]);
-      let u = union[m] ?? [];
-      for (const c of list) {
-        const rest = subtract(u, cand.lo[c], cand.hi[c]);
+      const old = union[m] ?? [];
+      let u = old;
+      for (let i = 0; i < list.length; ) {
+        const a = cand.lo[list[i]];
+        let b = cand.hi[list[i]];
+        let k = i + 1;
+        while (k < list.length && cand.lo[list[k]] <= b) { b = Math.max(b, cand.hi[list[k]]); k++; }
+        const rest = subtract(old, a, b);
         for (let r = 0; r < rest.length; r += 2) {
-          next.push(pieces.push(m, rest[r], rest[r + 1], cand.from[c]));
+          const pi = pieces.push(m, rest[r], rest[r + 1], provFrom.length);
+          for (let q = i; q < k; q++) {
+            const c = list[q];
+            if (cand.hi[c] >= rest[r] - 1e-9 && cand.lo[c] <= rest[r + 1] + 1e-9) provFrom.push(cand.from[c]);
+          }
+          provEnd.push(provFrom.length);
+          next.push(pi);
           u = addInterval(u, rest[r], rest[r + 1]);
         }
+        i = k;
+
       }
       union[m] = u.length ? u : union[m];
     }
@@ -189,28 +238,43 @@ export function minLinkPath(
   vStation.push(m);
   vHeight.push(z);
   while (pieces.from[p] !== -1) {
-    const q = pieces.from[p];
-    const j = pieces.station[q];
-    // Start heights at j from which the segment to (m, z) is feasible: an interval.
-    const D = s[m] - s[j];
-    let a = Math.max(pieces.lo[q], z - gMax * D);
-    let b = Math.min(pieces.hi[q], z - gMin * D);
-    for (let t = j + 1; t < m; t++) {
-      const tau = (s[t] - s[j]) / D;
-      const w = 1 - tau;
-      a = Math.max(a, (lo[t] - eps - z * tau) / w);
-      b = Math.min(b, (hi[t] + eps - z * tau) / w);
+    // Among the sweeps that reached this piece, one reaches (m, z); take its start heights.
+    let bestJ = -1, bestZ = NaN, bestQ = -1, bestD = Infinity;
+    for (let f = pieces.from[p]; f < provEnd[p]; f++) {
+      const q = provFrom[f];
+      const j = pieces.station[q];
+      const [a, b] = startInterval(s, lo, hi, gMin, gMax, j, m, z, pieces.lo[q], pieces.hi[q]);
+      const gap = a <= b ? 0 : a - b;
+      const zj = a <= b ? clamp(prefM ? prefM[j] : (a + b) / 2, a, b) : (a + b) / 2;
+      // prefer a feasible start, then the one nearest the preference
+      const score = gap > 1e-7 ? 1e9 + gap : prefM ? Math.abs(zj - prefM[j]) : 0;
+      if (score < bestD) { bestD = score; bestJ = j; bestZ = zj; bestQ = q; }
     }
-    const zj = a <= b ? clamp(prefM ? prefM[j] : (a + b) / 2, a, b) : (a + b) / 2;
-    vStation.push(j);
-    vHeight.push(zj);
-    m = j;
-    z = zj;
-    p = q;
+
+    vStation.push(bestJ);
+    vHeight.push(bestZ);
+    m = bestJ;
+    z = bestZ;
+    p = bestQ;
   }
   vStation.reverse();
   vHeight.reverse();
   return { vertexStation: Int32Array.from(vStation), vertexHeightM: Float64Array.from(vHeight), segments: vStation.length - 1 };
+}
+
+/** Start heights in [pLo, pHi] at station j of feasible segments ending at (m, z). */
+function startInterval(s: Float64Array, lo: Float64Array, hi: Float64Array, gMin: number, gMax: number, j: number, m: number, z: number, pLo: number, pHi: number): [number, number] {
+  const eps = GATE_EPS_M;
+  const D = s[m] - s[j];
+  let a = Math.max(pLo, z - gMax * D);
+  let b = Math.min(pHi, z - gMin * D);
+  for (let t = j + 1; t < m && a <= b; t++) {
+    const tau = (s[t] - s[j]) / D;
+    const w = 1 - tau;
+    a = Math.max(a, (lo[t] - eps - z * tau) / w);
+    b = Math.min(b, (hi[t] + eps - z * tau) / w);
+  }
+  return [a, b];
 }
 
 /** Clip polygon (px, py) by sign * (z0 + g d - c) >= 0 into (qx, qy); returns the new vertex count. */

@@ -1,0 +1,7 @@
+export { corridorAlong } from "./corridor.js";
+export { minLinkPath, GATE_EPS_M, type MinLinkPath } from "./minLinkPath.js";
+export { solvePlan } from "./solveLegs.js";
+export { waypointBudget, toleranceToFitBudget, type WaypointBudget } from "./budget.js";
+export { gradientLimits, segmentSpeed } from "./gradient.js";
+export { surfaceCeiling } from "./surfaceCeiling.js";
+export * from "./types.js";
