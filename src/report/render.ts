@@ -3,6 +3,7 @@
  * any fetch and lets only our own inline script run, by hash), system fonts, inline CSS,
  * SVG charts and PNG data-URI rasters, print rules for A4 and US Letter.
  */
+import { STANDARD_CAUTIONS } from "../cautions.js";
 import { createHash } from "node:crypto";
 import { FLAG_KINDS } from "../assess/flags.js";
 import type { ReportInput, ReportSummary } from "./model.js";
@@ -22,14 +23,7 @@ import { fmt, fmtArea, fmtDuration } from "./format.js";
 import { REPORT_CSS } from "./style.js";
 
 /** Cautions every report carries, whatever the plan says (domain practice). */
-export const STANDARD_CAUTIONS: readonly string[] = [
-  "Fly only within the law where you are, with the permissions it requires; local rules and special zones override the ceiling used here.",
-  "Check airspace and temporary restrictions before the flight.",
-  "The elevation model is not a survey of obstacles: trees, masts, wires and buildings may be missing from it.",
-  "Keep visual line of sight where the rules require it.",
-  "Verify the first waypoint heights on site before flying the plan.",
-  "This tool plans; the pilot in command decides.",
-];
+export { STANDARD_CAUTIONS };
 
 /** Colour and hatch angle per flag kind on the flags map. */
 const FLAG_STYLE: Record<string, { colour: string; angle: number }> = {

@@ -1,5 +1,7 @@
 import type { Command } from "commander";
 import { registerInspect } from "./inspect.js";
+import { registerLayout } from "./layout.js";
+import { registerPlan } from "./plan.js";
 
 /**
  * Every subcommand registers itself here. Command modules must keep heavy
@@ -7,4 +9,6 @@ import { registerInspect } from "./inspect.js";
  */
 export function registerCommands(program: Command): void {
   registerInspect(program);
+  registerLayout(program);
+  registerPlan(program);
 }

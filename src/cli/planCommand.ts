@@ -1,0 +1,58 @@
+import { readFile } from "node:fs/promises";
+import { fileURLToPath } from "node:url";
+import path from "node:path";
+import { flagOverridesFromParsed, loadPlanFile, resolvePlanOptions } from "../plan/options.js";
+import { planMission, type PlanStage } from "../plan/plan.js";
+import { planOutputs } from "../plan/outputs.js";
+import { writeOutputSet } from "../export/atomicDir.js";
+import { InputError } from "../errors.js";
+import { existsSync } from "node:fs";
+import { summaryText } from "./summaryText.js";
+import { stageProgress } from "./progress.js";
+
+const STAGES: readonly PlanStage[] = ["load", "layout", "solve", "assess", "baseline"];
+
+/**
+ * Runs `gsdplan plan` for parsed CLI options: resolve options, plan, write the
+ * output set atomically, print the summary. Returns whether any cell is flagged.
+ */
+export async function runPlanCommand(
+  planFile: string | undefined,
+  opts: Record<string, unknown>,
+  extra: { explainAllFlags?: boolean } = {},
+): Promise<{ flagged: boolean; outDir: string }> {
+  const file = planFile ? await loadPlanFile(planFile) : undefined;
+  const options = resolvePlanOptions(file?.data ?? {}, flagOverridesFromParsed(opts), file?.dir);
+  const outDir = String(opts.out);
+  // Refuse early (before minutes of work) when outputs exist and --force is not given.
+  const { OUTPUT_NAMES } = await import("../plan/outputs.js");
+  if (!opts.force) {
+    const present = OUTPUT_NAMES.filter((n) => existsSync(path.join(outDir, n)));
+    if (present.length) {
+      throw new InputError("--out", outDir, "a folder without earlier outputs, or --force to replace them", `outputs exist (${present.join(", ")})`);
+    }
+  }
+
+  const progress = stageProgress(process.stderr, Boolean(opts.quiet) || Boolean(opts.json), STAGES);
+  const run = await planMission(options, { onStage: (s) => progress.stage(s), now: () => performance.now() });
+  progress.stage("write");
+  const { files, summary } = planOutputs(run, {
+    ...(file ? { planFile: file.file } : {}),
+    toolVersion: await toolVersion(),
+    generatedAt: new Date().toISOString(),
+  });
+  await writeOutputSet(outDir, files, { force: Boolean(opts.force) });
+  progress.done();
+  if (opts.json) process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
+  else process.stdout.write(summaryText(summary, outDir, extra));
+  return { flagged: summary.flagged.cells > 0, outDir };
+}
+
+async function toolVersion(): Promise<string> {
+  const pkg = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "..", "package.json");
+  try {
+    return JSON.parse(await readFile(pkg, "utf8")).version as string;
+  } catch {
+    return "unknown";
+  }
+}

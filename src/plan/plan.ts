@@ -1,0 +1,338 @@
+/**
+ * The main job, composed: DEM window -> local frame -> camera and requirement
+ * -> strips -> altitude solver -> flights -> independent assessment. Pure of
+ * terminal and output files: the CLI and the exporters sit on top.
+ */
+import { readFile } from "node:fs/promises";
+import path from "node:path";
+import type { DemGrid } from "../dem/grid.js";
+import { openDem } from "../dem/source.js";
+import { readWindow } from "../dem/window.js";
+import { toMetricGrid } from "../dem/reproject.js";
+import { sampleBilinear } from "../dem/sample.js";
+import { InputError, InputFileError } from "../errors.js";
+import { localFrameFor, type SiteFrame } from "../geo/localFrame.js";
+import { lonLatCentre } from "../geo/longitude.js";
+import { egm96UndulationM } from "../geo/geoid.js";
+import { makeCamera, type CameraSpec } from "../camera/makeCamera.js";
+import { footprintM, heightForGsdM } from "../camera/gsd.js";
+import { requirementFrom } from "../camera/requirement.js";
+import { groundSpeed, type GroundSpeed } from "../camera/speed.js";
+import { stripSpacingM, triggerDistanceM } from "../camera/overlap.js";
+import type { Camera, Requirement } from "../camera/types.js";
+import { parseSiteText } from "../layout/site-parse.js";
+import { siteFromLonLat } from "../layout/site.js";
+import { siteCoverage } from "../layout/coverage.js";
+import { layoutStrips } from "../layout/strips.js";
+import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
+import { solvePlan } from "../solve/solveLegs.js";
+import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
+import { assessPlan } from "../assess/assess.js";
+import type { AssessedLeg } from "../assess/exposures.js";
+import type { Assessment } from "../assess/types.js";
+import { splitFlights, type FlightSplit } from "../export/flights.js";
+import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
+import type { PlanOptions } from "./options.js";
+
+/** Everything a finished plan knows; the exporters and the report read it. */
+export interface PlanRun {
+  options: PlanOptions;
+  frame: SiteFrame;
+  /** The DEM window on the local frame's metric grid (metres, DEM datum). */
+  grid: DemGrid;
+  /** Datum of every height in the plan (the DEM's, after any override). */
+  verticalDatum: DemGrid["verticalDatum"];
+  site: Site;
+  camera: Camera;
+  requirement: Requirement;
+  /** Height above ground giving the target GSD. */
+  targetHeightM: number;
+  speed: GroundSpeed;
+  layout: Layout;
+  solve: SolveResult;
+  flights: FlightSplit;
+  assessment: Assessment;
+  baseline: Baseline;
+  takeoff: { x: number; y: number; lon: number; lat: number; groundM: number };
+  warnings: SolveWarning[];
+  /** Seconds spent per stage, for the benchmarks. */
+  timings: Record<string, number>;
+}
+
+export type PlanStage = "load" | "layout" | "solve" | "assess" | "baseline";
+
+export interface PlanHooks {
+  /** Called at the start of each stage (for a progress display). */
+  onStage?: (stage: PlanStage) => void;
+  /** Clock for the timings (injected so the library reads no clock of its own by default). */
+  now?: () => number;
+}
+
+/**
+ * Plans a mapping flight from resolved options.
+ * @example
+ * const run = await planMission(resolvePlanOptions(file, {}, dir));
+ * run.assessment.stats.withinBandPct
+ */
+export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): Promise<PlanRun> {
+  const now = hooks.now ?? (() => 0);
+  const timings: Record<string, number> = {};
+  let t = now();
+  const stage = (name: PlanStage) => {
+    const t1 = now();
+    hooks.onStage?.(name);
+    return t1;
+  };
+  const lap = (name: string) => {
+    const t1 = now();
+    timings[name] = (t1 - t) / 1000;
+    t = t1;
+  };
+  const warnings: SolveWarning[] = [];
+
+  stage("load");
+  // Camera and requirement first: the window margin depends on the footprint.
+  const camera = makeCamera(cameraSpec(options));
+  const requirement = requirementFrom(
+    options.target.by === "gsd" ? { gsdCm: options.target.gsdCm } : { smallestFeatureCm: options.target.smallestFeatureCm, rule: options.target.rule },
+    options.target.tolerancePct,
+  );
+  const targetHeightM = heightForGsdM(camera, requirement.targetGsdM);
+  const fp = footprintM(camera, targetHeightM);
+  const spacingM = stripSpacingM(fp.acrossM, options.overlap.sidePct);
+  const triggerM = triggerDistanceM(fp.alongM, options.overlap.frontPct);
+
+  const siteText = await readText(options.area, "area");
+  const parsed = parseSiteText(siteText, path.basename(options.area));
+  const lons: number[] = [];
+  const lats: number[] = [];
+  for (const poly of parsed.polygons) for (const [lon, lat] of poly[0]) {
+    lons.push(lon);
+    lats.push(lat);
+  }
+  const [cLon, cLat] = lonLatCentre(lons, lats);
+
+  const source = await openDem(options.dem, {
+    band: options.band,
+    ...(options.demVerticalDatum ? { verticalDatum: options.demVerticalDatum } : {}),
+    ...(options.demVerticalUnit ? { verticalUnit: VERTICAL_UNIT_NAMES[options.demVerticalUnit] } : {}),
+  });
+  let grid: DemGrid;
+  let frame: SiteFrame;
+  try {
+    for (const w of source.warnings) warnings.push({ code: "dem", message: w });
+    frame = localFrameFor(cLon, cLat, source.crs);
+    const west = Math.min(...lons);
+    const east = Math.max(...lons);
+    // Margin: the safety disc, the surface-ceiling disc, the strip run-out past the
+    // boundary and a strip of transit room, so no bound is computed from missing cells.
+    const ceilingReach = options.ceiling.reference === "surface" ? options.ceiling.heightM : 0;
+    const marginM = Math.max(options.clearance.safetyRadiusM, ceilingReach) + fp.alongM / 2 + spacingM + 30;
+    const raw = await readWindow(
+      source,
+      { west, south: Math.min(...lats), east, north: Math.max(...lats) },
+      { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM },
+    );
+    grid = toMetricGrid(raw, frame.proj4, { epsg: frame.epsg, name: frame.name });
+  } finally {
+    await source.close();
+  }
+  const site = siteFromLonLat(parsed.polygons, frame, { name: options.name ?? parsed.name ?? stem(options.area), source: path.basename(options.area) });
+  const coverage = siteCoverage(site, grid);
+  if (coverage.message) warnings.push({ code: "site-outside-dem", message: coverage.message });
+
+  const speed = groundSpeed({
+    cruiseMps: options.aircraft.speedMps,
+    triggerM,
+    minIntervalS: camera.minIntervalS,
+    exposureS: camera.exposureS,
+    // Blur in pixels is worst where the pixels are finest: the band's fine end.
+    gsdM: requirement.lowGsdM,
+    blurPx: options.blurPx,
+  });
+  lap("load");
+
+  stage("layout");
+  const takeoffXY: XY | undefined = options.takeoff ? frame.fromWgs84(options.takeoff[0], options.takeoff[1]) : undefined;
+  const layout = layoutStrips(site, {
+    headingDeg: options.headingDeg,
+    spacingM,
+    triggerM,
+    footprintAcrossM: fp.acrossM,
+    footprintAlongM: fp.alongM,
+    ...(takeoffXY ? { takeoff: takeoffXY } : {}),
+    photoSpeedMps: speed.speedMps,
+    transitSpeedMps: options.aircraft.transitSpeedMps,
+    grid,
+    maxClimbMps: options.aircraft.maxClimbMps,
+  });
+  const takeoffGround = groundAt(grid, layout.takeoff, options.assumeGroundM);
+  if (!Number.isFinite(takeoffGround)) {
+    throw new InputError("takeoff", options.takeoff ?? frame.toWgs84(...layout.takeoff), "a point with DEM heights", "the DEM has no height at the take-off point");
+  }
+  lap("layout");
+
+  stage("solve");
+  const solverOptions: SolverOptions = {
+    ceiling: options.ceiling,
+    takeoffGroundM: takeoffGround,
+    clearance: options.clearance,
+    aircraft: {
+      type: options.aircraft.type,
+      speedMps: speed.speedMps,
+      transitSpeedMps: options.aircraft.transitSpeedMps,
+      minSpeedMps: options.aircraft.minSpeedMps,
+      maxClimbMps: options.aircraft.maxClimbMps,
+      maxDescentMps: options.aircraft.maxDescentMps,
+    },
+    band: {
+      hMinM: heightForGsdM(camera, requirement.lowGsdM),
+      hMaxM: heightForGsdM(camera, requirement.highGsdM),
+      hTargetM: targetHeightM,
+    },
+    zoneHalfAcrossM: spacingM / 2,
+    stationStepM: Math.min(grid.cellSizeM[0], grid.cellSizeM[1]),
+    onConflict: options.onConflict,
+    ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
+    ifov: camera.ifov,
+  };
+  const solve = solvePlan(grid, layout.legs, solverOptions);
+  warnings.push(...solve.warnings);
+  carryNoPhotoIntervals(solve.legs, layout.legs);
+
+  const flights = splitFlights(solve.legs, {
+    takeoff: layout.takeoff,
+    enduranceMin: options.aircraft.enduranceMin,
+    reservePct: options.reservePct,
+    maxWaypoints: options.aircraft.maxWaypoints,
+    maxClimbMps: options.aircraft.maxClimbMps,
+    maxDescentMps: options.aircraft.maxDescentMps,
+    takeoffGroundM: takeoffGround,
+    // New legs to and from take-off go through the same solver, so they keep clearance.
+    transitLeg: (from, to, strip) => transitThroughSolver(grid, from, to, strip, solverOptions),
+  });
+  warnings.push(...flights.warnings);
+  lap("solve");
+
+  stage("assess");
+  const flownLegs = flights.flights.flatMap((f) => f.legs);
+  const assessment = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
+    triggerM,
+    minImages: options.minImages,
+    zoneHalfAcrossM: spacingM / 2,
+    toWgs84: frame.toWgs84,
+  });
+  lap("assess");
+
+  stage("baseline");
+  const baseline = constantAltitudeBaseline(grid, site, layout, camera, requirement, {
+    targetHeightM,
+    triggerM,
+    minImages: options.minImages,
+    toWgs84: frame.toWgs84,
+    ceiling: options.ceiling,
+    takeoffGroundM: takeoffGround,
+    planRasters: assessment.rasters,
+  });
+  lap("baseline");
+
+  const [tLon, tLat] = frame.toWgs84(layout.takeoff[0], layout.takeoff[1]);
+  return {
+    options,
+    frame,
+    grid,
+    verticalDatum: grid.verticalDatum,
+    site,
+    camera,
+    requirement,
+    targetHeightM,
+    speed,
+    layout,
+    solve,
+    flights,
+    assessment,
+    baseline,
+    takeoff: { x: layout.takeoff[0], y: layout.takeoff[1], lon: tLon, lat: tLat, groundM: takeoffGround },
+    warnings,
+    timings,
+  };
+}
+
+/** Geoid undulation of the DEM's vertical datum (EGM96; EGM2008 approximated by it). */
+export function undulationFor(datum: DemGrid["verticalDatum"]): (lon: number, lat: number) => number {
+  if (datum === "ellipsoid") return () => 0;
+  return (lon, lat) => egm96UndulationM(lat, lon);
+}
+
+const VERTICAL_UNIT_NAMES: Record<NonNullable<PlanOptions["demVerticalUnit"]>, string> = {
+  metre: "metre",
+  foot: "foot",
+  "us-survey-foot": "US survey foot",
+};
+
+function cameraSpec(o: PlanOptions): CameraSpec {
+  const c = o.camera;
+  const common = { imageWidthPx: c.imageWidthPx, imageHeightPx: c.imageHeightPx, exposureS: c.exposureS, minIntervalS: c.minIntervalS, portrait: c.portrait };
+  if (c.model === "sensor") {
+    return { ...common, sensorWidthMm: c.sensorWidthMm, sensorHeightMm: c.sensorHeightMm ?? (c.sensorWidthMm * c.imageHeightPx) / c.imageWidthPx, focalLengthMm: c.focalLengthMm };
+  }
+  return c.model === "hfov" ? { ...common, hfovDeg: c.hfovDeg } : { ...common, dfovDeg: c.dfovDeg };
+}
+
+async function readText(file: string, key: string): Promise<string> {
+  try {
+    return await readFile(file, "utf8");
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new InputFileError(file, code === "ENOENT" ? `${key} file not found` : `cannot read the ${key} file (${code ?? String(e)})`);
+  }
+}
+
+function stem(file: string): string {
+  return path.basename(file).replace(/\.[^.]+$/, "");
+}
+
+function groundAt(grid: DemGrid, xy: XY, assumeGroundM?: number): number {
+  const z = sampleBilinear(grid, [xy[0]], [xy[1]])[0];
+  return Number.isFinite(z) ? z : (assumeGroundM ?? NaN);
+}
+
+function transitThroughSolver(grid: DemGrid, from: XY, to: XY, strip: number, opts: SolverOptions): SolvedLeg {
+  const lengthM = Math.hypot(to[0] - from[0], to[1] - from[1]);
+  const leg: LayoutLeg = { kind: "transit", strip, from, to, lengthM };
+  const solved = solvePlan(grid, [leg], opts).legs;
+  if (solved.length === 1) return solved[0];
+  // A transit is always one leg; if the solver returned pieces, join them.
+  const waypoints = solved.flatMap((l, i) => (i === 0 ? l.waypoints : l.waypoints.slice(1)));
+  return { ...solved[0], to, waypoints, lengthM, timeS: solved.reduce((a, l) => a + l.timeS, 0) };
+}
+
+/**
+ * The solver may split a strip around an unflyable stretch; the layout's
+ * no-photo intervals (holes) are in the original strip's along-track distance,
+ * so shift them onto each solved piece.
+ */
+function carryNoPhotoIntervals(solved: SolvedLeg[], layoutLegs: LayoutLeg[]): void {
+  const byStrip = new Map<number, LayoutLeg[]>();
+  for (const l of layoutLegs) if (l.kind === "strip" && l.noPhotoIntervals?.length) {
+    const list = byStrip.get(l.strip) ?? [];
+    list.push(l);
+    byStrip.set(l.strip, list);
+  }
+  for (const leg of solved as AssessedLeg[]) {
+    if (leg.kind !== "strip") continue;
+    for (const src of byStrip.get(leg.strip) ?? []) {
+      const ux = (src.to[0] - src.from[0]) / src.lengthM;
+      const uy = (src.to[1] - src.from[1]) / src.lengthM;
+      const s0 = (leg.from[0] - src.from[0]) * ux + (leg.from[1] - src.from[1]) * uy;
+      const s1 = (leg.to[0] - src.from[0]) * ux + (leg.to[1] - src.from[1]) * uy;
+      // The piece must lie on this layout leg (same line, inside its extent).
+      const off = Math.abs(-(leg.from[0] - src.from[0]) * uy + (leg.from[1] - src.from[1]) * ux);
+      if (off > 0.01 || s0 < -0.01 || s1 > src.lengthM + 0.01) continue;
+      const shifted = src
+        .noPhotoIntervals!.map(([a, b]) => [Math.max(0, a - s0), Math.min(leg.lengthM, b - s0)] as [number, number])
+        .filter(([a, b]) => b > a);
+      if (shifted.length) leg.noPhotoIntervals = shifted;
+    }
+  }
+}

