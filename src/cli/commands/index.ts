@@ -2,6 +2,8 @@ import type { Command } from "commander";
 import { registerInspect } from "./inspect.js";
 import { registerLayout } from "./layout.js";
 import { registerPlan } from "./plan.js";
+import { registerReport } from "./report.js";
+import { registerDemo } from "./demo.js";
 
 /**
  * Every subcommand registers itself here. Command modules must keep heavy
@@ -11,4 +13,6 @@ export function registerCommands(program: Command): void {
   registerInspect(program);
   registerLayout(program);
   registerPlan(program);
+  registerReport(program);
+  registerDemo(program);
 }

@@ -1,0 +1,31 @@
+import type { Command } from "commander";
+
+/**
+ * `gsdplan report <out-dir>`: re-renders report.html from a finished output
+ * folder's report-data.json (written atomically, replacing the old page).
+ * @example registerReport(program)
+ */
+export function registerReport(program: Command): void {
+  program
+    .command("report")
+    .argument("<out-dir>", "a folder written by `gsdplan plan`")
+    .description("re-render report.html from a finished plan's output folder (reads report-data.json)")
+    .action(async (outDir: string) => {
+      const path = await import("node:path");
+      const { readFile } = await import("node:fs/promises");
+      const { InputFileError } = await import("../../errors.js");
+      const { parseReportInput } = await import("../../report/serialize.js");
+      const { renderReport } = await import("../../report/render.js");
+      const { writeOutputSet } = await import("../../export/atomicDir.js");
+      const dataPath = path.join(outDir, "report-data.json");
+      let text: string;
+      try {
+        text = await readFile(dataPath, "utf8");
+      } catch {
+        throw new InputFileError(dataPath, "not found: is this a folder written by `gsdplan plan`?");
+      }
+      const html = renderReport(parseReportInput(text, dataPath));
+      await writeOutputSet(outDir, [{ name: "report.html", data: html }], { force: true, field: "<out-dir>" });
+      process.stdout.write(`report written: ${path.join(outDir, "report.html")}\n`);
+    });
+}
