@@ -3,6 +3,7 @@ import type { Camera, Requirement } from "../camera/types.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import { computeCoverage } from "./coverage.js";
+import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
 import { effectFlags, paintCauseZones } from "./flagRaster.js";
 import { flagPolygons, type ToWgs84 } from "./flagPolygons.js";
@@ -29,6 +30,10 @@ export interface AssessOptions {
   toWgs84: ToWgs84;
   /** Where the first photo of each strip falls (see exposuresFromLegs). */
   phase?: ExposureOptions["phase"];
+  /** How the most nadir photo is chosen (see NadirBy): default `image`, the smallest view angle. */
+  nadirBy?: NadirBy;
+  /** Threads for the coverage pass (see CoverageOptions). */
+  threads?: number;
 }
 
 /**
@@ -61,7 +66,7 @@ export function assessPlan(
 
   const inSite = rasteriseSite(site, width, height, transform);
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
-  const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera);
+  const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera, { nadirBy: opts.nadirBy, threads: opts.threads });
   const flags = effectFlags(grid, inSite, gsdCm, images, requirement.lowGsdM * 100, requirement.highGsdM * 100, minImages);
   paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
 

@@ -5,7 +5,7 @@ import { existsSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import { blockMinima, sweepExposures, type SweepInput } from "./coverageKernel.js";
+import { blockMinima, sweepExposures, type NadirBy, type SweepInput } from "./coverageKernel.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -42,6 +42,8 @@ export function footprintPixels(camera: Camera): { alongPx: number; acrossPx: nu
 }
 
 export interface CoverageOptions {
+  /** How "most nadir" is measured (see NadirBy); default `image`. */
+  nadirBy?: NadirBy;
   /**
    * Threads to share the rows between (the main thread counts as one). Default:
    * the machine's available parallelism, at most 4; grids under a million cells
@@ -98,6 +100,7 @@ export function computeCoverage(
     kAlong: (camera.ifov * alongPx) / 2,
     kAcross: (camera.ifov * acrossPx) / 2,
     blocks,
+    nadirBy: opts.nadirBy ?? "image",
     rowLo: 0,
     rowHi: height - 1,
   };

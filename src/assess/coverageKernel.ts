@@ -30,10 +30,22 @@ export interface SweepInput {
   kAlong: number;
   kAcross: number;
   blocks: BlockMinima;
+  /** Most nadir by offset relative to the footprint (`image`, the view angle) or by plain ground distance (`distance`). */
+  nadirBy: NadirBy;
   /** Rows this call may write, inclusive. */
   rowLo: number;
   rowHi: number;
 }
+
+/**
+ * How "most nadir" is measured. `image`: the smallest offset relative to the
+ * footprint, (along / halfAlong)^2 + (across / halfAcross)^2, i.e. nearest the
+ * image centre (smallest view angle): a higher photo wins over a lower one at
+ * the same distance. `distance`: the nearest nadir point on the ground, which
+ * splits the ground between neighbouring strips at the midline, as the
+ * solver's zones (half the spacing each side) do.
+ */
+export type NadirBy = "image" | "distance";
 
 /** Side of the square blocks whose lowest site ground bounds the footprints, in cells. */
 export const BLOCK = 32;
@@ -91,8 +103,10 @@ function minUnder(bl: BlockMinima, inp: SweepInput, px: number, py: number, ux: 
  */
 export function sweepExposures(inp: SweepInput): void {
   const { width, x0, y0, dx, dy, siteGround, images, best, bestIdx, kAlong, kAcross, blocks } = inp;
-  const invKA2 = 1 / (kAlong * kAlong);
-  const invKC2 = 1 / (kAcross * kAcross);
+  const byDistance = inp.nadirBy === "distance";
+  // In distance mode the weights are 1 and the division by d^2 is dropped (d2 = 1 below).
+  const invKA2 = byDistance ? 1 : 1 / (kAlong * kAlong);
+  const invKC2 = byDistance ? 1 : 1 / (kAcross * kAcross);
   const rows = new Int32Array(2);
   const span = new Int32Array(2);
   const m = inp.ex.length;
@@ -128,7 +142,7 @@ export function sweepExposures(inp: SweepInput): void {
         siteGround, images, best, bestIdx,
         r * width + span[0], r * width + span[1],
         ez, ddx0 * ux + ddy * uy, ddx0 * vx + ddy * vy, dx * ux, dx * vx,
-        kAlong, kAcross, invKA2, invKC2, e,
+        kAlong, kAcross, invKA2, invKC2, byDistance, e,
       );
     }
   }
@@ -139,7 +153,8 @@ export function sweepExposures(inp: SweepInput): void {
  * cell a0/q0 stepping by da/dq per cell. Kept apart, with flat arguments, so
  * the engine compiles the hot loop once for fixed array types. The best photo
  * is remembered by index only (one store instead of three), and compared
- * without a division: num / d^2 < best  <=>  num < best * d^2.
+ * without a division: num / d^2 < best  <=>  num < best * d^2 (d^2 = 1 when
+ * measuring plain distance).
  */
 function sweepRow(
   siteGround: Float32Array,
@@ -157,6 +172,7 @@ function sweepRow(
   kAcross: number,
   invKA2: number,
   invKC2: number,
+  byDistance: boolean,
   e: number,
 ): void {
   let a = a0;
@@ -168,7 +184,7 @@ function sweepRow(
     if (images[i] < 65535) images[i]++;
     // (a / hA)^2 + (q / hC)^2 = num / d^2.
     const num = a * a * invKA2 + q * q * invKC2;
-    const d2 = d * d;
+    const d2 = byDistance ? 1 : d * d;
     if (num < best[i] * d2) {
       best[i] = num / d2;
       bestIdx[i] = e;

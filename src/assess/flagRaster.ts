@@ -4,17 +4,18 @@ import {
   CAUSE_CLEARANCE,
   CAUSE_CLIMB,
   CAUSE_NODATA,
+  CAUSE_RELIEF,
   STATUS_UNFLYABLE,
   type SolvedLeg,
 } from "../solve/types.js";
-import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA, FLAG_UNFLYABLE } from "./flags.js";
+import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA, FLAG_RELIEF, FLAG_UNFLYABLE } from "./flags.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 
 /**
  * The per-cell flag bitmask, in two independent halves:
  * - effect bits (coarse, fine, too few images) are the assessment's own
  *   measurement from the photos placed on the final waypoints;
- * - cause bits (ceiling, clearance or climb, unflyable) are the solver's
+ * - cause bits (ceiling, clearance or climb, unflyable, relief) are the solver's
  *   explanation, painted from its station statuses onto the zone each
  *   station images best. No-data comes from the DEM itself.
  * Keeping them apart lets a test check that the two agree: every cell the
@@ -69,12 +70,14 @@ export function stationFlagBits(status: number, cause: number): number {
   if (cause & CAUSE_CEILING) f |= FLAG_CEILING;
   if (cause & (CAUSE_CLEARANCE | CAUSE_CLIMB)) f |= FLAG_CLEARANCE;
   if (cause & CAUSE_NODATA) f |= FLAG_NODATA;
+  if (cause & CAUSE_RELIEF) f |= FLAG_RELIEF;
   if (status === STATUS_UNFLYABLE) f |= FLAG_UNFLYABLE;
   return f;
 }
 
 /**
- * OR each strip station's cause bits into the site cells of its zone: the
+ * OR each strip station's cause bits (and those of transits bridging a strip's
+ * unflyable stretch) into the site cells of its zone: the
  * rectangle around the station reaching `zoneHalfAcrossM` across the track
  * and half the station step along it (half the gap to each neighbour, so
  * zones tile the strip without holes where stations are unevenly spaced).
@@ -93,7 +96,8 @@ export function paintCauseZones(
   const rows = new Int32Array(2);
   const span = new Int32Array(2);
   for (const leg of legs) {
-    if (leg.kind !== "strip") continue;
+    // A transit bridging an unflyable stretch of a strip still lies over that strip's zone.
+    if (leg.kind !== "strip" && !leg.conflictGap) continue;
     const p = leg.profile;
     const m = p.s.length;
     if (m === 0) continue;

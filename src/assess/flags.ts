@@ -1,6 +1,8 @@
 /**
  * Per-cell flag bits of the assessment (written to flags.tif as UInt8).
- * Effect bits say what is wrong with the cell; cause bits say why.
+ * Effect bits (1, 2, 4) are the assessment's own measurement of what is
+ * wrong with the cell; cause bits (8, 16, 64, 128) are the solver's
+ * explanation of why, painted from its stations; 32 comes from the DEM.
  */
 export const FLAG_COARSE = 1;
 export const FLAG_FINE = 2;
@@ -9,10 +11,12 @@ export const FLAG_CEILING = 8;
 export const FLAG_CLEARANCE = 16;
 export const FLAG_NODATA = 32;
 export const FLAG_UNFLYABLE = 64;
+/** Cause: the ground within the strip's zone varies more than the band allows (solver CAUSE_RELIEF). */
+export const FLAG_RELIEF = 128;
 
 export interface FlagKind {
   bit: number;
-  key: "coarse" | "fine" | "fewImages" | "ceiling" | "clearance" | "nodata" | "unflyable";
+  key: "coarse" | "fine" | "fewImages" | "ceiling" | "clearance" | "nodata" | "unflyable" | "relief";
   label: string;
   /** Plain words for the report and the terminal summary. */
   explanation: string;
@@ -69,5 +73,12 @@ export const FLAG_KINDS: readonly FlagKind[] = [
     label: "under an unflyable section",
     explanation: "Clearance and the ceiling conflict over this ground: no legal, safe height exists for the strip here.",
     remedy: "Get permission for a higher ceiling, use the `surface` ceiling rule where it applies, or survey this part from another site.",
+  },
+  {
+    bit: FLAG_RELIEF,
+    key: "relief",
+    label: "relief wider than the band",
+    explanation: "The ground under this strip rises and falls more than the detail band allows: no single height gives all of it the wanted GSD.",
+    remedy: "Raise the tolerance, narrow the strip spacing (more overlap), or fly the heading along the slope.",
   },
 ];

@@ -1,9 +1,9 @@
 import { describe, it, expect } from "vitest";
 import { makeGrid } from "../../src/dem/sample.js";
 import { assessPlan } from "../../src/assess/assess.js";
-import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA, FLAG_UNFLYABLE } from "../../src/assess/flags.js";
+import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA, FLAG_RELIEF, FLAG_UNFLYABLE } from "../../src/assess/flags.js";
 import { stationFlagBits } from "../../src/assess/flagRaster.js";
-import { CAUSE_CEILING, CAUSE_CLEARANCE, CAUSE_CLIMB, CAUSE_NODATA, STATUS_DETAIL_LIMITED, STATUS_UNFLYABLE, type SolvedLeg } from "../../src/solve/types.js";
+import { CAUSE_CEILING, CAUSE_CLEARANCE, CAUSE_CLIMB, CAUSE_NODATA, CAUSE_RELIEF, STATUS_DETAIL_LIMITED, STATUS_UNFLYABLE, type SolvedLeg } from "../../src/solve/types.js";
 import { InputError } from "../../src/errors.js";
 import { quantilesFloat32 } from "../../src/assess/quantiles.js";
 import { genericCamera, handLeg } from "./helpers.js";
@@ -196,6 +196,7 @@ describe("station causes to flag bits", () => {
     expect(stationFlagBits(0, CAUSE_CLIMB)).toBe(FLAG_CLEARANCE);
     expect(stationFlagBits(0, CAUSE_NODATA)).toBe(FLAG_NODATA);
     expect(stationFlagBits(STATUS_UNFLYABLE, 0)).toBe(FLAG_UNFLYABLE);
+    expect(stationFlagBits(STATUS_DETAIL_LIMITED, CAUSE_RELIEF)).toBe(FLAG_RELIEF);
     expect(stationFlagBits(STATUS_DETAIL_LIMITED, 0)).toBe(0);
     expect(FLAG_FINE | FLAG_COARSE).toBe(3);
   });

@@ -187,5 +187,11 @@ describe("most nadir photo", () => {
       expect(Math.abs(cov.gsdCm[i] - want) / want).toBeLessThan(1e-6);
       expect(cov.images[i]).toBe(2);
     }
+    // By plain ground distance the split is the midline y = 130 m instead.
+    const byDistance = computeCoverage(grid, all, ex, camera, { nadirBy: "distance" });
+    for (const y of [128.5, 129.5, 130.5, 131.5]) {
+      const i = Math.round(250 - y - 0.5) * grid.width + col;
+      expect(byDistance.nadirStrip[i]).toBe(y < 130 ? 1 : 2);
+    }
   });
 });
