@@ -67,10 +67,14 @@ export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions):
 
   const opening = (b: Block, first: boolean): SolvedLeg[] => {
     if (first && b.leading.length && near(b.leading[0].from, o.takeoff)) return [...b.leading, ...b.body];
+    if (near(o.takeoff, b.body[0].from)) return [...b.body];
     return [o.transitLeg(o.takeoff, b.body[0].from, b.strip, "out"), ...b.body];
   };
   const close = (f: SolvedLeg[]): SolvedLeg[] => {
     const last = f[f.length - 1];
+    // A flight whose last strip ends over the take-off point needs no leg back: a
+    // zero-length transit has no stations, so its altitudes and time come out NaN.
+    if (near(last.to, o.takeoff)) return f;
     return [...f, o.transitLeg(last.to, o.takeoff, last.strip, "back")];
   };
   const fits = (f: SolvedLeg[]) => flightTimeS(f, o) <= usableS && countRows(f) <= maxWp;
