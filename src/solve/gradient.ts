@@ -25,7 +25,8 @@ export function gradientLimits(o: SolverOptions, kind: "strip" | "transit"): { g
 export function segmentSpeed(o: SolverOptions, kind: "strip" | "transit", g: number): number {
   const a = o.aircraft;
   const v = kind === "strip" ? a.speedMps : a.transitSpeedMps;
-  if (a.type !== "multirotor" || g === 0) return v;
+  // NaN: a zero-length segment (0/0), which takes no ground time at any speed.
+  if (a.type !== "multirotor" || g === 0 || Number.isNaN(g)) return v;
   const rate = g > 0 ? a.maxClimbMps : a.maxDescentMps;
   return Math.max(a.minSpeedMps, Math.min(v, rate / Math.abs(g)));
 }
