@@ -91,65 +91,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const warnings: SolveWarning[] = [];
 
   stage("load");
-  // Camera and requirement first: the window margin depends on the footprint.
-  const camera = makeCamera(cameraSpec(options));
-  const requirement = requirementFrom(
-    options.target.by === "gsd" ? { gsdCm: options.target.gsdCm } : { smallestFeatureCm: options.target.smallestFeatureCm, rule: options.target.rule },
-    options.target.tolerancePct,
-  );
-  const targetHeightM = heightForGsdM(camera, requirement.targetGsdM);
-  const fp = footprintM(camera, targetHeightM);
-  const spacingM = stripSpacingM(fp.acrossM, options.overlap.sidePct);
-  const triggerM = triggerDistanceM(fp.alongM, options.overlap.frontPct);
-
-  const siteText = await readText(options.area, "area");
-  const parsed = parseSiteText(siteText, path.basename(options.area));
-  const lons: number[] = [];
-  const lats: number[] = [];
-  for (const poly of parsed.polygons) for (const [lon, lat] of poly[0]) {
-    lons.push(lon);
-    lats.push(lat);
-  }
-  const [cLon, cLat] = lonLatCentre(lons, lats);
-
-  const source = await openDem(options.dem, {
-    band: options.band,
-    ...(options.demVerticalDatum ? { verticalDatum: options.demVerticalDatum } : {}),
-    ...(options.demVerticalUnit ? { verticalUnit: VERTICAL_UNIT_NAMES[options.demVerticalUnit] } : {}),
-  });
-  let grid: DemGrid;
-  let frame: SiteFrame;
-  try {
-    for (const w of source.warnings) warnings.push({ code: "dem", message: w });
-    frame = localFrameFor(cLon, cLat, source.crs);
-    const west = Math.min(...lons);
-    const east = Math.max(...lons);
-    // Margin: the safety disc, the surface-ceiling disc, the strip run-out past the
-    // boundary and a strip of transit room, so no bound is computed from missing cells.
-    const ceilingReach = options.ceiling.reference === "surface" ? options.ceiling.heightM : 0;
-    const marginM = Math.max(options.clearance.safetyRadiusM, ceilingReach) + fp.alongM / 2 + spacingM + 30;
-    const raw = await readWindow(
-      source,
-      { west, south: Math.min(...lats), east, north: Math.max(...lats) },
-      { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM },
-    );
-    grid = toMetricGrid(raw, frame.proj4, { epsg: frame.epsg, name: frame.name });
-  } finally {
-    await source.close();
-  }
-  const site = siteFromLonLat(parsed.polygons, frame, { name: options.name ?? parsed.name ?? stem(options.area), source: path.basename(options.area) });
-  const coverage = siteCoverage(site, grid);
-  if (coverage.message) warnings.push({ code: "site-outside-dem", message: coverage.message });
-
-  const speed = groundSpeed({
-    cruiseMps: options.aircraft.speedMps,
-    triggerM,
-    minIntervalS: camera.minIntervalS,
-    exposureS: camera.exposureS,
-    // Blur in pixels is worst where the pixels are finest: the band's fine end.
-    gsdM: requirement.lowGsdM,
-    blurPx: options.blurPx,
-  });
+  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, site, speed, warnings: loadWarnings } =
+    await prepareMission(options);
+  warnings.push(...loadWarnings);
   lap("load");
 
   stage("layout");
@@ -256,6 +200,90 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     warnings,
     timings,
   };
+}
+
+/** The load stage's result: everything fixed before strips are laid out. */
+export interface PreparedMission {
+  camera: Camera;
+  requirement: Requirement;
+  targetHeightM: number;
+  footprint: { acrossM: number; alongM: number };
+  spacingM: number;
+  triggerM: number;
+  frame: SiteFrame;
+  grid: DemGrid;
+  site: Site;
+  speed: GroundSpeed;
+  warnings: SolveWarning[];
+}
+
+/**
+ * The load stage: camera and requirement, the site in its local frame, and
+ * the DEM window (with margin) on that frame's metric grid.
+ * @example const m = await prepareMission(options); m.spacingM
+ */
+export async function prepareMission(options: PlanOptions): Promise<PreparedMission> {
+  const warnings: SolveWarning[] = [];
+  // Camera and requirement first: the window margin depends on the footprint.
+  const camera = makeCamera(cameraSpec(options));
+  const requirement = requirementFrom(
+    options.target.by === "gsd" ? { gsdCm: options.target.gsdCm } : { smallestFeatureCm: options.target.smallestFeatureCm, rule: options.target.rule },
+    options.target.tolerancePct,
+  );
+  const targetHeightM = heightForGsdM(camera, requirement.targetGsdM);
+  const fp = footprintM(camera, targetHeightM);
+  const spacingM = stripSpacingM(fp.acrossM, options.overlap.sidePct);
+  const triggerM = triggerDistanceM(fp.alongM, options.overlap.frontPct);
+
+  const siteText = await readText(options.area, "area");
+  const parsed = parseSiteText(siteText, path.basename(options.area));
+  const lons: number[] = [];
+  const lats: number[] = [];
+  for (const poly of parsed.polygons) for (const [lon, lat] of poly[0]) {
+    lons.push(lon);
+    lats.push(lat);
+  }
+  const [cLon, cLat] = lonLatCentre(lons, lats);
+
+  const source = await openDem(options.dem, {
+    band: options.band,
+    ...(options.demVerticalDatum ? { verticalDatum: options.demVerticalDatum } : {}),
+    ...(options.demVerticalUnit ? { verticalUnit: VERTICAL_UNIT_NAMES[options.demVerticalUnit] } : {}),
+  });
+  let grid: DemGrid;
+  let frame: SiteFrame;
+  try {
+    for (const w of source.warnings) warnings.push({ code: "dem", message: w });
+    frame = localFrameFor(cLon, cLat, source.crs);
+    const west = Math.min(...lons);
+    const east = Math.max(...lons);
+    // Margin: the safety disc, the surface-ceiling disc, the strip run-out past the
+    // boundary and a strip of transit room, so no bound is computed from missing cells.
+    const ceilingReach = options.ceiling.reference === "surface" ? options.ceiling.heightM : 0;
+    const marginM = Math.max(options.clearance.safetyRadiusM, ceilingReach) + fp.alongM / 2 + spacingM + 30;
+    const raw = await readWindow(
+      source,
+      { west, south: Math.min(...lats), east, north: Math.max(...lats) },
+      { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM },
+    );
+    grid = toMetricGrid(raw, frame.proj4, { epsg: frame.epsg, name: frame.name });
+  } finally {
+    await source.close();
+  }
+  const site = siteFromLonLat(parsed.polygons, frame, { name: options.name ?? parsed.name ?? stem(options.area), source: path.basename(options.area) });
+  const coverage = siteCoverage(site, grid);
+  if (coverage.message) warnings.push({ code: "site-outside-dem", message: coverage.message });
+
+  const speed = groundSpeed({
+    cruiseMps: options.aircraft.speedMps,
+    triggerM,
+    minIntervalS: camera.minIntervalS,
+    exposureS: camera.exposureS,
+    // Blur in pixels is worst where the pixels are finest: the band's fine end.
+    gsdM: requirement.lowGsdM,
+    blurPx: options.blurPx,
+  });
+  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, site, speed, warnings };
 }
 
 /** Geoid undulation of the DEM's vertical datum (EGM96; EGM2008 approximated by it). */
