@@ -5,7 +5,7 @@
  */
 import { STANDARD_CAUTIONS } from "../cautions.js";
 import { createHash } from "node:crypto";
-import { FLAG_KINDS } from "../assess/flags.js";
+import { FLAG_KINDS, type FlagKind } from "../assess/flags.js";
 import type { ReportInput, ReportSummary } from "./model.js";
 import { compactReportInput } from "./serialize.js";
 import { hillshade } from "./hillshade.js";
@@ -25,8 +25,8 @@ import { REPORT_CSS } from "./style.js";
 /** Cautions every report carries, whatever the plan says (domain practice). */
 export { STANDARD_CAUTIONS };
 
-/** Colour and hatch angle per flag kind on the flags map. */
-const FLAG_STYLE: Record<string, { colour: string; angle: number }> = {
+/** Colour and hatch angle per flag kind on the flags map (keyed by FlagKind so a new kind cannot be missed). */
+const FLAG_STYLE: Record<FlagKind["key"], { colour: string; angle: number }> = {
   coarse: { colour: "#b40426", angle: 45 },
   fine: { colour: "#3b4cc0", angle: -45 },
   fewImages: { colour: "#7b3294", angle: 0 },
@@ -34,6 +34,7 @@ const FLAG_STYLE: Record<string, { colour: string; angle: number }> = {
   clearance: { colour: "#8c510a", angle: 30 },
   nodata: { colour: "#444444", angle: -30 },
   unflyable: { colour: "#d62728", angle: 60 },
+  relief: { colour: "#1b7837", angle: -60 },
 };
 
 const EFFECT_KEYS = new Set(["coarse", "fine", "fewImages"]);
