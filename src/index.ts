@@ -1,9 +1,62 @@
-// The typed library API of gsdplan. The CLI in src/cli is a thin layer over these.
+/**
+ * The typed library API of gsdplan, one section per pipeline stage. The CLI
+ * in src/cli is a thin layer over these.
+ *
+ * @example
+ * import { loadPlanFile, resolvePlanOptions, planMission, planOutputs, writeOutputSet } from "gsdplan";
+ * const file = await loadPlanFile("site/plan.yaml");
+ * const run = await planMission(resolvePlanOptions(file.data, {}, file.dir));
+ * await writeOutputSet("out", planOutputs(run).files);
+ */
 export * from "./errors.js";
+export { STANDARD_CAUTIONS } from "./cautions.js";
+
+// dem: open, window, sample
 export type * from "./dem/grid.js";
-export type * from "./geo/frame.js";
-export type * from "./camera/types.js";
+export { openDem, type DemSource, type OpenDemOptions } from "./dem/source.js";
+export { readWindow, readCells, type ReadWindowOptions } from "./dem/window.js";
+export { toMetricGrid } from "./dem/reproject.js";
+export { demStatistics } from "./dem/statistics.js";
+export { inspectDem, type DemReport } from "./dem/inspect.js";
+export { sampleBilinear, extremaInRadius, extremaInOrientedRect, cellCentre, toColRow, makeGrid } from "./dem/sample.js";
+
+// geo and camera
+export * from "./geo/index.js";
+export * from "./camera/index.js";
+
+// layout
 export type * from "./layout/types.js";
-export * from "./solve/types.js";
+export { readSite, siteFromBbox, siteFromLonLat, siteCoverage } from "./layout/site.js";
+export { layoutStrips, type LayoutOptions } from "./layout/strips.js";
+export { stationsAlong, exposureStations } from "./layout/stations.js";
+
+// solve
+export * from "./solve/index.js";
+
+// assess
 export type * from "./assess/types.js";
 export * from "./assess/flags.js";
+export { assessPlan, type AssessOptions } from "./assess/assess.js";
+
+// export
+export { writeOutputSet, type OutputFile } from "./export/atomicDir.js";
+export { waypointRows, type WaypointRow } from "./export/rows.js";
+export { waypointsCsv } from "./export/waypointsCsv.js";
+export { planGeoJson } from "./export/geojson.js";
+export { planKml } from "./export/kml.js";
+export { planGpx } from "./export/gpx.js";
+export { assessmentGeoTiffs } from "./export/geotiffRasters.js";
+export { splitFlights, type Flight } from "./export/flights.js";
+
+// report
+export { renderReport } from "./report/render.js";
+export { serializeReportInput, parseReportInput } from "./report/serialize.js";
+export { hillshade } from "./report/hillshade.js";
+export type { ReportInput } from "./report/model.js";
+
+// plan: options and the composed job
+export { loadPlanFile, resolvePlanOptions, type PlanOptions } from "./plan/options.js";
+export { PLAN_OPTION_SPECS, PLAN_DEFAULTS } from "./plan/optionsSchema.js";
+export { planMission, prepareMission, type PlanRun } from "./plan/plan.js";
+export { planOutputs, OUTPUT_NAMES } from "./plan/outputs.js";
+export { planSummary, type PlanSummary } from "./plan/summary.js";

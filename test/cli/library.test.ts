@@ -1,0 +1,20 @@
+import { describe, expect, it } from "vitest";
+import { execFileSync } from "node:child_process";
+
+// The package's own entry point, resolved the way a user's `import ... from "gsdplan"`
+// is (package.json "exports" -> dist), after `npm run build`.
+describe("library entry", () => {
+  it("exposes the stages and the composed job under the package name", () => {
+    const out = execFileSync(
+      process.execPath,
+      ["--input-type=module", "-e", 'const m = await import("gsdplan"); console.log(JSON.stringify(["planMission","prepareMission","planOutputs","openDem","readWindow","layoutStrips","solvePlan","assessPlan","makeCamera","groundSampleDistanceM","localFrameFor","egm96UndulationM","writeOutputSet","renderReport"].filter((k) => typeof m[k] !== "function")))'],
+      { encoding: "utf8" },
+    );
+    expect(JSON.parse(out)).toEqual([]);
+  });
+
+  it("starts the CLI quickly enough to print its help (commands load lazily)", () => {
+    const out = execFileSync(process.execPath, ["dist/cli/main.js", "--help"], { encoding: "utf8" });
+    for (const cmd of ["inspect", "layout", "plan", "report", "demo"]) expect(out).toContain(cmd);
+  });
+});
