@@ -132,9 +132,27 @@ export function sweepExposures(inp: SweepInput): void {
     orientedRectRowRange(ey, ux, uy, hAlongMax, hAcrossMax, y0, dy, inp.height, rows);
     const rLo = Math.max(rows[0], inp.rowLo);
     const rHi = Math.min(rows[1], inp.rowHi);
+    if (rLo > rHi) continue;
+    // Each band of BLOCK rows gets its own, tighter reach: the lowest ground of its blocks under the box.
+    const ext = Math.abs(ux) * hAlongMax + Math.abs(uy) * hAcrossMax;
+    const bc0 = Math.max(0, Math.floor((ex - ext - x0) / dx / BLOCK));
+    const bc1 = Math.min(blocks.bw - 1, Math.floor((ex + ext - x0) / dx / BLOCK));
+    let bandRow = -1;
+    let hA = 0;
+    let hC = 0;
     for (let r = rLo; r <= rHi; r++) {
+      const br = (r / BLOCK) | 0;
+      if (br !== bandRow) {
+        bandRow = br;
+        let g = Infinity;
+        for (let bc = bc0; bc <= bc1; bc++) if (blocks.mins[br * blocks.bw + bc] < g) g = blocks.mins[br * blocks.bw + bc];
+        const dRow = g < Infinity ? Math.min(ez - g, dMax) : 0;
+        hA = dRow > 0 ? dRow * kAlong : -1;
+        hC = dRow > 0 ? dRow * kAcross : -1;
+      }
+      if (hA < 0) continue;
       const cy = y0 + (r + 0.5) * dy;
-      orientedRectColSpan(cy, ex, ey, ux, uy, hAlongMax, hAcrossMax, x0, dx, width, span);
+      orientedRectColSpan(cy, ex, ey, ux, uy, hA, hC, x0, dx, width, span);
       if (span[0] > span[1]) continue;
       const ddy = cy - ey;
       const ddx0 = x0 + (span[0] + 0.5) * dx - ex;

@@ -2,7 +2,7 @@ import { contours } from "d3-contour";
 import type { Position } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { FlagPolygons } from "./types.js";
-import { FLAG_KINDS } from "./flags.js";
+import { ASSESSMENT_FLAG_KINDS } from "./flags.js";
 
 /**
  * Flagged cells as polygons, one MultiPolygon layer per flag kind, for the
@@ -54,7 +54,7 @@ export function flagPolygons(
     }
     rowOr[r] = ro;
   }
-  for (const kind of FLAG_KINDS) {
+  for (const kind of ASSESSMENT_FLAG_KINDS) {
     const bit = kind.bit;
     let cells = 0;
     for (let f = 1; f < 256; f++) if (f & bit) cells += hist[f];

@@ -74,11 +74,20 @@ export const FLAG_KINDS: readonly FlagKind[] = [
     explanation: "Clearance and the ceiling conflict over this ground: no legal, safe height exists for the strip here.",
     remedy: "Get permission for a higher ceiling, use the `surface` ceiling rule where it applies, or survey this part from another site.",
   },
-  {
-    bit: FLAG_RELIEF,
-    key: "relief",
-    label: "relief wider than the band",
-    explanation: "The ground under this strip rises and falls more than the detail band allows: no single height gives all of it the wanted GSD.",
-    remedy: "Raise the tolerance, narrow the strip spacing (more overlap), or fly the heading along the slope.",
-  },
 ];
+
+/**
+ * The relief cause (bit 128), kept out of FLAG_KINDS so that code listing the
+ * original seven kinds keeps working; the assessment's statistics and flag
+ * polygons use ASSESSMENT_FLAG_KINDS, which includes it.
+ */
+export const RELIEF_FLAG_KIND: FlagKind = {
+  bit: FLAG_RELIEF,
+  key: "relief",
+  label: "relief wider than the band",
+  explanation: "The ground under this strip rises and falls more than the detail band allows: no single height gives all of it the wanted GSD.",
+  remedy: "Raise the tolerance, narrow the strip spacing (more overlap), or fly the heading along the slope.",
+};
+
+/** Every kind the assessment reports: FLAG_KINDS and the relief cause. */
+export const ASSESSMENT_FLAG_KINDS: readonly FlagKind[] = [...FLAG_KINDS, RELIEF_FLAG_KIND];

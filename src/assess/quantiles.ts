@@ -81,7 +81,9 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
 }
 
 function sortKey(u: number): number {
-  return (u & 0x80000000 ? ~u : u | 0x80000000) >>> 0;
+  // Negative: invert all bits; positive: set the sign bit (branch-free: the arithmetic
+  // shift spreads the sign bit over the whole mask).
+  return (u ^ ((u >> 31) | 0x80000000)) >>> 0;
 }
 
 function fromSortKey(k: number): number {

@@ -1,5 +1,5 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
-import { FLAG_COARSE, FLAG_FINE, FLAG_KINDS } from "./flags.js";
+import { FLAG_COARSE, FLAG_FINE, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { countStats, quantilesFloat32 } from "./quantiles.js";
 
 /**
@@ -74,7 +74,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   }
 
   const kindCounts = (s0: number, s1: number): { cells: Float64Array; all: number; flagged: number } => {
-    const cells = new Float64Array(FLAG_KINDS.length);
+    const cells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
     let all = 0;
     let flagged = 0;
     for (let s = s0; s <= s1; s++) {
@@ -83,7 +83,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
         if (c === 0) continue;
         all += c;
         if (f !== 0) flagged += c;
-        FLAG_KINDS.forEach((kind, k) => {
+        ASSESSMENT_FLAG_KINDS.forEach((kind, k) => {
           if (f & kind.bit) cells[k] += c;
         });
       }
@@ -92,7 +92,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   };
   const byKind = (counts: Float64Array, whole: number): Record<string, { cells: number; areaM2: number; pct: number }> => {
     const out: Record<string, { cells: number; areaM2: number; pct: number }> = {};
-    FLAG_KINDS.forEach((kind, k) => {
+    ASSESSMENT_FLAG_KINDS.forEach((kind, k) => {
       out[kind.key] = { cells: counts[k], areaM2: counts[k] * cellAreaM2, pct: pct(counts[k], whole) };
     });
     return out;

@@ -148,6 +148,19 @@ describe("assessPlan on flat ground", () => {
     expect(perStripCeiling).toBe(a.stats.flagged.byKind.ceiling.cells);
   });
 
+  it("relief-limited stations get their own cause layer", () => {
+    const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: () => H0 });
+    const band = { lowGsdM: (gsdCm / 100) * 0.9, highGsdM: (gsdCm / 100) * 1.1 };
+    const legs = plan(H0 + AGL, (strip, s) => (strip === 2 && s >= 150 && s <= 170 ? [STATUS_DETAIL_LIMITED, CAUSE_RELIEF] : [0, 0]));
+    const a = assessPlan(grid, site, legs, camera, band, { triggerM, zoneHalfAcrossM: spacingM / 2, toWgs84: identity });
+    // Strip 2 at y = 16.1 m: its zone reaches y = 34.1 m, the site starts at y = 20.1 m, so
+    // 14 m of the zone's width are in the site (cell centres y = 20.25 ... 33.75: 28) and the
+    // stations s = 150 ... 170 m with half a step each side reach x = 109.75 ... 130.25 (42 centres).
+    expect(a.stats.flagged.byKind.relief.cells).toBe(28 * 42);
+    expect(a.polygons.relief.properties.bit).toBe(FLAG_RELIEF);
+    expect(a.stats.flagged.byKind.ceiling.cells).toBe(0);
+  });
+
   it("stats percentiles match a straightforward sort of the GSD raster", () => {
     // Tilted ground: GSD varies across the site.
     const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: (x, y) => H0 + 0.1 * x + 0.05 * y });
