@@ -84,11 +84,14 @@ function copyBlock(
     let dst = (row - wr0) * outW + (colA - wc0);
     for (let col = colA; col < colB; col++, src += pixStride, dst++) {
       const r = raw[src];
-      if (r !== r || r === nd) {
+      heights[dst] = identity ? r : r * k + c;
+      // Nodata: the declared value, and any height that is not a finite Float32 (NaN,
+      // +-Inf, or a Float64 beyond Float32 range): never a ground height (see toMetres).
+      const h = heights[dst];
+      if (r === nd || h - h !== 0) {
         heights[dst] = NaN;
         valid[dst] = 0;
       } else {
-        heights[dst] = identity ? r : r * k + c;
         valid[dst] = 1;
       }
     }

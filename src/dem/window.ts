@@ -56,7 +56,7 @@ export function nativeBounds(source: DemSource): Bounds {
  * Reads the cells under a box (plus a margin) into a DemGrid of heights in metres.
  * Only the strips/tiles that intersect the window are fetched and decoded, each straight
  * into the output. GDAL
- * scale/offset and the vertical unit are applied; nodata becomes NaN with valid = 0.
+ * scale/offset and the vertical unit are applied; nodata, NaN and +-Inf become NaN with valid = 0.
  * @example
  * const dem = await openDem("fixtures/gdal/hills_utm33_f32.tif");
  * const grid = await readWindow(dem, { west: 500100, south: 5200100, east: 500300, north: 5200300 }, { marginM: 10 });
@@ -115,7 +115,8 @@ export async function readCells(source: DemSource, win: CellWindow): Promise<Dem
 
 /**
  * Raw samples to heights in metres: (raw * scale + offset) * metres per vertical unit,
- * NaN and valid = 0 where raw equals the nodata value or is NaN. A Float32 input is
+ * NaN and valid = 0 where raw equals the nodata value or the height is not finite
+ * (NaN, +-Inf): both are nodata, never ground. A Float32 input is
  * converted in place (no second window-sized array).
  */
 export function toMetres(raw: ArrayLike<number>, source: Pick<DemSource, "nodata" | "scale" | "offset" | "verticalUnitM" | "sampleFormat" | "bitsPerSample">): { heights: Float32Array; valid: Uint8Array } {
@@ -129,12 +130,13 @@ export function toMetres(raw: ArrayLike<number>, source: Pick<DemSource, "nodata
   const identity = k === 1 && c === 0;
   for (let i = 0; i < n; i++) {
     const r = raw[i];
-    if (r !== r || r === nd) {
-      heights[i] = NaN;
-    } else {
-      heights[i] = identity ? r : r * k + c;
-      valid[i] = 1;
-    }
+    heights[i] = identity ? r : r * k + c;
+    // h - h is 0 only for finite numbers: NaN and +-Inf (also a Float64 height that
+    // overflows Float32) are nodata. An infinite height is never ground, only the mark
+    // of a broken conversion; passing it on would break every bound computed from it.
+    const h = heights[i];
+    if (r === nd || h - h !== 0) heights[i] = NaN;
+    else valid[i] = 1;
   }
   return { heights, valid };
 }
