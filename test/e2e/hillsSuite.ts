@@ -408,7 +408,7 @@ export function hillsPlanSuite(c: HillsCase): void {
 
     describe("plan.kml (OGC KML 2.2) read by togeojson and GDAL", () => {
       let text = "";
-      let fc: FeatureCollection;
+      let fc: FeatureCollection<Geometry | null>;
       beforeAll(() => {
         text = readFileSync(path.join(out, "plan.kml"), "utf8");
         fc = kml(parseXml(text));
