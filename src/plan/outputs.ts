@@ -15,6 +15,9 @@ import type { PlanExportInput } from "../export/layers.js";
 import { renderReport } from "../report/render.js";
 import { serializeReportInput } from "../report/serialize.js";
 import type { ReportInput } from "../report/model.js";
+import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "../report/histogram.js";
+import type { LocalFrame } from "../geo/frame.js";
+import type { DemGrid } from "../dem/grid.js";
 import { undulationFor, type PlanRun } from "./plan.js";
 import { planSummary, type PlanSummary } from "./summary.js";
 
@@ -78,13 +81,21 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
  */
 export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile?: string; toolVersion?: string; generatedAt?: string } = {}): ReportInput {
   const b = run.baseline;
-  const datumName = { egm96: "EGM96", egm2008: "EGM2008", ellipsoid: "WGS84 ellipsoid", other: "other", unknown: "unknown (assumed EGM96)" }[run.verticalDatum];
+  const datumName = DATUM_NAMES[run.verticalDatum];
+  const g = summary.gsdCm;
+  const planRasters = run.assessment.rasters;
+  const baseRasters = b.assessment.rasters;
+  // Both histograms on the same bins, so the page can draw one over the other.
+  const edges = gsdBinEdges(g.low, g.high, Math.min(g.min, b.stats.gsdCm.min), Math.max(g.max, b.stats.gsdCm.max), REPORT_GSD_BINS);
+  const clearanceM = run.options.clearance.minM + run.options.clearance.obstacleMarginM;
+  const shortfall = clearanceShortfall(run.grid, planRasters.inSite, planRasters.width, planRasters.height, b.altitudeAmslM, clearanceM);
+  const site = run.site.local;
   return {
     siteName: run.site.name,
     summary: summary as unknown as ReportInput["summary"],
     dem: run.grid,
-    rasters: run.assessment.rasters,
-    site: run.site.local,
+    rasters: planRasters,
+    site,
     legs: run.flights.flights.flatMap((f) => f.legs),
     takeoff: [run.takeoff.x, run.takeoff.y],
     baseline: {
@@ -94,8 +105,11 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
       withinBandPct: b.stats.withinBandPct,
       ceilingBreaches: b.stats.ceilingBreaches,
       images: b.stats.images,
+      ...(shortfall ? { maxSiteGroundM: shortfall.maxGroundM, clearanceShortfall: { cells: shortfall.cells, areaM2: shortfall.areaM2, clearanceM } } : {}),
     },
     planCeilingBreaches: b.planCeilingBreaches,
+    gsdHistogram: histogram(planRasters.gsdCm, planRasters.inSite, edges),
+    baselineHistogram: histogram(baseRasters.gsdCm, baseRasters.inSite, edges),
     files: {
       dem: path.basename(run.options.dem),
       area: path.basename(run.options.area),
@@ -103,7 +117,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
       outputs: [...OUTPUT_NAMES],
     },
     verticalReferences: {
-      demDatum: run.verticalDatum,
+      demDatum: `${datumName}${run.verticalDatum === "egm96" || run.verticalDatum === "egm2008" ? " geoid heights" : ""} (${run.verticalDatum})`,
       geoidModel: summary.geoidModel,
       altitudes: [
         { name: "altitude_amsl_m", reference: `above mean sea level (${datumName})` },
@@ -115,14 +129,79 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
     assumptions: {
       surfaceModel: "unknown",
       notes: [
-        "Clearance is computed from the DEM; if it is a bare-earth model (DTM), trees and buildings are not in it.",
-        "DEM vertical accuracy limits the clearance that can be trusted: global 1-arc-second DEMs err by several metres or more, lidar DTMs by decimetres.",
+        `Clearance kept: ${run.options.clearance.minM} m above the highest ground within ${run.options.clearance.safetyRadiusM} m, plus an obstacle margin of ${run.options.clearance.obstacleMarginM} m.`,
+        "Global 1-arc-second DEMs err by several metres or more vertically (the SRTM requirement was 16 m at 90 %), lidar DTMs by decimetres: allow for it in the clearance.",
       ],
     },
     cautions: summary.cautions,
     minImages: run.options.minImages,
     crsName: run.frame.name,
+    gridConvergenceDeg: gridConvergenceDeg(run.frame, siteCentre(site)),
     ...(meta.generatedAt ? { generatedAt: meta.generatedAt } : {}),
     ...(meta.toolVersion ? { toolVersion: meta.toolVersion } : {}),
   };
+}
+
+const DATUM_NAMES: Record<PlanRun["verticalDatum"], string> = {
+  egm96: "EGM96",
+  egm2008: "EGM2008",
+  ellipsoid: "WGS84 ellipsoid",
+  other: "other",
+  unknown: "unknown (assumed EGM96)",
+};
+
+/**
+ * The angle from grid north to true north at a local-frame point, degrees, positive
+ * when true north lies east of grid north (clockwise). Measured, not from a formula for
+ * one projection: the point goes to WGS84 and a short step north along its meridian
+ * comes back through the frame, so it holds for any frame proj4 can run.
+ *
+ * @example gridConvergenceDeg(frame, [521020, 6142000]) // about -0.27 in UTM 30N at 2.67 W, 55.4 N
+ */
+export function gridConvergenceDeg(frame: Pick<LocalFrame, "fromWgs84" | "toWgs84">, xy: [number, number]): number | undefined {
+  const [lon, lat] = frame.toWgs84(xy[0], xy[1]);
+  // A 1e-4 degree (about 11 m) step: short enough that the meridian is straight in the
+  // frame, long enough that rounding in the projection is far below it.
+  const d = lat > 89 ? -1e-4 : 1e-4;
+  const a = frame.fromWgs84(lon, lat);
+  const b = frame.fromWgs84(lon, lat + d);
+  const dx = (b[0] - a[0]) * Math.sign(d);
+  const dy = (b[1] - a[1]) * Math.sign(d);
+  const deg = (Math.atan2(dx, dy) * 180) / Math.PI;
+  return Number.isFinite(deg) ? deg : undefined;
+}
+
+/** Centre of the site's bounding box, local frame. */
+function siteCentre(site: PlanRun["site"]["local"]): [number, number] {
+  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
+  const polys = site.type === "Polygon" ? [site.coordinates] : site.coordinates;
+  for (const poly of polys)
+    for (const [x, y] of poly[0]) {
+      x0 = Math.min(x0, x);
+      x1 = Math.max(x1, x);
+      y0 = Math.min(y0, y);
+      y1 = Math.max(y1, y);
+    }
+  return [(x0 + x1) / 2, (y0 + y1) / 2];
+}
+
+/**
+ * Site cells where a constant altitude leaves less than `clearanceM` above the DEM
+ * ground straight below (a simpler measure than the solver's safety disc, enough to
+ * show that one altitude cannot clear the high ground). Undefined when the
+ * assessment grid is not the DEM grid.
+ */
+function clearanceShortfall(grid: DemGrid, inSite: Uint8Array, w: number, h: number, altitudeM: number, clearanceM: number) {
+  if (grid.width !== w || grid.height !== h) return undefined;
+  const z = grid.heights;
+  let cells = 0;
+  let maxGroundM = -Infinity;
+  for (let i = 0; i < z.length; i++) {
+    if (!inSite[i] || !(z[i] === z[i])) continue;
+    if (z[i] > maxGroundM) maxGroundM = z[i];
+    if (altitudeM - z[i] < clearanceM) cells++;
+  }
+  if (!Number.isFinite(maxGroundM)) return undefined;
+  const cellM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+  return { cells, areaM2: cells * cellM2, maxGroundM };
 }

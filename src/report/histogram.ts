@@ -2,6 +2,12 @@ import type { Histogram } from "./model.js";
 import { niceStep } from "./nice.js";
 
 /**
+ * Bins across the histogram's whole axis: with the axis spanning three to seven band
+ * widths this puts five to ten bins inside the band, enough to see its shape.
+ */
+export const REPORT_GSD_BINS = 60;
+
+/**
  * Bin edges for a GSD histogram: nice steps covering the band with room either side, about
  * `bins` of them, so the band edges are easy to read against the bars.
  *

@@ -18,7 +18,7 @@ function bar(table: Uint8Array, x: number, y: number, w: number, h: number, step
  * the band marked, and the hatch that marks cells outside it.
  */
 export function gsdLegend(targetCm: number, lowCm: number, highCm: number, hatchId: string): string {
-  const W = 460, x0 = 10, y0 = 22, bw = 300, bh = 14;
+  const W = 470, x0 = 20, y0 = 22, bw = 300, bh = 14;
   const table = divergingTable256();
   const pos = (g: number) => x0 + gsdScalePosition(g, targetCm, lowCm, highCm) * bw;
   const marks = [gsdAtScalePosition(0, targetCm, lowCm, highCm), lowCm, targetCm, highCm, gsdAtScalePosition(1, targetCm, lowCm, highCm)];
@@ -49,7 +49,7 @@ export function gsdLegend(targetCm: number, lowCm: number, highCm: number, hatch
  * @example sequentialLegend("Height above ground", "m", 80, 120)
  */
 export function sequentialLegend(title: string, unit: string, lo: number, hi: number, extra = ""): string {
-  const W = 460, x0 = 10, y0 = 22, bw = 300, bh = 14;
+  const W = 470, x0 = 20, y0 = 22, bw = 300, bh = 14;
   const table = viridisTable256();
   const span = hi - lo || 1;
   const step = niceStep(span, 5);

@@ -67,53 +67,73 @@ export function outlinePath(v: MapView, t: GeoTransform, rings: Polyline[], attr
 
 /**
  * Contour lines with labelled heights. Every fifth line (the index contour, common
- * cartographic practice) is drawn heavier and carries the labels.
+ * cartographic practice) is drawn heavier and carries the labels. The labels come as a
+ * separate layer so they can sit above the flight lines.
  */
-export function contourLayer(v: MapView, dem: ReportGrid): { svg: string; intervalM: number } {
+export function contourLayer(v: MapView, dem: ReportGrid): { svg: string; labels: string; intervalM: number } {
   let lo = Infinity;
   let hi = -Infinity;
   for (const z of dem.heights) {
     if (z < lo) lo = z;
     if (z > hi) hi = z;
   }
-  if (!(hi > lo)) return { svg: "", intervalM: 0 };
+  if (!(hi > lo)) return { svg: "", labels: "", intervalM: 0 };
   const intervalM = contourInterval(lo, hi);
   const levels = contourLines(dem, intervalM);
   const indexStep = intervalM * 5;
-  // With few lines, label them all; otherwise only the index contours.
-  const labelAll = levels.length <= 12;
+  const isIndexLevel = (z: number) => Math.abs(z / indexStep - Math.round(z / indexStep)) < 1e-6;
+  // Label the index contours; where there are fewer than three of them, every line, so
+  // a map of gentle ground still reads its heights.
+  const labelAll = levels.filter((lv) => isIndexLevel(lv.valueM)).length < 3;
   let minor = "";
   let major = "";
   let labels = "";
-  let nLabels = 0;
+  const placed: [number, number][] = [];
+  const MIN_GAP = 70; // SVG units between labels: keeps them from piling up where lines bunch on steep ground
+  const SPACING = 450; // SVG units of line between labels on one line
+  const t = dem.transform;
   for (const lv of levels) {
-    const isIndex = Math.abs(lv.valueM / indexStep - Math.round(lv.valueM / indexStep)) < 1e-6;
-    const d = gridPath(v, dem.transform, lv.lines, false);
+    const isIndex = isIndexLevel(lv.valueM);
+    const d = gridPath(v, t, lv.lines, false);
     if (isIndex) major += `<path d="${d}"/>`;
     else minor += `<path d="${d}"/>`;
-    if (!(labelAll || isIndex) || nLabels > 60) continue;
+    if (!(labelAll || isIndex)) continue;
     for (const l of lv.lines) {
       const n = l.length / 2;
-      if (n < 8) continue;
-      const m = Math.floor(n / 2);
-      const x = vx(v, dem.transform.x0 + l[2 * m] * dem.transform.dx);
-      const y = vy(v, dem.transform.y0 + l[2 * m + 1] * dem.transform.dy);
-      const x2 = vx(v, dem.transform.x0 + l[2 * m + 2] * dem.transform.dx);
-      const y2 = vy(v, dem.transform.y0 + l[2 * m + 3] * dem.transform.dy);
-      let ang = (Math.atan2(y2 - y, x2 - x) * 180) / Math.PI;
-      if (ang > 90) ang -= 180;
-      if (ang < -90) ang += 180;
-      labels += `<text x="${x}" y="${y}" transform="rotate(${r1(ang)} ${x} ${y})">${fmt(lv.valueM)}</text>`;
-      nLabels++;
-      break;
+      if (n < 4 || placed.length >= 150) continue;
+      // Cumulative length along the line, in SVG units.
+      const px = new Float64Array(n);
+      const py = new Float64Array(n);
+      const cum = new Float64Array(n);
+      for (let i = 0; i < n; i++) {
+        px[i] = (t.x0 + l[2 * i] * t.dx - v.xMin) * v.k;
+        py[i] = (v.yMax - (t.y0 + l[2 * i + 1] * t.dy)) * v.k;
+        if (i) cum[i] = cum[i - 1] + Math.hypot(px[i] - px[i - 1], py[i] - py[i - 1]);
+      }
+      const L = cum[n - 1];
+      if (L < 90) continue;
+      const at = L < 2 * SPACING ? [L / 2] : Array.from({ length: Math.floor(L / SPACING) }, (_, j) => (j + 0.5) * (L / Math.floor(L / SPACING)));
+      let i = 1;
+      for (const target of at) {
+        while (i < n - 1 && cum[i] < target) i++;
+        const f = cum[i] > cum[i - 1] ? (target - cum[i - 1]) / (cum[i] - cum[i - 1]) : 0;
+        const x = px[i - 1] + f * (px[i] - px[i - 1]);
+        const y = py[i - 1] + f * (py[i] - py[i - 1]);
+        if (x < 20 || y < 12 || x > v.w - 20 || y > v.h - 12) continue;
+        if (placed.some(([ax, ay]) => Math.hypot(ax - x, ay - y) < MIN_GAP)) continue;
+        placed.push([x, y]);
+        let ang = (Math.atan2(py[i] - py[i - 1], px[i] - px[i - 1]) * 180) / Math.PI;
+        if (ang > 90) ang -= 180;
+        if (ang < -90) ang += 180;
+        labels += `<text x="${r1(x)}" y="${r1(y)}" transform="rotate(${r1(ang)} ${r1(x)} ${r1(y)})">${fmt(lv.valueM)}</text>`;
+      }
     }
   }
   const svg =
     `<g class="contours" fill="none" stroke="#5b4636" stroke-linejoin="round">` +
     `<g stroke-width="0.6" stroke-opacity="0.55">${minor}</g>` +
-    `<g stroke-width="1.2" stroke-opacity="0.8">${major}</g></g>` +
-    `<g class="contour-labels">${labels}</g>`;
-  return { svg, intervalM };
+    `<g stroke-width="1.2" stroke-opacity="0.8">${major}</g></g>`;
+  return { svg, labels: `<g class="contour-labels">${labels}</g>`, intervalM };
 }
 
 /** The site outline (local-frame metres). */
@@ -156,9 +176,14 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
   const cls = (a: number) => Math.max(0, Math.min(classes - 1, Math.floor(((a - agl[0]) / (agl[1] - agl[0])) * classes)));
   const runs: string[][] = Array.from({ length: classes }, () => []);
   let transit = "";
+  let bridge = "";
   let casing = "";
   let dots = "";
   for (const leg of legs) {
+    if (leg.kind === "transit" && leg.conflictGap) {
+      bridge += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
+      continue;
+    }
     if (leg.kind === "transit") {
       transit += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
       continue;
@@ -187,7 +212,9 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
     `<g class="legs" fill="none" stroke-linecap="round">` +
     `<path class="transit" d="${transit}" stroke="#222" stroke-width="1.4" stroke-dasharray="5 4" stroke-opacity="0.8"/>` +
     `<path d="${casing}" stroke="#fff" stroke-width="5.5" stroke-opacity="0.85"/>` +
-    `<g stroke-width="3.2">${coloured}</g></g>` +
+    `<g stroke-width="3.2">${coloured}</g>` +
+    (bridge ? `<path class="bridge" d="${bridge}" stroke="#d62728" stroke-width="4"/>` : "") +
+    `</g>` +
     `<g class="waypoints" fill="#fff" stroke="#111" stroke-width="1">${dots}</g>`
   );
 }
@@ -210,27 +237,36 @@ export function scaleBar(v: MapView): string {
   const y = v.h - 18;
   const label = lenM >= 1000 ? `${fmt(lenM / 1000)} km` : `${fmt(lenM)} m`;
   const half = r1(len / 2);
+  // Room for the end label, centred on the bar's end (about 7 units a character at 13 px).
+  const labelHalf = Math.ceil(label.length * 3.8);
   return (
     `<g class="scalebar" data-length-m="${lenM}">` +
-    `<rect x="${x - 6}" y="${y - 22}" width="${len + 12 + 40}" height="32" fill="#fff" fill-opacity="0.8" rx="3"/>` +
+    `<rect x="${x - 8}" y="${y - 22}" width="${r1(len + 16 + labelHalf)}" height="32" fill="#fff" fill-opacity="0.8" rx="3"/>` +
     `<rect x="${x}" y="${y}" width="${half}" height="5" fill="#111"/>` +
     `<rect x="${r1(x + half)}" y="${y}" width="${r1(len - half)}" height="5" fill="#fff" stroke="#111" stroke-width="1"/>` +
     `<text x="${x}" y="${y - 5}">0</text><text x="${r1(x + len)}" y="${y - 5}" text-anchor="middle">${label}</text></g>`
   );
 }
 
-/** North arrow for grid north, with the convergence to true north when known. */
+/**
+ * North arrow. With the grid convergence known the arrow points to true north (turned by
+ * the convergence from the map's grid-north up) and the note gives grid north against it;
+ * without it the arrow is grid north.
+ */
 export function northArrow(v: MapView, convergenceDeg?: number): string {
   const x = v.w - 44;
   const y = 16;
   let note = "grid north";
+  let turn = 0;
   if (convergenceDeg !== undefined && Number.isFinite(convergenceDeg)) {
     const a = Math.abs(convergenceDeg);
-    note = a < 0.05 ? "grid ≈ true north" : `true N ${fmt(a, 1)}° ${convergenceDeg > 0 ? "E" : "W"}`;
+    turn = convergenceDeg;
+    // Grid north lies on the other side of true north from where true north lies of grid north.
+    note = a < 0.005 ? "true = grid north" : `grid N ${fmt(a, a < 1 ? 2 : 1)}° ${convergenceDeg > 0 ? "W" : "E"}`;
   }
   return (
-    `<g class="north"><rect x="${x - 40}" y="${y - 6}" width="74" height="64" fill="#fff" fill-opacity="0.8" rx="3"/>` +
-    `<path d="M${x},${y}L${x + 9},${y + 30}L${x},${y + 24}L${x - 9},${y + 30}Z" fill="#111"/>` +
+    `<g class="north" data-convergence-deg="${r1(turn * 1000) / 1000}"><rect x="${x - 40}" y="${y - 6}" width="80" height="64" fill="#fff" fill-opacity="0.8" rx="3"/>` +
+    `<path d="M${x},${y}L${x + 9},${y + 30}L${x},${y + 24}L${x - 9},${y + 30}Z" fill="#111" transform="rotate(${r1(turn * 100) / 100} ${x} ${y + 18})"/>` +
     `<text x="${x}" y="${y + 44}" text-anchor="middle" font-weight="700">N</text>` +
     `<text x="${x}" y="${y + 55}" text-anchor="middle" class="small">${esc(note)}</text></g>`
   );

@@ -84,6 +84,8 @@ export interface ReportLeg {
   waypoints: { x: number; y: number; s: number; altitudeAmslM: number; groundAmslM: number; heightAboveGroundM: number }[];
   profile: ReportProfile;
   lengthM: number;
+  /** A transit bridging a stretch of its strip that was skipped as unflyable (SolvedLeg.conflictGap). */
+  conflictGap?: boolean;
 }
 
 /** Figures of one assessed plan, for the side-by-side comparison. */
@@ -100,6 +102,10 @@ export interface BaselineStats extends ComparisonStats {
   altitudeAmslM: number;
   /** Height above the site's median ground that gives the target GSD. */
   heightAboveMedianGroundM: number;
+  /** Highest DEM ground inside the site, metres AMSL (for the altitude's clearance over it). */
+  maxSiteGroundM?: number;
+  /** Site cells where the constant altitude is closer to the ground than the plan's clearance (cells and area). */
+  clearanceShortfall?: { cells: number; areaM2: number; clearanceM: number };
 }
 
 /** Counts of in-site cells per GSD bin: counts[i] covers [edgesCm[i], edgesCm[i+1]). */

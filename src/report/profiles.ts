@@ -22,10 +22,24 @@ export interface StripProfile {
  *
  * @example for (const p of stripProfiles(input.legs)) html += p.svg;
  */
-export function stripProfiles(legs: ReportLeg[]): StripProfile[] {
+export function stripProfiles(legs: ReportLeg[], opts: { sharedScales?: boolean } = {}): StripProfile[] {
   const byStrip = new Map<number, ReportLeg[]>();
-  for (const l of legs) if (l.kind === "strip") (byStrip.get(l.strip) ?? byStrip.set(l.strip, []).get(l.strip)!).push(l);
-  return [...byStrip.entries()].sort((a, b) => a[0] - b[0]).map(([strip, ls]) => profileOf(strip, ls));
+  // A bridge over an unflyable stretch belongs to its strip's profile: it is where the
+  // strip could not be flown within the bounds.
+  for (const l of legs) if (l.kind === "strip" || l.conflictGap) (byStrip.get(l.strip) ?? byStrip.set(l.strip, []).get(l.strip)!).push(l);
+  const data = [...byStrip.entries()].sort((a, b) => a[0] - b[0]).map(([strip, ls]) => collect(strip, ls));
+  // Small multiples share their scales (same metres per unit along and up), so strips can
+  // be compared at a glance; a strip shorter than the longest draws shorter.
+  if (opts.sharedScales ?? true) {
+    const all = { lo: Infinity, hi: -Infinity, sMax: 0 };
+    for (const d of data) {
+      all.lo = Math.min(all.lo, d.range.lo);
+      all.hi = Math.max(all.hi, d.range.hi);
+      all.sMax = Math.max(all.sMax, d.sMax);
+    }
+    return data.map((d) => draw(d, all));
+  }
+  return data.map((d) => draw(d, { ...d.range, sMax: d.sMax }));
 }
 
 interface Series {
@@ -37,7 +51,19 @@ interface Series {
   bandHigh: number[];
 }
 
-function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
+interface Collected {
+  strip: number;
+  ser: Series;
+  flagged: { s0: number; s1: number; status: number }[];
+  flight: [number, number][];
+  nDetail: number;
+  nUnfly: number;
+  sMax: number;
+  /** This strip's own height range (before padding). */
+  range: { lo: number; hi: number };
+}
+
+function collect(strip: number, legs: ReportLeg[]): Collected {
   const first = legs[0];
   const L0 = Math.hypot(first.to[0] - first.from[0], first.to[1] - first.from[1]) || 1;
   const ux = (first.to[0] - first.from[0]) / L0;
@@ -97,6 +123,7 @@ function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
   }
 
   let lo = Infinity, hi = -Infinity;
+  const range = { lo: 0, hi: 0 };
   const take = (v: number) => {
     if (Number.isFinite(v)) {
       lo = Math.min(lo, v);
@@ -114,10 +141,18 @@ function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
     lo = (Number.isFinite(lo) ? lo : 0) - 10;
     hi = lo + 20;
   }
-  const pad = (hi - lo) * 0.08;
-  lo -= pad;
-  hi += pad;
-  const sx = (s: number) => (ML + (s / (sMax || 1)) * (W - ML - MR)).toFixed(1);
+  range.lo = lo;
+  range.hi = hi;
+  return { strip, ser, flagged, flight, nDetail, nUnfly, sMax, range };
+}
+
+function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): StripProfile {
+  const { strip, ser, flagged, flight, nDetail, nUnfly, sMax } = c;
+  const pad = (scale.hi - scale.lo) * 0.08;
+  const lo = scale.lo - pad;
+  const hi = scale.hi + pad;
+  const sAxis = scale.sMax || 1;
+  const sx = (s: number) => (ML + (s / sAxis) * (W - ML - MR)).toFixed(1);
   const sy = (z: number) => (MT + ((hi - Math.max(lo, Math.min(hi, z))) / (hi - lo)) * (H - MT - MB)).toFixed(1);
 
   const area = (upper: number[], lower: number[]): string => {
@@ -164,10 +199,10 @@ function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
       `<rect x="${x0}" y="${MT - 7}" width="${Math.max(1, x1 - x0).toFixed(1)}" height="5" fill="${fill}"/>`;
   }
   const zStep = niceStep(hi - lo, 5);
-  const sStep = niceStep(sMax, 8);
+  const sStep = niceStep(sAxis, 8);
   let axes = "";
   for (const z of ticks(lo, hi, zStep))
-    axes += `<line x1="${ML}" x2="${W - MR}" y1="${sy(z)}" y2="${sy(z)}" stroke="#000" stroke-opacity="0.08"/><text x="${ML - 6}" y="${(+sy(z) + 4).toFixed(1)}" text-anchor="end">${fmt(z)}</text>`;
+    axes += `<line x1="${ML}" x2="${sx(sMax)}" y1="${sy(z)}" y2="${sy(z)}" stroke="#000" stroke-opacity="0.08"/><text x="${ML - 6}" y="${(+sy(z) + 4).toFixed(1)}" text-anchor="end">${fmt(z)}</text>`;
   for (const s of ticks(0, sMax, sStep))
     axes += `<line x1="${sx(s)}" x2="${sx(s)}" y1="${H - MB}" y2="${H - MB + 4}" stroke="#333"/><text x="${sx(s)}" y="${H - MB + 16}" text-anchor="middle">${fmt(s)}</text>`;
   const flightD = flight.map((f, i) => (i ? "L" : "M") + sx(f[0]) + "," + sy(f[1])).join("");
@@ -175,7 +210,7 @@ function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
 
   const svg =
     `<svg class="profile-svg" viewBox="0 0 ${W} ${H}" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile of strip ${strip}">` +
-    `<rect x="${ML}" y="${MT}" width="${W - ML - MR}" height="${H - MT - MB}" fill="#fbfbfa"/>` +
+    `<rect x="${ML}" y="${MT}" width="${(+sx(sMax) - ML).toFixed(1)}" height="${H - MT - MB}" fill="#fbfbfa"/>` +
     axes +
     `<path class="corridor" d="${area(clippedHigh, ser.hardLow)}" fill="#9ecae1" fill-opacity="0.35"/>` +
     `<path class="band" d="${area(ser.bandHigh, ser.bandLow)}" fill="#31a354" fill-opacity="0.35"/>` +
@@ -190,7 +225,7 @@ function profileOf(strip: number, legs: ReportLeg[]): StripProfile {
     (nDetail || nUnfly ? `, flagged stations: ${nDetail} detail-limited, ${nUnfly} unflyable` : "") +
     `</text>` +
     `<text x="14" y="${(MT + (H - MT - MB) / 2).toFixed(1)}" transform="rotate(-90 14 ${(MT + (H - MT - MB) / 2).toFixed(1)})" text-anchor="middle" class="small">m AMSL</text>` +
-    `<text x="${(ML + W - MR) / 2}" y="${H - 4}" text-anchor="middle" class="small">distance along strip, m</text>` +
+    `<text x="${((ML + +sx(sMax)) / 2).toFixed(1)}" y="${H - 4}" text-anchor="middle" class="small">distance along strip, m</text>` +
     `</svg>`;
   return { strip, lengthM: sMax, svg, flaggedStations: { detailLimited: nDetail, unflyable: nUnfly } };
 }

@@ -83,6 +83,26 @@ const KEY_LABELS: Record<string, string> = {
   "takeoff.lon": "Take-off longitude, °",
   "takeoff.lat": "Take-off latitude, °",
   "takeoff.groundAmslM": "Take-off ground, m AMSL",
+  areaM2: "Site area, m²",
+  targetHeightAglM: "Height above ground for the target GSD, m",
+  "flagged.pct": "Flagged share of the site, %",
+  "images.required": "Images per cell, required",
+  "stations.ok": "Strip stations within the band",
+  "stations.detailLimited": "Strip stations detail-limited",
+  "stations.unflyable": "Strip stations unflyable",
+  "clearance.minM": "Clearance above ground, m",
+  "clearance.safetyRadiusM": "Clearance safety radius, m",
+  "clearance.obstacleMarginM": "Obstacle margin, m",
+  "frame.epsg": "Working frame, EPSG code",
+  "constantAltitude.altitudeAmslM": "One constant altitude: altitude, m AMSL",
+  "constantAltitude.gsdCm.min": "One constant altitude: GSD min, cm/px",
+  "constantAltitude.gsdCm.p5": "One constant altitude: GSD 5th percentile, cm/px",
+  "constantAltitude.gsdCm.median": "One constant altitude: GSD median, cm/px",
+  "constantAltitude.gsdCm.p95": "One constant altitude: GSD 95th percentile, cm/px",
+  "constantAltitude.gsdCm.max": "One constant altitude: GSD max, cm/px",
+  "constantAltitude.withinBandPct": "One constant altitude: site within the band, %",
+  "constantAltitude.flaggedAreaM2": "One constant altitude: flagged area, m²",
+  "constantAltitude.ceilingBreachAreaM2": "One constant altitude: ceiling broken over, m²",
 };
 
 function labelFor(key: string): string {
@@ -96,10 +116,17 @@ function labelFor(key: string): string {
   return key;
 }
 
-function decimalsFor(key: string): number | undefined {
-  if (key.startsWith("gsdCm.")) return 2;
-  if (key === "takeoff.lon" || key === "takeoff.lat") return 6;
-  return undefined;
+/** Decimals for the numbers table: the value's own (summary.json is already rounded), at most 7. */
+function decimalsOf(v: number): number {
+  if (!Number.isFinite(v) || Number.isInteger(v)) return 0;
+  for (let d = 1; d < 7; d++) if (Math.abs(v - +v.toFixed(d)) < 1e-9 * Math.max(1, Math.abs(v))) return d;
+  return 7;
+}
+
+/** The numbers table prints each summary value as summary.json holds it; codes without digit grouping. */
+function tableText(key: string, v: number): string {
+  if (/(^|\.)epsg$/.test(key)) return String(v);
+  return fmt(v, decimalsOf(v));
 }
 
 /**
@@ -134,6 +161,7 @@ export function renderReport(input: ReportInput): string {
       `<g class="layer" data-layer="contours">${contours.svg}</g>` +
       site(`fill="#ffffff" fill-opacity="0.12" stroke="#111" stroke-width="2" stroke-dasharray="8 4"`) +
       `<g class="layer" data-layer="legs">${legsLayer(view, inp.legs, agl)}</g>` +
+      `<g class="layer" data-layer="contours-labels">${contours.labels}</g>` +
       takeoffMarker(view, inp.takeoff) +
       overlays,
   );
@@ -151,7 +179,7 @@ export function renderReport(input: ReportInput): string {
     "Map of nadir GSD over the site",
     smallShade("shade faint") +
       rasterImage(small, r.transform, r.width, r.height, gsdUri, "raster") +
-      outlinePath(small, r.transform, maskOutline(outBand, r.width, r.height), `fill="url(#hatch-outband)" stroke="#111" stroke-width="1.2"`) +
+      outlinePath(small, r.transform, maskOutline(outBand, r.width, r.height), `fill="url(#hatch-outband)" stroke="#111" stroke-width="0.7" stroke-opacity="0.8"`) +
       smallSite(`fill="none" stroke="#111" stroke-width="1.5"`) +
       smallOverlays,
     hatchPattern("hatch-outband", "#111", 45, 6),
@@ -203,7 +231,7 @@ export function renderReport(input: ReportInput): string {
       `<td><svg class="swatch" viewBox="0 0 20 14" width="20" height="14"><rect width="20" height="14" fill="${st.colour}" fill-opacity="0.35" stroke="${st.colour}"/></svg></td>` +
       `<td><strong>${esc(k.label)}</strong><br><span class="muted">${EFFECT_KEYS.has(k.key) ? "effect" : "cause"}</span></td>` +
       `<td class="r">${f ? num(`flagged.byKind.${k.key}.areaM2`, f.areaM2, fmtArea(f.areaM2)) : "–"}</td>` +
-      `<td class="r">${f && f.pct !== undefined ? num(`flagged.byKind.${k.key}.pct`, f.pct, fmt(f.pct, 1) + " %") : "–"}</td>` +
+      `<td class="r">${f && f.pct !== undefined ? num(`flagged.byKind.${k.key}.pct`, f.pct, (f.pct > 0 && f.pct < 0.05 ? "< 0.1" : fmt(f.pct, 1)) + " %") : "–"}</td>` +
       `<td>${esc(k.explanation)}</td><td>${esc(k.remedy)}</td></tr>`;
   }
 
@@ -233,13 +261,26 @@ export function renderReport(input: ReportInput): string {
       cmpRow("Ceiling breaches, cells", "planCeilingBreaches.cells", inp.planCeilingBreaches?.cells, "baseline.ceilingBreaches.cells", b.ceilingBreaches.cells) +
       cmpRow("Ceiling breaches, m²", "planCeilingBreaches.areaM2", inp.planCeilingBreaches?.areaM2, "baseline.ceilingBreaches.areaM2", b.ceilingBreaches.areaM2, 0) +
       cmpRow("Images per cell, min", "images.min", s.images?.min, "baseline.images.min", b.images?.min) +
-      `</tbody></table><p class="muted">Both columns come from the same independent per-cell check of the flown exposures.</p>`
+      (b.clearanceShortfall
+        ? `<tr><th>Site closer than ${esc(fmt(b.clearanceShortfall.clearanceM))} m clearance, m²</th><td class="r">–</td><td class="r">${num("baseline.clearanceShortfall.areaM2", b.clearanceShortfall.areaM2, fmt(b.clearanceShortfall.areaM2, 0))}</td></tr>`
+        : "") +
+      `</tbody></table>` +
+      (b.maxSiteGroundM !== undefined
+        ? `<p>The highest ground in the site is ${num("baseline.maxSiteGroundM", b.maxSiteGroundM, fmt(b.maxSiteGroundM, 1))} m AMSL: ${b.altitudeAmslM > b.maxSiteGroundM ? `one constant altitude clears it by only ${esc(fmt(b.altitudeAmslM - b.maxSiteGroundM, 1))} m` : `one constant altitude is ${esc(fmt(b.maxSiteGroundM - b.altitudeAmslM, 1))} m below it, into the hill`}` +
+          (b.clearanceShortfall && b.clearanceShortfall.cells > 0
+            ? `, less than the plan's clearance of ${esc(fmt(b.clearanceShortfall.clearanceM))} m over ${esc(fmtArea(b.clearanceShortfall.areaM2))} of the site (the ground straight below; the plan also keeps it within its safety radius).</p>`
+            : ".</p>")
+        : "") +
+      (inp.planCeilingBreaches && inp.planCeilingBreaches.cells > 0
+        ? `<p>This plan breaks the ceiling over ${esc(fmtArea(inp.planCeilingBreaches.areaM2))}: where clearance and the ceiling conflict it keeps clearance (see the warnings in section 6 and the unflyable stretches in the profiles). Get permission or change the layout before flying there.</p>`
+        : "") +
+      `<p class="muted">Both columns come from the same independent per-cell check of the flown exposures; the constant altitude flies the same strips.</p>`
     : `<p class="muted">The constant-altitude comparison was not computed for this plan.</p>`;
 
   // 6. Numbers
   let numberRows = "";
   for (const [key, v] of flattenNumbers(s)) {
-    numberRows += `<tr><th>${esc(labelFor(key))}</th><td class="r">${num(key, v, fmt(v, decimalsFor(key)))}</td></tr>`;
+    numberRows += `<tr><th>${esc(labelFor(key))}</th><td class="r">${num(key, v, tableText(key, v))}</td></tr>`;
   }
   const words: [string, unknown][] = [
     ["Binding speed limit", s.speedLimit],
@@ -295,7 +336,7 @@ export function renderReport(input: ReportInput): string {
 <aside class="caution-box"><strong>Before you fly.</strong> ${esc(STANDARD_CAUTIONS[0])} ${esc(STANDARD_CAUTIONS[5])}</aside>
 
 <section id="map"><h2>1 · Map</h2>
-<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, waypoints as dots. ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
+<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, bridges over unflyable stretches red, waypoints as dots. ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
 <div class="toggles no-print"><label><input type="checkbox" data-toggle="contours" checked> contours</label><label><input type="checkbox" data-toggle="legs" checked> legs and waypoints</label></div>
 <figure class="mapfig">${mainMap}<figcaption>${sequentialLegend("Height above ground on the strips", "m", agl[0], agl[1])}</figcaption></figure>
 </section>
@@ -350,7 +391,7 @@ ${warnings.length ? `<h3>Warnings</h3><ul class="warnings">${warnings.map((w) =>
 }
 
 /** Layer toggles: the only script on the page (allowed by its hash in the CSP). */
-const LAYER_SCRIPT = `(function(){var b=document.querySelectorAll('input[data-toggle]');for(var i=0;i<b.length;i++){b[i].addEventListener('change',function(e){var t=e.target,k=t.getAttribute('data-toggle'),g=document.querySelectorAll('#map-main [data-layer="'+k+'"]');for(var j=0;j<g.length;j++){g[j].style.display=t.checked?'':'none';}});}})();`;
+const LAYER_SCRIPT = `(function(){var b=document.querySelectorAll('input[data-toggle]');for(var i=0;i<b.length;i++){b[i].addEventListener('change',function(e){var t=e.target,k=t.getAttribute('data-toggle'),g=document.querySelectorAll('#map-main [data-layer="'+k+'"],#map-main [data-layer="'+k+'-labels"]');for(var j=0;j<g.length;j++){g[j].style.display=t.checked?'':'none';}});}})();`;
 
 export type { ReportInput, ReportSummary };
 export type { MapView };

@@ -12,7 +12,7 @@ import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
 import type { ReportInput } from "./model.js";
 import { blockFactor, downsampleGrid, downsampleRasters } from "./downsample.js";
-import { gsdBinEdges, histogram } from "./histogram.js";
+import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
 export const REPORT_DATA_FORMAT = "gsdplan-report-data";
 export const REPORT_DATA_VERSION = 1;
@@ -39,7 +39,7 @@ export function compactReportInput(input: ReportInput, maxPx = 1000): ReportInpu
   const g = input.summary.gsdCm;
   let gsdHistogram = input.gsdHistogram;
   if (!gsdHistogram) {
-    const edges = gsdBinEdges(g.low, g.high, g.min, g.max, 30);
+    const edges = gsdBinEdges(g.low, g.high, g.min, g.max, REPORT_GSD_BINS);
     gsdHistogram = histogram(input.rasters.gsdCm, input.rasters.inSite, edges);
   }
   const kd = blockFactor(input.dem.width, input.dem.height, maxPx);
