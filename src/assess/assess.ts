@@ -70,7 +70,8 @@ export function assessPlan(
   const flags = effectFlags(grid, inSite, gsdCm, images, requirement.lowGsdM * 100, requirement.highGsdM * 100, minImages);
   paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
 
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2 });
+  const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip });
   const polygons = flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { width, height, transform, gsdCm, images, flags, inSite, nadirStrip },

@@ -5,7 +5,7 @@ import { existsSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import { blockMinima, sweepExposures, type NadirBy, type SweepInput } from "./coverageKernel.js";
+import { siteGroundAndBlocks, sweepExposures, type NadirBy, type SweepInput } from "./coverageKernel.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -82,8 +82,7 @@ export function computeCoverage(
   const bestIdx = new Int32Array(buffer(4 * n)).fill(-1);
   // Site ground: NaN outside the site and where the DEM has no data, so one test skips both.
   const siteGround = new Float32Array(buffer(4 * n));
-  for (let i = 0; i < n; i++) siteGround[i] = inSite[i] === 1 ? heights[i] : NaN;
-  const blocks = blockMinima(siteGround, width, height);
+  const blocks = siteGroundAndBlocks(heights, inSite, width, height, siteGround);
 
   const m = exposures.length;
   const cols = { ex: new Float64Array(m), ey: new Float64Array(m), ez: new Float64Array(m), eux: new Float64Array(m), euy: new Float64Array(m) };

@@ -61,10 +61,11 @@ export interface BlockMinima {
  * Lowest site ground per BLOCK x BLOCK cells, to bound each footprint by the
  * ground it can actually fall on rather than the lowest point of the whole
  * site: with 60 m of relief under a 100 m flight the site minimum alone would
- * more than double the cells visited per photo.
- * @example const blocks = blockMinima(siteGround, grid.width, grid.height);
+ * more than double the cells visited per photo. Fills `siteGround` (heights
+ * inside the site, NaN elsewhere) in the same pass.
+ * @example const blocks = siteGroundAndBlocks(grid.heights, inSite, grid.width, grid.height, siteGround);
  */
-export function blockMinima(siteGround: Float32Array, width: number, height: number): BlockMinima {
+export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, width: number, height: number, siteGround: Float32Array): BlockMinima {
   const bw = Math.ceil(width / BLOCK);
   const bh = Math.ceil(height / BLOCK);
   const mins = new Float64Array(bw * bh).fill(Infinity);
@@ -73,7 +74,13 @@ export function blockMinima(siteGround: Float32Array, width: number, height: num
     const brow = ((r / BLOCK) | 0) * bw;
     const base = r * width;
     for (let c = 0; c < width; c++) {
-      const g = siteGround[base + c];
+      const i = base + c;
+      if (inSite[i] === 0) {
+        siteGround[i] = NaN;
+        continue;
+      }
+      const g = heights[i];
+      siteGround[i] = g;
       if (!(g === g)) continue;
       const b = brow + ((c / BLOCK) | 0);
       if (g < mins[b]) mins[b] = g;

@@ -22,6 +22,8 @@ export interface StatsInput {
   /** Strip of the most nadir photo per cell, 0 where none. */
   nadirStrip: Uint16Array;
   cellAreaM2: number;
+  /** Highest strip number that can occur in nadirStrip (saves a pass over the grid when known). */
+  maxStrip?: number;
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -43,8 +45,9 @@ function pct(part: number, whole: number): number {
 export function assessmentStats(input: StatsInput): AssessmentStats {
   const { gsdCm, images, flags, inSite, valid, nadirStrip, cellAreaM2 } = input;
   const n = inSite.length;
-  let maxStrip = 0;
-  for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
+  let maxStrip = input.maxStrip ?? -1;
+  if (maxStrip < 0) for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
+  maxStrip = Math.max(0, maxStrip);
 
   // One pass: a histogram of flag bytes per strip (strip 0: cells no photo sees) gives every
   // count; flag kinds are read off the 256 bins afterwards instead of testing 7 bits per cell.
