@@ -1,4 +1,4 @@
-import { FLAG_KINDS } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
 import type { PlanSummary } from "../plan/summary.js";
 
 /**
@@ -28,10 +28,10 @@ export function summaryText(s: PlanSummary, outDir: string, opts: { explainAllFl
   );
   lines.push(`  ceiling ${s.ceiling.heightM} m, rule: ${s.ceiling.rule}`);
   lines.push(`  heights: AMSL (${s.verticalDatum}), ellipsoidal via ${s.geoidModel}, and above take-off (ground ${f(s.takeoff.groundAmslM, 2)} m AMSL)`);
-  const flagged = FLAG_KINDS.filter((k) => (s.flagged.byKind[k.key]?.cells ?? 0) > 0);
+  const flagged = ASSESSMENT_FLAG_KINDS.filter((k) => (s.flagged.byKind[k.key]?.cells ?? 0) > 0);
   if (flagged.length) {
     lines.push(`  flagged: ${f(s.flagged.areaM2, 0)} m2 (${f(s.flagged.pct, 2)} % of the site)`);
-    for (const k of opts.explainAllFlags ? FLAG_KINDS : flagged) {
+    for (const k of opts.explainAllFlags ? ASSESSMENT_FLAG_KINDS : flagged) {
       const v = s.flagged.byKind[k.key];
       lines.push(`    [${k.bit}] ${k.label}: ${f(v?.areaM2 ?? 0, 0)} m2 (${f(v?.pct ?? 0, 2)} %). ${k.explanation}`);
       lines.push(`         what to do: ${k.remedy}`);

@@ -70,6 +70,7 @@ export function constantAltitudeBaseline(
     minImages: o.minImages,
     zoneHalfAcrossM: layout.spacingM / 2,
     toWgs84: o.toWgs84,
+    nadirBy: "distance",
   });
   const s = assessment.stats;
   return {

@@ -135,6 +135,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
       hTargetM: targetHeightM,
     },
     zoneHalfAcrossM: spacingM / 2,
+    zoneHalfAlongM: triggerM / 2,
     stationStepM: Math.min(grid.cellSizeM[0], grid.cellSizeM[1]),
     onConflict: options.onConflict,
     ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
@@ -165,6 +166,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     minImages: options.minImages,
     zoneHalfAcrossM: spacingM / 2,
     toWgs84: frame.toWgs84,
+    // The nearest nadir point splits the ground between strips at the midline, as the
+    // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
+    nadirBy: "distance",
   });
   lap("assess");
 

@@ -3,7 +3,7 @@
  * Every GSD figure is the assessment's (the independent check), not the solver's.
  */
 import type { PlanRun } from "./plan.js";
-import { FLAG_KINDS } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
 import { STANDARD_CAUTIONS } from "../cautions.js";
 
 
@@ -64,7 +64,7 @@ export function planSummary(run: PlanRun): PlanSummary {
   const r = (v: number, d = 2) => (Number.isFinite(v) ? Number(v.toFixed(d)) : v);
   const gsd = a.gsdCm;
   const byKind: PlanSummary["flagged"]["byKind"] = {};
-  for (const k of FLAG_KINDS) {
+  for (const k of ASSESSMENT_FLAG_KINDS) {
     const v = a.flagged.byKind[k.key] ?? { cells: 0, areaM2: 0, pct: 0 };
     byKind[k.key] = { cells: v.cells, areaM2: r(v.areaM2, 1), pct: r(v.pct, 3) };
   }

@@ -6,7 +6,7 @@ import type { LayoutLeg, Stations } from "../layout/types.js";
  * lands; the integrator may swap it for that one (same `Stations` contract).
  * @example stationsAlongLeg({ kind: "strip", strip: 1, from: [0, 0], to: [10, 0], lengthM: 10 }, 1, 30).s.length // 11
  */
-export function stationsAlongLeg(leg: LayoutLeg, stepM: number, zoneHalfAcrossM: number): Stations {
+export function stationsAlongLeg(leg: LayoutLeg, stepM: number, zoneHalfAcrossM: number, zoneHalfAlongM = stepM / 2): Stations {
   const dx = leg.to[0] - leg.from[0];
   const dy = leg.to[1] - leg.from[1];
   const len = Math.hypot(dx, dy);
@@ -24,5 +24,5 @@ export function stationsAlongLeg(leg: LayoutLeg, stepM: number, zoneHalfAcrossM:
     x[i] = leg.from[0] + ux * si;
     y[i] = leg.from[1] + uy * si;
   }
-  return { s, x, y, ux, uy, stepM, zoneHalfAcrossM, zoneHalfAlongM: stepM / 2 };
+  return { s, x, y, ux, uy, stepM, zoneHalfAcrossM, zoneHalfAlongM };
 }

@@ -36,8 +36,20 @@ export interface SolverOptions {
   band: { hMinM: number; hMaxM: number; hTargetM: number };
   /** Half the strip spacing: the across-track half-width of each strip's own zone. */
   zoneHalfAcrossM: number;
+  /**
+   * Along-track half-length of each station's zone: half the trigger distance, so a
+   * station's band covers the ground for which the photo taken there is the most
+   * nadir (default: half the station step).
+   */
+  zoneHalfAlongM?: number;
   /** Station spacing along legs, metres (DEM cell size or finer). */
   stationStepM: number;
+  /**
+   * Spacing of the stations that may hold a waypoint (a vertex lattice along
+   * each leg), metres; gates are checked at every station regardless. Default
+   * DEFAULT_VERTEX_STEP_M (solveLegs); the station step or less: every station.
+   */
+  vertexStepM?: number;
   onConflict: "skip" | "clearance";
   /** Height to assume where the DEM has no data; undefined: nodata is unflyable. */
   assumeGroundM?: number;
