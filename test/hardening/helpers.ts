@@ -170,30 +170,36 @@ export interface SmallScenario {
 }
 
 /**
- * A small scenario in UTM 33N: a `cells` x `cells` DEM at `cellM` metres around
- * (500000, 5200000) with the given heights, a square site of `siteM` metres in the
+ * A small scenario (UTM 33N unless told): a `cells` x `cells` DEM at `cellM` metres
+ * around the centre (default 500000, 5200000) with heights from `heightAt(x, y)` in
+ * CRS coordinates, a square site of `siteM` metres in the
  * middle and a plan file (JSON) pointing at both.
  */
 export function smallScenario(
   dir: string,
   heightAt: (x: number, y: number) => number,
-  opts: { cells?: number; cellM?: number; siteM?: number; nodata?: number; plan?: (p: Record<string, unknown>) => void } = {},
+  opts: {
+    cells?: number; cellM?: number; siteM?: number; nodata?: number; plan?: (p: Record<string, unknown>) => void;
+    /** Projected CRS of the DEM (default EPSG:32633) as GDAL -a_srs text and as proj4 text, and the site centre in it. */
+    srs?: string; proj4?: string; centre?: [number, number];
+  } = {},
 ): SmallScenario {
   const cells = opts.cells ?? 200;
   const cellM = opts.cellM ?? 4;
   const siteM = opts.siteM ?? 240;
-  const x0 = 500000 - (cells * cellM) / 2;
-  const y0 = 5200000 + (cells * cellM) / 2;
+  const [cx, cy] = opts.centre ?? [500000, 5200000];
+  const x0 = cx - (cells * cellM) / 2;
+  const y0 = cy + (cells * cellM) / 2;
   const heights = new Float32Array(cells * cells);
   for (let r = 0; r < cells; r++)
     for (let c = 0; c < cells; c++) heights[r * cells + c] = heightAt(x0 + (c + 0.5) * cellM, y0 - (r + 0.5) * cellM);
   const dem = writeDemWithGdal(path.join(dir, "dem.tif"), {
-    width: cells, height: cells, x0, y0, dx: cellM, dy: -cellM, srs: "EPSG:32633", heights,
+    width: cells, height: cells, x0, y0, dx: cellM, dy: -cellM, srs: opts.srs ?? "EPSG:32633", heights,
     ...(opts.nodata !== undefined ? { nodata: opts.nodata } : {}),
   });
   const h = siteM / 2;
   const area = path.join(dir, "site.geojson");
-  writeFileSync(area, siteGeoJson(lonLatRing(UTM33, 500000 - h, 5200000 - h, 500000 + h, 5200000 + h)));
+  writeFileSync(area, siteGeoJson(lonLatRing(opts.proj4 ?? UTM33, cx - h, cy - h, cx + h, cy + h)));
   const plan = basePlan("dem.tif", "site.geojson");
   opts.plan?.(plan);
   const planFile = path.join(dir, "plan.json");
