@@ -117,6 +117,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("layout");
 
   stage("solve");
+  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1]);
   const solverOptions: SolverOptions = {
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
@@ -134,9 +135,13 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
       hMaxM: heightForGsdM(camera, requirement.highGsdM),
       hTargetM: targetHeightM,
     },
-    zoneHalfAcrossM: spacingM / 2,
-    zoneHalfAlongM: triggerM / 2,
-    stationStepM: Math.min(grid.cellSizeM[0], grid.cellSizeM[1]),
+    zoneHalfAcrossM: zoneHalfAcrossM(spacingM, triggerM),
+    // Half a trigger distance plus one station step: a photo between two stations then
+    // images only ground inside both stations' zones, and the band holds for every
+    // cell at both, so also at the photo between them (the band for one cell is an
+    // interval in altitude, and the path is straight between stations).
+    zoneHalfAlongM: triggerM / 2 + stationStepM,
+    stationStepM,
     onConflict: options.onConflict,
     ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
     ifov: camera.ifov,
@@ -164,7 +169,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const assessment = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
     triggerM,
     minImages: options.minImages,
-    zoneHalfAcrossM: spacingM / 2,
+    zoneHalfAcrossM: zoneHalfAcrossM(spacingM, triggerM),
     toWgs84: frame.toWgs84,
     // The nearest nadir point splits the ground between strips at the midline, as the
     // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
@@ -288,6 +293,19 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     blurPx: options.blurPx,
   });
   return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, site, speed, warnings };
+}
+
+/**
+ * Across-track half-width of the ground a strip's photo images most nadir (the
+ * nearest nadir point). Photos sit every t along strips d apart, and the strips'
+ * photos need not line up, so a cell at the midline half a trigger distance from
+ * its own strip's photos can be nearer a neighbour's photo: the neighbour's
+ * Voronoi cell then reaches past the midline by up to t^2 / (8 d), from
+ * (d - a)^2 < a^2 + (t/2)^2. The solver's zones cover that reach.
+ * @example zoneHalfAcrossM(40, 20) // 21.25
+ */
+export function zoneHalfAcrossM(spacingM: number, triggerM: number): number {
+  return spacingM / 2 + (triggerM * triggerM) / (8 * spacingM);
 }
 
 /** Geoid undulation of the DEM's vertical datum (EGM96; EGM2008 approximated by it). */
