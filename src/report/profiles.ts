@@ -8,7 +8,9 @@ import { esc } from "./escape.js";
 import { fmt } from "./format.js";
 import { niceStep, ticks } from "./nice.js";
 
-const W = 620, H = 230, ML = 50, MR = 10, MT = 24, MB = 34;
+// Drawn about 500 units wide so that two side by side on a printed A4 or Letter page
+// (about 340 CSS px each) keep their 11-unit labels near 7 pt.
+const W = 500, H = 215, ML = 46, MR = 8, MT = 24, MB = 34;
 
 export interface StripProfile {
   strip: number;
@@ -220,9 +222,9 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
     flagsSvg +
     `<path class="flight" d="${flightD}" fill="none" stroke="#111" stroke-width="2"/>` +
     `<g class="wps" fill="#fff" stroke="#111" stroke-width="1.3">${wps}</g>` +
-    `<text x="${ML}" y="13" font-weight="600">Strip ${esc(strip)}</text>` +
-    `<text x="${W - MR}" y="13" text-anchor="end" class="small">${fmt(sMax)} m, ${flight.length} waypoints` +
-    (nDetail || nUnfly ? `, flagged stations: ${nDetail} detail-limited, ${nUnfly} unflyable` : "") +
+    `<text x="4" y="13" font-weight="600">Strip ${esc(strip)}</text>` +
+    `<text x="${W - MR}" y="13" text-anchor="end" class="small">${fmt(sMax)} m · ${flight.length} waypoints` +
+    (nDetail || nUnfly ? ` · flagged: ${nDetail} detail-limited, ${nUnfly} unflyable stations` : "") +
     `</text>` +
     `<text x="14" y="${(MT + (H - MT - MB) / 2).toFixed(1)}" transform="rotate(-90 14 ${(MT + (H - MT - MB) / 2).toFixed(1)})" text-anchor="middle" class="small">m AMSL</text>` +
     `<text x="${((ML + +sx(sMax)) / 2).toFixed(1)}" y="${H - 4}" text-anchor="middle" class="small">distance along strip, m</text>` +

@@ -5,7 +5,7 @@
  */
 import { STANDARD_CAUTIONS } from "../cautions.js";
 import { createHash } from "node:crypto";
-import { FLAG_KINDS, type FlagKind } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS, type FlagKind } from "../assess/flags.js";
 import type { ReportInput, ReportSummary } from "./model.js";
 import { compactReportInput } from "./serialize.js";
 import { hillshade } from "./hillshade.js";
@@ -109,7 +109,7 @@ function labelFor(key: string): string {
   if (KEY_LABELS[key]) return KEY_LABELS[key];
   const m = /^flagged\.byKind\.([^.]+)\.(cells|areaM2|pct)$/.exec(key);
   if (m) {
-    const kind = FLAG_KINDS.find((k) => k.key === m[1]);
+    const kind = ASSESSMENT_FLAG_KINDS.find((k) => k.key === m[1]);
     const what = m[2] === "cells" ? "cells" : m[2] === "areaM2" ? "area, m²" : "% of site";
     return `Flagged “${kind ? kind.label : m[1]}”, ${what}`;
   }
@@ -204,7 +204,7 @@ export function renderReport(input: ReportInput): string {
   // 3. Flags
   let flagLayers = "";
   let flagDefs = "";
-  for (const k of FLAG_KINDS) {
+  for (const k of ASSESSMENT_FLAG_KINDS) {
     const mask = new Uint8Array(r.width * r.height);
     let any = false;
     for (let i = 0; i < mask.length; i++) if (r.flags[i] & k.bit) (mask[i] = 1), (any = true);
@@ -222,7 +222,7 @@ export function renderReport(input: ReportInput): string {
   );
   const byKind = s.flagged?.byKind ?? {};
   let flagRows = "";
-  for (const k of FLAG_KINDS) {
+  for (const k of ASSESSMENT_FLAG_KINDS) {
     const f = byKind[k.key];
     const st = FLAG_STYLE[k.key];
     const has = f && f.cells > 0;
@@ -344,7 +344,7 @@ export function renderReport(input: ReportInput): string {
 <section id="gsd"><h2>2 · Ground sample distance</h2>
 <div class="two">
 <figure class="mapfig">${gsdMap}<figcaption>${gsdLegend(g.target, g.low, g.high, "hatch-legend-outband")}</figcaption></figure>
-<figure class="mapfig">${imgMap}<figcaption>${sequentialLegend("Images per ground cell", "count", 0, Math.max(1, maxImages), minImages !== undefined ? `<text x="320" y="32" class="small">hatched: fewer than ${esc(minImages)}</text>` : "")}</figcaption></figure>
+<figure class="mapfig">${imgMap}<figcaption>${sequentialLegend("Images per ground cell", "count", 0, Math.max(1, maxImages), minImages !== undefined ? `<text x="336" y="33" class="small">hatched: fewer than ${esc(minImages)}</text>` : "")}</figcaption></figure>
 </div>
 <p class="muted">GSD is the nadir figure from the most nadir exposure over each ground cell, from the independent check of the final waypoints. Map cells are ${fmt(r.transform.dx, 1)} m; the figures in the tables are at full DEM resolution.</p>
 </section>
