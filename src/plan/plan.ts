@@ -26,6 +26,7 @@ import { siteCoverage } from "../layout/coverage.js";
 import { layoutStrips } from "../layout/strips.js";
 import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
 import { solvePlan } from "../solve/solveLegs.js";
+import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan } from "../assess/assess.js";
 import type { AssessedLeg } from "../assess/exposures.js";
@@ -54,6 +55,8 @@ export interface PlanRun {
   assessment: Assessment;
   baseline: Baseline;
   takeoff: { x: number; y: number; lon: number; lat: number; groundM: number };
+  /** Waypoints per flight against the autopilot's limit (null: no limit given). */
+  budget: WaypointBudgetSummary | null;
   warnings: SolveWarning[];
   /** Seconds spent per stage, for the benchmarks. */
   timings: Record<string, number>;
@@ -162,6 +165,8 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     transitLeg: (from, to, strip) => transitThroughSolver(grid, from, to, strip, solverOptions),
   });
   warnings.push(...flights.warnings);
+  const budget = waypointBudgetCheck(grid, layout, flights, solverOptions, options.aircraft.maxWaypoints, options.target.tolerancePct);
+  warnings.push(...budget.warnings);
   lap("solve");
 
   stage("assess");
@@ -206,6 +211,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     assessment,
     baseline,
     takeoff: { x: layout.takeoff[0], y: layout.takeoff[1], lon: tLon, lat: tLat, groundM: takeoffGround },
+    budget: budget.summary,
     warnings,
     timings,
   };
@@ -293,6 +299,49 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     blurPx: options.blurPx,
   });
   return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, site, speed, warnings };
+}
+
+export interface WaypointBudgetSummary {
+  maxWaypoints: number;
+  perFlight: number[];
+  /** Waypoints beyond the limit, summed over the flights that exceed it. */
+  over: number;
+  /** A tolerance (percent) whose plan fits, when one was found for an exceeding flight. */
+  fittingTolerancePct: number | null;
+}
+
+/**
+ * Flights are split at strip ends to respect the limit; a flight can still
+ * exceed it when one strip alone needs more waypoints. Then say by how much,
+ * and try wider tolerances on that flight's strips (toleranceToFitBudget).
+ */
+function waypointBudgetCheck(
+  grid: DemGrid,
+  layout: Layout,
+  flights: FlightSplit,
+  opts: SolverOptions,
+  maxWaypoints: number | null,
+  tolerancePct: number,
+): { summary: WaypointBudgetSummary | null; warnings: SolveWarning[] } {
+  if (maxWaypoints === null) return { summary: null, warnings: [] };
+  const warnings: SolveWarning[] = [];
+  const perFlight = flights.flights.map((f) => f.waypoints);
+  let over = 0;
+  let fittingTolerancePct: number | null = null;
+  for (const f of flights.flights) {
+    if (f.waypoints <= maxWaypoints) continue;
+    over += f.waypoints - maxWaypoints;
+    const legs = layout.legs.filter((l) => l.kind === "strip" && f.strips.includes(l.strip));
+    const fit = toleranceToFitBudget(grid, legs, opts, maxWaypoints);
+    if (fit) fittingTolerancePct = Math.max(fittingTolerancePct ?? 0, Math.round(fit.tolerance * 1000) / 10);
+    warnings.push({
+      code: "waypoint-budget",
+      message:
+        `Flight ${f.index} needs ${f.waypoints} waypoints, ${f.waypoints - maxWaypoints} over the autopilot's ${maxWaypoints} ` +
+        (fit ? `(a tolerance of about ${(fit.tolerance * 100).toFixed(0)} % instead of ${tolerancePct} % would fit).` : "(no tolerance up to three times the current one fits: split the site)."),
+    });
+  }
+  return { summary: { maxWaypoints, perFlight, over, fittingTolerancePct }, warnings };
 }
 
 /**

@@ -37,6 +37,7 @@ export interface PlanSummary {
   images: { min: number; median: number; required: number };
   flagged: { cells: number; areaM2: number; pct: number; byKind: Record<string, { cells: number; areaM2: number; pct: number }> };
   stations: { ok: number; detailLimited: number; unflyable: number };
+  waypointBudget: { maxWaypoints: number; perFlight: number[]; over: number; fittingTolerancePct: number | null } | null;
   ceiling: { heightM: number; reference: string; rule: string };
   clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number };
   verticalDatum: string;
@@ -107,6 +108,7 @@ export function planSummary(run: PlanRun): PlanSummary {
     images: { min: a.images.min, median: a.images.median, required: run.options.minImages },
     flagged: { cells: a.flagged.cells, areaM2: r(a.flagged.areaM2, 1), pct: r(a.siteCells ? (100 * a.flagged.cells) / a.siteCells : 0, 3), byKind },
     stations: run.solve.counts,
+    waypointBudget: run.budget,
     ceiling: { heightM: run.options.ceiling.heightM, reference: run.options.ceiling.reference, rule: CEILING_RULES[run.options.ceiling.reference] },
     clearance: run.options.clearance,
     verticalDatum: run.verticalDatum,
@@ -120,7 +122,8 @@ export function planSummary(run: PlanRun): PlanSummary {
       flaggedAreaM2: r(b.flaggedAreaM2, 1),
       ceilingBreachAreaM2: r(b.ceilingBreaches.areaM2, 1),
     },
-    warnings: [...new Set(run.warnings.map((w) => w.message))],
+    // The site reader's silent fixes (a ring rewound to RFC 7946 winding...) are said here too.
+    warnings: [...new Set([...(run.site.notes ?? []), ...run.warnings.map((w) => w.message)])],
     cautions,
   };
 }
