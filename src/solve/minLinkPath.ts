@@ -43,6 +43,8 @@
  * S_k, which another sweep of the same level covers.
  */
 
+import { StabbingLines } from "./stabbingLines.js";
+
 /** Gate tolerance in metres (floating-point slack, not a safety margin). */
 export const GATE_EPS_M = 1e-6;
 
@@ -94,6 +96,7 @@ export function minLinkPath(
   gMin: number,
   gMax: number,
   prefM?: Float64Array,
+  vertexMask?: Uint8Array,
 ): MinLinkPath | null {
   const n = s.length;
   if (n === 0) return null;
@@ -118,14 +121,7 @@ export function minLinkPath(
   const candHead = new Int32Array(n).fill(-1);
   let candNext = new Int32Array(256);
   const touched: number[] = [];
-  // Polygon buffers in (z0, g) space.
-  let ax = new Float64Array(32), ay = new Float64Array(32);
-  let bx = new Float64Array(32), by = new Float64Array(32);
-
-  const swap = () => {
-    const tx = ax, ty = ay;
-    ax = bx; ay = by; bx = tx; by = ty;
-  };
+  const sweep = new StabbingLines(n);
 
   let level = 0;
   while (union[n - 1] === null) {
@@ -136,52 +132,30 @@ export function minLinkPath(
       const j = pieces.station[p];
       const sj = s[j];
       // Start: all segments from heights [a, b] at station j with gradient in [gMin, gMax].
-      let cnt = 4;
-      ax[0] = pieces.lo[p]; ay[0] = gMin;
-      ax[1] = pieces.hi[p]; ay[1] = gMin;
-      ax[2] = pieces.hi[p]; ay[2] = gMax;
-      ax[3] = pieces.lo[p]; ay[3] = gMax;
+      if (!sweep.reset(pieces.lo[p], pieces.hi[p], gMin, gMax)) continue;
       for (let m = j + 1; m < n; m++) {
         const d = s[m] - sj;
-        // Keep z0 + g d >= lo - eps, then z0 + g d <= hi + eps (Sutherland-Hodgman on a convex polygon).
-        if (bx.length < cnt + 2) { bx = new Float64Array(2 * cnt + 4); by = new Float64Array(2 * cnt + 4); }
-        cnt = clipHalfPlane(ax, ay, cnt, bx, by, d, lo[m] - eps, 1);
-        if (cnt === 0) break;
-        if (ax.length < cnt + 2) { ax = new Float64Array(2 * cnt + 4); ay = new Float64Array(2 * cnt + 4); }
-        cnt = clipHalfPlane(bx, by, cnt, ax, ay, d, hi[m] + eps, -1);
-        if (cnt === 0) break;
-        let zMin = Infinity, zMax = -Infinity;
-        for (let v = 0; v < cnt; v++) {
-          const z = ax[v] + ay[v] * d;
-          if (z < zMin) zMin = z;
-          if (z > zMax) zMax = z;
-        }
+        if (!sweep.cut(d, lo[m] - eps, hi[m] + eps)) break;
+        // Off the vertex lattice the gate is checked but no vertex may sit here.
+        if (vertexMask !== undefined && m !== n - 1 && vertexMask[m] === 0) continue;
+        let zMin = sweep.minAt(d), zMax = sweep.maxAt(d);
         const u = union[m];
         if (u !== null) {
           // Exact pruning (see the header): segments through heights already in
           // S_k here are continued by other sweeps, so drop them. When S_k covers
-          // one end of the reached range, dropping them is one more half-plane.
+          // one end of the reached range, dropping them is one more cut.
           if (covers(u, Math.max(zMin, lo[m]), Math.min(zMax, hi[m]))) break;
+          let alive = true;
           for (let i = 0; i < u.length; i += 2) {
             const u0 = u[i], u1 = u[i + 1];
-            if (u0 <= zMin + 1e-9 && u1 > zMin && u1 < zMax) {
-              if (bx.length < cnt + 2) { bx = new Float64Array(2 * cnt + 4); by = new Float64Array(2 * cnt + 4); }
-              cnt = clipHalfPlane(ax, ay, cnt, bx, by, d, u1, 1);
-              swap();
-            } else if (u1 >= zMax - 1e-9 && u0 < zMax && u0 > zMin) {
-              if (bx.length < cnt + 2) { bx = new Float64Array(2 * cnt + 4); by = new Float64Array(2 * cnt + 4); }
-              cnt = clipHalfPlane(ax, ay, cnt, bx, by, d, u0, -1);
-              swap();
-            } else continue;
-            if (cnt === 0) break;
-            zMin = Infinity; zMax = -Infinity;
-            for (let v = 0; v < cnt; v++) {
-              const z = ax[v] + ay[v] * d;
-              if (z < zMin) zMin = z;
-              if (z > zMax) zMax = z;
-            }
+            if (u0 <= zMin + 1e-9 && u1 > zMin && u1 < zMax) alive = sweep.cut(d, u1, Infinity);
+            else if (u1 >= zMax - 1e-9 && u0 < zMax && u0 > zMin) alive = sweep.cut(d, -Infinity, u0);
+            else continue;
+            if (!alive) break;
+            zMin = sweep.minAt(d);
+            zMax = sweep.maxAt(d);
           }
-          if (cnt === 0) break;
+          if (!alive) break;
         }
         zMin = Math.max(zMin, lo[m]);
         zMax = Math.min(zMax, hi[m]);
@@ -277,24 +251,6 @@ function startInterval(s: Float64Array, lo: Float64Array, hi: Float64Array, gMin
   return [a, b];
 }
 
-/** Clip polygon (px, py) by sign * (z0 + g d - c) >= 0 into (qx, qy); returns the new vertex count. */
-function clipHalfPlane(px: Float64Array, py: Float64Array, cnt: number, qx: Float64Array, qy: Float64Array, d: number, c: number, sign: number): number {
-  let out = 0;
-  for (let i = 0; i < cnt; i++) {
-    const k = i + 1 === cnt ? 0 : i + 1;
-    const fi = sign * (px[i] + py[i] * d - c);
-    const fk = sign * (px[k] + py[k] * d - c);
-    if (fi >= 0) { qx[out] = px[i]; qy[out] = py[i]; out++; }
-    if ((fi >= 0) !== (fk >= 0)) {
-      const t = fi / (fi - fk);
-      qx[out] = px[i] + t * (px[k] - px[i]);
-      qy[out] = py[i] + t * (py[k] - py[i]);
-      out++;
-    }
-  }
-  return out;
-}
-
 function covers(u: number[], a: number, b: number): boolean {
   for (let i = 0; i < u.length; i += 2) if (u[i] <= a + 1e-9 && b <= u[i + 1] + 1e-9) return true;
   return false;
@@ -361,4 +317,30 @@ function findPiece(pieces: Growable, m: number, z: number): number {
 
 function clamp(v: number, a: number, b: number): number {
   return v < a ? a : v > b ? b : v;
+}
+
+/**
+ * Vertex mask for minLinkPath: 1 at the first station at or past each
+ * multiple of `stepM` along the leg, at both ends, and at both ends of every
+ * run of `pinned` stations (gates squeezed to one height, where the path
+ * chases the band at a limit gradient and must be free to turn where the
+ * squeeze ends). Returns undefined when every station qualifies anyway.
+ * @example vertexLattice(Float64Array.of(0, 0.5, 1, 1.5, 2, 2.5), 1) // [1, 0, 1, 0, 1, 1]
+ */
+export function vertexLattice(s: Float64Array, stepM: number, pinned?: Uint8Array): Uint8Array | undefined {
+  const n = s.length;
+  if (!(stepM > 0) || n < 3) return undefined;
+  const mask = new Uint8Array(n);
+  let next = 0;
+  let all = true;
+  for (let k = 0; k < n; k++) {
+    if (s[k] >= next - 1e-9 * stepM) {
+      mask[k] = 1;
+      next = (Math.floor(s[k] / stepM + 1e-9) + 1) * stepM;
+    }
+    if (pinned && pinned[k] && (k === 0 || !pinned[k - 1] || k === n - 1 || !pinned[k + 1])) mask[k] = 1;
+    if (!mask[k]) all = false;
+  }
+  mask[n - 1] = 1;
+  return all ? undefined : mask;
 }
