@@ -58,7 +58,7 @@ export async function writeOutputSet(outDir: string, files: OutputFile[], option
   }
 
   try {
-    await mkdir(dir, { recursive: true });
+    await makeDirs(dir);
     await access(dir, constants.W_OK);
   } catch (e) {
     throw new InputError(field, outDir, "a folder you can write to", `cannot write there (${(e as NodeJS.ErrnoException).code ?? e})`);
@@ -96,6 +96,26 @@ export async function writeOutputSet(outDir: string, files: OutputFile[], option
   }
   await rm(tmp, { recursive: true, force: true });
   return targets;
+}
+
+/**
+ * mkdir -p, one level at a time: Node 20's `mkdir(dir, { recursive: true })` never
+ * settles for a path it cannot make under /proc (mkdir there fails with ENOENT
+ * although the parent exists, and the recursive walk retries for ever).
+ */
+async function makeDirs(dir: string): Promise<void> {
+  const missing: string[] = [];
+  for (let d = dir; !(await exists(d)); d = path.dirname(d)) {
+    missing.push(d);
+    if (path.dirname(d) === d) break;
+  }
+  for (const d of missing.reverse()) {
+    try {
+      await mkdir(d);
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== "EEXIST") throw e;
+    }
+  }
 }
 
 async function exists(p: string): Promise<boolean> {
