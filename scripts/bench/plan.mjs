@@ -1,0 +1,227 @@
+// Benchmark: one plan end to end (load, layout, solve, assess, baseline, export, report)
+// in its own Node process, run against the build (dist/). The child times every stage
+// (PlanRun.timings, plus the output files it writes, grouped into export and report) and
+// reports its peak resident memory (process.resourceUsage().maxRSS); the parent also
+// measures the child's wall time and peak RSS with GNU time, and times
+// `gdal_translate -projwin` of the very window the plan read, as the reference.
+//
+// Usage: npm run build && node scripts/bench/plan.mjs [--km2 4] [--large]
+//   (prints one JSON object; `npm run bench` runs it as part of the full table)
+import { mkdtempSync, rmSync, readFileSync, statSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join, dirname } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import { nodeJson, timedRun, best } from "./lib/proc.mjs";
+import { writeCase } from "./lib/site.mjs";
+import { demSmall, demLarge, rasterInfo } from "./lib/dems.mjs";
+
+const here = fileURLToPath(import.meta.url);
+const root = join(dirname(here), "..", "..");
+const dist = process.env.GSDPLAN_DIST ?? join(root, "dist");
+
+/** Output files by the stage that makes them (the rest are the export stage). */
+const REPORT_FILES = new Set(["report-data.json", "report.html"]);
+
+/**
+ * Plans one square site of `areaKm2` centred on (cx, cy) (UTM 33N metres; default the
+ * centre of the 8000 x 8000 DEM) in a child process and returns its timings, peak memory, window size, quality figures and the GDAL reference.
+ * @example const r = benchPlan({ areaKm2: 4 }); r.wallS, r.peakRssBytes, r.ratios.wallOverGdalRead
+ */
+export function benchPlan({ areaKm2 = 4, dem = demSmall(), cx, cy, gdalRepeat = 2, label, timeoutS = 300, overrides } = {}) {
+  const info = rasterInfo(dem);
+  // Default: the middle of the 8000 x 8000 raster (which is also the middle of the large
+  // raster's north-west copy, so both DEMs give the same ground).
+  const small = rasterInfo(demSmall());
+  const x = cx ?? small.x0 + (small.size[0] * small.dx) / 2;
+  const y = cy ?? small.y0 + (small.size[1] * small.dy) / 2;
+  const dir = mkdtempSync(join(tmpdir(), "gsdplan-bench-plan-"));
+  const base = { label: label ?? `${areaKm2} km2`, areaKm2, dem: { file: dem, size: info.size, bytes: fileBytes(dem) } };
+  try {
+    const planFile = writeCase(dir, { dem, areaKm2, cx: x, cy: y, overrides });
+    const child = nodeJson(here, ["--child", planFile, join(dir, "out")], { timeoutS });
+    if (!child.json) {
+      // Timed out: say which stage it was in, from the child's progress lines.
+      const marks = [...child.stderr.matchAll(/\[bench plan ([\d.]+) s\] (\w+)/g)].map((m) => ({ atS: Number(m[1]), stage: m[2] }));
+      return { ...base, timedOut: true, timeoutS, wallS: child.seconds, cpuS: child.cpuS, peakRssBytes: child.peakRssBytes, stageStarts: marks, stuckIn: marks.at(-1)?.stage ?? "start-up" };
+    }
+    const c = child.json;
+    // Reference: GDAL reads the same window (in the DEM's CRS, which is the plan's frame here).
+    const w = c.window;
+    const gdal = [];
+    for (let i = 0; i < gdalRepeat; i++) {
+      gdal.push(timedRun("gdal_translate", ["-q", "-of", "MEM", "-projwin", String(w.west), String(w.north), String(w.east), String(w.south), dem, join(dir, "gdal.mem")]));
+    }
+    const gdalS = best(gdal, "seconds");
+    const stageSumS = Object.values(c.stagesS).reduce((a, b) => a + b, 0);
+    const stageCpuSumS = Object.values(c.stagesCpuS).reduce((a, b) => a + b, 0);
+    return {
+      ...base,
+      timedOut: false,
+      siteKm2: c.siteKm2,
+      window: c.window,
+      wallS: child.seconds,
+      cpuS: child.cpuS,
+      inProcessS: c.inProcessS,
+      importS: c.importS,
+      stagesS: c.stagesS,
+      stagesCpuS: c.stagesCpuS,
+      stageSumS,
+      stageCpuSumS,
+      stageShares: Object.fromEntries(Object.entries(c.stagesS).map(([k, v]) => [k, v / stageSumS])),
+      stageCpuShares: Object.fromEntries(Object.entries(c.stagesCpuS).map(([k, v]) => [k, v / stageCpuSumS])),
+      filesS: c.filesS,
+      peakRssBytes: child.peakRssBytes,
+      childMaxRssBytes: c.maxRssBytes,
+      maxRssAfterPlanBytes: c.maxRssAfterPlanBytes,
+      gdalReadS: gdalS,
+      gdalReadCpuS: best(gdal, "cpuS"),
+      gdalPeakRssBytes: best(gdal, "peakRssBytes"),
+      ratios: {
+        wallOverGdalRead: child.seconds / gdalS,
+        stageSumOverGdalRead: stageSumS / gdalS,
+        cpuOverGdalReadCpu: child.cpuS / best(gdal, "cpuS"),
+        peakRssOverWindowBytes: child.peakRssBytes / c.window.bytes,
+      },
+      plan: c.plan,
+      targets: { wallS: 8, peakRssBytes: 1.5 * 2 ** 30 },
+    };
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+function fileBytes(f) {
+  return statSync(f).size;
+}
+
+/** The child: plans, writes the output set, measures itself, prints one JSON line. */
+async function child(planFile, outDir) {
+  const t0 = performance.now();
+  const load = (p) => import(pathToFileURL(join(dist, p)).href);
+  const { resolvePlanOptions } = await load("plan/options.js");
+  const { planMission } = await load("plan/plan.js");
+  const { planOutputs } = await load("plan/outputs.js");
+  const { writeOutputSet } = await load("export/atomicDir.js");
+  const tImport = performance.now();
+
+  const options = resolvePlanOptions(JSON.parse(readFileSync(planFile, "utf8")), {}, dirname(planFile));
+  // Stage starts go to stderr, so a slow or failing run shows where it was.
+  const log = (m) => process.stderr.write(`[bench plan ${((performance.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
+  // CPU seconds (all threads, so the assessment's workers count) from one stage start to the next.
+  const cpuNow = () => { const u = process.cpuUsage(); return (u.user + u.system) / 1e6; };
+  const stagesCpuS = {};
+  let cpuStage, cpuMark = cpuNow();
+  const cpuLap = (next) => {
+    const c = cpuNow();
+    if (cpuStage) stagesCpuS[cpuStage] = c - cpuMark;
+    cpuStage = next;
+    cpuMark = c;
+  };
+  const run = await planMission(options, { now: () => performance.now(), onStage: (st) => { log(st); cpuLap(st); } });
+  cpuLap("export");
+  log("outputs");
+  const maxRssAfterPlanBytes = process.resourceUsage().maxRSS * 1024;
+
+  // Export and report: planOutputs builds rows, summary and the report model; each file's
+  // content is made lazily inside writeOutputSet, so wrap each maker with a timer.
+  const tOut = performance.now();
+  const { files } = planOutputs(run, { generatedAt: new Date(0).toISOString() });
+  const prepS = (performance.now() - tOut) / 1000;
+  const fileS = {};
+  const fileCpuS = {};
+  const timed = files.map((f) => ({
+    name: f.name,
+    data: async () => {
+      const t = performance.now();
+      const c = cpuNow();
+      const d = typeof f.data === "function" ? await f.data() : f.data;
+      fileS[f.name] = (performance.now() - t) / 1000;
+      fileCpuS[f.name] = cpuNow() - c;
+      return d;
+    },
+  }));
+  const tWrite = performance.now();
+  await writeOutputSet(outDir, timed);
+  const writeAllS = (performance.now() - tWrite) / 1000;
+  const makeS = Object.values(fileS).reduce((a, b) => a + b, 0);
+  const reportS = Object.entries(fileS).filter(([n]) => REPORT_FILES.has(n)).reduce((a, [, v]) => a + v, 0);
+  // File writes and renames count as export; the report model is built in planOutputs (prep).
+  const exportS = prepS + (writeAllS - makeS) + (makeS - reportS);
+  const tEnd = performance.now();
+  const reportCpuS = Object.entries(fileCpuS).filter(([n]) => REPORT_FILES.has(n)).reduce((a, [, v]) => a + v, 0);
+  stagesCpuS.export = cpuNow() - cpuMark - reportCpuS;
+  stagesCpuS.report = reportCpuS;
+
+  const g = run.grid;
+  const cells = g.width * g.height;
+  const r = run.assessment.rasters;
+  let zMin = Infinity, zMax = -Infinity;
+  for (let i = 0; i < cells; i++) if (r.inSite[i]) {
+    const z = g.heights[i];
+    if (z < zMin) zMin = z;
+    if (z > zMax) zMax = z;
+  }
+  const ifov = run.camera.ifov;
+  const bandWindowM = run.requirement.highGsdM / ifov - run.requirement.lowGsdM / ifov;
+  // Issue 4's naive plan: a waypoint every 25 m along each strip at the target height
+  // above the ground below; counted on the same strips as ours.
+  let naiveWaypoints = 0, stripKm = 0;
+  for (const l of run.layout.legs) if (l.kind === "strip") {
+    naiveWaypoints += Math.ceil(l.lengthM / 25) + 1;
+    stripKm += l.lengthM / 1000;
+  }
+  let stripWaypoints = 0, allWaypoints = 0;
+  for (const l of run.solve.legs) if (l.kind === "strip") stripWaypoints += l.waypoints.length;
+  for (const f of run.flights.flights) for (const l of f.legs) allWaypoints += l.waypoints.length;
+  const a = run.assessment.stats;
+  const b = run.baseline.stats;
+  const result = {
+    importS: (tImport - t0) / 1000,
+    inProcessS: (tEnd - tImport) / 1000,
+    stagesS: { ...run.timings, export: exportS, report: reportS },
+    stagesCpuS,
+    filesS: fileS,
+    maxRssAfterPlanBytes,
+    maxRssBytes: process.resourceUsage().maxRSS * 1024,
+    siteKm2: (a.siteCells * a.cellAreaM2) / 1e6,
+    window: {
+      width: g.width,
+      height: g.height,
+      cells,
+      // Float32 heights, the figure the DEM-window benchmark uses (the valid mask adds 1 byte/cell).
+      bytes: cells * 4,
+      west: g.transform.x0,
+      north: g.transform.y0,
+      east: g.transform.x0 + g.width * g.transform.dx,
+      south: g.transform.y0 + g.height * g.transform.dy,
+      crs: g.crs.epsg,
+    },
+    plan: {
+      strips: run.layout.legs.filter((l) => l.kind === "strip").length,
+      stripKm,
+      exposures: run.assessment.exposures.length,
+      flights: run.flights.flights.length,
+      waypoints: { strips: stripWaypoints, all: allWaypoints, naive25m: naiveWaypoints, perKmStrip: stripWaypoints / stripKm },
+      reliefM: zMax - zMin,
+      bandWindowM,
+      reliefOverBandWindow: (zMax - zMin) / bandWindowM,
+      stations: run.solve.counts,
+      ours: { gsdCm: a.gsdCm, withinBandPct: a.withinBandPct, flaggedAreaM2: a.flagged.areaM2, flaggedPct: (100 * a.flagged.cells) / a.siteCells, flaggedByKind: a.flagged.byKind, images: a.images, ceilingBreaches: run.baseline.planCeilingBreaches },
+      baseline: { altitudeAmslM: run.baseline.altitudeAmslM, gsdCm: b.gsdCm, withinBandPct: b.withinBandPct, flaggedAreaM2: b.flaggedAreaM2, flaggedPct: b.flaggedPct, flaggedByKind: run.baseline.assessment.stats.flagged.byKind, images: b.images, ceilingBreaches: b.ceilingBreaches },
+      band: { lowGsdCm: run.requirement.lowGsdM * 100, highGsdCm: run.requirement.highGsdM * 100 },
+    },
+  };
+  process.stdout.write(JSON.stringify(result) + "\n");
+}
+
+if (process.argv[1] && pathToFileURL(process.argv[1]).href === import.meta.url) {
+  const args = process.argv.slice(2);
+  if (args[0] === "--child") {
+    await child(args[1], args[2]);
+  } else {
+    const i = args.indexOf("--km2");
+    const areaKm2 = i >= 0 ? Number(args[i + 1]) : 4;
+    const r = benchPlan({ areaKm2, ...(args.includes("--large") ? { dem: demLarge() } : {}), timeoutS: 900 });
+    process.stdout.write(JSON.stringify(r, null, 2) + "\n");
+  }
+}
