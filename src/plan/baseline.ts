@@ -7,8 +7,8 @@
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout, Site } from "../layout/types.js";
-import type { CeilingReference, SolvedLeg, StationProfile } from "../solve/types.js";
-import { STATUS_OK } from "../solve/types.js";
+import type { CeilingReference } from "../solve/types.js";
+import { straightTransitLeg } from "../export/flights.js";
 import { assessPlan } from "../assess/assess.js";
 import type { AssessedLeg } from "../assess/exposures.js";
 import type { Assessment, AssessmentRasters, GsdStats } from "../assess/types.js";
@@ -64,7 +64,12 @@ export function constantAltitudeBaseline(
   const altitudeAmslM = medianGroundM + o.targetHeightM;
   const legs: AssessedLeg[] = layout.legs
     .filter((l) => l.kind === "strip")
-    .map((l) => ({ ...constantLeg(l.from, l.to, l.strip, l.lengthM, altitudeAmslM), ...(l.noPhotoIntervals ? { noPhotoIntervals: l.noPhotoIntervals } : {}) }));
+    // One straight leg per strip at the one altitude (the speed does not enter the assessment).
+    .map((l) => ({
+      ...straightTransitLeg(l.from, l.to, l.strip, { altitudeAmslM, speedMps: 1 }),
+      kind: "strip" as const,
+      ...(l.noPhotoIntervals ? { noPhotoIntervals: l.noPhotoIntervals } : {}),
+    }));
   const assessment = assessPlan(grid, site.local, legs, camera, requirement, {
     triggerM: o.triggerM,
     minImages: o.minImages,
@@ -123,23 +128,4 @@ function medianSiteGround(grid: DemGrid, inSite: Uint8Array): number {
   const z = new Float32Array(inSite.length);
   for (let i = 0; i < inSite.length; i++) z[i] = inSite[i] ? grid.heights[i] : NaN;
   return quantilesFloat32(z, [0.5])[0];
-}
-
-function constantLeg(from: [number, number], to: [number, number], strip: number, lengthM: number, altitudeAmslM: number): SolvedLeg {
-  const f = (a: number, b: number) => Float64Array.of(a, b);
-  const profile: StationProfile = {
-    s: f(0, lengthM),
-    x: f(from[0], to[0]),
-    y: f(from[1], to[1]),
-    groundM: f(NaN, NaN),
-    hardLowM: f(NaN, NaN),
-    hardHighM: f(NaN, NaN),
-    bandLowM: f(NaN, NaN),
-    bandHighM: f(NaN, NaN),
-    altitudeM: f(altitudeAmslM, altitudeAmslM),
-    status: Uint8Array.of(STATUS_OK, STATUS_OK),
-    cause: Uint8Array.of(0, 0),
-  };
-  const wp = (xy: [number, number], s: number) => ({ x: xy[0], y: xy[1], s, altitudeAmslM, groundAmslM: NaN, heightAboveGroundM: NaN, speedMps: 0 });
-  return { kind: "strip", strip, from, to, waypoints: [wp(from, 0), wp(to, lengthM)], profile, lengthM, timeS: 0 };
 }
