@@ -20,6 +20,14 @@
  * on U is non-decreasing in g (every d - d_m >= 0), so the highest height is
  * at g = gHi on U and, likewise, the lowest at g = gLo on L.
  */
+/**
+ * L may exceed U by this much, metres, and still count as touching: rounding
+ * of heights of a few hundred metres is ~1e-13 m, and a window met by exactly
+ * one line (a gate squeezed to a point) must not be lost to it. Far below the
+ * solver's own gate slack (GATE_EPS_M = 1e-6 m).
+ */
+const TOUCH_M = 1e-9;
+
 export class StabbingLines {
   private lc: Float64Array;
   private ld: Float64Array;
@@ -120,18 +128,18 @@ export class StabbingLines {
       if (!(this.gLo <= this.gHi)) return false;
       const g = this.gLo;
       const f0 = lc[this.lh] - g * ld[this.lh] - (uc[this.uh] - g * ud[this.uh]);
-      if (f0 <= 0) break;
+      if (f0 <= TOUCH_M) break;
       const rL = this.lh < this.lt ? (lc[this.lh] - lc[this.lh + 1]) / (ld[this.lh] - ld[this.lh + 1]) : Infinity;
       const rU = this.uh < this.ut ? (uc[this.uh] - uc[this.uh + 1]) / (ud[this.uh] - ud[this.uh + 1]) : Infinity;
       const r = Math.min(rL, rU, this.gHi);
       const f1 = lc[this.lh] - r * ld[this.lh] - (uc[this.uh] - r * ud[this.uh]);
-      if (f1 > 0) {
+      if (f1 > TOUCH_M) {
         if (r >= this.gHi) return false;
         this.gLo = r;
         if (rL <= r) this.lh++;
         if (rU <= r) this.uh++;
       } else {
-        this.gLo = g + ((r - g) * f0) / (f0 - f1);
+        this.gLo = f1 < 0 ? g + ((r - g) * f0) / (f0 - f1) : r;
         break;
       }
     }
@@ -139,18 +147,18 @@ export class StabbingLines {
       if (!(this.gLo <= this.gHi)) return false;
       const g = this.gHi;
       const f0 = lc[this.lt] - g * ld[this.lt] - (uc[this.ut] - g * ud[this.ut]);
-      if (f0 <= 0) break;
+      if (f0 <= TOUCH_M) break;
       const qL = this.lh < this.lt ? (lc[this.lt - 1] - lc[this.lt]) / (ld[this.lt - 1] - ld[this.lt]) : -Infinity;
       const qU = this.uh < this.ut ? (uc[this.ut - 1] - uc[this.ut]) / (ud[this.ut - 1] - ud[this.ut]) : -Infinity;
       const l = Math.max(qL, qU, this.gLo);
       const f1 = lc[this.lt] - l * ld[this.lt] - (uc[this.ut] - l * ud[this.ut]);
-      if (f1 > 0) {
+      if (f1 > TOUCH_M) {
         if (l <= this.gLo) return false;
         this.gHi = l;
         if (qL >= l) this.lt--;
         if (qU >= l) this.ut--;
       } else {
-        this.gHi = g - ((g - l) * f0) / (f0 - f1);
+        this.gHi = f1 < 0 ? g - ((g - l) * f0) / (f0 - f1) : l;
         break;
       }
     }

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { minLinkPath, GATE_EPS_M } from "../../src/solve/minLinkPath.js";
+import { minLinkPath, vertexLattice, GATE_EPS_M } from "../../src/solve/minLinkPath.js";
 
 /*
  * Exhaustive reference under the same model as minLinkPath (vertices at
@@ -47,14 +47,14 @@ function feasible(seq: number[], s: number[], lo: number[], hi: number[], gMin: 
   return iv !== null;
 }
 
-function exhaustiveMinSegments(s: number[], lo: number[], hi: number[], gMin: number, gMax: number): number | null {
+function exhaustiveMinSegments(s: number[], lo: number[], hi: number[], gMin: number, gMax: number, mask?: number[]): number | null {
   const n = s.length;
   const interior = n - 2;
   for (let k = 0; k <= interior; k++) {
     // all subsets of size k of 1..n-2
     const pick = (start: number, left: number, acc: number[]): boolean => {
       if (left === 0) return feasible([0, ...acc, n - 1], s, lo, hi, gMin, gMax);
-      for (let v = start; v <= n - 2; v++) if (pick(v + 1, left - 1, [...acc, v])) return true;
+      for (let v = start; v <= n - 2; v++) if ((!mask || mask[v]) && pick(v + 1, left - 1, [...acc, v])) return true;
       return false;
     };
     if (pick(1, k, [])) return k + 1;
@@ -136,5 +136,36 @@ describe("minLinkPath: fewest segments under the station-vertex model", () => {
       }),
       { numRuns: 300, seed: 7 },
     );
+  });
+
+  it("with a vertex lattice: equals the exhaustive minimum over paths whose interior vertices sit on the lattice", () => {
+    // Same exhaustive reference, interior vertices drawn only from the mask;
+    // every station's gate is still checked.
+    const arb = fc.record({ c: corridorArb, mask: fc.array(fc.integer({ min: 0, max: 1 }), { minLength: 8, maxLength: 8 }) });
+    fc.assert(
+      fc.property(arb, ({ c, mask }) => {
+        const { s, lo, hi, gMin, gMax } = build(c);
+        const m = mask.slice(0, c.n);
+        const want = exhaustiveMinSegments(s, lo, hi, gMin, gMax, m);
+        const got = minLinkPath(Float64Array.from(s), Float64Array.from(lo), Float64Array.from(hi), gMin, gMax, undefined, Uint8Array.from(m));
+        if (want === null) return got === null;
+        if (got === null || got.segments !== want) return false;
+        checkPath(got, s, lo, hi, gMin, gMax);
+        for (let v = 1; v + 1 < got.vertexStation.length; v++) if (!m[got.vertexStation[v]]) return false;
+        return true;
+      }),
+      { numRuns: 300, seed: 11 },
+    );
+  });
+});
+
+describe("vertexLattice", () => {
+  it("marks the first station at or past each multiple of the step, both ends, and both ends of pinned runs", () => {
+    const s = Float64Array.from({ length: 13 }, (_, i) => i * 0.5); // 0 .. 6 m
+    expect(Array.from(vertexLattice(s, 2)!)).toEqual([1, 0, 0, 0, 1, 0, 0, 0, 1, 0, 0, 0, 1]);
+    const pinned = Uint8Array.from([0, 0, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0, 0]);
+    expect(Array.from(vertexLattice(s, 2, pinned)!)).toEqual([1, 0, 1, 0, 1, 0, 0, 0, 1, 0, 0, 0, 1]);
+    // a step no coarser than the stations: every station, no mask needed
+    expect(vertexLattice(s, 0.5)).toBeUndefined();
   });
 });
