@@ -26,6 +26,15 @@ const DEG = 8;
 const M = 2;
 
 /**
+ * A height to centimetres, or an empty field where it is unknown (a transit over
+ * nodata or past the DEM has no ground below): "NaN" is not a number to most CSV
+ * readers, and an empty field is the usual mark of a missing value.
+ */
+function orEmpty(v: number): string {
+  return Number.isFinite(v) ? v.toFixed(M) : "";
+}
+
+/**
  * Formats the rows as CSV text.
  *
  * @example waypointsCsv(waypointRows(flights, frame.toWgs84, heights)).split("\r\n")[0]
@@ -45,8 +54,8 @@ export function waypointsCsv(rows: readonly WaypointRow[]): string {
         r.altitudeAmslM.toFixed(M),
         r.altitudeEllipsoidM.toFixed(M),
         r.altitudeTakeoffM.toFixed(M),
-        r.groundAmslM.toFixed(M),
-        r.heightAboveGroundM.toFixed(M),
+        orEmpty(r.groundAmslM),
+        orEmpty(r.heightAboveGroundM),
         r.speedMps.toFixed(M),
       ].join(","),
     );
