@@ -236,7 +236,7 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
 export function profileLegend(): string {
   const item = (x: number, sw: string, label: string) => `<g transform="translate(${x},6)">${sw}<text x="26" y="10">${label}</text></g>`;
   return (
-    `<svg class="legend" viewBox="0 0 900 24" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile legend">` +
+    `<svg class="legend" viewBox="0 0 930 24" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile legend">` +
     item(0, `<rect width="20" height="12" fill="#b89b72"/>`, "ground below") +
     item(120, `<rect width="20" height="12" fill="#9ecae1" fill-opacity="0.6"/>`, "hard corridor") +
     item(245, `<rect width="20" height="12" fill="#31a354" fill-opacity="0.5"/>`, "detail band") +

@@ -211,24 +211,29 @@ export function renderReport(input: ReportInput): string {
     if (!any) continue;
     const st = FLAG_STYLE[k.key];
     flagDefs += hatchPattern(`hatch-flag-${k.key}`, st.colour, st.angle, 7);
-    flagLayers += `<g class="flag-layer" data-kind="${esc(k.key)}">${outlinePath(view, r.transform, maskOutline(mask, r.width, r.height), `fill="url(#hatch-flag-${k.key})" stroke="${st.colour}" stroke-width="1.4"`)}</g>`;
+    flagLayers += `<g class="flag-layer" data-kind="${esc(k.key)}">${outlinePath(small, r.transform, maskOutline(mask, r.width, r.height), `fill="url(#hatch-flag-${k.key})" stroke="${st.colour}" stroke-width="1.2"`)}</g>`;
   }
+  // Drawn on the narrower view (the figure is about 620 px wide) so its scale bar and
+  // north arrow print at the size of the GSD maps'.
   const flagMap = mapSvg(
-    view,
+    small,
     "map-flags",
     "Map of flagged ground by kind",
-    shadeImg("shade") + site(`fill="#fff" fill-opacity="0.25" stroke="#111" stroke-width="1.5"`) + flagLayers + overlays,
+    smallShade("shade") + smallSite(`fill="#fff" fill-opacity="0.25" stroke="#111" stroke-width="1.5"`) + flagLayers + smallOverlays,
     flagDefs,
   );
   const byKind = s.flagged?.byKind ?? {};
   let flagRows = "";
-  for (const k of ASSESSMENT_FLAG_KINDS) {
+  // Kinds present on this site first, in their usual order; the others follow, muted.
+  const present = (k: FlagKind) => (byKind[k.key]?.cells ?? 0) > 0;
+  const kindsInOrder = [...ASSESSMENT_FLAG_KINDS.filter(present), ...ASSESSMENT_FLAG_KINDS.filter((k) => !present(k))];
+  for (const k of kindsInOrder) {
     const f = byKind[k.key];
     const st = FLAG_STYLE[k.key];
     const has = f && f.cells > 0;
     flagRows +=
       `<tr class="${has ? "flag-present" : "flag-absent"}" data-kind="${esc(k.key)}">` +
-      `<td><svg class="swatch" viewBox="0 0 20 14" width="20" height="14"><rect width="20" height="14" fill="${st.colour}" fill-opacity="0.35" stroke="${st.colour}"/></svg></td>` +
+      `<td><svg class="swatch" viewBox="0 0 22 16" width="22" height="16"><defs>${hatchPattern(`hatch-swatch-${k.key}`, st.colour, st.angle, 5)}</defs><rect x="0.5" y="0.5" width="21" height="15" fill="url(#hatch-swatch-${k.key})" stroke="${st.colour}" stroke-width="1.2"/></svg></td>` +
       `<td><strong>${esc(k.label)}</strong><br><span class="muted">${EFFECT_KEYS.has(k.key) ? "effect" : "cause"}</span></td>` +
       `<td class="r">${f ? num(`flagged.byKind.${k.key}.areaM2`, f.areaM2, fmtArea(f.areaM2)) : "–"}</td>` +
       `<td class="r">${f && f.pct !== undefined ? num(`flagged.byKind.${k.key}.pct`, f.pct, (f.pct > 0 && f.pct < 0.05 ? "< 0.1" : fmt(f.pct, 1)) + " %") : "–"}</td>` +
