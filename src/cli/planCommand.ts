@@ -26,6 +26,7 @@ export async function runPlanCommand(
   const outDir = String(opts.out);
   // Refuse early (before minutes of work) when outputs exist and --force is not given.
   const { OUTPUT_NAMES } = await import("../plan/outputs.js");
+  await assertWritableTarget(outDir);
   if (!opts.force) {
     const present = OUTPUT_NAMES.filter((n) => existsSync(path.join(outDir, n)));
     if (present.length) {
@@ -54,5 +55,31 @@ async function toolVersion(): Promise<string> {
     return JSON.parse(await readFile(pkg, "utf8")).version as string;
   } catch {
     return "unknown";
+  }
+}
+
+/**
+ * Refuses an --out that cannot become a folder before minutes of planning: the
+ * nearest existing ancestor must be a writable folder, and --out itself, if it
+ * exists, a folder. The atomic writer checks again when it writes.
+ */
+async function assertWritableTarget(outDir: string): Promise<void> {
+  const { stat, access } = await import("node:fs/promises");
+  const { constants } = await import("node:fs");
+  let p = path.resolve(outDir);
+  for (;;) {
+    const st = await stat(p).catch(() => null);
+    if (st) {
+      if (!st.isDirectory()) {
+        const what = p === path.resolve(outDir) ? "it is a file, not a folder" : `${p} is a file, not a folder`;
+        throw new InputError("--out", outDir, "a folder that exists or can be made", what);
+      }
+      const ok = await access(p, constants.W_OK).then(() => true, () => false);
+      if (!ok) throw new InputError("--out", outDir, "a folder that exists or can be made", `${p} is not writable`);
+      return;
+    }
+    const parent = path.dirname(p);
+    if (parent === p) return;
+    p = parent;
   }
 }
