@@ -254,7 +254,7 @@ export function scaleBar(v: MapView): string {
  * without it the arrow is grid north.
  */
 export function northArrow(v: MapView, convergenceDeg?: number): string {
-  const x = v.w - 44;
+  const x = v.w - 52;
   const y = 16;
   let note = "grid north";
   let turn = 0;
@@ -265,7 +265,7 @@ export function northArrow(v: MapView, convergenceDeg?: number): string {
     note = a < 0.005 ? "true = grid north" : `grid N ${fmt(a, a < 1 ? 2 : 1)}° ${convergenceDeg > 0 ? "W" : "E"}`;
   }
   return (
-    `<g class="north" data-convergence-deg="${r1(turn * 1000) / 1000}"><rect x="${x - 40}" y="${y - 6}" width="80" height="64" fill="#fff" fill-opacity="0.8" rx="3"/>` +
+    `<g class="north" data-convergence-deg="${r1(turn * 1000) / 1000}"><rect x="${x - 46}" y="${y - 6}" width="92" height="64" fill="#fff" fill-opacity="0.8" rx="3"/>` +
     `<path d="M${x},${y}L${x + 9},${y + 30}L${x},${y + 24}L${x - 9},${y + 30}Z" fill="#111" transform="rotate(${r1(turn * 100) / 100} ${x} ${y + 18})"/>` +
     `<text x="${x}" y="${y + 44}" text-anchor="middle" font-weight="700">N</text>` +
     `<text x="${x}" y="${y + 55}" text-anchor="middle" class="small">${esc(note)}</text></g>`
