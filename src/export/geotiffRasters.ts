@@ -20,7 +20,7 @@ import type { CrsInfo, GeoTransform } from "../dem/grid.js";
 import type { AssessmentRasters } from "../assess/types.js";
 
 export const IMAGES_NODATA = 65535;
-/** Flags use bits 1..64; 255 is no combination of them. */
+/** 255 would set both "coarser" (1) and "finer" (2), which no cell can be: safe as nodata with all eight bits in use. */
 export const FLAGS_NODATA = 255;
 
 export type RasterCrs = Pick<CrsInfo, "epsg" | "proj4" | "geographic"> & { name?: string };

@@ -13,7 +13,7 @@ import { sampleBilinear } from "../dem/sample.js";
 import { InputError, InputFileError } from "../errors.js";
 import { localFrameFor, type SiteFrame } from "../geo/localFrame.js";
 import { lonLatCentre } from "../geo/longitude.js";
-import { egm96UndulationM } from "../geo/geoid.js";
+import { egm96UndulationM, EGM2008_APPROXIMATION_WARNING } from "../geo/geoid.js";
 import { makeCamera, type CameraSpec } from "../camera/makeCamera.js";
 import { footprintM, heightForGsdM } from "../camera/gsd.js";
 import { requirementFrom } from "../camera/requirement.js";
@@ -149,6 +149,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
     ifov: camera.ifov,
   };
+  assertTargetReachable(requirement, camera, targetHeightM, options);
   const solve = solvePlan(grid, layout.legs, solverOptions);
   warnings.push(...solve.warnings);
   carryNoPhotoIntervals(solve.legs, layout.legs);
@@ -282,6 +283,8 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
       { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM },
     );
     grid = toMetricGrid(raw, frame.proj4, { epsg: frame.epsg, name: frame.name });
+    const datumNote = verticalDatumWarning(grid.verticalDatum, source.verticalCrsName);
+    if (datumNote) warnings.push({ code: "vertical-datum", message: datumNote });
   } finally {
     await source.close();
   }
@@ -345,6 +348,26 @@ function waypointBudgetCheck(
 }
 
 /**
+ * A target whose height lies below the clearance or above a ground-referenced
+ * ceiling everywhere is bad input, named by the user's key, with the GSD range
+ * this camera can legally and safely reach.
+ */
+function assertTargetReachable(requirement: Requirement, camera: Camera, targetHeightM: number, o: PlanOptions): void {
+  const floorM = o.clearance.minM + o.clearance.obstacleMarginM;
+  const key = o.target.by === "gsd" ? "target.gsdCm" : "target.smallestFeatureCm";
+  const value = o.target.by === "gsd" ? o.target.gsdCm : o.target.smallestFeatureCm;
+  const lo = (floorM * camera.ifov * 100).toFixed(2);
+  const hi = (o.ceiling.heightM * camera.ifov * 100).toFixed(2);
+  const allowed = `a target GSD of about ${lo}-${hi} cm/px for this camera (heights ${floorM} m clearance to the ${o.ceiling.heightM} m ceiling)`;
+  if (targetHeightM < floorM) {
+    throw new InputError(key, value, allowed, `the target GSD (${(requirement.targetGsdM * 100).toFixed(2)} cm/px) needs ${targetHeightM.toFixed(1)} m above ground, below the terrain clearance`);
+  }
+  if (o.ceiling.reference === "ground" && targetHeightM > o.ceiling.heightM) {
+    throw new InputError(key, value, allowed, `the target GSD (${(requirement.targetGsdM * 100).toFixed(2)} cm/px) needs ${targetHeightM.toFixed(1)} m above ground, above the legal ceiling`);
+  }
+}
+
+/**
  * Across-track half-width of the ground a strip's photo images most nadir (the
  * nearest nadir point). Photos sit every t along strips d apart, and the strips'
  * photos need not line up, so a cell at the midline half a trigger distance from
@@ -355,6 +378,20 @@ function waypointBudgetCheck(
  */
 export function zoneHalfAcrossM(spacingM: number, triggerM: number): number {
   return spacingM / 2 + (triggerM * triggerM) / (8 * spacingM);
+}
+
+/** What the user must know about the DEM's vertical datum, or "" when it is EGM96 or ellipsoidal. */
+export function verticalDatumWarning(datum: DemGrid["verticalDatum"], declared: string | null): string {
+  if (datum === "egm2008") return EGM2008_APPROXIMATION_WARNING;
+  if (datum === "other" || datum === "unknown") {
+    const what = datum === "other" ? `declared as ${declared ?? "a datum other than EGM96"}` : "not declared by the file";
+    return (
+      `The DEM's vertical datum is ${what}: AMSL columns carry its heights as they are, and ellipsoidal heights ` +
+      "add the EGM96 undulation, which can differ from a national datum by a metre or more. Set demVerticalDatum if you know it, " +
+      "and check the first waypoint heights on site."
+    );
+  }
+  return "";
 }
 
 /** Geoid undulation of the DEM's vertical datum (EGM96; EGM2008 approximated by it). */
