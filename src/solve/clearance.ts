@@ -2,16 +2,20 @@ import type { DemGrid } from "../dem/grid.js";
 import { extremaInRadius } from "../dem/sample.js";
 
 /**
- * Highest ground within `radiusM` of each point (NaN where the disc touches
- * nodata or leaves the grid).
+ * Highest ground within `radiusM` of each point: exactly extremaInRadius's
+ * maximum (the cells whose centres lie within the radius, the cell under the
+ * point always counted; NaN where the disc touches nodata or leaves the grid).
  *
- * When the disc spans many cells (fine DEMs: 15 m at 0.5 m is ~2 800 cells per
- * station) a per-cell scan would dominate the solve, so the grid is first
- * max-pooled into k x k blocks and the disc is scanned on the blocks with the
- * radius grown by the block's half diagonal. Every fine cell within the radius
- * lies in a block whose centre is within radius + half diagonal, so the result
- * is never lower than the exact maximum: conservative (more clearance, never
- * less), by at most the relief within one block diagonal beyond the radius.
+ * On fine DEMs the disc spans many cells (15 m at 0.5 m is ~2 800 per station),
+ * so the grid is max-pooled once into k x k blocks (k about radius / 8 cells)
+ * and each disc is covered block row by block row: blocks whose every cell
+ * centre lies inside the radius (1e-6 m of margin for rounding) count by
+ * their pooled maximum; blocks the circle crosses are scanned cell by cell,
+ * with extremaInRadius's own row chords, only when their pooled maximum can
+ * beat the best value so far (branch and bound: a block's maximum bounds
+ * every cell in it, so skipping it cannot change the result). Stations whose
+ * disc nears the grid edge or meets a block holding nodata are handed to
+ * extremaInRadius itself.
  * @example maxGroundInRadius(grid, xs, ys, 15, out)
  */
 export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: ArrayLike<number>, radiusM: number, out: Float64Array): void {
@@ -22,9 +26,87 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
     return;
   }
   const pooled = pooledMax(grid, k);
-  const t = grid.transform;
-  const halfDiag = (Math.hypot(t.dx, t.dy) * k) / 2;
-  extremaInRadius(pooled, xs, ys, radiusM + halfDiag, out);
+  const pw = pooled.width;
+  const pmax = pooled.heights;
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const adx = Math.abs(dx), ady = Math.abs(dy);
+  const r2 = radiusM * radiusM;
+  const rIn = Math.max(0, radiusM - 1e-6), rOut = radiusM + 1e-6;
+  const rIn2 = rIn * rIn, rOut2 = rOut * rOut;
+  const one = new Float64Array(1);
+  // Boundary blocks of the current station, scanned after the interior ones.
+  let edge = new Int32Array(256);
+  for (let i = 0; i < xs.length; i++) {
+    const px = xs[i], py = ys[i];
+    // Point in cell-centre index coordinates.
+    const pcx = (px - x0) / dx - 0.5;
+    const pcy = (py - y0) / dy - 0.5;
+    const ext = 2 + radiusM / Math.min(adx, ady);
+    if (!(pcx - ext >= 0 && pcy - ext >= 0 && pcx + ext <= w - 1 && pcy + ext <= h - 1)) {
+      extremaInRadius(grid, [px], [py], radiusM, one);
+      out[i] = one[0];
+      continue;
+    }
+    const pc = Math.floor((px - x0) / dx);
+    const pr = Math.floor((py - y0) / dy);
+    let best = heights[pr * w + pc];
+    let bad = best !== best;
+    let nEdge = 0;
+    const rowA = Math.floor((pcy - radiusM / ady) / k), rowB = Math.floor((pcy + radiusM / ady) / k);
+    for (let br = rowA; br <= rowB && !bad; br++) {
+      const r0 = br * k, r1 = Math.min(h - 1, r0 + k - 1);
+      const dyNear = (pcy < r0 ? r0 - pcy : pcy > r1 ? pcy - r1 : 0) * ady;
+      const dyFar = Math.max(Math.abs(r0 - pcy), Math.abs(r1 - pcy)) * ady;
+      if (dyNear * dyNear > rOut2) continue;
+      const hOut = Math.sqrt(rOut2 - dyNear * dyNear) / adx;
+      const bcA = Math.floor((pcx - hOut) / k), bcB = Math.floor((pcx + hOut) / k);
+      // Interior blocks: whole column extent within the chord at the farthest row.
+      let iA = bcB + 1, iB = bcB;
+      if (dyFar * dyFar <= rIn2) {
+        const hIn = Math.sqrt(rIn2 - dyFar * dyFar) / adx;
+        iA = Math.ceil((pcx - hIn) / k);
+        iB = Math.floor((pcx + hIn + 1) / k) - 1;
+        if (iA < bcA) iA = bcA;
+        if (iB > bcB) iB = bcB;
+        if (iA > iB) { iA = bcB + 1; iB = bcB; }
+      }
+      const base = br * pw;
+      for (let bc = iA; bc <= iB; bc++) {
+        const m = pmax[base + bc];
+        if (m !== m) { bad = true; break; }
+        if (m > best) best = m;
+      }
+      if (nEdge + (bcB - bcA + 1) > edge.length) { const e = new Int32Array(2 * edge.length + bcB - bcA + 1); e.set(edge); edge = e; }
+      for (let bc = bcA; bc <= bcB; bc++) if (bc < iA || bc > iB) edge[nEdge++] = base + bc;
+    }
+    for (let e = 0; e < nEdge && !bad; e++) {
+      const b = edge[e];
+      const m = pmax[b];
+      if (m !== m) { bad = true; break; }
+      if (m <= best) continue;
+      const br = Math.floor(b / pw), bc = b - br * pw;
+      const cA = bc * k, cB = Math.min(w - 1, cA + k - 1);
+      for (let r = br * k; r <= Math.min(h - 1, br * k + k - 1); r++) {
+        // extremaInRadius's chord for this row, to the same rounding.
+        const ddy = y0 + (r + 0.5) * dy - py;
+        const rem = r2 - ddy * ddy;
+        if (rem < 0) continue;
+        const half = Math.sqrt(rem);
+        const ca = Math.max(cA, Math.ceil((px - half - x0) / dx - 0.5));
+        const cb = Math.min(cB, Math.floor((px + half - x0) / dx - 0.5));
+        const rb = r * w;
+        for (let c = ca; c <= cb; c++) {
+          const z = heights[rb + c];
+          if (z > best) best = z;
+        }
+      }
+    }
+    if (bad) {
+      extremaInRadius(grid, [px], [py], radiusM, one);
+      out[i] = one[0];
+    } else out[i] = best;
+  }
 }
 
 const cache = new WeakMap<DemGrid, Map<number, DemGrid>>();

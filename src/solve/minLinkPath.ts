@@ -6,6 +6,8 @@
  * - stations s_0 < s_1 < ... < s_{n-1} along a leg, each with a gate [lo_k, hi_k];
  * - the path is piecewise linear in (s, z) with vertices only at stations,
  *   starting at station 0 and ending at station n-1; vertex heights are free;
+ * - with a `vertexMask`, interior vertices only at stations whose mask is 1
+ *   (a vertex lattice, see vertexLattice); every gate is still checked;
  * - at every station the path height lies in the gate (checked with a
  *   tolerance of GATE_EPS_M, far below DEM accuracy);
  * - every segment's gradient dz/ds lies in [gMin, gMax] (gMin < 0 < gMax).
@@ -35,6 +37,12 @@
  * intervals ("pieces"), and the segments leaving one piece form a convex
  * polygon in (start height, gradient) space, clipped by two half-planes per
  * station, so the heights they reach at each later station form an interval.
+ * The work is about (sweeps per level) x (stations per segment), so a vertex
+ * lattice of q stations cuts it roughly q^2-fold.
+ *
+ * One sweep keeps the set of segments leaving its piece as two envelopes in
+ * the dual plane (StabbingLines: amortised O(1) per station) and records
+ * reached heights only at stations that may hold a vertex.
  *
  * Exact pruning keeps it near-linear: a level only sweeps from the pieces that
  * are new at the previous level (older pieces were swept already), and a

@@ -73,9 +73,10 @@ export class StabbingLines {
    * pass -Infinity or Infinity for a one-sided cut). False when none is left.
    */
   cut(d: number, lo: number, hi: number): boolean {
-    if (lo > -Infinity) this.addLower(lo, d);
-    if (hi < Infinity) this.addUpper(hi, d);
-    return this.settle();
+    // A window that cuts no kept line changes nothing: most stations of a sweep.
+    const a = lo > -Infinity && this.addLower(lo, d);
+    const b = hi < Infinity && this.addUpper(hi, d);
+    return a || b ? this.settle() : true;
   }
 
   /** Lowest height at offset d (d at least every cut's d) of the lines kept. */
@@ -90,11 +91,12 @@ export class StabbingLines {
     return this.uc[this.ut] - g * this.ud[this.ut] + g * d;
   }
 
-  private addLower(c: number, d: number): void {
+  /** Adds the lower line c - g d; false when it is nowhere above L on [gLo, gHi]. */
+  private addLower(c: number, d: number): boolean {
     const { lc, ld } = this;
     const g0 = this.gLo;
     // The new line minus L's leftmost line falls with g: below it at gLo means never above it.
-    if (c - g0 * d <= lc[this.lh] - g0 * ld[this.lh]) return;
+    if (c - g0 * d <= lc[this.lh] - g0 * ld[this.lh]) return false;
     while (this.lh <= this.lt) {
       const h = this.lh;
       const r = h < this.lt ? (lc[h] - lc[h + 1]) / (ld[h] - ld[h + 1]) : this.gHi;
@@ -104,12 +106,14 @@ export class StabbingLines {
     this.lh--;
     lc[this.lh] = c;
     ld[this.lh] = d;
+    return true;
   }
 
-  private addUpper(c: number, d: number): void {
+  /** Adds the upper line c - g d; false when it is nowhere below U on [gLo, gHi]. */
+  private addUpper(c: number, d: number): boolean {
     const { uc, ud } = this;
     const g1 = this.gHi;
-    if (c - g1 * d >= uc[this.ut] - g1 * ud[this.ut]) return;
+    if (c - g1 * d >= uc[this.ut] - g1 * ud[this.ut]) return false;
     while (this.ut >= this.uh) {
       const t = this.ut;
       const l = t > this.uh ? (uc[t - 1] - uc[t]) / (ud[t - 1] - ud[t]) : this.gLo;
@@ -119,6 +123,7 @@ export class StabbingLines {
     this.ut++;
     uc[this.ut] = c;
     ud[this.ut] = d;
+    return true;
   }
 
   /** Move gLo right and gHi left to where L <= U (L - U is convex: one interval). */
