@@ -49,6 +49,8 @@ export interface PlanOptions {
   dem: string;
   demVerticalDatum?: "egm96" | "egm2008" | "ellipsoid";
   demVerticalUnit?: "metre" | "foot" | "us-survey-foot";
+  demSurface?: "dtm" | "dsm";
+  demAccuracyM?: number;
   band: number;
   /** Absolute path. */
   area: string;
@@ -341,6 +343,8 @@ export function resolvePlanOptions(
   if (v.name !== undefined) out.name = v.name;
   if (v.demVerticalDatum !== undefined) out.demVerticalDatum = v.demVerticalDatum;
   if (v.demVerticalUnit !== undefined) out.demVerticalUnit = v.demVerticalUnit;
+  if (v.demSurface !== undefined) out.demSurface = v.demSurface;
+  if (v.demAccuracyM !== undefined) out.demAccuracyM = v.demAccuracyM;
   if (v.takeoff !== undefined) out.takeoff = [v.takeoff[0], v.takeoff[1]];
   if (v.assumeGroundM !== undefined) out.assumeGroundM = v.assumeGroundM;
   return out;

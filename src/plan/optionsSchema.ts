@@ -146,6 +146,10 @@ export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
   spec("demVerticalUnit", "--dem-vertical-unit", "enum", "Unit of the DEM heights; overrides what the file declares.", {
     choices: ["metre", "foot", "us-survey-foot"],
   }),
+  spec("demSurface", "--dem-surface", "enum", "What the DEM models: dtm (bare earth: trees and buildings missing, add an obstacle margin) or dsm (surface with them).", {
+    choices: ["dtm", "dsm"],
+  }),
+  spec("demAccuracyM", "--dem-accuracy-m", "number", "Stated vertical accuracy of the DEM, metres (e.g. 16 m LE90 for SRTM, decimetres for lidar); shown in the report.", { gte: 0 }),
   spec("band", "--band", "integer", "DEM band holding the heights, from 1.", { gte: 1, default: D.band }),
   spec("area", "--area", "path", "Site outline: GeoJSON or KML polygon in WGS84 (required)."),
 

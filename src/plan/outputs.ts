@@ -127,7 +127,8 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
       ],
     },
     assumptions: {
-      surfaceModel: "unknown",
+      surfaceModel: run.options.demSurface === "dtm" ? "DTM" : run.options.demSurface === "dsm" ? "DSM" : "unknown",
+      ...(run.options.demAccuracyM !== undefined ? { demAccuracyM: run.options.demAccuracyM } : {}),
       notes: [
         `Clearance kept: ${run.options.clearance.minM} m above the highest ground within ${run.options.clearance.safetyRadiusM} m, plus an obstacle margin of ${run.options.clearance.obstacleMarginM} m.`,
         "Global 1-arc-second DEMs err by several metres or more vertically (the SRTM requirement was 16 m at 90 %), lidar DTMs by decimetres: allow for it in the clearance.",

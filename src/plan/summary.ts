@@ -74,7 +74,7 @@ export function planSummary(run: PlanRun): PlanSummary {
   cautions.unshift(
     `Ceiling rule applied: ${run.options.ceiling.heightM} m, ${CEILING_RULES[run.options.ceiling.reference]}. Check that this is the rule where you fly.`,
   );
-  if (run.options.clearance.obstacleMarginM === 0) {
+  if (run.options.clearance.obstacleMarginM === 0 && run.options.demSurface !== "dsm") {
     cautions.push("No obstacle margin is set: if the DEM is bare earth (a DTM), clearance ignores trees and buildings; add obstacleMarginM.");
   }
   return {
