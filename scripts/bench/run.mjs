@@ -19,8 +19,9 @@
 //          --timeout S        per plan process (default 300 s; a timed-out plan is reported
 //                             with the stage it was in)
 //          --repeat N         DEM-window repeats (default 3)
+//          --table FILE       print the table of an earlier results file (no run)
 import { spawnSync } from "node:child_process";
-import { existsSync, mkdirSync, writeFileSync, renameSync } from "node:fs";
+import { existsSync, mkdirSync, writeFileSync, renameSync, readFileSync } from "node:fs";
 import { join, dirname } from "node:path";
 import { fileURLToPath } from "node:url";
 import { cpus, loadavg, totalmem } from "node:os";
@@ -46,6 +47,12 @@ const only = new Set(String(opt("only", "1,2,3,4,5")).split(",").map((s) => s.tr
 const timeoutS = Number(opt("timeout", 300));
 const repeat = Number(opt("repeat", 3));
 const log = (m) => process.stderr.write(`[bench ${new Date().toISOString().slice(11, 19)} load ${loadavg()[0].toFixed(1)}] ${m}\n`);
+
+if (opt("table")) {
+  const earlier = JSON.parse(readFileSync(opt("table"), "utf8"));
+  process.stdout.write(markdownTable(tableRows(earlier.sections)) + "\n");
+  process.exit(0);
+}
 
 if (args.includes("--build") || !existsSync(join(dist, "plan", "plan.js"))) {
   log("building dist/ (npm run build)");
@@ -185,8 +192,11 @@ function tableRows(s) {
     }
     const dv = sc.derived;
     if (dv.cpuPerKm2LargestOverSmallest !== undefined) {
-      rows.push(row("3", `CPU per km2, largest / smallest site (${fmt.x(dv.areaRatio)} area)`, fmt.x(dv.cpuPerKm2LargestOverSmallest), "linear growth: 1x", dv.cpuPerKm2LargestOverSmallest, "<= 1.2x", dv.cpuPerKm2LargestOverSmallest <= 1.2));
-      rows.push(row("3", "peak RSS growth per window byte (slope)", `${fmt.n(dv.rssBytesPerWindowByteSlope, 1)} B/B`, `window bytes ${fmt.x(dv.windowBytesRatio)}, RSS ${fmt.x(dv.peakRssRatio)}`, NaN));
+      rows.push(row("3", `CPU per km2, largest / smallest site (${fmt.x(dv.areaRatio)} area)`, fmt.x(dv.cpuPerKm2LargestOverSmallest), "1x if no fixed cost; < 1x: fixed cost", dv.cpuPerKm2LargestOverSmallest));
+      const cf = dv.cpuFit, rf = dv.rssFit, sf = dv.solveCpuFit;
+      if (cf) rows.push(row("3", "CPU = fixed + slope x area (fit)", `${fmt.s(cf.b)} per km2 + ${fmt.s(cf.a)}`, `largest residual ${fmt.pct(100 * cf.maxRelResidual)}`, NaN, "residual < 10 %", cf.maxRelResidual < 0.1));
+      if (sf) rows.push(row("3", "  solve stage CPU = fixed + slope x area (fit)", `${fmt.s(sf.b)} per km2 + ${fmt.s(sf.a)}`, `largest residual ${fmt.pct(100 * sf.maxRelResidual)}`, NaN, "residual < 10 %", sf.maxRelResidual < 0.1));
+      if (rf) rows.push(row("3", "peak RSS = fixed + slope x window bytes (fit)", `${fmt.n(rf.b, 1)} B per window byte + ${fmt.mb(rf.a)}`, `largest residual ${fmt.pct(100 * rf.maxRelResidual)}; window ${fmt.x(dv.windowBytesRatio)}, RSS ${fmt.x(dv.peakRssRatio)}`, NaN, "residual < 10 %", rf.maxRelResidual < 0.1));
       for (const [k, v] of Object.entries(dv.stageCpuPerKm2Ratio ?? {})) rows.push(row("3", `  stage ${k}: CPU per km2, largest / smallest`, fmt.x(v), "linear: 1x", v));
     }
     if (dv.largeSource) {

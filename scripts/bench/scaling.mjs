@@ -38,6 +38,13 @@ export function benchScaling({ areasKm2 = [0.5, 1, 4], largeKm2 = 1, reuse = {},
     derived.windowBytesRatio = hi.window.bytes / lo.window.bytes;
     derived.peakRssRatio = hi.peakRssBytes / lo.peakRssBytes;
     derived.rssBytesPerWindowByteSlope = (hi.peakRssBytes - lo.peakRssBytes) / (hi.window.bytes - lo.window.bytes);
+    // Straight-line fits over all cases: CPU = fixed + perKm2 * area, and peak RSS =
+    // fixed + perWindowByte * window bytes. Linear growth shows as small residuals (the
+    // fixed part is start-up, module import and whole-window passes).
+    derived.cpuFit = linearFit(done.map((c) => c.siteKm2), done.map((c) => c.cpuS));
+    derived.wallFit = linearFit(done.map((c) => c.siteKm2), done.map((c) => c.wallS));
+    derived.rssFit = linearFit(done.map((c) => c.window.bytes), done.map((c) => c.peakRssBytes));
+    derived.solveCpuFit = linearFit(done.map((c) => c.siteKm2), done.map((c) => c.stagesCpuS.solve));
     // Per-stage CPU per km2 at both ends: which stage grows faster than the area.
     derived.stageCpuPerKm2Ratio = Object.fromEntries(
       Object.keys(hi.stagesCpuS).map((k) => [k, hi.stagesCpuS[k] / hi.siteKm2 / (lo.stagesCpuS[k] / lo.siteKm2)]),
@@ -54,6 +61,20 @@ export function benchScaling({ areasKm2 = [0.5, 1, 4], largeKm2 = 1, reuse = {},
     };
   }
   return { cases: [...rows, row(large)], derived, full: [...cases, large] };
+}
+
+/**
+ * Least-squares line y = a + b x with the largest residual relative to y.
+ * @example linearFit([1, 2, 4], [3, 5, 9]) // { a: 1, b: 2, maxRelResidual: 0 }
+ */
+export function linearFit(xs, ys) {
+  const n = xs.length;
+  const mx = xs.reduce((p, v) => p + v, 0) / n, my = ys.reduce((p, v) => p + v, 0) / n;
+  let sxy = 0, sxx = 0;
+  for (let i = 0; i < n; i++) { sxy += (xs[i] - mx) * (ys[i] - my); sxx += (xs[i] - mx) ** 2; }
+  const b = sxy / sxx, a = my - b * mx;
+  const maxRelResidual = Math.max(...xs.map((x, i) => Math.abs(ys[i] - (a + b * x)) / Math.abs(ys[i])));
+  return { a, b, maxRelResidual };
 }
 
 function row(c) {
