@@ -7,7 +7,7 @@
 //   (target >= 95 %) on hilly ground whose relief is several times the band's height
 //   window; waypoints against a naive plan with one every 25 m at the target height above
 //   the ground below (target: fewer than half); waypoints per km of strip at tolerance
-//   5, 10 and 20 %, from full plans of one site here and from the solver's own benchmark
+//   5, 10 and 20 %, from full plans of the 4 km2 site here and from the solver's own benchmark
 //   (scripts/bench/solve.mjs benchSolve) on its synthetic terrain.
 //
 // Usage: npm run build && node scripts/bench/baseline.mjs   (prints one JSON object)
@@ -21,10 +21,10 @@ const here = dirname(fileURLToPath(import.meta.url));
 
 /**
  * Quality figures from a measured 4 km2 plan (`plan`, from benchPlan) plus a tolerance
- * sweep on a 1 km2 site (`sweep10` is the 10 % case if already measured).
+ * sweep on a `sweepKm2` site (`sweep10` is its 10 % case if already measured).
  * @example const q = benchQuality({ plan: benchPlan({ areaKm2: 4 }) }); q.constantAltitude.ours.withinBandPct
  */
-export function benchQuality({ plan, sweep10, sweepKm2 = 1, timeoutS = 300, solverTimeoutS = 300, log = () => {} } = {}) {
+export function benchQuality({ plan, sweep10, sweepKm2 = 4, timeoutS = 300, solverTimeoutS = 300, log = () => {} } = {}) {
   const out = {};
   if (plan && !plan.timedOut) {
     const p = plan.plan;
@@ -55,12 +55,13 @@ export function benchQuality({ plan, sweep10, sweepKm2 = 1, timeoutS = 300, solv
     };
   }
 
-  // Tolerance sweep over full plans of the same 1 km2 site.
+  // Tolerance sweep over full plans of one site (the same ground as the main plan).
   out.toleranceSweep = [5, 10, 20].map((tol) => {
     const r = tol === 10 && sweep10 ? sweep10 : (log(`quality: ${sweepKm2} km2 plan at ${tol} % tolerance`), benchPlan({ areaKm2: sweepKm2, overrides: { target: { tolerancePct: tol } }, timeoutS, gdalRepeat: 1 }));
-    if (r.timedOut) return { tolerancePct: tol, timedOut: true, stuckIn: r.stuckIn };
+    if (r.timedOut) return { tolerancePct: tol, siteKm2: sweepKm2, timedOut: true, stuckIn: r.stuckIn };
     return {
       tolerancePct: tol,
+      siteKm2: r.siteKm2,
       stripKm: r.plan.stripKm,
       waypointsStrips: r.plan.waypoints.strips,
       waypointsPerKmStrip: r.plan.waypoints.perKmStrip,
@@ -88,6 +89,7 @@ export function benchQuality({ plan, sweep10, sweepKm2 = 1, timeoutS = 300, solv
 if (process.argv[1] && pathToFileURL(process.argv[1]).href === import.meta.url) {
   const log = (m) => process.stderr.write(m + "\n");
   log("quality: 4 km2 plan");
-  const r = benchQuality({ plan: benchPlan({ areaKm2: 4, timeoutS: 900 }), log });
+  const plan = benchPlan({ areaKm2: 4, timeoutS: 900 });
+  const r = benchQuality({ plan, sweep10: plan, log });
   process.stdout.write(JSON.stringify(r, null, 2) + "\n");
 }

@@ -20,10 +20,13 @@
 //                             with the stage it was in)
 //          --repeat N         DEM-window repeats (default 3)
 //          --table FILE       print the table of an earlier results file (no run)
+//          --live-dist        measure dist/ itself instead of a copy taken at the start
+//                             (by default the plan and assessment processes run a snapshot
+//                             of dist/, so a rebuild during the run cannot mix versions)
 import { spawnSync } from "node:child_process";
-import { existsSync, mkdirSync, writeFileSync, renameSync, readFileSync } from "node:fs";
+import { existsSync, mkdirSync, writeFileSync, renameSync, readFileSync, cpSync, rmSync } from "node:fs";
 import { join, dirname } from "node:path";
-import { fileURLToPath } from "node:url";
+import { fileURLToPath, pathToFileURL } from "node:url";
 import { cpus, loadavg, totalmem } from "node:os";
 import { runDemWindowBench } from "./dem-window.mjs";
 import { benchPlan } from "./plan.mjs";
@@ -35,7 +38,7 @@ import { fmt, row, markdownTable } from "./lib/table.mjs";
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, "..", "..");
-const dist = process.env.GSDPLAN_DIST ?? join(root, "dist");
+let dist = process.env.GSDPLAN_DIST ?? join(root, "dist");
 const GB = 2 ** 30;
 
 const args = process.argv.slice(2);
@@ -63,11 +66,29 @@ if (args.includes("--build") || !existsSync(join(dist, "plan", "plan.js"))) {
   }
 }
 
+// Snapshot of the build, inside the repository so its imports still find node_modules.
+// (dem-window.mjs and solve.mjs import ../../dist themselves and read the live build.)
+let snapshot;
+if (!args.includes("--live-dist") && !process.env.GSDPLAN_DIST) {
+  snapshot = join(root, "node_modules", ".cache", "gsdplan-bench", "dist");
+  rmSync(snapshot, { recursive: true, force: true });
+  mkdirSync(dirname(snapshot), { recursive: true });
+  cpSync(dist, snapshot, { recursive: true });
+  dist = snapshot;
+  process.env.GSDPLAN_DIST = snapshot;
+}
+// Fail early, with the reason, when the build does not load.
+const check = spawnSync(process.execPath, ["--input-type=module", "-e", `await import(${JSON.stringify(pathToFileURL(join(dist, "plan", "outputs.js")).href)}); await import(${JSON.stringify(pathToFileURL(join(dist, "plan", "options.js")).href)});`], { encoding: "utf8" });
+if (check.status !== 0) {
+  process.stderr.write(`bench: the build in ${dist} does not load (rebuild with --build):\n${check.stderr.split("\n").slice(0, 8).join("\n")}\n`);
+  process.exit(1);
+}
+
 const startedAt = new Date();
 const results = {
   startedAt: startedAt.toISOString(),
   machine: { cpus: cpus().length, cpuModel: cpus()[0]?.model, totalMemBytes: totalmem(), node: process.version, loadAverageAtStart: loadavg() },
-  options: { sections: [...only], timeoutS, repeat },
+  options: { sections: [...only], timeoutS, repeat, dist: snapshot ? "snapshot of dist/ taken at the start" : dist },
   sections: {},
 };
 mkdirSync(join(here, "results"), { recursive: true });
@@ -75,7 +96,7 @@ const stamp = startedAt.toISOString().replace(/[:]/g, "-").replace(/\.\d+Z$/, "Z
 const outFile = join(here, "results", `${stamp}.json`);
 /** Saves after every section, so an interrupted run still leaves what it measured. */
 function save() {
-  const tmp = outFile + ".part";
+  const tmp = outFile + ".tmp";
   writeFileSync(tmp, JSON.stringify(results, null, 2) + "\n");
   renameSync(tmp, outFile);
 }
@@ -128,9 +149,10 @@ if (only.has("3")) {
   });
 }
 if (only.has("4")) {
-  attempt("quality", () => benchQuality({ plan: usable({ p: plan4 }).p, sweep10: usable({ p: plan1 }).p, sweepKm2: 1, timeoutS, solverTimeoutS: timeoutS, log }));
+  attempt("quality", () => benchQuality({ plan: usable({ p: plan4 }).p, sweep10: usable({ p: plan4 }).p, sweepKm2: 4, timeoutS, solverTimeoutS: timeoutS, log }));
 }
 
+if (snapshot) rmSync(snapshot, { recursive: true, force: true });
 results.finishedAt = new Date().toISOString();
 results.totalSeconds = (Date.now() - startedAt.getTime()) / 1000;
 results.table = tableRows(results.sections);
@@ -224,16 +246,20 @@ function tableRows(s) {
       rows.push(row("4", "strip waypoints vs naive (every 25 m)", fmt.n(sq.waypointsStrips), `naive ${fmt.n(sq.naiveWaypoints25m)}`, sq.oursOverNaive, "< 0.5x", sq.oursOverNaive < 0.5));
     }
     for (const t of q.toleranceSweep ?? []) {
-      if (t.timedOut) rows.push(row("4", `1 km2 site at ${t.tolerancePct} %`, `timed out in ${t.stuckIn}`, "", NaN, "", false));
-      else rows.push(row("4", `1 km2 site at tolerance ${t.tolerancePct} %: waypoints per km`, fmt.n(t.waypointsPerKmStrip, 2), `within band ${fmt.pct(t.withinBandPct)}, solve CPU ${fmt.s(t.solveCpuS)}`, NaN));
+      if (t.timedOut) rows.push(row("4", `${t.siteKm2 ?? "?"} km2 site at ${t.tolerancePct} %`, `timed out in ${t.stuckIn}`, "", NaN, "", false));
+      else rows.push(row("4", `${fmt.n(t.siteKm2, 0)} km2 site at tolerance ${t.tolerancePct} %: waypoints per km`, fmt.n(t.waypointsPerKmStrip, 2), `within band ${fmt.pct(t.withinBandPct)}, solve CPU ${fmt.s(t.solveCpuS)}`, NaN));
     }
     const sb = q.solverBench;
     if (sb?.error) rows.push(row("4", "solver benchmark (solve.mjs)", `FAILED: ${sb.error.slice(0, 80)}`));
     else if (sb?.timedOut) rows.push(row("4", "solver benchmark (solve.mjs)", `timed out after ${sb.timeoutS} s (${fmt.s(sb.cpuS)} CPU)`, "", NaN, "< 2 s", false));
     else if (sb?.result) {
       for (const t of sb.result.byTolerance ?? []) {
-        rows.push(row("4", `solve.mjs at ${t.tolerancePct} %: waypoints per km / solve time`, `${fmt.n(t.waypointsPerKmStrip, 1)} / ${fmt.s(t.solveS)}`, `${fmt.n(sb.result.stripKm, 1)} km of strips`, NaN, "solve < 2 s", t.solveS < 2));
-        if (t.naive) rows.push(row("4", "solve.mjs naive plan (25 m) waypoints", fmt.n(t.naive.waypoints), `ours ${fmt.n(t.waypoints)}`, t.waypoints / t.naive.waypoints, "< 0.5x", t.waypoints / t.naive.waypoints < 0.5));
+        const cpu = Number.isFinite(t.cpuS) ? ` (${fmt.s(t.cpuS)} CPU)` : "";
+        rows.push(row("4", `solve.mjs at ${t.tolerancePct} %: waypoints per km / solve time`, `${fmt.n(t.waypointsPerKmStrip, 1)} / ${fmt.s(t.solveS)}${cpu}`, `${fmt.n(sb.result.stripKm, 1)} km of strips`, NaN, "solve < 2 s", t.solveS < 2));
+        if (t.naive) rows.push(row("4", "solve.mjs naive plan (25 m) waypoints", fmt.n(t.naive.waypoints), `ours ${fmt.n(t.waypointsStrips ?? t.waypoints)}`, (t.waypointsStrips ?? t.waypoints) / t.naive.waypoints, "< 0.5x", (t.waypointsStrips ?? t.waypoints) / t.naive.waypoints < 0.5));
+      }
+      for (const m of sb.result.memory ?? []) {
+        rows.push(row("4", `solve.mjs memory: ${m.strips} strips (${fmt.n(m.stripKm, 1)} km)`, `peak RSS ${fmt.n(m.peakRssMB)} MB`, `before the solve ${fmt.n(m.peakRssBeforeSolveMB)} MB`, m.peakRssMB / m.peakRssBeforeSolveMB));
       }
     }
   }
