@@ -92,7 +92,8 @@ class Growable {
  * Fewest-segment profile through gates [lo, hi] at stations s with gradients
  * in [gMin, gMax]. `prefM` (optional) picks, among the optimal paths the
  * back-tracking meets, vertex heights closest to a preferred height.
- * Returns null when no path exists.
+ * Returns null when no path exists; `failure.furthestStation` then tells the
+ * furthest station any segment reached (where a vertex lattice fell short).
  * @example
  * minLinkPath(Float64Array.of(0, 10, 20), Float64Array.of(0, 0, 0), Float64Array.of(1, 1, 1), -0.5, 0.5)
  * // { vertexStation: [0, 2], vertexHeightM: [..], segments: 1 }
@@ -105,6 +106,7 @@ export function minLinkPath(
   gMax: number,
   prefM?: Float64Array,
   vertexMask?: Uint8Array,
+  failure?: { furthestStation: number },
 ): MinLinkPath | null {
   const n = s.length;
   if (n === 0) return null;
@@ -130,10 +132,15 @@ export function minLinkPath(
   let candNext = new Int32Array(256);
   const touched: number[] = [];
   const sweep = new StabbingLines(n);
+  // Furthest station any segment reached: where a lattice search got stuck.
+  let furthest = 0;
 
   let level = 0;
   while (union[n - 1] === null) {
-    if (frontier.length === 0) return null;
+    if (frontier.length === 0) {
+      if (failure) failure.furthestStation = furthest;
+      return null;
+    }
     level++;
     cand.length = 0;
     for (const p of frontier) {
@@ -144,6 +151,7 @@ export function minLinkPath(
       for (let m = j + 1; m < n; m++) {
         const d = s[m] - sj;
         if (!sweep.cut(d, lo[m] - eps, hi[m] + eps)) break;
+        if (m > furthest) furthest = m;
         // Off the vertex lattice the gate is checked but no vertex may sit here.
         if (vertexMask !== undefined && m !== n - 1 && vertexMask[m] === 0) continue;
         let zMin = sweep.minAt(d), zMax = sweep.maxAt(d);
@@ -329,26 +337,84 @@ function clamp(v: number, a: number, b: number): number {
 
 /**
  * Vertex mask for minLinkPath: 1 at the first station at or past each
- * multiple of `stepM` along the leg, at both ends, and at both ends of every
- * run of `pinned` stations (gates squeezed to one height, where the path
- * chases the band at a limit gradient and must be free to turn where the
- * squeeze ends). Returns undefined when every station qualifies anyway.
+ * multiple of `stepM` along the leg, at both ends, and, given the gates and
+ * gradient limits, at both ends of every run where a gate bound is forced by
+ * its neighbour at a limit gradient (hi_j = hi_{j-1} + gMax d, lo_j = lo_{j-1}
+ * + gMin d, or the same backwards): there the only heights that pass are on
+ * one limit-gradient line, and a path can only follow it with a vertex where
+ * the line starts and ends. Returns undefined when every station qualifies.
  * @example vertexLattice(Float64Array.of(0, 0.5, 1, 1.5, 2, 2.5), 1) // [1, 0, 1, 0, 1, 1]
  */
-export function vertexLattice(s: Float64Array, stepM: number, pinned?: Uint8Array): Uint8Array | undefined {
+export function vertexLattice(
+  s: Float64Array, stepM: number, gates?: { lo: Float64Array; hi: Float64Array; gMin: number; gMax: number },
+): Uint8Array | undefined {
   const n = s.length;
   if (!(stepM > 0) || n < 3) return undefined;
   const mask = new Uint8Array(n);
   let next = 0;
-  let all = true;
   for (let k = 0; k < n; k++) {
     if (s[k] >= next - 1e-9 * stepM) {
       mask[k] = 1;
       next = (Math.floor(s[k] / stepM + 1e-9) + 1) * stepM;
     }
-    if (pinned && pinned[k] && (k === 0 || !pinned[k - 1] || k === n - 1 || !pinned[k + 1])) mask[k] = 1;
-    if (!mask[k]) all = false;
   }
   mask[n - 1] = 1;
-  return all ? undefined : mask;
+  if (gates) {
+    const { lo, hi, gMin, gMax } = gates;
+    // forced[j] bit 1..4: bound at j forced from j-1 (hi, lo) or from j+1 (hi, lo).
+    const forced = new Uint8Array(n);
+    const tol = 1e-9;
+    for (let j = 1; j < n; j++) {
+      const d = s[j] - s[j - 1];
+      if (Math.abs(hi[j] - (hi[j - 1] + gMax * d)) <= tol) forced[j] |= 1;
+      if (Math.abs(lo[j] - (lo[j - 1] + gMin * d)) <= tol) forced[j] |= 2;
+      if (Math.abs(hi[j - 1] - (hi[j] - gMin * d)) <= tol) forced[j - 1] |= 4;
+      if (Math.abs(lo[j - 1] - (lo[j] - gMax * d)) <= tol) forced[j - 1] |= 8;
+    }
+    for (let j = 0; j < n; j++) {
+      const f = forced[j];
+      if (!f) continue;
+      // forward chains start at the station before their first forced one and end at their last
+      if (j > 0 && f & ~forced[j - 1] & 3) mask[j - 1] = 1;
+      if (j + 1 < n && f & ~forced[j + 1] & 3) mask[j] = 1;
+      // backward chains start at the station after their last forced one and end at their first
+      if (j + 1 < n && f & ~forced[j + 1] & 12) mask[j + 1] = 1;
+      if (j > 0 && f & ~forced[j - 1] & 12) mask[j] = 1;
+    }
+  }
+  for (let k = 0; k < n; k++) if (!mask[k]) return mask;
+  return undefined;
+}
+
+/**
+ * minLinkPath with waypoints on a vertex lattice of `stepM` (vertexLattice,
+ * with the forced-run ends of these gates), refined where it admits no path.
+ * Where the corridor pinches (a rising floor under a convex ceiling) the only
+ * lines through it may start within a metre or two, between lattice
+ * stations: every station is opened over a stretch around the place the
+ * search got stuck (mostly before it), doubling the stretch until a path is
+ * found (at worst every station is open after log2(length / stepM) tries). With every
+ * station open this is minLinkPath itself, so a path is found whenever one
+ * exists under the every-station model. The result is the fewest segments
+ * with interior vertices on the final (refined) lattice.
+ * @example minLinkPathOnLattice(s, lo, hi, -0.3, 0.3, 5).segments
+ */
+export function minLinkPathOnLattice(
+  s: Float64Array, lo: Float64Array, hi: Float64Array, gMin: number, gMax: number, stepM: number, prefM?: Float64Array,
+): MinLinkPath | null {
+  const n = s.length;
+  let mask = vertexLattice(s, stepM, { lo, hi, gMin, gMax });
+  const failure = { furthestStation: 0 };
+  let path = minLinkPath(s, lo, hi, gMin, gMax, prefM, mask, failure);
+  for (let widenM = 4 * stepM; !path && mask; widenM *= 2) {
+    const f = failure.furthestStation;
+    let all = true;
+    for (let k = 0; k < n; k++) {
+      if (s[k] >= s[f] - widenM && s[k] <= s[f] + widenM / 4) mask[k] = 1;
+      if (!mask[k]) all = false;
+    }
+    if (all) mask = undefined;
+    path = minLinkPath(s, lo, hi, gMin, gMax, prefM, mask, failure);
+  }
+  return path;
 }

@@ -3,7 +3,7 @@ import { InputError } from "../errors.js";
 import type { LayoutLeg, XY } from "../layout/types.js";
 import { corridorAlong } from "./corridor.js";
 import { gradientLimits, segmentSpeed } from "./gradient.js";
-import { minLinkPath, vertexLattice } from "./minLinkPath.js";
+import { minLinkPathOnLattice } from "./minLinkPath.js";
 import { stationsAlongLeg } from "./stations.js";
 import { hardEnvelope, targetGates } from "./targetGates.js";
 import {
@@ -233,11 +233,7 @@ function solvePiece(
     else { envelopeCut[k] = 1; tLo[k] = eLo[k]; tHi[k] = Math.min(eHi[k], eLo[k] + bandWidthM); }
   }
   const gates = targetGates(prof.s, eLo, eHi, tLo, tHi, gMin, gMax);
-  const mask = vertexLattice(prof.s, vertexStepOf(opts), gates.offTarget);
-  let path = minLinkPath(prof.s, gates.lo, gates.hi, gMin, gMax, pref, mask);
-  // The lattice can, in principle, miss a path that needs a vertex between its
-  // stations; then every station may hold a vertex (the gates always admit one).
-  if (!path && mask) path = minLinkPath(prof.s, gates.lo, gates.hi, gMin, gMax, pref);
+  const path = minLinkPathOnLattice(prof.s, gates.lo, gates.hi, gMin, gMax, vertexStepOf(opts), pref);
   if (!path) throw new Error(`solver: no path through the gates of strip ${p.strip} (internal error)`);
   const alt = prof.altitudeM;
   for (let v = 0; v + 1 < path.vertexStation.length; v++) {

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { minLinkPath, vertexLattice, GATE_EPS_M } from "../../src/solve/minLinkPath.js";
+import { minLinkPath, minLinkPathOnLattice, vertexLattice, GATE_EPS_M } from "../../src/solve/minLinkPath.js";
 
 /*
  * Exhaustive reference under the same model as minLinkPath (vertices at
@@ -159,12 +159,42 @@ describe("minLinkPath: fewest segments under the station-vertex model", () => {
   });
 });
 
+describe("minLinkPathOnLattice: a coarse lattice, refined where it admits no path", () => {
+  it("finds a path whenever the every-station model has one, never fewer segments, and stays in the corridor (property)", () => {
+    // Corridors of 8 stations 1 m apart with a 3 m lattice (stations 0, 3, 6, 7):
+    // the lattice alone often admits no path through them.
+    let refined = 0;
+    fc.assert(
+      fc.property(corridorArb, (c) => {
+        const { s, lo, hi, gMin, gMax } = build({ ...c, n: 8 });
+        const every = minLinkPath(Float64Array.from(s), Float64Array.from(lo), Float64Array.from(hi), gMin, gMax);
+        const lat = minLinkPathOnLattice(Float64Array.from(s), Float64Array.from(lo), Float64Array.from(hi), gMin, gMax, 3);
+        if (every === null) return lat === null;
+        if (lat === null || lat.segments < every.segments) return false;
+        checkPath(lat, s, lo, hi, gMin, gMax);
+        const bare = minLinkPath(Float64Array.from(s), Float64Array.from(lo), Float64Array.from(hi), gMin, gMax, undefined, vertexLattice(Float64Array.from(s), 3));
+        if (bare === null) refined++;
+        return true;
+      }),
+      { numRuns: 300, seed: 5 },
+    );
+    // the refinement itself was exercised
+    expect(refined).toBeGreaterThan(0);
+  });
+});
+
 describe("vertexLattice", () => {
-  it("marks the first station at or past each multiple of the step, both ends, and both ends of pinned runs", () => {
+  it("marks the first station at or past each multiple of the step, both ends, and both ends of forced runs", () => {
     const s = Float64Array.from({ length: 13 }, (_, i) => i * 0.5); // 0 .. 6 m
     expect(Array.from(vertexLattice(s, 2)!)).toEqual([1, 0, 0, 0, 1, 0, 0, 0, 1, 0, 0, 0, 1]);
-    const pinned = Uint8Array.from([0, 0, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0, 0]);
-    expect(Array.from(vertexLattice(s, 2, pinned)!)).toEqual([1, 0, 1, 0, 1, 0, 0, 0, 1, 0, 0, 0, 1]);
+    // Gates [0, 10] except stations 3..5, squeezed onto the line z = 2 + 1 * (s - 1)
+    // (gradient limit 1): the upper bounds 3..5 follow station 2's at the climb
+    // limit (a forward run from 2 to 5), and the lower bounds 3..4 are station
+    // 5's less the climb limit (a backward run from 5 to 3): stations 2, 3, 5.
+    const lo = new Float64Array(13), hi = new Float64Array(13).fill(10);
+    for (const k of [3, 4, 5]) lo[k] = hi[k] = 2 + (s[k] - 1);
+    hi[2] = 2;
+    expect(Array.from(vertexLattice(s, 2, { lo, hi, gMin: -1, gMax: 1 })!)).toEqual([1, 0, 1, 1, 1, 1, 0, 0, 1, 0, 0, 0, 1]);
     // a step no coarser than the stations: every station, no mask needed
     expect(vertexLattice(s, 0.5)).toBeUndefined();
   });
