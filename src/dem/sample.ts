@@ -163,6 +163,9 @@ export function extremaInOrientedRect(
   const extX = Math.abs(ax) * halfAlongM + Math.abs(bx) * halfAcrossM;
   const extY = Math.abs(ay) * halfAlongM + Math.abs(by) * halfAcrossM;
   const eps = 1e-9;
+  const hA = halfAlongM + eps;
+  const hC = halfAcrossM + eps;
+  const span = new Float64Array(2);
   for (let i = 0; i < xs.length; i++) {
     const px = xs[i];
     const py = ys[i];
@@ -182,16 +185,27 @@ export function extremaInOrientedRect(
     const rHi = Math.floor((py - extY - y0) / dy - 0.5);
     for (let r = rLo; r <= rHi && !bad; r++) {
       const ry = y0 + (r + 0.5) * dy - py;
-      for (let c = cLo; c <= cHi; c++) {
-        const rx = x0 + (c + 0.5) * dx - px;
-        const along = rx * ax + ry * ay;
-        const across = rx * bx + ry * by;
-        if (Math.abs(along) > halfAlongM + eps || Math.abs(across) > halfAcrossM + eps) continue;
-        if (r < 0 || r >= h || c < 0 || c >= w) {
-          bad = true;
-          break;
-        }
-        const z = heights[r * w + c];
+      // The cells of this row inside the rectangle form one run (the rectangle is convex
+      // and the rounded offsets are monotone in c): estimate its ends analytically, then
+      // settle them with the exact test, so the cells in between need no test (the test
+      // per cell of the bounding box was most of the solver's corridor time).
+      span[0] = -Infinity;
+      span[1] = Infinity;
+      clipSpan(ax, ry * ay, hA, span);
+      clipSpan(bx, ry * by, hC, span);
+      if (span[0] > span[1]) continue;
+      let ca = Math.max(cLo, Math.ceil((px + span[0] - x0) / dx - 0.5) - 2);
+      let cb = Math.min(cHi, Math.floor((px + span[1] - x0) / dx - 0.5) + 2);
+      while (ca <= cb && !insideRect(x0 + (ca + 0.5) * dx - px, ry, ax, ay, bx, by, hA, hC)) ca++;
+      while (cb >= ca && !insideRect(x0 + (cb + 0.5) * dx - px, ry, ax, ay, bx, by, hA, hC)) cb--;
+      if (ca > cb) continue;
+      if (r < 0 || r >= h || ca < 0 || cb >= w) {
+        bad = true;
+        break;
+      }
+      const base = r * w;
+      for (let c = ca; c <= cb; c++) {
+        const z = heights[base + c];
         if (z !== z) {
           bad = true;
           break;
@@ -203,6 +217,23 @@ export function extremaInOrientedRect(
     outMax[i] = bad ? NaN : mx;
     outMin[i] = bad ? NaN : mn;
   }
+}
+
+/** The exact membership test of extremaInOrientedRect (cell centre offset rx, ry). */
+function insideRect(rx: number, ry: number, ax: number, ay: number, bx: number, by: number, hA: number, hC: number): boolean {
+  return Math.abs(rx * ax + ry * ay) <= hA && Math.abs(rx * bx + ry * by) <= hC;
+}
+
+/**
+ * Narrows span [lo, hi] to the offsets rx with |rx * a + k| <= hh. Only an estimate, settled
+ * by insideRect; a near-zero `a` leaves the span to that exact test.
+ */
+function clipSpan(a: number, k: number, hh: number, span: Float64Array): void {
+  if (Math.abs(a) < 1e-12) return;
+  const p = (-hh - k) / a;
+  const q = (hh - k) / a;
+  span[0] = Math.max(span[0], Math.min(p, q));
+  span[1] = Math.min(span[1], Math.max(p, q));
 }
 
 const DEFAULT_CRS: CrsInfo = {
