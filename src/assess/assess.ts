@@ -26,6 +26,8 @@ export interface AssessOptions {
   minImages?: number;
   /** Across-track half-width of each station's zone (half the strip spacing), metres. */
   zoneHalfAcrossM: number;
+  /** Vectorise the flags into polygons (default true); a comparison run may skip it. */
+  polygons?: boolean;
   /** Local frame to WGS84 for the flag polygons. */
   toWgs84: ToWgs84;
   /** Where the first photo of each strip falls (see exposuresFromLegs). */
@@ -72,7 +74,7 @@ export function assessPlan(
 
   const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
   const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip });
-  const polygons = flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
+  const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { width, height, transform, gsdCm, images, flags, inSite, nadirStrip },
     stats,

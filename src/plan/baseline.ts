@@ -76,6 +76,8 @@ export function constantAltitudeBaseline(
     zoneHalfAcrossM: layout.spacingM / 2,
     toWgs84: o.toWgs84,
     nadirBy: "distance",
+    // Only its figures are compared; its flags are not drawn.
+    polygons: false,
   });
   const s = assessment.stats;
   return {

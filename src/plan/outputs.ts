@@ -13,7 +13,7 @@ import { planGpx } from "../export/gpx.js";
 import { assessmentGeoTiffs } from "../export/geotiffRasters.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { renderReport } from "../report/render.js";
-import { serializeReportInput } from "../report/serialize.js";
+import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import type { ReportInput } from "../report/model.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "../report/histogram.js";
 import type { LocalFrame } from "../geo/frame.js";
@@ -60,6 +60,9 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     return tiffs[name];
   };
   const report = reportInput(run, summary, meta);
+  // Both report files block-reduce the same rasters: do it once.
+  let compact: ReportInput | undefined;
+  const compactReport = () => (compact ??= compactReportInput(report));
   const files: OutputFile[] = [
     { name: "waypoints.csv", data: waypointsCsv(rows) },
     { name: "plan.geojson", data: () => JSON.stringify(planGeoJson(exportInput)) + "\n" },
@@ -69,8 +72,8 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     { name: "images.tif", data: tiff("images.tif") },
     { name: "flags.tif", data: tiff("flags.tif") },
     { name: "summary.json", data: JSON.stringify(summary, null, 2) + "\n" },
-    { name: "report-data.json", data: () => serializeReportInput(report) },
-    { name: "report.html", data: () => renderReport(report) },
+    { name: "report-data.json", data: () => serializeReportInput(compactReport()) },
+    { name: "report.html", data: () => renderReport(compactReport()) },
   ];
   return { files, summary };
 }
