@@ -259,7 +259,10 @@ function tableRows(s) {
         if (t.naive) rows.push(row("4", "solve.mjs naive plan (25 m) waypoints", fmt.n(t.naive.waypoints), `ours ${fmt.n(t.waypointsStrips ?? t.waypoints)}`, (t.waypointsStrips ?? t.waypoints) / t.naive.waypoints, "< 0.5x", (t.waypointsStrips ?? t.waypoints) / t.naive.waypoints < 0.5));
       }
       for (const m of sb.result.memory ?? []) {
-        rows.push(row("4", `solve.mjs memory: ${m.strips} strips (${fmt.n(m.stripKm, 1)} km)`, `peak RSS ${fmt.n(m.peakRssMB)} MB`, `before the solve ${fmt.n(m.peakRssBeforeSolveMB)} MB`, m.peakRssMB / m.peakRssBeforeSolveMB));
+        // Field names as solve.mjs writes them (older versions: peakRssMB; newer: solvePeakOverBaseMB).
+        const growth = m.solvePeakOverBaseMB;
+        const txt = Number.isFinite(growth) ? `solve adds ${fmt.n(growth)} MB at peak` : `peak RSS ${fmt.n(m.peakRssMB)} MB`;
+        rows.push(row("4", `solve.mjs memory: ${m.strips} strips (${fmt.n(m.stripKm, 1)} km)`, txt, `DEM alone ${fmt.n(m.rssAfterDemMB)} MB`, NaN, "linear in strip km"));
       }
     }
   }
