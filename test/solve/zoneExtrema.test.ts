@@ -1,0 +1,43 @@
+import { describe, it, expect } from "vitest";
+import { extremaInOrientedRect, makeGrid } from "../../src/dem/sample.js";
+import { zoneExtremaAlongLine } from "../../src/solve/zoneExtrema.js";
+import { stationsAlongLeg } from "../../src/solve/stations.js";
+
+/*
+ * Reference: extremaInOrientedRect (src/dem/sample.ts), which tests every cell
+ * of each zone's bounding box. The sliding version must give the same maxima
+ * and minima (same cells: equality, not a tolerance), NaN included.
+ */
+describe("zoneExtremaAlongLine equals the per-station rectangle scan", () => {
+  const cases: [string, [number, number], [number, number], number, number, number][] = [
+    // name, from, to, station step, half along, half across
+    ["north-south on cell centres, default zone", [100.25, 20.25], [100.25, 180.25], 0.5, 0.25, 20],
+    // zone edges exactly on cell centres, along (rows at +-0.25 m) and across (columns at +-20 m)
+    ["north-south between cell centres, edges on cell centres", [100.25, 20], [100.25, 180], 0.5, 0.25, 20],
+    ["east-west, edges on cell centres, long zone", [20, 100.25], [180, 100.25], 0.5, 10.25, 15],
+    ["east-west, half a photo spacing along", [15.1, 99.7], [185.3, 99.7], 0.5, 11.9, 24],
+    ["oblique 30 degrees", [30, 30], [30 + 140 * Math.cos(Math.PI / 6), 30 + 140 * Math.sin(Math.PI / 6)], 0.5, 6.3, 17.5],
+    ["oblique 135 degrees, leaving the grid", [190, 10], [40, 160], 0.7, 9, 30],
+    ["diagonal, integer offsets", [20, 20], [180, 180], 0.5, 12, 20],
+  ];
+  for (const [name, from, to, step, ha, hc] of cases) {
+    it(name, () => {
+      let seed = 99;
+      const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+      const grid = makeGrid({ width: 400, height: 400, x0: 0, y0: 200, cellM: 0.5, heights: (x, y) => 30 * Math.sin(x / 13) * Math.cos(y / 9) + 5 * rnd() });
+      for (let k = 0; k < 30; k++) grid.heights[Math.floor(rnd() * grid.heights.length)] = NaN;
+      const len = Math.hypot(to[0] - from[0], to[1] - from[1]);
+      const st = stationsAlongLeg({ kind: "strip", strip: 1, from, to, lengthM: len }, step, hc, ha);
+      const n = st.s.length;
+      const wMax = new Float64Array(n), wMin = new Float64Array(n), gMax = new Float64Array(n), gMin = new Float64Array(n);
+      extremaInOrientedRect(grid, st.x, st.y, st.ux, st.uy, ha, hc, wMax, wMin);
+      zoneExtremaAlongLine(grid, st.x, st.y, st.ux, st.uy, ha, hc, gMax, gMin);
+      let nan = 0;
+      for (let i = 0; i < n; i++) {
+        if (Number.isNaN(wMax[i])) nan++;
+        expect([i, gMax[i], gMin[i]]).toEqual([i, wMax[i], wMin[i]]);
+      }
+      expect(nan).toBeLessThan(n); // the comparison is not all NaN
+    });
+  }
+});
