@@ -25,7 +25,7 @@ import { siteFromLonLat } from "../layout/site.js";
 import { siteCoverage } from "../layout/coverage.js";
 import { layoutStrips } from "../layout/strips.js";
 import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
-import { solvePlan } from "../solve/solveLegs.js";
+import { solvePlan, solveTransit } from "../solve/solveLegs.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan } from "../assess/assess.js";
@@ -154,6 +154,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   warnings.push(...solve.warnings);
   carryNoPhotoIntervals(solve.legs, layout.legs);
 
+  const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
   const flights = splitFlights(solve.legs, {
     takeoff: layout.takeoff,
     enduranceMin: options.aircraft.enduranceMin,
@@ -163,9 +164,11 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     maxDescentMps: options.aircraft.maxDescentMps,
     takeoffGroundM: takeoffGround,
     // New legs to and from take-off go through the same solver, so they keep clearance.
-    transitLeg: (from, to, strip) => transitThroughSolver(grid, from, to, strip, solverOptions),
+    transitLeg: (from, to, strip, direction) => transitThroughSolver(grid, from, to, strip, direction, solve.legs, solverOptions, transitWarnings),
   });
   warnings.push(...flights.warnings);
+  // Flight splitting tries legs it then drops: only the warnings of legs flown count.
+  for (const leg of flights.flights.flatMap((f) => f.legs)) warnings.push(...(transitWarnings.get(leg) ?? []));
   const budget = waypointBudgetCheck(grid, layout, flights, solverOptions, options.aircraft.maxWaypoints, options.target.tolerancePct);
   warnings.push(...budget.warnings);
   lap("solve");
@@ -433,14 +436,35 @@ function groundAt(grid: DemGrid, xy: XY, assumeGroundM?: number): number {
   return Number.isFinite(z) ? z : (assumeGroundM ?? NaN);
 }
 
-function transitThroughSolver(grid: DemGrid, from: XY, to: XY, strip: number, opts: SolverOptions): SolvedLeg {
+/**
+ * A leg to or from take-off, solved over the terrain with its strip end pinned
+ * to the solved path's height there ("out": it ends at the height the next
+ * strip starts at; "back": it starts at the height the last leg ended at), so
+ * the flight has no unannounced step in height where the legs join.
+ */
+function transitThroughSolver(
+  grid: DemGrid, from: XY, to: XY, strip: number, direction: "out" | "back", solved: readonly SolvedLeg[], opts: SolverOptions,
+  warningsOf: WeakMap<SolvedLeg, SolveWarning[]>,
+): SolvedLeg {
   const lengthM = Math.hypot(to[0] - from[0], to[1] - from[1]);
   const leg: LayoutLeg = { kind: "transit", strip, from, to, lengthM };
-  const solved = solvePlan(grid, [leg], opts).legs;
-  if (solved.length === 1) return solved[0];
-  // A transit is always one leg; if the solver returned pieces, join them.
-  const waypoints = solved.flatMap((l, i) => (i === 0 ? l.waypoints : l.waypoints.slice(1)));
-  return { ...solved[0], to, waypoints, lengthM, timeS: solved.reduce((a, l) => a + l.timeS, 0) };
+  const startAltM = direction === "back" ? joinHeightM(solved, from, "end") : undefined;
+  const endAltM = direction === "out" ? joinHeightM(solved, to, "start") : undefined;
+  const r = solveTransit(grid, leg, opts, startAltM, endAltM);
+  warningsOf.set(r.leg, r.warnings);
+  return r.leg;
+}
+
+/** Height of the solved path where a leg starts or ends at `xy` (strips first), or undefined. */
+function joinHeightM(legs: readonly SolvedLeg[], xy: XY, end: "start" | "end"): number | undefined {
+  let best: number | undefined, bestIsStrip = false;
+  for (const l of legs) {
+    const p = end === "start" ? l.from : l.to;
+    if (Math.hypot(p[0] - xy[0], p[1] - xy[1]) > 1e-6 || l.waypoints.length === 0) continue;
+    const w = end === "start" ? l.waypoints[0] : l.waypoints[l.waypoints.length - 1];
+    if (best === undefined || (l.kind === "strip" && !bestIsStrip)) { best = w.altitudeAmslM; bestIsStrip = l.kind === "strip"; }
+  }
+  return best;
 }
 
 /**

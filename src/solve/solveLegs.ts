@@ -120,6 +120,33 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   return { legs: out, warnings, counts };
 }
 
+/**
+ * One transit leg on its own (the legs to and from take-off that flight
+ * splitting adds), with clearance over the terrain under it. `startAltM` /
+ * `endAltM` pin its ends to the previous leg's end height and the next leg's
+ * start height, so the legs join without a step; where the leg is too short
+ * to reach the end height within the climb limits, it changes height on the
+ * spot at its end and says so (as solvePlan does). The warnings are this
+ * leg's own (vertical step, climb-ceiling, ceiling breach), not the plan-wide
+ * ones solvePlan adds.
+ * @example solveTransit(grid, { kind: "transit", strip: 3, from, to, lengthM }, opts, 512.4).leg.waypoints
+ */
+export function solveTransit(
+  grid: DemGrid, leg: LayoutLeg, opts: SolverOptions, startAltM?: number, endAltM?: number,
+): { leg: SolvedLeg; warnings: SolveWarning[] } {
+  validateSolverOptions(opts);
+  const work = opts.assumeGroundM !== undefined ? fillNodata(grid, opts.assumeGroundM) : grid;
+  const warnings: SolveWarning[] = [];
+  const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
+  const piece: Piece = { kind: "transit", strip: leg.strip, profile: corridorAlong(work, st, opts, { band: false }), conflictGap: false };
+  const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
+  const r = solvePiece(piece, opts, bandWidthM, startAltM, endAltM, warnings);
+  if (r.stepToM !== undefined) piece.stepToM = r.stepToM;
+  const out = buildLeg(piece, r.altitudeM, r.vertexStation, opts);
+  ceilingBreaches([out], warnings);
+  return { leg: out, warnings };
+}
+
 function ceilingWords(ref: SolverOptions["ceiling"]["reference"]): string {
   if (ref === "ground") return "above the ground straight below";
   if (ref === "surface") return "from the closest point of the terrain surface";
