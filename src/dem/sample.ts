@@ -71,6 +71,27 @@ export function sampleBilinear(
   return out;
 }
 
+/** Scratch pair [max, min] for scanRun (the scans run one at a time). */
+const acc = new Float64Array(2);
+
+/**
+ * Folds heights[i0..i1] into acc = [max, min]; false as soon as a cell is
+ * nodata (NaN), which makes the whole neighbourhood unknown.
+ */
+function scanRun(heights: Float32Array, i0: number, i1: number, out: Float64Array): boolean {
+  let mx = out[0];
+  let mn = out[1];
+  for (let i = i0; i <= i1; i++) {
+    const z = heights[i];
+    if (z !== z) return false;
+    if (z > mx) mx = z;
+    if (z < mn) mn = z;
+  }
+  out[0] = mx;
+  out[1] = mn;
+  return true;
+}
+
 /**
  * Max (and optionally min) height over the cells whose centres lie within
  * `radiusM` of each point, always including the cell under the point. NaN
@@ -118,16 +139,14 @@ export function extremaInRadius(
         bad = true;
         break;
       }
-      const base = r * w;
-      for (let c = ca; c <= cb; c++) {
-        const z = heights[base + c];
-        if (z !== z) {
-          bad = true;
-          break;
-        }
-        if (z > mx) mx = z;
-        if (z < mn) mn = z;
+      acc[0] = mx;
+      acc[1] = mn;
+      if (!scanRun(heights, r * w + ca, r * w + cb, acc)) {
+        bad = true;
+        break;
       }
+      mx = acc[0];
+      mn = acc[1];
     }
     outMax[i] = bad || mx === -Infinity ? NaN : mx;
     if (outMin) outMin[i] = bad || mn === Infinity ? NaN : mn;
@@ -203,16 +222,14 @@ export function extremaInOrientedRect(
         bad = true;
         break;
       }
-      const base = r * w;
-      for (let c = ca; c <= cb; c++) {
-        const z = heights[base + c];
-        if (z !== z) {
-          bad = true;
-          break;
-        }
-        if (z > mx) mx = z;
-        if (z < mn) mn = z;
+      acc[0] = mx;
+      acc[1] = mn;
+      if (!scanRun(heights, r * w + ca, r * w + cb, acc)) {
+        bad = true;
+        break;
       }
+      mx = acc[0];
+      mn = acc[1];
     }
     outMax[i] = bad ? NaN : mx;
     outMin[i] = bad ? NaN : mn;
