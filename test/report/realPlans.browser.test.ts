@@ -5,9 +5,10 @@
  */
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
 import { execFileSync } from "node:child_process";
-import { existsSync, mkdirSync, readFileSync } from "node:fs";
+import { mkdirSync, readFileSync } from "node:fs";
 import { join, resolve } from "node:path";
 import { pathToFileURL } from "node:url";
+import { launchChromium, requireChromium } from "../helpers/browser.js";
 import type { Browser, Page } from "playwright-core";
 import { HAS_PROJ } from "../helpers/tools.js";
 import { loadPlanFile, resolvePlanOptions } from "../../src/plan/options.js";
@@ -17,13 +18,7 @@ import { writeOutputSet } from "../../src/export/atomicDir.js";
 import { flattenNumbers, STANDARD_CAUTIONS } from "../../src/report/render.js";
 import type { ReportInput } from "../../src/report/model.js";
 
-// Debian's chromium, driven by playwright-core (no bundled browser download).
-const CHROMIUM = "/usr/bin/chromium";
-const HAS_CHROMIUM = existsSync(CHROMIUM);
-if (!HAS_CHROMIUM) {
-  if (process.env.CI === "true") throw new Error(`${CHROMIUM} (Debian package chromium) is required under CI=true but was not found`);
-  process.stderr.write("NOTICE: /usr/bin/chromium not found (install Debian's chromium); skipping the real-plan report browser tests\n");
-}
+const HAS_CHROMIUM = requireChromium("the real-plan report browser tests");
 
 const OUT = resolve("test-output/report");
 const PLANS = {
@@ -110,11 +105,7 @@ describe.skipIf(!HAS_PROJ)("grid convergence of the real plans' frames against P
 describe.skipIf(!HAS_CHROMIUM)("report of real plans in headless Chromium", () => {
   let browser: Browser;
   beforeAll(async () => {
-    const { chromium } = await import("playwright-core");
-    browser = await chromium.launch({
-      executablePath: CHROMIUM,
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
-    });
+    browser = await launchChromium();
   });
   afterAll(async () => {
     await browser?.close();

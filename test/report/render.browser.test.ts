@@ -1,30 +1,21 @@
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
-import { existsSync, mkdirSync, writeFileSync } from "node:fs";
+import { mkdirSync, writeFileSync } from "node:fs";
 import { join, resolve } from "node:path";
 import { pathToFileURL } from "node:url";
+import { launchChromium, requireChromium } from "../helpers/browser.js";
 import type { Browser } from "playwright-core";
 import { makeReportInput } from "./fixture.js";
 import { renderReport, flattenNumbers } from "../../src/report/render.js";
 import { parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
 
-// Debian's chromium, driven by playwright-core (no bundled browser download).
-const CHROMIUM = "/usr/bin/chromium";
-const HAS_CHROMIUM = existsSync(CHROMIUM);
-if (!HAS_CHROMIUM) {
-  if (process.env.CI === "true") throw new Error(`${CHROMIUM} (Debian package chromium) is required under CI=true but was not found`);
-  process.stderr.write("NOTICE: /usr/bin/chromium not found (install Debian's chromium); skipping the report browser tests\n");
-}
+const HAS_CHROMIUM = requireChromium("the report browser tests");
 const OUT = resolve("test-output/report");
 const HOSTILE = `<script>window.__pwned=1;alert(1)</script> "Hill" & 'Farm' <img src=x onerror="window.__pwned=2">`;
 
 describe.skipIf(!HAS_CHROMIUM)("report in headless Chromium", () => {
   let browser: Browser;
   beforeAll(async () => {
-    const { chromium } = await import("playwright-core");
-    browser = await chromium.launch({
-      executablePath: CHROMIUM,
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
-    });
+    browser = await launchChromium();
     mkdirSync(OUT, { recursive: true });
   });
   afterAll(async () => {
