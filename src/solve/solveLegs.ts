@@ -39,6 +39,8 @@ interface Piece {
   conflictGap: boolean;
   /** Waypoints added after the path: a vertical step onto the next leg's start height. */
   stepToM?: number;
+  /** Waypoint added before the path: the previous leg's end height, left by a vertical step. */
+  stepFromM?: number;
 }
 
 /**
@@ -85,6 +87,7 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
     paths[i] = r.altitudeM;
     vertices[i] = r.vertexStation;
     if (r.stepToM !== undefined) p.stepToM = r.stepToM;
+    if (r.stepFromM !== undefined) p.stepFromM = r.stepFromM;
   };
   pieces.forEach((p, i) => { if (p.kind === "strip") solveOne(i); });
   pieces.forEach((p, i) => {
@@ -142,6 +145,7 @@ export function solveTransit(
   const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
   const r = solvePiece(piece, opts, bandWidthM, startAltM, endAltM, warnings);
   if (r.stepToM !== undefined) piece.stepToM = r.stepToM;
+  if (r.stepFromM !== undefined) piece.stepFromM = r.stepFromM;
   const out = buildLeg(piece, r.altitudeM, r.vertexStation, opts);
   ceilingBreaches([out], warnings);
   return { leg: out, warnings };
@@ -207,7 +211,7 @@ function sliceProfile(p: StationProfile, a: number, b: number): StationProfile {
 
 function solvePiece(
   p: Piece, opts: SolverOptions, bandWidthM: number, pinStart: number | undefined, pinEnd: number | undefined, warnings: SolveWarning[],
-): { altitudeM: Float64Array; vertexStation: Int32Array; stepToM?: number } {
+): { altitudeM: Float64Array; vertexStation: Int32Array; stepToM?: number; stepFromM?: number } {
   const prof = p.profile;
   const n = prof.s.length;
   const lo = new Float64Array(n), hi = new Float64Array(n);
@@ -232,20 +236,35 @@ function solvePiece(
     if (pe !== undefined) { l[n - 1] = h[n - 1] = Math.max(pe, l[n - 1]); }
     return hardEnvelope(prof.s, l, h, gMin, gMax, eLo, eHi);
   };
-  let stepToM: number | undefined;
-  let ok = tryEnvelope(pinStart, pinEnd) < 0;
-  if (!ok && pinEnd !== undefined) {
-    ok = tryEnvelope(pinStart, undefined) < 0;
-    if (ok) {
-      stepToM = pinEnd;
-      warnings.push({ code: "vertical-step", message: `Leg into strip ${p.strip} is too short to reach the strip's start height within the climb limits: the plan changes height on the spot at its end (a multirotor hovers; a fixed-wing needs a loiter).` });
-    }
-  }
+  // Fallbacks, in order: both ends pinned; the end reached by a step on the
+  // spot; then the same with the ceiling dropped (clearance is kept, the
+  // breach is reported); last, a climb on the spot at the start too (the
+  // clearance floor rises from the pinned start faster than the aircraft
+  // climbs). With no pins and no ceiling the envelope is never empty (the
+  // floor's forward and backward gradient closure), so every plan a user can
+  // give ends in a path.
+  let stepToM: number | undefined, stepFromM: number | undefined;
+  const withEndStep = (): boolean => {
+    if (tryEnvelope(pinStart, pinEnd) < 0) return true;
+    if (pinEnd === undefined || tryEnvelope(pinStart, undefined) >= 0) return false;
+    stepToM = pinEnd;
+    return true;
+  };
+  let ok = withEndStep();
   if (!ok) {
-    // Clearance and the climb limits cannot both hold under the ceiling: keep clearance.
     hi.fill(Infinity);
-    ok = tryEnvelope(pinStart, stepToM === undefined ? pinEnd : undefined) < 0;
     warnings.push({ code: "climb-ceiling", message: `${p.kind === "strip" ? "Strip" : "Leg into strip"} ${p.strip}: clearance cannot be kept under the ceiling within the climb and descent limits; the plan keeps clearance (see the ceiling breaches).` });
+    ok = withEndStep();
+  }
+  if (!ok && pinStart !== undefined) {
+    stepFromM = pinStart;
+    pinStart = undefined;
+    ok = withEndStep();
+    warnings.push({ code: "vertical-step", message: `Leg into strip ${p.strip}: the terrain ahead rises faster than the aircraft can climb to keep clearance: the plan climbs on the spot at its start (a multirotor hovers; a fixed-wing needs a loiter).` });
+  }
+  if (!ok) throw new Error(`solver: no height keeps clearance within the climb limits on the leg into strip ${p.strip} (internal error)`);
+  if (stepToM !== undefined) {
+    warnings.push({ code: "vertical-step", message: `Leg into strip ${p.strip} is too short to reach the strip's start height within the climb limits: the plan changes height on the spot at its end (a multirotor hovers; a fixed-wing needs a loiter).` });
   }
   const tLo = new Float64Array(n), tHi = new Float64Array(n), pref = new Float64Array(n);
   // 1 where the band meets the hard corridor but not its gradient-feasible envelope.
@@ -263,7 +282,7 @@ function solvePiece(
   }
   const gates = targetGates(prof.s, eLo, eHi, tLo, tHi, gMin, gMax);
   const path = minLinkPathOnLattice(prof.s, gates.lo, gates.hi, gMin, gMax, vertexStepOf(opts), pref);
-  if (!path) throw new Error(`solver: no path through the gates of strip ${p.strip} (internal error)`);
+  if (!path) throw new Error(`solver: no path through the gates of ${p.kind === "strip" ? "strip" : "the leg into strip"} ${p.strip} (internal error)`);
   const alt = prof.altitudeM;
   for (let v = 0; v + 1 < path.vertexStation.length; v++) {
     const a = path.vertexStation[v], b = path.vertexStation[v + 1];
@@ -281,7 +300,7 @@ function solvePiece(
       }
     }
   }
-  return { altitudeM: alt, vertexStation: path.vertexStation, stepToM };
+  return { altitudeM: alt, vertexStation: path.vertexStation, stepToM, stepFromM };
 }
 
 function buildLeg(p: Piece, alt: Float64Array, vs: Int32Array, opts: SolverOptions): SolvedLeg {
@@ -289,6 +308,11 @@ function buildLeg(p: Piece, alt: Float64Array, vs: Int32Array, opts: SolverOptio
   const n = prof.s.length;
   const wps: Waypoint[] = [];
   let timeS = 0;
+  if (p.stepFromM !== undefined) {
+    const dz = alt[0] - p.stepFromM;
+    timeS += Math.abs(dz) / (dz > 0 ? opts.aircraft.maxClimbMps : opts.aircraft.maxDescentMps);
+    wps.push(waypoint(prof, 0, p.stepFromM, 0));
+  }
   for (let v = 0; v < vs.length; v++) {
     const k = vs[v];
     let speed = 0;

@@ -33,4 +33,19 @@ describe("solveTransit: a transit whose ends join the legs beside it", () => {
     expect(w[w.length - 1].x).toBe(w[w.length - 2].x);
     expect(r.warnings.some((x) => x.code === "vertical-step" && /too short to reach the strip's start height/.test(x.message))).toBe(true);
   });
+  it("floor rising faster than the climb limit from the pinned start: climbs on the spot at its start, keeps clearance", () => {
+    // Ground 100 m, then a ramp of gradient 1 from x = 100 to 200 (then 200 m): the
+    // clearance floor (highest ground within 15 m + 10 m) rises at 1 m/m, five times the
+    // 0.2 the aircraft can climb, so no path from 115 m keeps clearance without a climb
+    // on the spot. Before this fallback the solver ended in an internal error.
+    const ramp = profileGrid(460, (x) => (x < 100 ? 100 : x < 200 ? x : 200));
+    const r = solveTransit(ramp, transit(80.5, 380.5), options(), 115);
+    const w = r.leg.waypoints;
+    expect(w[0].altitudeAmslM).toBe(115);
+    expect(w[1].x).toBe(w[0].x);
+    expect(w[1].altitudeAmslM).toBeGreaterThan(115);
+    const p = r.leg.profile;
+    for (let k = 0; k < p.s.length; k++) expect(p.altitudeM[k]).toBeGreaterThanOrEqual(p.hardLowM[k] - 1e-6);
+    expect(r.warnings.some((x) => x.code === "vertical-step" && /climbs on the spot at its start/.test(x.message))).toBe(true);
+  });
 });
