@@ -25,7 +25,8 @@ import { siteFromLonLat } from "../layout/site.js";
 import { siteCoverage } from "../layout/coverage.js";
 import { layoutStrips } from "../layout/strips.js";
 import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
-import { solvePlan, solveTransit } from "../solve/solveLegs.js";
+import { solveTransit } from "../solve/solveLegs.js";
+import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan } from "../assess/assess.js";
@@ -101,7 +102,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
 
   stage("layout");
   const takeoffXY: XY | undefined = options.takeoff ? frame.fromWgs84(options.takeoff[0], options.takeoff[1]) : undefined;
-  const layout = layoutStrips(site, {
+  let layout = layoutStrips(site, {
     headingDeg: options.headingDeg,
     spacingM,
     triggerM,
@@ -150,7 +151,10 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ifov: camera.ifov,
   };
   assertTargetReachable(requirement, camera, targetHeightM, options);
-  const solve = solvePlan(grid, layout.legs, solverOptions);
+  const ordered = solveInBestStripOrder(grid, layout.legs, layout.takeoff, solverOptions);
+  if (ordered.legs !== layout.legs) layout = { ...layout, legs: ordered.legs };
+  const solve = ordered.solve;
+  if (ordered.warning) warnings.push(ordered.warning);
   warnings.push(...solve.warnings);
   carryNoPhotoIntervals(solve.legs, layout.legs);
 
