@@ -58,7 +58,7 @@ export function zoneExtremaAlongLine(
   const rowsF = corners.map(([, y]) => (y - y0) / dy - 0.5);
   const r0 = Math.max(0, Math.floor(Math.min(...rowsF)) - 1), r1 = Math.min(h - 1, Math.ceil(Math.max(...rowsF)) + 1);
   let cap = 1024;
-  let key = new Float64Array(cap), cell = new Int32Array(cap), edge = new Uint8Array(cap);
+  let key = new Float64Array(cap), cell = new Int32Array(cap), edge = new Uint8Array(cap), zc = new Float64Array(cap);
   let m = 0;
   for (let r = r0; r <= r1; r++) {
     const yc = y0 + (r + 0.5) * dy;
@@ -76,52 +76,65 @@ export function zoneExtremaAlongLine(
     if (!(xa <= xb)) continue;
     const c0 = Math.max(0, Math.floor((px0 + xa - x0) / dx - 0.5) - 1);
     const c1 = Math.min(w - 1, Math.ceil((px0 + xb - x0) / dx - 0.5) + 1);
+    if (m + (c1 - c0 + 1) > cap) {
+      while (m + (c1 - c0 + 1) > cap) cap *= 2;
+      const k2 = new Float64Array(cap); k2.set(key); key = k2;
+      const c2 = new Int32Array(cap); c2.set(cell); cell = c2;
+      const e2 = new Uint8Array(cap); e2.set(edge); edge = e2;
+      const z2 = new Float64Array(cap); z2.set(zc); zc = z2;
+    }
+    const rowBase = r * w;
     for (let c = c0; c <= c1; c++) {
       const rx = x0 + (c + 0.5) * dx - px0;
       const a = rx * ax + ry * ay;
       const cc = Math.abs(rx * bx + ry * by);
       if (a < aLo || a > aHi || cc > cMax) continue;
-      if (m === cap) {
-        cap *= 2;
-        const k2 = new Float64Array(cap); k2.set(key); key = k2;
-        const c2 = new Int32Array(cap); c2.set(cell); cell = c2;
-        const e2 = new Uint8Array(cap); e2.set(edge); edge = e2;
-      }
       key[m] = a;
-      cell[m] = r * w + c;
+      cell[m] = rowBase + c;
       edge[m] = cc > HC - EDGE_M ? 1 : 0;
+      // Read the height here, along the row, rather than after the sort (a scattered read of the grid).
+      zc[m] = heights[rowBase + c];
       m++;
     }
   }
   // Sort by distance along: counting sort into buckets an eighth of a cell
-  // wide, then insertion sort inside each (a handful of cells, or ties).
+  // wide, scattering the cells' fields straight to their places, then
+  // insertion sort inside each bucket (a handful of cells, or ties).
   const beta = Math.min(Math.abs(dx), Math.abs(dy)) / 8;
   const nb = Math.max(1, Math.ceil((aHi - aLo) / beta) + 1);
   const start = new Int32Array(nb + 1);
-  for (let j = 0; j < m; j++) start[Math.min(nb - 1, Math.floor((key[j] - aLo) / beta)) + 1]++;
+  const bucket = new Int32Array(m);
+  for (let j = 0; j < m; j++) {
+    const b = Math.min(nb - 1, Math.floor((key[j] - aLo) / beta));
+    bucket[j] = b;
+    start[b + 1]++;
+  }
   for (let b = 0; b < nb; b++) start[b + 1] += start[b];
   const fill = start.slice(0, nb);
-  const order = new Int32Array(m);
-  for (let j = 0; j < m; j++) order[fill[Math.min(nb - 1, Math.floor((key[j] - aLo) / beta))]++] = j;
-  for (let b = 0; b < nb; b++) {
-    for (let j = start[b] + 1; j < start[b + 1]; j++) {
-      const o = order[j], v = key[o];
-      let k = j - 1;
-      while (k >= start[b] && key[order[k]] > v) { order[k + 1] = order[k]; k--; }
-      order[k + 1] = o;
-    }
-  }
   const sa = new Float64Array(m), sz = new Float64Array(m);
   const sCell = new Int32Array(m), sEdge = new Uint8Array(m);
+  for (let j = 0; j < m; j++) {
+    const d = fill[bucket[j]]++;
+    sa[d] = key[j];
+    sz[d] = zc[j];
+    sCell[d] = cell[j];
+    sEdge[d] = edge[j];
+  }
+  for (let b = 0; b < nb; b++) {
+    const s0 = start[b];
+    for (let j = s0 + 1; j < start[b + 1]; j++) {
+      const v = sa[j];
+      if (sa[j - 1] <= v) continue;
+      const vz = sz[j], vc = sCell[j], ve = sEdge[j];
+      let k = j - 1;
+      while (k >= s0 && sa[k] > v) { sa[k + 1] = sa[k]; sz[k + 1] = sz[k]; sCell[k + 1] = sCell[k]; sEdge[k + 1] = sEdge[k]; k--; }
+      sa[k + 1] = v; sz[k + 1] = vz; sCell[k + 1] = vc; sEdge[k + 1] = ve;
+    }
+  }
   const nanBefore = new Int32Array(m + 1);
   // Cells near the across edges, in along order, for the per-station test.
   const border: number[] = [];
   for (let j = 0; j < m; j++) {
-    const o = order[j];
-    sa[j] = key[o];
-    sCell[j] = cell[o];
-    sEdge[j] = edge[o];
-    sz[j] = heights[cell[o]];
     nanBefore[j + 1] = nanBefore[j] + (!sEdge[j] && sz[j] !== sz[j] ? 1 : 0);
     if (sEdge[j]) border.push(j);
   }
