@@ -30,7 +30,9 @@ export function summaryText(s: PlanSummary, outDir: string, opts: { explainAllFl
   lines.push(`  heights: AMSL (${s.verticalDatum}), ellipsoidal via ${s.geoidModel}, and above take-off (ground ${f(s.takeoff.groundAmslM, 2)} m AMSL)`);
   const flagged = ASSESSMENT_FLAG_KINDS.filter((k) => (s.flagged.byKind[k.key]?.cells ?? 0) > 0);
   if (flagged.length) {
-    lines.push(`  flagged: ${f(s.flagged.areaM2, 0)} m2 (${f(s.flagged.pct, 2)} % of the site)`);
+    lines.push(
+      `  flagged: ${f(s.flagged.areaM2, 0)} m2 (${f(s.flagged.pct, 2)} % of the site), of which ${f(s.flagged.effectAreaM2, 0)} m2 measured out of band or short of images; the rest carries only a cause`,
+    );
     for (const k of opts.explainAllFlags ? ASSESSMENT_FLAG_KINDS : flagged) {
       const v = s.flagged.byKind[k.key];
       lines.push(`    [${k.bit}] ${k.label}: ${f(v?.areaM2 ?? 0, 0)} m2 (${f(v?.pct ?? 0, 2)} %). ${k.explanation}`);

@@ -3,7 +3,7 @@
  * Every GSD figure is the assessment's (the independent check), not the solver's.
  */
 import type { PlanRun } from "./plan.js";
-import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE } from "../assess/flags.js";
 import { STANDARD_CAUTIONS } from "../cautions.js";
 
 
@@ -35,7 +35,15 @@ export interface PlanSummary {
   gsdCm: { target: number; low: number; high: number; min: number; p5: number; median: number; p95: number; max: number };
   withinBandPct: number;
   images: { min: number; median: number; required: number };
-  flagged: { cells: number; areaM2: number; pct: number; byKind: Record<string, { cells: number; areaM2: number; pct: number }> };
+  flagged: {
+    cells: number;
+    areaM2: number;
+    pct: number;
+    /** Cells with an effect bit (coarser, finer, too few images): what the check measured as wrong. */
+    effectCells: number;
+    effectAreaM2: number;
+    byKind: Record<string, { cells: number; areaM2: number; pct: number }>;
+  };
   stations: { ok: number; detailLimited: number; unflyable: number };
   waypointBudget: { maxWaypoints: number; perFlight: number[]; over: number; fittingTolerancePct: number | null } | null;
   ceiling: { heightM: number; reference: string; rule: string };
@@ -70,6 +78,7 @@ export function planSummary(run: PlanRun): PlanSummary {
     byKind[k.key] = { cells: v.cells, areaM2: r(v.areaM2, 1), pct: r(v.pct, 3) };
   }
   const b = run.baseline.stats;
+  const effectCells = countEffectCells(run.assessment.rasters.flags, run.assessment.rasters.inSite);
   const cautions = [...STANDARD_CAUTIONS];
   cautions.unshift(
     `Ceiling rule applied: ${run.options.ceiling.heightM} m, ${CEILING_RULES[run.options.ceiling.reference]}. Check that this is the rule where you fly.`,
@@ -106,7 +115,14 @@ export function planSummary(run: PlanRun): PlanSummary {
     },
     withinBandPct: r(a.withinBandPct, 3),
     images: { min: a.images.min, median: a.images.median, required: run.options.minImages },
-    flagged: { cells: a.flagged.cells, areaM2: r(a.flagged.areaM2, 1), pct: r(a.siteCells ? (100 * a.flagged.cells) / a.siteCells : 0, 3), byKind },
+    flagged: {
+      cells: a.flagged.cells,
+      areaM2: r(a.flagged.areaM2, 1),
+      pct: r(a.siteCells ? (100 * a.flagged.cells) / a.siteCells : 0, 3),
+      effectCells,
+      effectAreaM2: r(effectCells * a.cellAreaM2, 1),
+      byKind,
+    },
     stations: run.solve.counts,
     waypointBudget: run.budget,
     ceiling: { heightM: run.options.ceiling.heightM, reference: run.options.ceiling.reference, rule: CEILING_RULES[run.options.ceiling.reference] },
@@ -126,4 +142,12 @@ export function planSummary(run: PlanRun): PlanSummary {
     warnings: [...new Set([...(run.site.notes ?? []), ...run.warnings.map((w) => w.message)])],
     cautions,
   };
+}
+
+/** Site cells carrying an effect bit (1 coarser, 2 finer, 4 too few images). */
+function countEffectCells(flags: Uint8Array, inSite: Uint8Array): number {
+  const effect = FLAG_COARSE | FLAG_FINE | FLAG_FEW_IMAGES;
+  let n = 0;
+  for (let i = 0; i < flags.length; i++) if (inSite[i] && flags[i] & effect) n++;
+  return n;
 }
