@@ -1,5 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect } from "../dem/sample.js";
+import { zoneExtremaOnAxis } from "./zoneExtremaAxis.js";
 
 /** Rounding margin, metres: cells this close to a zone edge are settled by extremaInOrientedRect's own test. */
 const EDGE_M = 1e-6;
@@ -44,6 +45,8 @@ export function zoneExtremaAlongLine(
   const bx = -ay, by = ax;
   const brute = () => extremaInOrientedRect(grid, xs, ys, ux, uy, halfAlongM, halfAcrossM, outMax, outMin);
   if (n < 8) return brute();
+  // A leg along a grid axis: whole columns (rows) share one distance along, no sort needed.
+  if (zoneExtremaOnAxis(grid, xs, ys, ux, uy, halfAlongM, halfAcrossM, outMax, outMin)) return;
   const px0 = xs[0], py0 = ys[0];
   const t = new Float64Array(n);
   for (let i = 0; i < n; i++) {

@@ -1,6 +1,7 @@
 import { describe, it, expect } from "vitest";
 import { extremaInOrientedRect, makeGrid } from "../../src/dem/sample.js";
 import { zoneExtremaAlongLine } from "../../src/solve/zoneExtrema.js";
+import { zoneExtremaOnAxis } from "../../src/solve/zoneExtremaAxis.js";
 import { stationsAlongLeg } from "../../src/solve/stations.js";
 
 /*
@@ -19,6 +20,9 @@ describe("zoneExtremaAlongLine equals the per-station rectangle scan", () => {
     ["oblique 30 degrees", [30, 30], [30 + 140 * Math.cos(Math.PI / 6), 30 + 140 * Math.sin(Math.PI / 6)], 0.5, 6.3, 17.5],
     ["oblique 135 degrees, leaving the grid", [190, 10], [40, 160], 0.7, 9, 30],
     ["diagonal, integer offsets", [20, 20], [180, 180], 0.5, 12, 20],
+    // axis legs the other way (negative ux / uy), one leaving the grid
+    ["west-going, leaving the grid", [199, 60.25], [20, 60.25], 0.5, 11.9, 24],
+    ["south-going, edges on cell centres", [60, 190], [60, 15], 0.5, 8.25, 20],
   ];
   for (const [name, from, to, step, ha, hc] of cases) {
     it(name, () => {
@@ -40,4 +44,39 @@ describe("zoneExtremaAlongLine equals the per-station rectangle scan", () => {
       expect(nan).toBeLessThan(n); // the comparison is not all NaN
     });
   }
+});
+
+describe("zoneExtremaOnAxis (the axis-leg path) equals the per-station rectangle scan", () => {
+  // Reference as above: extremaInOrientedRect. Cases on and off cell centres, both directions.
+  const cases: [string, [number, number], [number, number], number, number][] = [
+    ["east-going", [10.1, 80.25], [190.3, 80.25], 11.9, 24],
+    ["north-going, across edges on cell centres", [80, 5], [80, 195], 12.25, 20],
+    ["west-going, along edges on cell centres", [190.25, 99.7], [9.75, 99.7], 10.25, 15.3],
+  ];
+  for (const [name, from, to, ha, hc] of cases) {
+    it(name, () => {
+      let seed = 7;
+      const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+      const grid = makeGrid({ width: 400, height: 400, x0: 0, y0: 200, cellM: 0.5, heights: (x, y) => 25 * Math.sin(x / 11) * Math.cos(y / 7) + 5 * rnd() });
+      for (let k = 0; k < 20; k++) grid.heights[Math.floor(rnd() * grid.heights.length)] = NaN;
+      const len = Math.hypot(to[0] - from[0], to[1] - from[1]);
+      const st = stationsAlongLeg({ kind: "strip", strip: 1, from, to, lengthM: len }, 0.5, hc, ha);
+      const n = st.s.length;
+      const wMax = new Float64Array(n), wMin = new Float64Array(n), gMax = new Float64Array(n), gMin = new Float64Array(n);
+      extremaInOrientedRect(grid, st.x, st.y, st.ux, st.uy, ha, hc, wMax, wMin);
+      expect(zoneExtremaOnAxis(grid, st.x, st.y, st.ux, st.uy, ha, hc, gMax, gMin)).toBe(true);
+      let nan = 0;
+      for (let i = 0; i < n; i++) {
+        if (Number.isNaN(wMax[i])) nan++;
+        expect([i, gMax[i], gMin[i]]).toEqual([i, wMax[i], wMin[i]]);
+      }
+      expect(nan).toBeLessThan(n);
+      expect(nan).toBeGreaterThan(0); // some zones meet nodata
+    });
+  }
+  it("declines an oblique leg", () => {
+    const grid = makeGrid({ width: 40, height: 40, x0: 0, y0: 20, cellM: 0.5, heights: () => 1 });
+    const xs = Float64Array.from({ length: 10 }, (_, i) => 5 + i), ys = Float64Array.from({ length: 10 }, (_, i) => 5 + i);
+    expect(zoneExtremaOnAxis(grid, xs, ys, Math.SQRT1_2, Math.SQRT1_2, 1, 1, new Float64Array(10), new Float64Array(10))).toBe(false);
+  });
 });

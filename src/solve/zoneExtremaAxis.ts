@@ -1,0 +1,173 @@
+import type { DemGrid } from "../dem/grid.js";
+import { extremaInOrientedRect } from "../dem/sample.js";
+
+/** Rounding margin, metres (as zoneExtremaAlongLine): cells this close to a zone edge get the rectangle test itself. */
+const EDGE_M = 1e-6;
+/** extremaInOrientedRect's own slack on its edges. */
+const RECT_EPS = 1e-9;
+
+/**
+ * zoneExtremaAlongLine for a leg along a grid axis (east-west: uy = 0, or
+ * north-south: ux = 0), the usual case of a heading chosen along the grid.
+ * Every cell of one grid column (east-west leg) or row (north-south leg) then
+ * has the same distance along the leg, and every cell of one row (column) the
+ * same distance across, so the band is a rectangle of cells: each column's
+ * core cells (not within EDGE_M of the across edges) fold to one max, one min
+ * and a nodata count, and the zone of a station is a window of whole columns
+ * whose max and min come from a monotone deque over the columns (the sliding
+ * window extremum; D. Lemire, "Streaming maximum-minimum filter using no more
+ * than three comparisons per element", 2006, from memory) — no sort. Cells
+ * within EDGE_M of a zone's edge, columns near the window's ends and rows near
+ * the across edges, are settled per station by extremaInOrientedRect's own
+ * test; zones near the grid border go to extremaInOrientedRect. Returns false
+ * (outputs untouched) when the leg is not along an axis or the points are not
+ * on one line in increasing order along (ux, uy).
+ * @example zoneExtremaOnAxis(grid, st.x, st.y, 1, 0, 11.9, 24, maxOut, minOut) // true
+ */
+export function zoneExtremaOnAxis(
+  grid: DemGrid,
+  xs: Float64Array,
+  ys: Float64Array,
+  ux: number,
+  uy: number,
+  halfAlongM: number,
+  halfAcrossM: number,
+  outMax: Float64Array,
+  outMin: Float64Array,
+): boolean {
+  const n = xs.length;
+  if (n < 8) return false;
+  const ew = uy === 0 && ux !== 0;
+  const ns = ux === 0 && uy !== 0;
+  if (!ew && !ns) return false;
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  // Unit vectors exactly as zoneExtremaAlongLine and extremaInOrientedRect form them.
+  const norm = Math.hypot(ux, uy);
+  const ax = ux / norm, ay = uy / norm;
+  const bx = -ay, by = ax;
+  const px0 = xs[0], py0 = ys[0];
+  const t = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    // On an axis the across offset is exactly the other coordinate's difference.
+    if ((ew ? ys[i] !== py0 : xs[i] !== px0)) return false;
+    t[i] = (xs[i] - px0) * ax + (ys[i] - py0) * ay;
+    if (i > 0 && t[i] < t[i - 1]) return false;
+  }
+  const HA = halfAlongM, HC = halfAcrossM;
+  // "Groups" are lines of cells sharing one distance along (columns for an east-west leg,
+  // rows for a north-south one); "lanes" the lines across them.
+  const nG = ew ? w : h, nL = ew ? h : w;
+  const gStride = ew ? 1 : w, lStride = ew ? w : 1;
+  // Along offset of group g from the first point; across offset of lane l (as the general code computes them).
+  const alongOf = (g: number): number => (ew ? (x0 + (g + 0.5) * dx - px0) * ax + 0 * ay : 0 * ax + (y0 + (g + 0.5) * dy - py0) * ay);
+  const acrossOf = (l: number): number => Math.abs(ew ? 0 * bx + (y0 + (l + 0.5) * dy - py0) * by : (x0 + (l + 0.5) * dx - px0) * bx + 0 * by);
+  const cMax = HC + 2 * EDGE_M;
+  // Lanes of the band: across within cMax; core lanes are not within EDGE_M of HC.
+  let l0 = -1, l1 = -2;
+  const laneEdge = new Uint8Array(nL);
+  for (let l = 0; l < nL; l++) {
+    const cc = acrossOf(l);
+    if (cc > cMax) continue;
+    if (l0 < 0) l0 = l;
+    l1 = l;
+    laneEdge[l] = cc > HC - EDGE_M ? 1 : 0;
+  }
+  if (l0 < 0) return false;
+  for (let l = l0; l <= l1; l++) if (acrossOf(l) > cMax) return false; // not one run: leave it to the general code
+  // Groups of the band in along order.
+  const aLo = t[0] - HA - 2 * EDGE_M, aHi = t[n - 1] + HA + 2 * EDGE_M;
+  const groups: number[] = [];
+  const step = (ew ? dx * ax : dy * ay) > 0 ? 1 : -1;
+  for (let k = 0, g = step > 0 ? 0 : nG - 1; k < nG; k++, g += step) {
+    const a = alongOf(g);
+    if (a >= aLo && a <= aHi) groups.push(g);
+  }
+  const m = groups.length;
+  const ga = new Float64Array(m), gMax = new Float64Array(m), gMin = new Float64Array(m);
+  const nanBefore = new Int32Array(m + 1);
+  for (let j = 0; j < m; j++) {
+    const g = groups[j];
+    ga[j] = alongOf(g);
+    if (j > 0 && ga[j] < ga[j - 1]) return false;
+    let mx = -Infinity, mn = Infinity, nan = 0;
+    for (let l = l0; l <= l1; l++) {
+      if (laneEdge[l]) continue;
+      const z = heights[g * gStride + l * lStride];
+      if (z !== z) { nan++; continue; }
+      if (z > mx) mx = z;
+      if (z < mn) mn = z;
+    }
+    gMax[j] = mx;
+    gMin[j] = mn;
+    nanBefore[j + 1] = nanBefore[j] + nan;
+  }
+  const edgeLanes: number[] = [];
+  for (let l = l0; l <= l1; l++) if (laneEdge[l]) edgeLanes.push(l);
+  const dqMax = new Int32Array(m), dqMin = new Int32Array(m);
+  let hMax = 0, tMax = 0, hMin = 0, tMin = 0;
+  let lo = 0, hi = 0, eLo = 0, eHi = 0;
+  const extX = Math.abs(ax) * HA + Math.abs(bx) * HC;
+  const extY = Math.abs(ay) * HA + Math.abs(by) * HC;
+  const one = (i: number) => extremaInOrientedRect(grid, xs.subarray(i, i + 1), ys.subarray(i, i + 1), ux, uy, HA, HC, outMax.subarray(i, i + 1), outMin.subarray(i, i + 1));
+  for (let i = 0; i < n; i++) {
+    const px = xs[i], py = ys[i];
+    const cLo = Math.ceil((px - extX - x0) / dx - 0.5), cHi = Math.floor((px + extX - x0) / dx - 0.5);
+    const rLo = Math.ceil((py + extY - y0) / dy - 0.5), rHi = Math.floor((py - extY - y0) / dy - 0.5);
+    const inside = cLo >= 0 && rLo >= 0 && cHi < w && rHi < h;
+    const sureLo = t[i] - HA + EDGE_M, sureHi = t[i] + HA - EDGE_M;
+    while (hi < m && ga[hi] < sureHi) {
+      const zx = gMax[hi], zn = gMin[hi];
+      if (zx !== -Infinity) {
+        while (tMax > hMax && gMax[dqMax[tMax - 1]] <= zx) tMax--;
+        dqMax[tMax++] = hi;
+        while (tMin > hMin && gMin[dqMin[tMin - 1]] >= zn) tMin--;
+        dqMin[tMin++] = hi;
+      }
+      hi++;
+    }
+    while (lo < hi && ga[lo] <= sureLo) lo++;
+    while (hMax < tMax && dqMax[hMax] < lo) hMax++;
+    while (hMin < tMin && dqMin[hMin] < lo) hMin++;
+    while (eLo < m && ga[eLo] < t[i] - HA - 2 * EDGE_M) eLo++;
+    while (eHi < m && ga[eHi] <= t[i] + HA + 2 * EDGE_M) eHi++;
+    if (!inside) { one(i); continue; }
+    let bad = nanBefore[hi] - nanBefore[lo] > 0;
+    let mx = hMax < tMax && lo < hi ? gMax[dqMax[hMax]] : -Infinity;
+    let mn = hMin < tMin && lo < hi ? gMin[dqMin[hMin]] : Infinity;
+    const pc = Math.floor((px - x0) / dx), pr = Math.floor((py - y0) / dy);
+    const z0 = heights[pr * w + pc];
+    if (z0 !== z0) bad = true;
+    else { if (z0 > mx) mx = z0; if (z0 < mn) mn = z0; }
+    // The rectangle test itself, for one cell (false: a nodata cell inside the zone).
+    const test = (k: number): boolean => {
+      const r = Math.floor(k / w), c = k - r * w;
+      const rx = x0 + (c + 0.5) * dx - px;
+      const ry = y0 + (r + 0.5) * dy - py;
+      const along = rx * ax + ry * ay;
+      const across = rx * bx + ry * by;
+      if (Math.abs(along) > HA + RECT_EPS || Math.abs(across) > HC + RECT_EPS) return true;
+      const z = heights[k];
+      if (z !== z) return false;
+      if (z > mx) mx = z;
+      if (z < mn) mn = z;
+      return true;
+    };
+    // Groups near the window's ends: every band cell of them.
+    const testGroup = (j: number): boolean => {
+      const base = groups[j] * gStride;
+      for (let l = l0; l <= l1; l++) if (!test(base + l * lStride)) return false;
+      return true;
+    };
+    for (let j = eLo; j < lo && !bad; j++) if (!testGroup(j)) bad = true;
+    for (let j = hi; j < eHi && !bad; j++) if (!testGroup(j)) bad = true;
+    // Lanes near the across edges: their cells in the groups of this zone.
+    for (let q = 0; q < edgeLanes.length && !bad; q++) {
+      const off = edgeLanes[q] * lStride;
+      for (let j = eLo; j < eHi && !bad; j++) if (!test(groups[j] * gStride + off)) bad = true;
+    }
+    outMax[i] = bad ? NaN : mx;
+    outMin[i] = bad ? NaN : mn;
+  }
+  return true;
+}
