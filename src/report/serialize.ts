@@ -29,6 +29,13 @@ const TYPED = {
 type TypedName = keyof typeof TYPED;
 
 /**
+ * zlib's fastest level: on the 4 km2 benchmark's 27 MB of arrays it deflates in
+ * 0.42 s against 0.92 s at the default (6) for a file 1 % larger (12.89 vs 12.76 MB
+ * deflated); inflating is the same either way.
+ */
+const DEFLATE_LEVEL = 1;
+
+/**
  * Fill in what the report computes from full-resolution data (the GSD histogram), then
  * reduce the rasters to at most `maxPx` across. `renderReport` calls it too, so the HTML
  * is the same whether rendered directly or from report-data.json.
@@ -66,7 +73,7 @@ export function serializeReportInput(input: ReportInput, opts: { maxPx?: number 
         const name = value.constructor.name as TypedName;
         if (!(name in TYPED)) throw new Error(`serializeReportInput: unsupported typed array ${name}`);
         const bytes = Buffer.from(value.buffer, value.byteOffset, value.byteLength);
-        return { $typed: name, length: (value as unknown as { length: number }).length, deflate: deflateSync(bytes).toString("base64") };
+        return { $typed: name, length: (value as unknown as { length: number }).length, deflate: deflateSync(bytes, { level: DEFLATE_LEVEL }).toString("base64") };
       }
       // JSON has no NaN or Infinity; keep them distinguishable from null.
       if (typeof value === "number" && !Number.isFinite(value)) return { $number: String(value) };
