@@ -25,21 +25,46 @@ export function surfaceCeiling(grid: DemGrid, xs: ArrayLike<number>, ys: ArrayLi
   const bmax = blockMax(grid, B);
   const C2 = ceilingM * ceilingM;
   const adx = Math.abs(dx), ady = Math.abs(dy);
-  const order: number[] = [];
-  const bound: number[] = [];
+  const rc = ceilingM / adx, rr = ceilingM / ady;
+  // Candidate blocks of one station and their bounds, reused across stations.
+  const maxBlocks = (Math.ceil((2 * rc) / B) + 2) * (Math.ceil((2 * rr) / B) + 2);
+  const order = new Int32Array(maxBlocks);
+  const bound = new Float64Array(maxBlocks);
+  const scanBlock = (b: number, pc: number, pr: number, best: number): number => {
+    const br = Math.floor(b / bw), bc = b - br * bw;
+    for (let r = br * B; r < Math.min(h, br * B + B); r++) {
+      const ddy = (r - pr) * ady;
+      for (let c = bc * B; c < Math.min(w, bc * B + B); c++) {
+        const z = heights[r * w + c];
+        if (z !== z) continue;
+        const ddx = (c - pc) * adx;
+        const rem = C2 - ddx * ddx - ddy * ddy;
+        if (rem < 0) continue;
+        const v = z + Math.sqrt(rem);
+        if (v > best) best = v;
+      }
+    }
+    return best;
+  };
   for (let i = 0; i < xs.length; i++) {
     const px = xs[i], py = ys[i];
     // fractional col/row of the point in cell-centre coordinates
     const pc = (px - x0) / dx - 0.5;
     const pr = (py - y0) / dy - 0.5;
-    const rc = ceilingM / adx, rr = ceilingM / ady;
     const bc0 = Math.max(0, Math.floor((pc - rc) / B)), bc1 = Math.min(bw - 1, Math.floor((pc + rc) / B));
     const br0 = Math.max(0, Math.floor((pr - rr) / B)), br1 = Math.min(bh - 1, Math.floor((pr + rr) / B));
-    order.length = 0;
-    bound.length = 0;
+    // Seed with the block under the point: usually near the answer, so most
+    // blocks fail the bound test below and are never listed.
+    let best = -Infinity;
+    const obc = Math.floor(Math.round(pc) / B), obr = Math.floor(Math.round(pr) / B);
+    const own = obc >= 0 && obc < bw && obr >= 0 && obr < bh ? obr * bw + obc : -1;
+    if (own >= 0) best = scanBlock(own, pc, pr, best);
+    let nb = 0;
     for (let br = br0; br <= br1; br++) {
       for (let bc = bc0; bc <= bc1; bc++) {
-        const m = bmax[br * bw + bc];
+        const b = br * bw + bc;
+        if (b === own) continue;
+        const m = bmax[b];
         if (m !== m || m === -Infinity) continue;
         // nearest cell centre of the block to the point
         const cc = Math.min(Math.max(pc, bc * B), Math.min(w - 1, bc * B + B - 1));
@@ -47,28 +72,22 @@ export function surfaceCeiling(grid: DemGrid, xs: ArrayLike<number>, ys: ArrayLi
         const ddx = (cc - pc) * adx, ddy = (cr - pr) * ady;
         const d2 = ddx * ddx + ddy * ddy;
         if (d2 > C2) continue;
-        order.push(br * bw + bc);
-        bound.push(m + Math.sqrt(C2 - d2));
+        const bnd = m + Math.sqrt(C2 - d2);
+        if (bnd <= best) continue;
+        order[nb] = b;
+        bound[nb] = bnd;
+        nb++;
       }
     }
-    const idx = order.map((_, k) => k).sort((a, b) => bound[b] - bound[a]);
-    let best = -Infinity;
-    for (const k of idx) {
-      if (bound[k] <= best) break; // sorted by bound: nothing later can win
-      const b = order[k];
-      const br = Math.floor(b / bw), bc = b - br * bw;
-      for (let r = br * B; r < Math.min(h, br * B + B); r++) {
-        const ddy = (r - pr) * ady;
-        for (let c = bc * B; c < Math.min(w, bc * B + B); c++) {
-          const z = heights[r * w + c];
-          if (z !== z) continue;
-          const ddx = (c - pc) * adx;
-          const rem = C2 - ddx * ddx - ddy * ddy;
-          if (rem < 0) continue;
-          const v = z + Math.sqrt(rem);
-          if (v > best) best = v;
-        }
-      }
+    // Best-bound first without a sort: take the highest remaining bound, stop
+    // when it cannot beat the best value found (the bound is a true upper bound).
+    for (;;) {
+      let k = -1;
+      let top = best;
+      for (let j = 0; j < nb; j++) if (bound[j] > top) (top = bound[j]), (k = j);
+      if (k < 0) break;
+      best = scanBlock(order[k], pc, pr, best);
+      bound[k] = -Infinity;
     }
     out[i] = best === -Infinity ? NaN : best;
   }

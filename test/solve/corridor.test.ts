@@ -65,6 +65,34 @@ describe("ceiling rules against their published text", () => {
   });
 });
 
+describe("surface ceiling, many points", () => {
+  // The definition itself (Regulation (EU) 2019/947, UAS.OPEN.010: within C of the closest
+  // point of the surface), evaluated by brute force over every cell; nodata cells are no
+  // surface. Points everywhere, near the edges too, over a nodata patch.
+  it("equals the full scan at 300 points on rough terrain with nodata", () => {
+    let seed = 777;
+    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    const grid = makeGrid({ width: 90, height: 70, x0: 0, y0: 70, cellM: 1, heights: (x, y) => 25 * Math.sin(x / 7) * Math.cos(y / 11) + 15 * rnd() + (x > 40 && x < 48 && y > 30 && y < 36 ? NaN : 0) });
+    const n = 300;
+    const xs = new Float64Array(n), ys = new Float64Array(n);
+    for (let i = 0; i < n; i++) (xs[i] = rnd() * 90), (ys[i] = rnd() * 70);
+    const C = 25;
+    const out = new Float64Array(n);
+    surfaceCeiling(grid, xs, ys, C, out);
+    for (let i = 0; i < n; i++) {
+      let best = -Infinity;
+      for (let r = 0; r < 70; r++) for (let c = 0; c < 90; c++) {
+        const z = grid.heights[r * 90 + c];
+        if (z !== z) continue;
+        const dx = c + 0.5 - xs[i], dy = 70 - (r + 0.5) - ys[i];
+        const rem = C * C - dx * dx - dy * dy;
+        if (rem >= 0) best = Math.max(best, z + Math.sqrt(rem));
+      }
+      expect(out[i]).toBeCloseTo(best, 9);
+    }
+  });
+});
+
 describe.skipIf(!HAS_GDAL)("ground under waypoints vs GDAL", () => {
   it("matches gdallocationinfo on a GDAL-written GeoTIFF", async () => {
     // GDAL 3.6's gdallocationinfo has no -r bilinear, so the check is at cell
