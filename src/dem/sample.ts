@@ -71,17 +71,20 @@ export function sampleBilinear(
   return out;
 }
 
-/** Scratch pair [max, min] for scanRun (the scans run one at a time). */
+/** Scratch pair [max, min] for foldRow (the scans run one at a time). */
 const acc = new Float64Array(2);
 
 /**
- * Folds heights[i0..i1] into acc = [max, min]; false as soon as a cell is
- * nodata (NaN), which makes the whole neighbourhood unknown.
+ * Folds cells ca..cb of row r into acc = [max, min]; false when the run leaves
+ * the grid or meets a nodata (NaN) cell, either of which makes the whole
+ * neighbourhood unknown.
  */
-function scanRun(heights: Float32Array, i0: number, i1: number, out: Float64Array): boolean {
+function foldRow(grid: DemGrid, r: number, ca: number, cb: number, out: Float64Array): boolean {
+  const { width: w, height: h, heights } = grid;
+  if (r < 0 || r >= h || ca < 0 || cb >= w) return false;
   let mx = out[0];
   let mn = out[1];
-  for (let i = i0; i <= i1; i++) {
+  for (let i = r * w + ca; i <= r * w + cb; i++) {
     const z = heights[i];
     if (z !== z) return false;
     if (z > mx) mx = z;
@@ -135,13 +138,9 @@ export function extremaInRadius(
         cb = Math.max(cb, pc);
       }
       if (ca > cb) continue;
-      if (r < 0 || r >= h || ca < 0 || cb >= w) {
-        bad = true;
-        break;
-      }
       acc[0] = mx;
       acc[1] = mn;
-      if (!scanRun(heights, r * w + ca, r * w + cb, acc)) {
+      if (!foldRow(grid, r, ca, cb, acc)) {
         bad = true;
         break;
       }
@@ -218,13 +217,9 @@ export function extremaInOrientedRect(
       while (ca <= cb && !insideRect(x0 + (ca + 0.5) * dx - px, ry, ax, ay, bx, by, hA, hC)) ca++;
       while (cb >= ca && !insideRect(x0 + (cb + 0.5) * dx - px, ry, ax, ay, bx, by, hA, hC)) cb--;
       if (ca > cb) continue;
-      if (r < 0 || r >= h || ca < 0 || cb >= w) {
-        bad = true;
-        break;
-      }
       acc[0] = mx;
       acc[1] = mn;
-      if (!scanRun(heights, r * w + ca, r * w + cb, acc)) {
+      if (!foldRow(grid, r, ca, cb, acc)) {
         bad = true;
         break;
       }
