@@ -9,7 +9,11 @@ import { genericCamera } from "./helpers.js";
 // Worker threads run only from the built library (`npm test` builds it first).
 const distCoverage = new URL("../../dist/assess/coverage.js", import.meta.url);
 const HAS_DIST = existsSync(fileURLToPath(distCoverage)) && existsSync(fileURLToPath(new URL("coverageWorker.js", distCoverage)));
-if (!HAS_DIST) process.stderr.write("NOTICE: dist/ not built; skipping the threaded coverage comparison (run npm run build)\n");
+if (!HAS_DIST) {
+  // Like the outside tools (test/helpers/tools.ts): under CI a missing build fails instead of skipping.
+  if (process.env.CI === "true") throw new Error("dist/ is required under CI=true (npm test builds it first)");
+  process.stderr.write("NOTICE: dist/ not built; skipping the threaded coverage comparison (run npm run build)\n");
+}
 
 describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
   it("gives the same rasters as one thread", async () => {

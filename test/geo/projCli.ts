@@ -1,12 +1,8 @@
 import { execFileSync } from "node:child_process";
-import { requireTool } from "../helpers/tools.js";
+import { HAS_PROJ, requireTool } from "../helpers/tools.js";
 
-/**
- * PROJ's command-line tools are present. Checked with `-l` (list
- * projections): cs2cs has no --version option and exits 1 on it, so the
- * shared HAS_PROJ check reports it missing even when installed.
- */
-export const HAS_CS2CS = requireTool("cs2cs", "proj-bin", ["-l"]);
+/** PROJ's cs2cs is present (the shared probe: `cs2cs -l`, since it has no --version). */
+export const HAS_CS2CS = HAS_PROJ;
 export const HAS_CCT = requireTool("cct", "proj-bin", ["--version"]);
 
 /**
