@@ -1,6 +1,7 @@
 import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect } from "../dem/sample.js";
 import { zoneExtremaOnAxis } from "./zoneExtremaAxis.js";
+import { SlidingExtrema } from "./slidingExtrema.js";
 
 /** Rounding margin, metres: cells this close to a zone edge are settled by extremaInOrientedRect's own test. */
 const EDGE_M = 1e-6;
@@ -142,8 +143,7 @@ export function zoneExtremaAlongLine(
     if (sEdge[j]) border.push(j);
   }
   let bLo = 0, bHi = 0;
-  const dqMax = new Int32Array(m), dqMin = new Int32Array(m);
-  let hMax = 0, tMax = 0, hMin = 0, tMin = 0;
+  const window = new SlidingExtrema(sz, sz);
   // Sure window [lo, hi) of core cells; edge pointers [eLo, eHi) of cells within EDGE_M of either end.
   let lo = 0, hi = 0, eLo = 0, eHi = 0;
   const extX = Math.abs(ax) * HA + Math.abs(bx) * HC;
@@ -156,20 +156,11 @@ export function zoneExtremaAlongLine(
     const inside = cLo >= 0 && rLo >= 0 && cHi < w && rHi < h;
     const sureLo = t[i] - HA + EDGE_M, sureHi = t[i] + HA - EDGE_M;
     while (hi < m && sa[hi] < sureHi) {
-      if (!sEdge[hi]) {
-        const z = sz[hi];
-        if (z === z) {
-          while (tMax > hMax && sz[dqMax[tMax - 1]] <= z) tMax--;
-          dqMax[tMax++] = hi;
-          while (tMin > hMin && sz[dqMin[tMin - 1]] >= z) tMin--;
-          dqMin[tMin++] = hi;
-        }
-      }
+      if (!sEdge[hi] && sz[hi] === sz[hi]) window.push(hi);
       hi++;
     }
     while (lo < hi && sa[lo] <= sureLo) lo++;
-    while (hMax < tMax && dqMax[hMax] < lo) hMax++;
-    while (hMin < tMin && dqMin[hMin] < lo) hMin++;
+    window.evictBelow(lo);
     while (eLo < m && sa[eLo] < t[i] - HA - 2 * EDGE_M) eLo++;
     while (eHi < m && sa[eHi] <= t[i] + HA + 2 * EDGE_M) eHi++;
     if (!inside) {
@@ -177,8 +168,8 @@ export function zoneExtremaAlongLine(
       continue;
     }
     let bad = nanBefore[hi] - nanBefore[lo] > 0;
-    let mx = hMax < tMax && lo < hi ? sz[dqMax[hMax]] : -Infinity;
-    let mn = hMin < tMin && lo < hi ? sz[dqMin[hMin]] : Infinity;
+    let mx = lo < hi ? window.max() : -Infinity;
+    let mn = lo < hi ? window.min() : Infinity;
     // The cell under the point always counts.
     const pc = Math.floor((px - x0) / dx), pr = Math.floor((py - y0) / dy);
     const z0 = heights[pr * w + pc];

@@ -1,5 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect } from "../dem/sample.js";
+import { SlidingExtrema } from "./slidingExtrema.js";
 
 /** Rounding margin, metres (as zoneExtremaAlongLine): cells this close to a zone edge get the rectangle test itself. */
 const EDGE_M = 1e-6;
@@ -104,8 +105,7 @@ export function zoneExtremaOnAxis(
   }
   const edgeLanes: number[] = [];
   for (let l = l0; l <= l1; l++) if (laneEdge[l]) edgeLanes.push(l);
-  const dqMax = new Int32Array(m), dqMin = new Int32Array(m);
-  let hMax = 0, tMax = 0, hMin = 0, tMin = 0;
+  const window = new SlidingExtrema(gMax, gMin);
   let lo = 0, hi = 0, eLo = 0, eHi = 0;
   const extX = Math.abs(ax) * HA + Math.abs(bx) * HC;
   const extY = Math.abs(ay) * HA + Math.abs(by) * HC;
@@ -117,24 +117,17 @@ export function zoneExtremaOnAxis(
     const inside = cLo >= 0 && rLo >= 0 && cHi < w && rHi < h;
     const sureLo = t[i] - HA + EDGE_M, sureHi = t[i] + HA - EDGE_M;
     while (hi < m && ga[hi] < sureHi) {
-      const zx = gMax[hi], zn = gMin[hi];
-      if (zx !== -Infinity) {
-        while (tMax > hMax && gMax[dqMax[tMax - 1]] <= zx) tMax--;
-        dqMax[tMax++] = hi;
-        while (tMin > hMin && gMin[dqMin[tMin - 1]] >= zn) tMin--;
-        dqMin[tMin++] = hi;
-      }
+      if (gMax[hi] !== -Infinity) window.push(hi);
       hi++;
     }
     while (lo < hi && ga[lo] <= sureLo) lo++;
-    while (hMax < tMax && dqMax[hMax] < lo) hMax++;
-    while (hMin < tMin && dqMin[hMin] < lo) hMin++;
+    window.evictBelow(lo);
     while (eLo < m && ga[eLo] < t[i] - HA - 2 * EDGE_M) eLo++;
     while (eHi < m && ga[eHi] <= t[i] + HA + 2 * EDGE_M) eHi++;
     if (!inside) { one(i); continue; }
     let bad = nanBefore[hi] - nanBefore[lo] > 0;
-    let mx = hMax < tMax && lo < hi ? gMax[dqMax[hMax]] : -Infinity;
-    let mn = hMin < tMin && lo < hi ? gMin[dqMin[hMin]] : Infinity;
+    let mx = lo < hi ? window.max() : -Infinity;
+    let mn = lo < hi ? window.min() : Infinity;
     const pc = Math.floor((px - x0) / dx), pr = Math.floor((py - y0) / dy);
     const z0 = heights[pr * w + pc];
     if (z0 !== z0) bad = true;
