@@ -7,12 +7,12 @@
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
 import { readdirSync, rmSync } from "node:fs";
 import path from "node:path";
-import { HAS_GDAL, hasTool } from "../helpers/tools.js";
+import { HAS_GDAL, requireTool } from "../helpers/tools.js";
 import { runCliOnTty, tempDir } from "./cli.js";
 import { OUTPUT_FILES } from "./hillsSuite.js";
 
 const PLAN = "fixtures/e2e/hills-utm33-small-plan.yaml";
-const HAS_SCRIPT = hasTool("script", ["--version"]);
+const HAS_SCRIPT = requireTool("script", "bsdutils", ["--version"]);
 // The stage bar, "[#####.....] solve", and a carriage return that is not the
 // terminal's own end of line (a pty turns "\n" into "\r\n").
 const PROGRESS = /\[[#.]{20}\]|\r(?!\n)/;
