@@ -44,4 +44,10 @@ export interface DemGrid {
   verticalDatum: VerticalDatum;
   /** Vertical unit as declared by the file (e.g. "metre", "US survey foot"). */
   verticalUnit: string;
+  /**
+   * The same cells in the DEM's own CRS, when this grid is the DEM's window
+   * with only its geotransform rescaled onto the working frame (no
+   * resampling): outputs on this grid are written in the DEM's CRS.
+   */
+  native?: { crs: CrsInfo; transform: GeoTransform };
 }

@@ -223,6 +223,8 @@ export function crsGeoKeys(crs: RasterCrs): Record<string, number | string | num
       ? { GTModelTypeGeoKey: 2, GeographicTypeGeoKey: crs.epsg }
       : { GTModelTypeGeoKey: 1, ProjectedCSTypeGeoKey: crs.epsg, ...(crs.name ? { GTCitationGeoKey: crs.name } : {}) };
   }
+  // A user-defined geographic CRS (a DEM's own degrees, written on its own cells).
+  if (crs.geographic) return { GTModelTypeGeoKey: 2, ...geographicKeys(parseProj4(crs.proj4)) };
   return userDefinedKeys(crs);
 }
 
@@ -292,7 +294,6 @@ export function encodeGeoKeys(keys: Record<string, number | string | number[]>):
 
 function userDefinedKeys(crs: RasterCrs): Record<string, number | string | number[]> {
   const p = parseProj4(crs.proj4);
-  if (crs.geographic) throw new Error(`cannot write a user-defined geographic CRS to GeoTIFF: ${crs.proj4}`);
   let lon0: number;
   let k0: number;
   let x0: number;

@@ -11,4 +11,22 @@ export interface LocalFrame {
   fromWgs84(lon: number, lat: number): [number, number];
   /** Frame x/y (metres) to WGS84 longitude/latitude (degrees). */
   toWgs84(x: number, y: number): [number, number];
+  /**
+   * When the DEM's own CRS maps onto the frame by a scale and shift per axis
+   * (x = ox + sx * X, y = oy + sy * Y for DEM coordinates X, Y), the DEM's
+   * cells are used as they are: no resampling, the ground between cell
+   * centres is the DEM's own bilinear surface. Absent when the DEM must be
+   * resampled onto the frame.
+   */
+  fromNative?: NativeAffine;
+}
+
+/** Per-axis affine map from the DEM's CRS coordinates to frame metres. */
+export interface NativeAffine {
+  sx: number;
+  sy: number;
+  ox: number;
+  oy: number;
+  /** For a geographic DEM, the frame's central longitude (degrees): DEM longitudes are taken in the wrap nearest it. */
+  lon0Deg?: number;
 }

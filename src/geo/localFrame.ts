@@ -1,7 +1,8 @@
 import proj4 from "proj4";
 import { InputError } from "../errors.js";
 import type { CrsInfo } from "../dem/grid.js";
-import type { LocalFrame } from "./frame.js";
+import type { LocalFrame, NativeAffine } from "./frame.js";
+import { degreeScalesM, localEquirectangularDef, registerLocalEquirectangular } from "./localEquirectangular.js";
 import { normaliseLonDeg } from "./longitude.js";
 import { pointScaleFactors } from "./scaleFactor.js";
 import { UTM_NORTH_LIMIT_DEG, UTM_SOUTH_LIMIT_DEG, utmZoneOf } from "./utmZone.js";
@@ -14,7 +15,13 @@ export { utmZoneOf } from "./utmZone.js";
  * east and north directions): frame metres per true metre on the ellipsoid.
  */
 export interface SiteFrame extends LocalFrame {
-  source: "dem" | "utm" | "ups";
+  /**
+   * dem: the DEM's own metric CRS; dem-metres: the DEM's own CRS with its
+   * unit (feet) taken as metres; local-eqc: a local equirectangular frame on
+   * a geographic DEM's degrees (see localEquirectangular.ts). These three use
+   * the DEM's cells as they are; utm and ups resample the DEM.
+   */
+  source: "dem" | "dem-metres" | "local-eqc" | "utm" | "ups";
   reason: string;
   scaleFactor: number;
 }
@@ -75,29 +82,29 @@ export function frameFromProj4(def: string, epsg: number | null, name: string): 
 
 /**
  * The metric working frame for a site centred at (lon, lat) in WGS84.
- * Uses the DEM's own CRS when it is projected, metric (linearUnitM === 1),
- * usable by proj4 and true to scale at the site within MAX_FRAME_SCALE_ERROR
- * (so the DEM need not be resampled); otherwise the WGS84 UTM zone of the
- * centre, or UPS beyond UTM's 84 N / 80 S.
+ * Prefers frames on which the DEM's cells stay as they are (no resampling, so
+ * the ground is the DEM's own bilinear surface): the DEM's own projected CRS
+ * (its unit taken as metres when it is feet), or for a geographic DEM a local
+ * equirectangular frame on its degrees; each only when usable by proj4 and
+ * true to scale within MAX_FRAME_SCALE_ERROR over `extent` (default: the
+ * centre). Otherwise the WGS84 UTM zone of the centre, or UPS beyond UTM's
+ * 84 N / 80 S, onto which the DEM is resampled.
  *
  * @example localFrameFor(15.2, 52.1).epsg              // 32633
  * @example localFrameFor(-2, 54, dem.crs).source       // "dem" for a British National Grid DEM
  */
-export function localFrameFor(lonDeg: number, latDeg: number, demCrs?: CrsInfo): SiteFrame {
+export function localFrameFor(lonDeg: number, latDeg: number, demCrs?: CrsInfo, extent?: LonLatBox): SiteFrame {
   if (!Number.isFinite(lonDeg)) throw new InputError("site centre longitude", lonDeg, "a finite number of degrees");
   if (!Number.isFinite(latDeg) || latDeg < -90 || latDeg > 90) {
     throw new InputError("site centre latitude", latDeg, "a number of degrees in [-90, 90]");
   }
   const lon = normaliseLonDeg(lonDeg);
+  const box = extent ?? { west: lon, east: lon, south: latDeg, north: latDeg };
   let whyNotDem = "";
   if (demCrs) {
-    if (demCrs.geographic) whyNotDem = "the DEM's CRS is geographic (degrees)";
-    else if (demCrs.linearUnitM !== 1) whyNotDem = `the DEM's CRS unit is not the metre (${demCrs.linearUnitM} m per unit)`;
-    else {
-      const tried = tryDemFrame(demCrs, lon, latDeg);
-      if (typeof tried === "string") whyNotDem = tried;
-      else return tried;
-    }
+    const tried = demCrs.geographic ? tryGeographicFrame(demCrs, lon, latDeg, box) : tryDemFrame(demCrs, lon, latDeg, box);
+    if (typeof tried === "string") whyNotDem = tried;
+    else return tried;
   }
   const polar = latDeg > UTM_NORTH_LIMIT_DEG || latDeg < UTM_SOUTH_LIMIT_DEG;
   if (polar) {
@@ -108,6 +115,14 @@ export function localFrameFor(lonDeg: number, latDeg: number, demCrs?: CrsInfo):
   const z = utmZoneOf(lon, latDeg);
   const frame = frameFromProj4(z.proj4, z.epsg, z.name);
   return withReason(frame, "utm", `UTM zone of the site centre (${lon.toFixed(4)}, ${latDeg.toFixed(4)})`, whyNotDem, lon, latDeg);
+}
+
+/** A WGS84 longitude/latitude box, degrees (the site with its margin). */
+export interface LonLatBox {
+  west: number;
+  south: number;
+  east: number;
+  north: number;
 }
 
 function withReason(frame: LocalFrame, source: SiteFrame["source"], reason: string, whyNotDem: string, lon: number, lat: number): SiteFrame {
@@ -127,28 +142,90 @@ function worstScale(frame: LocalFrame, lon: number, lat: number): number {
   return Math.abs(kE - 1) >= Math.abs(kN - 1) ? kE : kN;
 }
 
-function tryDemFrame(crs: CrsInfo, lon: number, lat: number): SiteFrame | string {
+function tryDemFrame(crs: CrsInfo, lon: number, lat: number, box: LonLatBox): SiteFrame | string {
+  const metres = crs.linearUnitM === 1;
+  if (!(crs.linearUnitM > 0)) return "its linear unit is unknown";
+  // PROJ and proj4 apply +x_0/+y_0 in metres and divide by the unit last, so the same
+  // definition in metres gives exactly unit-metres times the DEM's coordinates.
+  const def = metres ? crs.proj4 : `${crs.proj4.replace(/\s*\+(units|to_meter)=\S+/g, "")} +units=m`.replace(/\s+/g, " ").trim();
   let frame: LocalFrame;
   try {
-    frame = frameFromProj4(crs.proj4, crs.epsg, crs.name);
+    frame = frameFromProj4(def, metres ? crs.epsg : null, metres ? crs.name : `${crs.name}, in metres`);
   } catch {
     return "proj4 cannot use its definition";
   }
-  let k: number;
+  const k = checkedScale(frame, lon, lat, box);
+  if (typeof k === "string") return k;
+  const fromNative: NativeAffine = { sx: crs.linearUnitM, sy: crs.linearUnitM, ox: 0, oy: 0 };
+  const reason = metres
+    ? `the DEM's own metric CRS (${crs.name}), scale ${k.toFixed(6)} at the site`
+    : `the DEM's own CRS (${crs.name}) with its unit (${crs.linearUnitM} m) taken as metres, scale ${k.toFixed(6)} at the site`;
+  return { ...frame, fromNative, source: metres ? "dem" : "dem-metres", reason, scaleFactor: k };
+}
+
+/**
+ * A geographic DEM: the local equirectangular frame on its own datum, centred at the
+ * site (lon/lat here are WGS84; the frame's origin is taken in the DEM's datum so that
+ * the affine map to the DEM's degrees is exact).
+ */
+function tryGeographicFrame(crs: CrsInfo, lon: number, lat: number, box: LonLatBox): SiteFrame | string {
+  if (/\+pm=/.test(crs.proj4)) return "its prime meridian is not Greenwich";
+  registerLocalEquirectangular();
+  const datum = crs.proj4
+    .split(/\s+/)
+    .filter((t) => /^\+(datum|ellps|towgs84|a|b|rf|f|R|nadgrids)=/.test(t))
+    .join(" ");
+  let lon0 = lon, lat0 = lat;
+  try {
+    const [nLon, nLat] = proj4("WGS84", crs.proj4).forward([lon, lat]);
+    if (Number.isFinite(nLon) && Number.isFinite(nLat)) { lon0 = normaliseLonDeg(nLon); lat0 = nLat; }
+  } catch {
+    return "proj4 cannot use its definition";
+  }
+  // Round the origin so the definition reads cleanly; any origin gives an exact frame.
+  lon0 = Math.round(lon0 * 1e6) / 1e6;
+  lat0 = Math.round(lat0 * 1e6) / 1e6;
+  const def = localEquirectangularDef(lon0, lat0, datum || "+datum=WGS84");
+  let frame: LocalFrame;
+  try {
+    frame = frameFromProj4(def, null, `local equirectangular frame at ${lat0.toFixed(4)}, ${lon0.toFixed(4)} on ${crs.name}`);
+  } catch {
+    return "proj4 cannot use its definition";
+  }
+  const k = checkedScale(frame, lon, lat, box);
+  if (typeof k === "string") return k;
+  const [sx, sy] = degreeScalesM(def);
+  const fromNative: NativeAffine = { sx, sy, ox: -sx * lon0, oy: -sy * lat0, lon0Deg: lon0 };
+  return {
+    ...frame,
+    fromNative,
+    source: "local-eqc",
+    reason: `a local equirectangular frame on the geographic DEM's own degrees (no resampling), scale within ${Math.abs(k - 1) < 1e-6 ? "1e-6" : Math.abs(k - 1).toExponential(1)} of true over the window`,
+    scaleFactor: k,
+  };
+}
+
+/** The point scale furthest from 1 over the box's corners and centre, or why the frame is refused. */
+function checkedScale(frame: LocalFrame, lon: number, lat: number, box: LonLatBox): number | string {
+  let worst = 1;
   try {
     const [x, y] = frame.fromWgs84(lon, lat);
     const [lonBack, latBack] = frame.toWgs84(x, y);
     if (![x, y, lonBack, latBack].every(Number.isFinite) || Math.abs(latBack - lat) > 1e-7 || Math.abs(normaliseLonDeg(lonBack - lon)) > 1e-7) {
       return "its transform does not round-trip at the site";
     }
-    k = worstScale(frame, lon, lat);
+    const pts: [number, number][] = [[lon, lat], [box.west, box.south], [box.west, box.north], [box.east, box.south], [box.east, box.north]];
+    for (const [pl, pa] of pts) {
+      const k = worstScale(frame, pl, pa);
+      if (!(Math.abs(k - 1) <= Math.abs(worst - 1))) worst = k;
+    }
   } catch {
     return "its transform fails at the site";
   }
-  if (!(Math.abs(k - 1) <= MAX_FRAME_SCALE_ERROR)) {
-    return `its scale at the site is ${k.toFixed(4)}, more than ${MAX_FRAME_SCALE_ERROR * 100} % from true`;
+  if (!(Math.abs(worst - 1) <= MAX_FRAME_SCALE_ERROR)) {
+    return `its scale at the site is ${worst.toFixed(4)}, more than ${MAX_FRAME_SCALE_ERROR * 100} % from true`;
   }
-  return { ...frame, source: "dem", reason: `the DEM's own metric CRS (${crs.name}), scale ${k.toFixed(6)} at the site`, scaleFactor: k };
+  return worst;
 }
 
 /**

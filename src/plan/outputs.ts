@@ -53,10 +53,16 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     flags: run.assessment.polygons,
     takeoff: { lon: run.takeoff.lon, lat: run.takeoff.lat, groundAmslM: run.takeoff.groundM },
   };
-  const crs = { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
+  // On the DEM's own cells, the rasters are written in the DEM's own CRS and geotransform,
+  // so a GIS overlays them cell for cell on the DEM the plan was made from.
+  const native = run.grid.native;
+  const crs = native
+    ? { epsg: native.crs.epsg, proj4: native.crs.proj4, geographic: native.crs.geographic, name: native.crs.name }
+    : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
+  const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
   let tiffs: ReturnType<typeof assessmentGeoTiffs> | undefined;
   const tiff = (name: keyof ReturnType<typeof assessmentGeoTiffs>) => () => {
-    tiffs ??= assessmentGeoTiffs(run.assessment.rasters, crs);
+    tiffs ??= assessmentGeoTiffs(rasters, crs);
     return tiffs[name];
   };
   const report = reportInput(run, summary, meta);

@@ -8,7 +8,7 @@ import path from "node:path";
 import type { DemGrid } from "../dem/grid.js";
 import { openDem } from "../dem/source.js";
 import { readWindow } from "../dem/window.js";
-import { toMetricGrid } from "../dem/reproject.js";
+import { gridOnFrame } from "../dem/frameGrid.js";
 import { sampleBilinear } from "../dem/sample.js";
 import { InputError, InputFileError } from "../errors.js";
 import { localFrameFor, type SiteFrame } from "../geo/localFrame.js";
@@ -260,11 +260,19 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
 
   const siteText = await readText(options.area, "area");
   const parsed = parseSiteText(siteText, path.basename(options.area));
+  // Loops, not Math.min(...list): an outline of 10^5 vertices would overflow the call stack.
+  let west = Infinity, east = -Infinity, south = Infinity, north = -Infinity;
   const lons: number[] = [];
   const lats: number[] = [];
   for (const poly of parsed.polygons) for (const [lon, lat] of poly[0]) {
     lons.push(lon);
     lats.push(lat);
+    if (lat < south) south = lat;
+    if (lat > north) north = lat;
+  }
+  for (const lon of lons) {
+    if (lon < west) west = lon;
+    if (lon > east) east = lon;
   }
   const [cLon, cLat] = lonLatCentre(lons, lats);
 
@@ -277,19 +285,27 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
   let frame: SiteFrame;
   try {
     for (const w of source.warnings) warnings.push({ code: "dem", message: w });
-    frame = localFrameFor(cLon, cLat, source.crs);
-    const west = Math.min(...lons);
-    const east = Math.max(...lons);
     // Margin: the safety disc, the surface-ceiling disc, the strip run-out past the
     // boundary and a strip of transit room, so no bound is computed from missing cells.
     const ceilingReach = options.ceiling.reference === "surface" ? options.ceiling.heightM : 0;
     const marginM = Math.max(options.clearance.safetyRadiusM, ceilingReach) + fp.alongM / 2 + spacingM + 30;
-    const raw = await readWindow(
-      source,
-      { west, south: Math.min(...lats), east, north: Math.max(...lats) },
-      { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM },
-    );
-    grid = toMetricGrid(raw, frame.proj4, { epsg: frame.epsg, name: frame.name });
+    const marginLatDeg = marginM / 110_000;
+    const marginLonDeg = marginM / (110_000 * Math.max(0.01, Math.cos((cLat * Math.PI) / 180)));
+    frame = localFrameFor(cLon, cLat, source.crs, {
+      west: west - marginLonDeg, east: east + marginLonDeg,
+      south: Math.max(-90, south - marginLatDeg), north: Math.min(90, north + marginLatDeg),
+    });
+    const raw = await readWindow(source, { west, south, east, north }, { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM });
+    const onFrame = gridOnFrame(raw, frame);
+    grid = onFrame.grid;
+    if (onFrame.resampled) {
+      warnings.push({
+        code: "dem-resampled",
+        message:
+          `The DEM was resampled onto ${frame.name} (${frame.reason}): heights between its cells are an interpolation of an interpolation ` +
+          "and can depart from the DEM's own surface on steep ground.",
+      });
+    }
     const datumNote = verticalDatumWarning(grid.verticalDatum, source.verticalCrsName);
     if (datumNote) warnings.push({ code: "vertical-datum", message: datumNote });
   } finally {

@@ -49,12 +49,10 @@ export interface HillsCase {
   demUnitToM: number;
   /** Expected summary.verticalDatum (what the file declares). */
   verticalDatum: string;
-  /** EPSG code of the working frame the tool should choose. */
-  frameEpsg: number;
+  /** EPSG code of the working frame the tool should choose (null: the DEM's own CRS taken in metres). */
+  frameEpsg: number | null;
   /** Working-grid cell size in metres. */
   cellSizeM: number;
-  /** When the working grid is the DEM's own grid (metric DEM): its cells must line up with the DEM's. */
-  sameGridAsDem: boolean;
   /** Plan figures for the camera checks (domain formulas). */
   plan: { gsdCm: number; tolerancePct: number; imageWidthPx: number; imageHeightPx: number; frontPct: number; sidePct: number; speedMps: number; ceilingM: number; clearanceM: number };
   /** Rough EGM96 undulation there, from memory, only to check PROJ's sign convention. */
@@ -483,7 +481,7 @@ export function hillsPlanSuite(c: HillsCase): void {
         grid = JSON.parse(readFileSync(path.join(out, "report-data.json"), "utf8")).input.dem;
       });
 
-      it.each(tifs)("$name: data type, nodata, and the working grid's georeferencing and CRS", ({ name, type, nodata }) => {
+      it.each(tifs)("$name: data type, nodata, and the DEM's own cells and CRS", ({ name, type, nodata }) => {
         const info = gdalinfoJson(path.join(out, name));
         expect(info.bands.length).toBe(1);
         expect(info.bands[0].type).toBe(type);
@@ -491,30 +489,26 @@ export function hillsPlanSuite(c: HillsCase): void {
         if (Number.isNaN(nodata)) expect(Number.isNaN(nd)).toBe(true);
         else expect(nd).toBe(nodata);
         const [x0, dx, rx, y0, ry, dy] = info.geoTransform;
-        const t = grid.transform;
         expect([rx, ry]).toEqual([0, 0]);
-        expect(x0).toBeCloseTo(t.x0, 6);
-        expect(y0).toBeCloseTo(t.y0, 6);
-        expect(dx).toBeCloseTo(t.dx, 9);
-        expect(dy).toBeCloseTo(t.dy, 9);
-        expect(dx).toBeCloseTo(c.cellSizeM, 9);
-        expect(dy).toBeCloseTo(-c.cellSizeM, 9);
+        // The working grid is the DEM's window with its geotransform scaled to metres (no resampling).
+        const t = grid.transform;
+        expect(t.dx).toBeCloseTo(c.cellSizeM, 9);
+        expect(t.dy).toBeCloseTo(-c.cellSizeM, 9);
+        expect(dx).toBeCloseTo(t.dx / c.demUnitToM, 9);
+        expect(dy).toBeCloseTo(t.dy / c.demUnitToM, 9);
+        expect(x0).toBeCloseTo(t.x0 / c.demUnitToM, 6);
+        expect(y0).toBeCloseTo(t.y0 / c.demUnitToM, 6);
         expect(grid.crs.epsg).toBe(c.frameEpsg);
         expect(summary.frame.epsg).toBe(c.frameEpsg);
-        // GDAL names the CRS by its EPSG code when the GeoKeys carry it.
-        expect(info.coordinateSystem.wkt.replace(/\s+/g, "")).toMatch(new RegExp(`ID\\["EPSG",${c.frameEpsg}\\]\\]$`));
+        // The rasters are in the DEM's own CRS; GDAL names it by its EPSG code when the GeoKeys carry it.
+        expect(info.coordinateSystem.wkt.replace(/\s+/g, "")).toMatch(new RegExp(`ID\\["EPSG",${c.demEpsg}\\]\\]$`));
       });
 
-      it("the working grid lines up with the DEM's own cells when the DEM is metric", () => {
+      it("the rasters line up with the DEM's own cells (no resampling)", () => {
         const dem = gdalinfoJson(path.join(ROOT, c.dem));
         const [x0, dx, , y0, , dy] = gdalinfoJson(path.join(out, "gsd.tif")).geoTransform;
-        if (!c.sameGridAsDem) {
-          // Reprojected: its cell is the DEM's cell in metres.
-          expect(dx).toBeCloseTo(dem.geoTransform[1] * c.demUnitToM, 9);
-          return;
-        }
-        expect(dx).toBe(dem.geoTransform[1]);
-        expect(dy).toBe(dem.geoTransform[5]);
+        expect(dx).toBeCloseTo(dem.geoTransform[1], 12);
+        expect(dy).toBeCloseTo(dem.geoTransform[5], 12);
         const ci = (x0 - dem.geoTransform[0]) / dx;
         const ri = (y0 - dem.geoTransform[3]) / dy;
         expect(Math.abs(ci - Math.round(ci))).toBeLessThan(1e-6);
@@ -527,7 +521,7 @@ export function hillsPlanSuite(c: HillsCase): void {
         const [w, h] = info.size;
         const site = JSON.parse(readFileSync(path.join(out, "plan.geojson"), "utf8")).features.find((f: Feature) => f.properties?.layer === "site");
         const corners = allPositions(site.geometry).map((p) => [p[0], p[1]] as [number, number]);
-        for (const [x, y] of cs2csFromWgs84(c.frameEpsg, corners)) {
+        for (const [x, y] of cs2csFromWgs84(c.demEpsg, corners)) {
           expect(x).toBeGreaterThan(x0);
           expect(x).toBeLessThan(x0 + w * dx);
           expect(y).toBeLessThan(y0);

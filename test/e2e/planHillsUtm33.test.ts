@@ -12,7 +12,6 @@ hillsPlanSuite({
   verticalDatum: "egm96",
   frameEpsg: 32633,
   cellSizeM: 1,
-  sameGridAsDem: true,
   plan: { gsdCm: 3, tolerancePct: 10, imageWidthPx: 4000, imageHeightPx: 3000, frontPct: 75, sidePct: 65, speedMps: 8, ceilingM: 120, clearanceM: 30 },
   undulationRoughM: 47,
 });

@@ -4,6 +4,8 @@ import { InputError } from "../../src/errors.js";
 import type { CrsInfo } from "../../src/dem/grid.js";
 import epsg3857 from "epsg-index/s/3857.json" with { type: "json" };
 import { HAS_CS2CS, cs2cs, seededRandom } from "./projCli.js";
+import proj4 from "proj4";
+import { Geodesic } from "geographiclib-geodesic";
 
 const WGS84 = "+proj=longlat +datum=WGS84 +no_defs";
 
@@ -40,12 +42,66 @@ describe("localFrameFor: which frame a site gets", () => {
     expect(f.proj4).toBe(BNG.proj4);
   });
 
-  it("a geographic or feet DEM CRS falls back to UTM, saying why", () => {
+  it("a feet DEM CRS is kept with its unit taken as metres: frame metres = DEM feet x 0.3048006096 (exactly, PROJ applies false origins in metres)", () => {
+    const ft: CrsInfo = { ...BNG, proj4: BNG.proj4.replace("+units=m", "+units=us-ft"), linearUnitM: 1200 / 3937 };
+    const f = localFrameFor(-1.5, 53, ft);
+    expect(f.source).toBe("dem-metres");
+    expect(f.fromNative).toMatchObject({ sx: 1200 / 3937, sy: 1200 / 3937, ox: 0, oy: 0 });
+    // The same point through the BNG definition in metres (proj4 as the reference).
+    const [x, y] = frameFromProj4(BNG.proj4, 27700, "BNG").fromWgs84(-1.5, 53);
+    const [fx, fy] = f.fromWgs84(-1.5, 53);
+    expect(Math.abs(fx - x)).toBeLessThan(1e-6);
+    expect(Math.abs(fy - y)).toBeLessThan(1e-6);
+  });
+
+  it("a geographic DEM gets a local equirectangular frame on its degrees: affine, true to scale at the centre (GeographicLib geodesics)", () => {
     const geo: CrsInfo = { proj4: WGS84, epsg: 4326, name: "WGS 84", geographic: true, linearUnitM: Number.NaN };
-    const ft: CrsInfo = { ...BNG, linearUnitM: 0.3048006096 };
-    expect(localFrameFor(-1.5, 53, geo)).toMatchObject({ source: "utm", epsg: 32630 });
-    expect(localFrameFor(-1.5, 53, geo).reason).toMatch(/geographic/);
-    expect(localFrameFor(-1.5, 53, ft).reason).toMatch(/not the metre/);
+    const f = localFrameFor(7.45, 46.55, geo, { west: 7.42, east: 7.48, south: 46.52, north: 46.58 });
+    expect(f.source).toBe("local-eqc");
+    const a = f.fromNative!;
+    // Affine per axis: the frame coordinates of any lon/lat equal ox + sx * lon, oy + sy * lat.
+    for (const [lon, lat] of randomPoints(3, 7.42, 7.48, 46.52, 46.58, 50)) {
+      const [x, y] = f.fromWgs84(lon, lat);
+      expect(Math.abs(x - (a.ox + a.sx * lon))).toBeLessThan(1e-6);
+      expect(Math.abs(y - (a.oy + a.sy * lat))).toBeLessThan(1e-6);
+      const [lonB, latB] = f.toWgs84(x, y);
+      expect(Math.abs(lonB - lon)).toBeLessThan(1e-11);
+      expect(Math.abs(latB - lat)).toBeLessThan(1e-11);
+    }
+    // Distances against the WGS84 geodesic (GeographicLib, Karney 2013): short lines near the
+    // centre within 1e-5 relative, and 3 km lines across the window within the 0.5 % the frame chooser allows
+    // (here far less: east-west scale drifts by tan(46.55) x 3e-5 rad = 0.003 %).
+    const g = Geodesic.WGS84;
+    for (const [lon1, lat1, lon2, lat2, tol] of [
+      [7.45, 46.55, 7.4513, 46.55, 1e-5], [7.45, 46.55, 7.45, 46.5509, 1e-5], [7.43, 46.53, 7.47, 46.56, 1e-4], [7.42, 46.58, 7.48, 46.58, 1e-3],
+    ]) {
+      const d = g.Inverse(lat1, lon1, lat2, lon2).s12!;
+      const [x1, y1] = f.fromWgs84(lon1, lat1);
+      const [x2, y2] = f.fromWgs84(lon2, lat2);
+      expect(Math.abs(Math.hypot(x2 - x1, y2 - y1) / d - 1)).toBeLessThan(tol);
+    }
+  });
+
+  it("a geographic DEM on another datum: the frame carries it (proj4's Helmert shift), still affine on the DEM's own degrees", () => {
+    const ed50: CrsInfo = { proj4: "+proj=longlat +ellps=intl +towgs84=-87,-98,-121,0,0,0,0 +no_defs", epsg: 4230, name: "ED50", geographic: true, linearUnitM: Number.NaN };
+    const f = localFrameFor(7.45, 46.55, ed50);
+    expect(f.source).toBe("local-eqc");
+    const a = f.fromNative!;
+    const toEd50 = proj4("WGS84", ed50.proj4);
+    for (const [lon, lat] of randomPoints(5, 7.44, 7.46, 46.54, 46.56, 20)) {
+      const [x, y] = f.fromWgs84(lon, lat);
+      const [elon, elat] = toEd50.forward([lon, lat]);
+      expect(Math.abs(x - (a.ox + a.sx * elon))).toBeLessThan(1e-5);
+      expect(Math.abs(y - (a.oy + a.sy * elat))).toBeLessThan(1e-5);
+    }
+  });
+
+  it("a geographic DEM over a window too wide for one equirectangular frame falls back to UTM, saying why", () => {
+    const geo: CrsInfo = { proj4: WGS84, epsg: 4326, name: "WGS 84", geographic: true, linearUnitM: Number.NaN };
+    // 60 N, 1 degree of latitude each way: east-west scale off by tan(60) x 0.0175 = 3 %.
+    const f = localFrameFor(10, 60, geo, { west: 9, east: 11, south: 59, north: 61 });
+    expect(f.source).toBe("utm");
+    expect(f.reason).toMatch(/scale at the site is/);
   });
 
   it("Web Mercator is metric in name only: at 60 N its scale is 1/cos(60) = 2, so UTM is used", () => {
