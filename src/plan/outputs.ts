@@ -96,7 +96,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
   const baseRasters = b.assessment.rasters;
   // Both histograms on the same bins, so the page can draw one over the other.
   const edges = gsdBinEdges(g.low, g.high, Math.min(g.min, b.stats.gsdCm.min), Math.max(g.max, b.stats.gsdCm.max), REPORT_GSD_BINS);
-  const clearanceM = run.options.clearance.minM + run.options.clearance.obstacleMarginM;
+  const clearanceM = summary.clearance.floorM;
   const shortfall = clearanceShortfall(run.grid, planRasters.inSite, planRasters.width, planRasters.height, b.altitudeAmslM, clearanceM);
   const site = run.site.local;
   return {
@@ -139,7 +139,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
       surfaceModel: run.options.demSurface === "dtm" ? "DTM" : run.options.demSurface === "dsm" ? "DSM" : "unknown",
       ...(run.options.demAccuracyM !== undefined ? { demAccuracyM: run.options.demAccuracyM } : {}),
       notes: [
-        `Clearance kept: ${run.options.clearance.minM} m above the highest ground within ${run.options.clearance.safetyRadiusM} m, plus an obstacle margin of ${run.options.clearance.obstacleMarginM} m.`,
+        `Clearance kept on the whole path: ${summary.clearance.statement} (${summary.clearance.floorM} m in all).`,
         "Global 1-arc-second DEMs err by several metres or more vertically (the SRTM requirement was 16 m at 90 %), lidar DTMs by decimetres: allow for it in the clearance.",
       ],
     },

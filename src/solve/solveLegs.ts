@@ -204,6 +204,7 @@ function sliceProfile(p: StationProfile, a: number, b: number): StationProfile {
     bandLowM: p.bandLowM.slice(a, b + 1),
     bandHighM: p.bandHighM.slice(a, b + 1),
     altitudeM: p.altitudeM.slice(a, b + 1),
+    ...(p.knownLowM ? { knownLowM: p.knownLowM.slice(a, b + 1) } : {}),
     status: p.status.slice(a, b + 1),
     cause: p.cause.slice(a, b + 1),
   };
@@ -215,17 +216,31 @@ function solvePiece(
   const prof = p.profile;
   const n = prof.s.length;
   const lo = new Float64Array(n), hi = new Float64Array(n);
+  // Unknown ground under a transit: the floor over the cells that have data nearby, else
+  // the highest floor known on this leg, else the take-off's (a guess: warned below).
   let knownLow = -Infinity;
-  for (let k = 0; k < n; k++) if (prof.hardLowM[k] === prof.hardLowM[k]) knownLow = Math.max(knownLow, prof.hardLowM[k]);
+  for (let k = 0; k < n; k++) {
+    const v = prof.hardLowM[k] === prof.hardLowM[k] ? prof.hardLowM[k] : (prof.knownLowM?.[k] ?? NaN);
+    if (v === v) knownLow = Math.max(knownLow, v);
+  }
+  if (knownLow === -Infinity) knownLow = opts.takeoffGroundM + opts.clearance.minM + opts.clearance.obstacleMarginM + (opts.clearance.demAccuracyM ?? 0);
+  let unknownM = 0;
   for (let k = 0; k < n; k++) {
     lo[k] = prof.hardLowM[k];
     hi[k] = prof.hardHighM[k];
     if (lo[k] !== lo[k]) {
-      // Unknown ground under a transit: hold the highest clearance known on this leg.
-      lo[k] = knownLow > -Infinity ? knownLow : 0;
-      hi[k] = Infinity;
+      const near = prof.knownLowM?.[k] ?? NaN;
+      lo[k] = near === near ? near : knownLow;
+      if (!(hi[k] >= lo[k])) hi[k] = lo[k] + bandWidthM;
+      if (k > 0) unknownM += prof.s[k] - prof.s[k - 1];
     }
     if (!(hi[k] >= lo[k])) hi[k] = lo[k] + bandWidthM; // conflict flown keeping clearance; breach reported later
+  }
+  if (unknownM > 0) {
+    warnings.push({
+      code: "unknown-ground",
+      message: `${p.kind === "strip" ? "Strip" : p.conflictGap ? "Bridge over an unflyable stretch of strip" : "Leg into strip"} ${p.strip} crosses about ${unknownM.toFixed(0)} m where the DEM has no data (or ends): its height there holds the highest clearance known on the leg, a guess, not a promise. Fly around it or set assumeGroundM.`,
+    });
   }
   const { gMin, gMax } = gradientLimits(opts, p.kind);
   const eLo = new Float64Array(n), eHi = new Float64Array(n);
@@ -252,7 +267,11 @@ function solvePiece(
   };
   let ok = withEndStep();
   if (!ok) {
-    hi.fill(Infinity);
+    // Drop the ceiling only as far as clearance and the climb limits demand: the least
+    // gradient-feasible height above the floor. Every height the path takes is then
+    // explained by the band, clearance, the ceiling or a neighbour's climb limit.
+    const floor = floorClosure(prof.s, lo, gMin, gMax);
+    for (let k = 0; k < n; k++) hi[k] = Math.max(hi[k], floor[k]);
     warnings.push({ code: "climb-ceiling", message: `${p.kind === "strip" ? "Strip" : "Leg into strip"} ${p.strip}: clearance cannot be kept under the ceiling within the climb and descent limits; the plan keeps clearance (see the ceiling breaches).` });
     ok = withEndStep();
   }
@@ -385,6 +404,20 @@ function checkTargetReachable(profiles: StationProfile[], o: SolverOptions): voi
     throw new InputError("band.hTargetM", o.band.hTargetM, `a height above ground that keeps clearance somewhere on the strips (at least ${lowAgl.toFixed(1)} m)${gsdRange(o, Math.max(0, lowAgl), highAgl)}`,
       "the target height is below the terrain clearance over every strip");
   }
+}
+
+/**
+ * The least gradient-feasible heights at or above `lo`: lo raised where the
+ * aircraft must already be climbing towards higher ground ahead (or still be
+ * descending from higher ground behind). Itself a feasible path.
+ * @example floorClosure(s, lo, -0.3, 0.3)
+ */
+export function floorClosure(s: Float64Array, lo: Float64Array, gMin: number, gMax: number): Float64Array {
+  const n = s.length;
+  const f = lo.slice();
+  for (let j = 1; j < n; j++) f[j] = Math.max(f[j], f[j - 1] + gMin * (s[j] - s[j - 1]));
+  for (let j = n - 2; j >= 0; j--) f[j] = Math.max(f[j], f[j + 1] - gMax * (s[j + 1] - s[j]));
+  return f;
 }
 
 /** A copy of the grid with nodata replaced by `heightM` (the user's --assume-ground). */

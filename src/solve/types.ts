@@ -21,7 +21,11 @@ export interface SolverOptions {
   ceiling: { heightM: number; reference: CeilingReference };
   /** Ground height (AMSL) at the take-off point, for the `takeoff` ceiling. */
   takeoffGroundM: number;
-  clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number };
+  /**
+   * Clearance floor: minM + obstacleMarginM + demAccuracyM above the highest ground within
+   * safetyRadiusM (demAccuracyM: the DEM's stated vertical accuracy, height the floor cannot trust).
+   */
+  clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number; demAccuracyM?: number };
   aircraft: {
     type: "multirotor" | "fixed-wing";
     /** Ground speed on photo legs (already capped by trigger interval and blur). */
@@ -64,7 +68,14 @@ export interface StationProfile {
   y: Float64Array;
   /** Ground straight below (NaN where nodata). */
   groundM: Float64Array;
+  /** Clearance floor; NaN where the ground it needs is unknown (nodata or off the DEM). */
   hardLowM: Float64Array;
+  /**
+   * Where hardLowM is NaN: the same floor over the cells that have data (NaN where none
+   * do). A stand-in for flying over unknown ground, which the plan warns about; absent
+   * when the whole leg's ground is known.
+   */
+  knownLowM?: Float64Array;
   hardHighM: Float64Array;
   bandLowM: Float64Array;
   bandHighM: Float64Array;

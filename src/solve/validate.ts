@@ -23,9 +23,9 @@ export function validateSolverOptions(o: SolverOptions): void {
   if (o.aircraft.minSpeedMps > o.aircraft.speedMps) {
     throw new InputError("aircraft.minSpeedMps", o.aircraft.minSpeedMps, `at most the photo speed (${o.aircraft.speedMps} m/s)`);
   }
-  const floorM = o.clearance.minM + o.clearance.obstacleMarginM;
+  const floorM = o.clearance.minM + o.clearance.obstacleMarginM + (o.clearance.demAccuracyM ?? 0);
   if (o.ceiling.heightM <= floorM) {
-    throw new InputError("ceiling.heightM", o.ceiling.heightM, `more than the minimum clearance + obstacle margin (${floorM} m)`,
+    throw new InputError("ceiling.heightM", o.ceiling.heightM, `more than the minimum clearance + obstacle margin + DEM accuracy (${floorM} m)`,
       "the ceiling is at or below the minimum clearance, so no height is both legal and safe");
   }
   const { hMinM, hMaxM, hTargetM } = o.band;

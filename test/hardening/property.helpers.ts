@@ -94,14 +94,20 @@ export function terrainHeight(t: Terrain, dx: number, dy: number): number {
   return z;
 }
 
-/** Writes the case into `dir` and returns its resolved options (throws what resolvePlanOptions throws). */
-export function writeCase(dir: string, t: Terrain, p: PlanDraw): PlanOptions {
-  const half = (CELLS * CELL_M) / 2;
-  const heights = new Float32Array(CELLS * CELLS);
-  for (let r = 0; r < CELLS; r++)
-    for (let c = 0; c < CELLS; c++) heights[r * CELLS + c] = terrainHeight(t, -half + (c + 0.5) * CELL_M, half - (r + 0.5) * CELL_M);
+/**
+ * Writes the case into `dir` and returns its resolved options (throws what resolvePlanOptions throws).
+ * `dem` overrides the DEM's cell size, cell count and height function (default: CELLS x CELLS at CELL_M, terrainHeight).
+ */
+export function writeCase(
+  dir: string, t: Terrain, p: PlanDraw, dem: { cellM: number; cells: number; height: (dx: number, dy: number) => number } = { cellM: CELL_M, cells: CELLS, height: (dx, dy) => terrainHeight(t, dx, dy) },
+): PlanOptions {
+  const { cellM, cells } = dem;
+  const half = (cells * cellM) / 2;
+  const heights = new Float32Array(cells * cells);
+  for (let r = 0; r < cells; r++)
+    for (let c = 0; c < cells; c++) heights[r * cells + c] = dem.height(-half + (c + 0.5) * cellM, half - (r + 0.5) * cellM);
   writeDemWithGdal(path.join(dir, "dem.tif"), {
-    width: CELLS, height: CELLS, x0: 500000 - half, y0: 5200000 + half, dx: CELL_M, dy: -CELL_M, srs: "EPSG:32633", heights,
+    width: cells, height: cells, x0: 500000 - half, y0: 5200000 + half, dx: cellM, dy: -cellM, srs: "EPSG:32633", heights,
     creation: ["TILED=YES", "BLOCKXSIZE=64", "BLOCKYSIZE=64", "COMPRESS=DEFLATE"],
   });
   const s = p.siteM / 2;

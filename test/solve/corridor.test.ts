@@ -18,7 +18,19 @@ describe("ceiling rules against their published text", () => {
     expect(C).toBeCloseTo(121.92, 12);
     const grid = makeGrid({ width: 200, height: 60, x0: 0, y0: 60, cellM: 1, heights: (x) => 50 + 0.3 * x });
     const p = corridorAlong(grid, stationsAlongLeg(strip(30.5, 170.5), 1, 20), options({ ceiling: { heightM: C, reference: "ground" } }));
-    for (let k = 0; k < p.s.length; k++) expect(p.hardHighM[k] - p.groundM[k]).toBeCloseTo(121.92, 9);
+    // The ceiling must hold on the straight path between stations too, so each station takes
+    // the lowest ground the path can be over before the next: on these 1 m cells, the cell
+    // centres within one station step (1 m) + one cell diagonal (1.414 m), here the centre
+    // 2 m back, 0.6 m lower on the 0.3 slope (see corridorAlong).
+    // (Heights are Float32, as a DEM stores them: 4 decimals at 100 m.)
+    for (let k = 0; k < p.s.length; k++) expect(p.hardHighM[k] - p.groundM[k]).toBeCloseTo(121.92 - 0.6, 4);
+    // And then 400 ft above the ground straight below holds at every point between stations.
+    for (let k = 0; k + 1 < p.s.length; k++)
+      for (let f = 0; f <= 1; f += 0.125) {
+        const x = p.x[k] + f * (p.x[k + 1] - p.x[k]);
+        const zMax = Math.max(p.hardHighM[k], p.hardHighM[k + 1]);
+        expect(zMax).toBeLessThanOrEqual(50 + 0.3 * x + 121.92 + 1e-9);
+      }
   });
 
   it("Reg (EU) 2019/947 UAS.OPEN.010: 120 m from the closest point of the surface; flat ground gives ground + 120", () => {
@@ -40,9 +52,14 @@ describe("ceiling rules against their published text", () => {
     const st = stationsAlongLeg(strip(150.5, 250.5), 1, 20);
     const surf = corridorAlong(grid, st, options({ ceiling: { heightM: C, reference: "surface" } }));
     const gnd = corridorAlong(grid, st, options({ ceiling: { heightM: C, reference: "ground" } }));
+    // Between stations the path stays legal when each station keeps within C - s of the
+    // surface (s = 1 m station step; see corridorAlong): (C - 1) / cos a above the ground
+    // below. The ground rule takes the lowest centre within s + one cell diagonal, 2 m back
+    // on this slope of 1: C - 2 above the ground below.
     for (let k = 0; k < st.s.length; k++) {
-      expect(surf.hardHighM[k] - surf.groundM[k]).toBeCloseTo(C / Math.cos(Math.PI / 4), 2);
-      expect(surf.hardHighM[k] - gnd.hardHighM[k]).toBeCloseTo(C * (Math.SQRT2 - 1), 2);
+      expect(surf.hardHighM[k] - surf.groundM[k]).toBeCloseTo((C - 1) / Math.cos(Math.PI / 4), 2);
+      expect(gnd.hardHighM[k] - gnd.groundM[k]).toBeCloseTo(C - 2, 6);
+      expect(surf.hardHighM[k] - gnd.hardHighM[k]).toBeCloseTo((C - 1) * Math.SQRT2 - (C - 2), 2);
     }
   });
 

@@ -73,17 +73,20 @@ describe("solvePlan on analytic terrains", () => {
   it("narrow deep gorge with walls inside the safety radius: unflyable exactly where clearance passes the ceiling", () => {
     // Gorge floor 0 for |x - 200| < 5 (cells 195..204), rim 100. Over the floor the
     // ceiling is 0 + 120 while the walls within 15 m demand 100 + 30: conflict.
-    // On the rim the ceiling is 220 > 130: flyable. Nowhere else conflicts.
+    // On the rim the ceiling is 220 > 130: flyable. Nowhere else conflicts. The ceiling
+    // holds between stations, so a station whose next 1 m of path may pass over the floor
+    // takes the floor's ceiling: the floor within 1 m + one cell diagonal (1.414 m) of the
+    // 1 m stations adds two stations each side (193.5, 194.5 and 205.5, 206.5).
     const grid = profileGrid(400, (x) => (Math.abs(x - 200) < 5 ? 0 : 100));
     const opts = options({ clearance: { minM: 30, safetyRadiusM: 15, obstacleMarginM: 0 } });
     const r = solvePlan(grid, [strip(50.5, 350.5)], opts);
-    expect(r.counts.unflyable).toBe(10);
+    expect(r.counts.unflyable).toBe(14);
     expect(r.legs.map((l) => l.kind)).toEqual(["strip", "transit", "strip"]);
     const gap = r.legs[1];
     expect(gap.conflictGap).toBe(true);
     for (let k = 0; k < gap.profile.s.length; k++) {
       const x = gap.profile.x[k];
-      const want = x > 195 && x < 205 ? STATUS_UNFLYABLE : STATUS_OK;
+      const want = x > 195 - 2.42 && x < 205 + 2.42 ? STATUS_UNFLYABLE : STATUS_OK;
       expect([x, gap.profile.status[k]]).toEqual([x, want]);
       expect(gap.profile.altitudeM[k]).toBeGreaterThanOrEqual(gap.profile.hardLowM[k] - 1e-6);
     }
@@ -93,7 +96,7 @@ describe("solvePlan on analytic terrains", () => {
     expect(through.legs).toHaveLength(1);
     const p = through.legs[0].profile;
     for (let k = 0; k < p.s.length; k++) expect(p.altitudeM[k]).toBeGreaterThanOrEqual(p.hardLowM[k] - 1e-6);
-    expect(through.counts.unflyable).toBe(10);
+    expect(through.counts.unflyable).toBe(14);
     expect(through.warnings.find((w) => w.code === "ceiling-breach")?.message).toMatch(/above the ceiling/);
   });
 
