@@ -1,5 +1,5 @@
 import type { DemGrid } from "./grid.js";
-import { extremaInRadius } from "./sample.js";
+import { sampleBilinear } from "./sample.js";
 
 /**
  * Exact extrema of the DEM's bilinear surface over a disc.
@@ -240,16 +240,41 @@ function hullIn(centre: number, inner: number, outer: number, out: number[]): nu
 
 /**
  * Exact max and min of the bilinear surface over the disc of radius R around
- * each point: extremaInRadius's centres (the cell under the point always
- * counted) extended by the rim. NaN where the disc touches nodata or leaves
- * the grid. For small discs (the ceiling's reach between stations) and checks;
- * the solver's clearance uses the pooled maxGroundInRadius plus rimExtend.
+ * each point: the cell centres inside the disc, extended by the rim (a disc of
+ * radius 0 is the point itself). NaN where the disc touches nodata or leaves
+ * the grid. For small discs (the ceiling's reach between stations) and for
+ * checks; the solver's clearance on fine DEMs uses the pooled maxGroundInRadius.
  * @example discExtremaExact(grid, xs, ys, 0.5, maxOut, minOut)
  */
 export function discExtremaExact(grid: DemGrid, xs: ArrayLike<number>, ys: ArrayLike<number>, R: number, outMax: Float64Array, outMin: Float64Array): void {
-  extremaInRadius(grid, xs, ys, R, outMax, outMin);
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const one = new Float64Array(1);
   for (let i = 0; i < xs.length; i++) {
-    outMax[i] = rimExtend(grid, xs[i], ys[i], R, outMax[i], true);
-    outMin[i] = rimExtend(grid, xs[i], ys[i], R, outMin[i], false);
+    const px = xs[i], py = ys[i];
+    if (!(R > 0)) {
+      outMax[i] = outMin[i] = sampleBilinear(grid, [px], [py], one)[0];
+      continue;
+    }
+    let mx = -Infinity, mn = Infinity, bad = false;
+    // Centres inside the disc (rows whose centres lie within R, then the chord of each).
+    const rLo = Math.ceil((py + R - y0) / dy - 0.5), rHi = Math.floor((py - R - y0) / dy - 0.5);
+    for (let r = rLo; r <= rHi && !bad; r++) {
+      const ddy = y0 + (r + 0.5) * dy - py;
+      const rem = R * R - ddy * ddy;
+      if (rem < 0) continue;
+      const half = Math.sqrt(rem);
+      const ca = Math.ceil((px - half - x0) / dx - 0.5), cb = Math.floor((px + half - x0) / dx - 0.5);
+      if (ca > cb) continue;
+      if (r < 0 || r >= h || ca < 0 || cb >= w) { bad = true; break; }
+      for (let c = ca; c <= cb; c++) {
+        const z = heights[r * w + c];
+        if (z !== z) { bad = true; break; }
+        if (z > mx) mx = z;
+        if (z < mn) mn = z;
+      }
+    }
+    outMax[i] = bad ? NaN : rimExtend(grid, px, py, R, mx, true);
+    outMin[i] = bad ? NaN : rimExtend(grid, px, py, R, mn, false);
   }
 }
