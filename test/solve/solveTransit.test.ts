@@ -48,4 +48,36 @@ describe("solveTransit: a transit whose ends join the legs beside it", () => {
     for (let k = 0; k < p.s.length; k++) expect(p.altitudeM[k]).toBeGreaterThanOrEqual(p.hardLowM[k] - 1e-6);
     expect(r.warnings.some((x) => x.code === "vertical-step" && /climbs on the spot at its start/.test(x.message))).toBe(true);
   });
+
+  it("no invented height: a wall the ceiling cannot clear is climbed only as high as clearance and the climb limit demand", () => {
+    // A plateau at 100 m with a one-cell wall up to 300 m at x = 200 (a quarry face).
+    // Clearance 10 m within 15 m; ceiling 120 m above the ground below; fixed-wing at 10 m/s
+    // climbing 2 m/s (gradient 0.2). The start is pinned at 115 m. Keeping clearance needs
+    // 310 m over the wall's top and, climbing at 0.2, the climb must begin 1000 m earlier:
+    // the start cannot reach it, so the leg climbs on the spot at its start. Every height
+    // of the path must be at most the larger of the ceiling and the least climb-feasible
+    // clearance floor (the floor raised by the climb limit ahead): nothing above what the
+    // limits themselves explain.
+    const wall = profileGrid(460, (x) => (x < 200 ? 100 : 300));
+    const o = options();
+    const r = solveTransit(wall, transit(30.5, 400.5), o, 115);
+    const p = r.leg.profile;
+    const g = 0.2;
+    for (let k = 0; k < p.s.length; k++) {
+      // Least feasible floor: max over stations j ahead of hardLow(j) - g (s_j - s_k), and behind (descent 0.2).
+      let f = -Infinity;
+      for (let j = 0; j < p.s.length; j++) f = Math.max(f, p.hardLowM[j] - g * Math.abs(p.s[j] - p.s[k]));
+      expect(p.altitudeM[k]).toBeGreaterThanOrEqual(p.hardLowM[k] - 1e-6);
+      // Where clearance passes the ceiling (a conflict, reported as a breach) the solver's stated
+      // allowance is up to one band width above the floor, to save waypoints.
+      const conflict = p.hardLowM[k] > p.hardHighM[k] ? p.hardLowM[k] + (o.band.hMaxM - o.band.hMinM) : -Infinity;
+      expect(p.altitudeM[k]).toBeLessThanOrEqual(Math.max(p.hardHighM[k], f, conflict) + 1e-6);
+    }
+    // The climb on the spot is no higher than the least feasible floor at the start.
+    const w = r.leg.waypoints;
+    expect(w[1].x).toBe(w[0].x);
+    let f0 = -Infinity;
+    for (let j = 0; j < p.s.length; j++) f0 = Math.max(f0, p.hardLowM[j] - g * p.s[j]);
+    expect(w[1].altitudeAmslM).toBeLessThanOrEqual(Math.max(p.hardHighM[0], f0) + 1e-6);
+  });
 });
