@@ -177,3 +177,25 @@ function cs2csToWgs84(epsg: number, xy: [number, number][]): [number, number][] 
     return [lon, lat] as [number, number];
   });
 }
+
+describe.skipIf(!HAS_GDAL)("DEM accuracy and resolution count", () => {
+  it("a 3\" DEM (cells about 64 x 93 m at 46.5 N: 3\" x 1852 m/' x cos(lat), from the nautical mile) is warned with both sizes", () => {
+    const out = path.join(tempDir("truth-coarse"), "out");
+    const r = runCli(["plan", path.join(ROOT, "fixtures/truth/ridges_geo3s-plan.yaml"), "--out", out, "--quiet", "--json"], { timeoutMs: 300_000 });
+    expect(r.status, r.stderr).toBe(0);
+    const s = JSON.parse(r.stdout);
+    const w = (s.warnings as string[]).find((m) => /DEM's cells are/.test(m));
+    expect(w).toMatch(/64\.0 x 92\.6 m, coarser than half the strip spacing \(\d+\.\d m\) and the 15 m safety radius/);
+    expect(w).toMatch(/ground only at cell centres/);
+  });
+
+  it("demAccuracyM adds to the clearance floor, and the summary and report say so", () => {
+    const out = path.join(tempDir("truth-accuracy"), "out");
+    const r = runCli(["plan", path.join(ROOT, "fixtures/truth/gorge_utm-plan.yaml"), "--out", out, "--quiet"], { timeoutMs: 300_000 });
+    expect(r.status, r.stderr).toBe(0);
+    const s = JSON.parse(readFileSync(path.join(out, "summary.json"), "utf8"));
+    expect(s.clearance).toMatchObject({ minM: 30, demAccuracyM: 0.5, floorM: 30.5 });
+    expect(s.clearance.statement).toBe("clearance 30 m + 0.5 m for the DEM's stated accuracy, above the highest ground within 15 m of the path");
+    expect(readFileSync(path.join(out, "report.html"), "utf8")).toContain("clearance 30 m + 0.5 m for the DEM&#39;s stated accuracy");
+  });
+});
