@@ -1,3 +1,4 @@
+import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { execFileSync } from "node:child_process";
 
@@ -16,5 +17,16 @@ describe("library entry", () => {
   it("starts the CLI quickly enough to print its help (commands load lazily)", () => {
     const out = execFileSync(process.execPath, ["dist/cli/main.js", "--help"], { encoding: "utf8" });
     for (const cmd of ["inspect", "layout", "plan", "report", "demo"]) expect(out).toContain(cmd);
+  });
+
+  it("--version and -V print package.json's version", () => {
+    const pkg = JSON.parse(readFileSync("package.json", "utf8")) as { version: string };
+    for (const flag of ["--version", "-V"]) expect(execFileSync(process.execPath, ["dist/cli/main.js", flag], { encoding: "utf8" }).trim()).toBe(pkg.version);
+  });
+
+  it("plan --help reads one sentence per key: meaning, what is allowed, the default, the key", () => {
+    const out = execFileSync(process.execPath, ["dist/cli/main.js", "plan", "--help"], { encoding: "utf8" }).replace(/\s+/g, " ");
+    expect(out).toContain("Plan name for the summary and exported files (default: the site's name). Allowed: a non-empty text. [key name]");
+    expect(out).not.toMatch(/\.;/);
   });
 });

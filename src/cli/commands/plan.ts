@@ -29,8 +29,10 @@ export function registerPlan(program: Command): void {
 }
 
 function optionHelp(s: (typeof PLAN_OPTION_SPECS)[number]): string {
-  const def = s.default === undefined ? "" : ` (default ${JSON.stringify(s.default)})`;
-  return `${s.key}: ${s.description}; ${s.allowed}${def}`;
+  // One sentence per key: what it is, what is allowed, the default (plan-file key last).
+  const def = s.default === undefined ? "" : ` Default: ${JSON.stringify(s.default)}.`;
+  const allowed = s.allowed ? ` Allowed: ${s.allowed.replace(/\.$/, "")}.` : "";
+  return `${s.description.replace(/\.$/, "")}.${allowed}${def} [key ${s.key}]`;
 }
 
 function planHelpAfter(): string {
