@@ -60,3 +60,11 @@ export { PLAN_OPTION_SPECS, PLAN_DEFAULTS } from "./plan/optionsSchema.js";
 export { planMission, prepareMission, type PlanRun } from "./plan/plan.js";
 export { planOutputs, OUTPUT_NAMES } from "./plan/outputs.js";
 export { planSummary, type PlanSummary } from "./plan/summary.js";
+
+// verify: the independent check of a written plan
+export type { VerifyRow, VerifyLimits, Breach, VerifyResult, VerifyChecked, VerifyLimitName } from "./verify/types.js";
+export { verifyWaypoints } from "./verify/verify.js";
+export { loadVerifyInputs, readPaddedWindow, type VerifyInputs } from "./verify/load.js";
+export { parseWaypointsCsv } from "./verify/csv.js";
+export { limitsFromPlanOptions } from "./verify/limits.js";
+export { verifyText, verifyJson } from "./verify/format.js";

@@ -4,6 +4,7 @@ import { registerLayout } from "./layout.js";
 import { registerPlan } from "./plan.js";
 import { registerReport } from "./report.js";
 import { registerDemo } from "./demo.js";
+import { registerVerify } from "./verify.js";
 
 /**
  * Every subcommand registers itself here. Command modules must keep heavy
@@ -15,4 +16,5 @@ export function registerCommands(program: Command): void {
   registerPlan(program);
   registerReport(program);
   registerDemo(program);
+  registerVerify(program);
 }
