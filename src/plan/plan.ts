@@ -34,6 +34,10 @@ import type { AssessedLeg } from "../assess/exposures.js";
 import type { Assessment } from "../assess/types.js";
 import { splitFlights, type FlightSplit } from "../export/flights.js";
 import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
+import { waypointRows } from "../export/rows.js";
+import { verifyWaypoints } from "../verify/verify.js";
+import { limitsFromPlanOptions } from "../verify/limits.js";
+import type { Breach, VerifyResult } from "../verify/types.js";
 import type { PlanOptions } from "./options.js";
 
 /** Everything a finished plan knows; the exporters and the report read it. */
@@ -56,6 +60,11 @@ export interface PlanRun {
   assessment: Assessment;
   baseline: Baseline;
   takeoff: { x: number; y: number; lon: number; lat: number; groundM: number };
+  /**
+   * The independent check (gsdplan verify) of the waypoints this plan writes, against the
+   * DEM in its own CRS; `undeclared` are its breaches that no plan warning announced.
+   */
+  verification: VerifyResult & { undeclared: Breach[] };
   /** Waypoints per flight against the autopilot's limit (null: no limit given). */
   budget: WaypointBudgetSummary | null;
   warnings: SolveWarning[];
@@ -95,7 +104,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const warnings: SolveWarning[] = [];
 
   stage("load");
-  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, site, speed, warnings: loadWarnings } =
+  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, warnings: loadWarnings } =
     await prepareMission(options);
   warnings.push(...loadWarnings);
   lap("load");
@@ -179,6 +188,23 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   warnings.push(...budget.warnings);
   lap("solve");
 
+  // The same independent check `gsdplan verify` makes, on the rows about to be written.
+  const rows = waypointRows(flights.flights.map((f) => f.legs), frame.toWgs84, {
+    datum: grid.verticalDatum, undulationM: undulationFor(grid.verticalDatum), takeoffGroundM: takeoffGround,
+  });
+  const checked = verifyWaypoints(rows, limitsFromPlanOptions(options), nativeGrid);
+  const undeclared = checked.breaches.filter((b) => !declared(b, warnings));
+  for (const b of undeclared) warnings.push({ code: "verify-undeclared", message: `Independent check: ${b.message} (not announced by the plan: please report it)`, strip: b.strip });
+  if (checked.breaches.length) {
+    warnings.push({
+      code: "verify",
+      message: `Independent check of the waypoints against the DEM: ${checked.breaches.length} breach${checked.breaches.length === 1 ? "" : "es"} ` +
+        `(${breachCounts(checked.breaches)}), ${undeclared.length ? `${undeclared.length} not announced above` : "each announced above"}. Run gsdplan verify on the outputs for the full list.`,
+    });
+  }
+  const verification = { ...checked, undeclared };
+  lap("verify");
+
   stage("assess");
   const flownLegs = flights.flights.flatMap((f) => f.legs);
   const assessment = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
@@ -222,9 +248,27 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     baseline,
     takeoff: { x: layout.takeoff[0], y: layout.takeoff[1], lon: tLon, lat: tLat, groundM: takeoffGround },
     budget: budget.summary,
+    verification,
     warnings,
     timings,
   };
+}
+
+/**
+ * A breach the plan announced: a ceiling breach or a crossing of unknown ground on a
+ * leg of the same strip (the plan keeps clearance and says where it breaks the ceiling;
+ * it flies over DEM holes only with a warning). Clearance, rates, ground and take-off
+ * breaches are never announced: the plan promises them.
+ */
+function declared(b: Breach, warnings: readonly SolveWarning[]): boolean {
+  const code = b.limit === "ceiling" ? "ceiling-breach" : b.limit === "nodata" ? "unknown-ground" : null;
+  return code !== null && warnings.some((w) => w.code === code && (w.strip === undefined || w.strip === b.strip));
+}
+
+function breachCounts(bs: readonly Breach[]): string {
+  const n = new Map<string, number>();
+  for (const b of bs) n.set(b.limit, (n.get(b.limit) ?? 0) + 1);
+  return [...n].map(([k, v]) => `${v} ${k}`).join(", ");
 }
 
 /** The load stage's result: everything fixed before strips are laid out. */
@@ -237,6 +281,8 @@ export interface PreparedMission {
   triggerM: number;
   frame: SiteFrame;
   grid: DemGrid;
+  /** The DEM window in its own CRS, as read (shares its heights with `grid` unless resampled). */
+  nativeGrid: DemGrid;
   site: Site;
   speed: GroundSpeed;
   warnings: SolveWarning[];
@@ -284,6 +330,7 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     ...(options.demVerticalUnit ? { verticalUnit: VERTICAL_UNIT_NAMES[options.demVerticalUnit] } : {}),
   });
   let grid: DemGrid;
+  let nativeGrid: DemGrid;
   let frame: SiteFrame;
   try {
     for (const w of source.warnings) warnings.push({ code: "dem", message: w });
@@ -298,6 +345,7 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
       south: Math.max(-90, south - marginLatDeg), north: Math.min(90, north + marginLatDeg),
     });
     const raw = await readWindow(source, { west, south, east, north }, { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM });
+    nativeGrid = raw;
     const onFrame = gridOnFrame(raw, frame);
     grid = onFrame.grid;
     if (onFrame.resampled) {
@@ -328,7 +376,7 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     gsdM: requirement.lowGsdM,
     blurPx: options.blurPx,
   });
-  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, site, speed, warnings };
+  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, warnings };
 }
 
 export interface WaypointBudgetSummary {

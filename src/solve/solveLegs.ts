@@ -239,6 +239,7 @@ function solvePiece(
   if (unknownM > 0) {
     warnings.push({
       code: "unknown-ground",
+      strip: p.strip,
       message: `${p.kind === "strip" ? "Strip" : p.conflictGap ? "Bridge over an unflyable stretch of strip" : "Leg into strip"} ${p.strip} crosses about ${unknownM.toFixed(0)} m where the DEM has no data (or ends): its height there holds the highest clearance known on the leg, a guess, not a promise. Fly around it or set assumeGroundM.`,
     });
   }
@@ -372,6 +373,7 @@ function ceilingBreaches(legs: SolvedLeg[], warnings: SolveWarning[]): void {
       const len = p.s[j - 1] - p.s[i];
       warnings.push({
         code: "ceiling-breach",
+        strip: leg.strip,
         message: `${leg.kind === "strip" ? "Strip" : leg.conflictGap ? "Bridge over an unflyable stretch of strip" : "Transit into strip"} ${leg.strip}: above the ceiling from (${p.x[i].toFixed(1)}, ${p.y[i].toFixed(1)}) for ${len.toFixed(0)} m, up to ${over.toFixed(1)} m over it, to keep terrain clearance. Get permission or change the layout before flying.`,
       });
       i = j;

@@ -114,6 +114,8 @@ export interface SolvedLeg {
 export interface SolveWarning {
   code: string;
   message: string;
+  /** The strip (or the strip a transit leads into) the warning is about, when it is about one. */
+  strip?: number;
 }
 
 export interface SolveResult {

@@ -14,6 +14,7 @@ const LIMIT_TITLES: Record<string, string> = {
   descent: "descent rate",
   nodata: "unknown ground (nodata)",
   takeoff: "take-off",
+  band: "detail band (nadir GSD at strip waypoints)",
 };
 
 export const VERIFY_CAUTION =
@@ -44,7 +45,8 @@ function groupLines(list: readonly Breach[], prefix: string): string[] {
   for (const limit of LIMIT_ORDER) {
     const of = list.filter((b) => b.limit === limit);
     if (!of.length) continue;
-    out.push(`${prefix}${LIMIT_TITLES[limit]}: ${of.length} ${prefix ? "crossing" : "breach"}${of.length === 1 ? "" : "es"}`.replace("crossinges", "crossings"));
+    const word = prefix ? (limit === "band" ? "waypoint" : "crossing") : "breach";
+    out.push(`${prefix}${LIMIT_TITLES[limit]}: ${of.length} ${word}${of.length === 1 ? "" : word === "breach" ? "es" : "s"}`);
     for (const b of of) out.push(`  ${b.message}`);
   }
   return out;

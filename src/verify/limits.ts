@@ -1,4 +1,6 @@
 import type { PlanOptions } from "../plan/options.js";
+import { makeCamera, type CameraSpec } from "../camera/makeCamera.js";
+import { requirementFrom } from "../camera/requirement.js";
 import type { VerifyLimits } from "./types.js";
 
 /**
@@ -18,7 +20,27 @@ export function limitsFromPlanOptions(o: PlanOptions): VerifyLimits {
     maxDescentMps: o.aircraft.maxDescentMps,
     assumeGroundM: o.assumeGroundM ?? null,
     takeoff: o.takeoff ? [o.takeoff[0], o.takeoff[1]] : null,
+    ...bandOf(o),
   };
+}
+
+/** The detail band from the plan's camera and target (the pinhole relation GSD = H p / f). */
+function bandOf(o: PlanOptions): Pick<VerifyLimits, "band"> {
+  try {
+    const c = o.camera;
+    const common = { imageWidthPx: c.imageWidthPx, imageHeightPx: c.imageHeightPx };
+    const spec: CameraSpec =
+      c.model === "sensor"
+        ? { ...common, sensorWidthMm: c.sensorWidthMm, sensorHeightMm: c.sensorHeightMm ?? (c.sensorWidthMm * c.imageHeightPx) / c.imageWidthPx, focalLengthMm: c.focalLengthMm }
+        : c.model === "hfov" ? { ...common, hfovDeg: c.hfovDeg } : { ...common, dfovDeg: c.dfovDeg };
+    const req = requirementFrom(
+      o.target.by === "gsd" ? { gsdCm: o.target.gsdCm } : { smallestFeatureCm: o.target.smallestFeatureCm, rule: o.target.rule },
+      o.target.tolerancePct,
+    );
+    return { band: { lowGsdCm: req.lowGsdM * 100, highGsdCm: req.highGsdM * 100, gsdCmPerM: makeCamera(spec).ifov * 100 } };
+  } catch {
+    return {};
+  }
 }
 
 /**

@@ -41,9 +41,15 @@ export interface VerifyLimits {
   assumeGroundM: number | null;
   /** The plan's take-off point [longitude, latitude], or null when the layout chose it. */
   takeoff: [number, number] | null;
+  /**
+   * The detail band: nadir GSD limits (cm/px) and the camera's GSD per metre of height
+   * (pixel pitch / focal length). Checked on strip waypoints as a finding about detail, not
+   * safety (a warning). Absent when the plan file's camera cannot be resolved.
+   */
+  band?: { lowGsdCm: number; highGsdCm: number; gsdCmPerM: number };
 }
 
-export type VerifyLimitName = "ground" | "clearance" | "ceiling" | "climb" | "descent" | "nodata" | "takeoff";
+export type VerifyLimitName = "ground" | "clearance" | "ceiling" | "climb" | "descent" | "nodata" | "takeoff" | "band";
 
 /** A broken promise (or, in `warnings`, a crossing of assumed ground). */
 export interface Breach {

@@ -15,7 +15,7 @@ import { TAKEOFF_TOLERANCE_M, flightSpans, groundMismatches, rateBreaches, short
 import { groundAtIndex, knownGroundAtIndex, makeSurface } from "./surface.js";
 import type { Breach, VerifyLimitName, VerifyLimits, VerifyResult, VerifyRow } from "./types.js";
 
-export const LIMIT_ORDER: readonly VerifyLimitName[] = ["ground", "clearance", "ceiling", "climb", "descent", "nodata", "takeoff"];
+export const LIMIT_ORDER: readonly VerifyLimitName[] = ["ground", "clearance", "ceiling", "climb", "descent", "nodata", "takeoff", "band"];
 
 const CEILING_WORDS = {
   ground: "above the ground straight below",
@@ -147,6 +147,20 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
     }
     if (knownGroundAtIndex(s, path.c[f.first], path.r[f.first]) !== knownGroundAtIndex(s, path.c[f.first], path.r[f.first])) {
       breaches.push(pointBreach(path, f.first, "takeoff", 0, `${pointWhere(path, f.first)}: the take-off point of flight ${f.flight} has no DEM data under it`));
+    }
+  }
+
+  // Detail, not safety: a strip waypoint whose nadir GSD over the ground straight below
+  // leaves the band. The plan flags such ground cell by cell; a list edited by hand may not.
+  if (limits.band) {
+    const { lowGsdCm, highGsdCm, gsdCmPerM } = limits.band;
+    for (let i = 0; i < path.n; i++) {
+      if (path.rows[i].segment !== "strip") continue;
+      const g = groundAtIndex(s, path.c[i], path.r[i]);
+      const gsd = (path.z[i] - g) * gsdCmPerM;
+      if (!(gsd === gsd) || (gsd >= lowGsdCm * (1 - 1e-3) && gsd <= highGsdCm * (1 + 1e-3))) continue;
+      warnings.push(pointBreach(path, i, "band", gsd,
+        `${pointWhere(path, i)}: nadir GSD ${gsd.toFixed(2)} cm/px over the ground straight below, outside the band ${lowGsdCm.toFixed(2)}-${highGsdCm.toFixed(2)} cm/px (detail, not safety)`));
     }
   }
 

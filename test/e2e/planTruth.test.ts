@@ -58,7 +58,7 @@ function median(v: number[]): number {
 describe.skipIf(!HAS_GDAL).each(CASES)("plan truth on $name", (c) => {
   let out: string;
   let rows: Record<string, number | string>[];
-  let summary: { withinBandPct: number; gsdCm: { median: number } };
+  let summary: { withinBandPct: number; gsdCm: { median: number }; verification: { ok: boolean; breaches: number; undeclared: number } };
   beforeAll(() => {
     out = path.join(tempDir(`truth-${c.name}`), "out");
     const r = runCli(["plan", planFile(c), "--out", out, "--quiet"], { timeoutMs: 300_000 });
@@ -67,6 +67,10 @@ describe.skipIf(!HAS_GDAL).each(CASES)("plan truth on $name", (c) => {
     rows = csv.rows.map((v) => Object.fromEntries(csv.header.map((h, i) => [h, h === "segment" ? v[i] : Number(v[i])])));
     summary = JSON.parse(readFileSync(path.join(out, "summary.json"), "utf8"));
   }, 300_000);
+
+  it("the plan's own independent check (as gsdplan verify) finds no breach on the whole path", () => {
+    expect(summary.verification).toMatchObject({ ok: true, breaches: 0, undeclared: 0 });
+  });
 
   it("every waypoint's ground and height above ground equal GDAL's bilinear ground within 0.05 m", () => {
     const withGround = rows.filter((w) => Number.isFinite(w.ground_amsl_m as number) && w.ground_amsl_m !== 0);
@@ -197,5 +201,23 @@ describe.skipIf(!HAS_GDAL)("DEM accuracy and resolution count", () => {
     expect(s.clearance).toMatchObject({ minM: 30, demAccuracyM: 0.5, floorM: 30.5 });
     expect(s.clearance.statement).toBe("clearance 30 m + 0.5 m for the DEM's stated accuracy, above the highest ground within 15 m of the path");
     expect(readFileSync(path.join(out, "report.html"), "utf8")).toContain("clearance 30 m + 0.5 m for the DEM&#39;s stated accuracy");
+  });
+});
+
+describe.skipIf(!HAS_GDAL)("a breach that remains is announced, never silent", () => {
+  it("over an 80 m DEM hole the plan's own check finds the crossings of unknown ground, each announced by a warning", () => {
+    const out = path.join(tempDir("truth-hole"), "out");
+    const r = runCli(["plan", path.join(ROOT, "fixtures/truth/hole_utm-plan.yaml"), "--out", out, "--quiet", "--json"], { timeoutMs: 300_000 });
+    expect(r.status, r.stderr).toBe(0);
+    const s = JSON.parse(r.stdout);
+    expect(s.verification.breaches).toBeGreaterThan(0);
+    expect(s.verification.byLimit).toEqual({ nodata: s.verification.breaches });
+    expect(s.verification.undeclared).toBe(0);
+    expect((s.warnings as string[]).some((w) => /where the DEM has no data/.test(w))).toBe(true);
+    expect((s.warnings as string[]).some((w) => /Independent check of the waypoints against the DEM: \d+ breach/.test(w))).toBe(true);
+    // gsdplan verify on the written list says the same (exit 3, unknown ground).
+    const v = runCli(["verify", out, "--plan", path.join(ROOT, "fixtures/truth/hole_utm-plan.yaml"), "--json"]);
+    expect(v.status).toBe(3);
+    expect(JSON.parse(v.stdout).breaches.every((b: { limit: string }) => b.limit === "nodata")).toBe(true);
   });
 });
