@@ -120,7 +120,9 @@ export function waypointRows(
         altitudeTakeoffM: w.altitudeAmslM - heights.takeoffGroundM,
         groundAmslM: heightReferences(w.groundAmslM, lon, lat, heights)[0],
         heightAboveGroundM: w.heightAboveGroundM,
-        speedMps,
+        // To cm/s, rounded down: the speed caps the climb and descent rates (gradient x speed),
+        // and every exporter and the check then read the same figure.
+        speedMps: Math.floor(speedMps * 100 + 1e-9) / 100,
       });
     };
     legs.forEach((leg, li) => {

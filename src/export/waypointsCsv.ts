@@ -26,15 +26,6 @@ const DEG = 8;
 const M = 2;
 
 /**
- * A ground speed to cm/s, rounded down: the speed is a cap that keeps the climb and
- * descent rates (gradient x speed) within the aircraft's limits, and rounding it up
- * would put a steep leg a fraction over them.
- */
-function speedText(v: number): string {
-  return (Math.floor(v * 100 + 1e-9) / 100).toFixed(M);
-}
-
-/**
  * A height to centimetres, or an empty field where it is unknown (a transit over
  * nodata or past the DEM has no ground below): "NaN" is not a number to most CSV
  * readers, and an empty field is the usual mark of a missing value.
@@ -65,7 +56,7 @@ export function waypointsCsv(rows: readonly WaypointRow[]): string {
         r.altitudeTakeoffM.toFixed(M),
         orEmpty(r.groundAmslM),
         orEmpty(r.heightAboveGroundM),
-        speedText(r.speedMps),
+        r.speedMps.toFixed(M),
       ].join(","),
     );
   }

@@ -7,7 +7,7 @@ import { readFile } from "node:fs/promises";
 import path from "node:path";
 import type { DemGrid } from "../dem/grid.js";
 import { openDem } from "../dem/source.js";
-import { readWindow } from "../dem/window.js";
+import { nativeBounds, readWindow } from "../dem/window.js";
 import { gridOnFrame } from "../dem/frameGrid.js";
 import { sampleBilinear } from "../dem/sample.js";
 import { InputError, InputFileError } from "../errors.js";
@@ -39,6 +39,7 @@ import { verifyWaypoints } from "../verify/verify.js";
 import { limitsFromPlanOptions } from "../verify/limits.js";
 import type { Breach, VerifyResult } from "../verify/types.js";
 import type { PlanOptions } from "./options.js";
+import { aroundUnknownGround } from "../route/aroundUnknown.js";
 
 /** Everything a finished plan knows; the exporters and the report read it. */
 export interface PlanRun {
@@ -130,9 +131,10 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("layout");
 
   stage("solve");
-  // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
-  // past each station (see corridorAlong), which on a coarse DEM must stay small.
-  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], 1);
+  // Stations at the DEM's cell, at most 2 m apart: the hard bounds reach one station step
+  // past each station (see corridorAlong), which on a coarse DEM must stay small; finer
+  // stations there cost time (5 m cells at 1 m: five times the stations) for metres of reach.
+  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], MAX_STATION_STEP_M);
   const solverOptions: SolverOptions = {
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
@@ -161,6 +163,8 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
     ifov: camera.ifov,
   };
+  const around = routeAroundUnknown(grid, layout, options, stationStepM);
+  if (around) solverOptions.routeAround = around;
   assertTargetReachable(requirement, camera, targetHeightM, options);
   const ordered = solveInBestStripOrder(grid, layout.legs, layout.takeoff, solverOptions);
   if (ordered.legs !== layout.legs) layout = { ...layout, legs: ordered.legs };
@@ -271,6 +275,9 @@ function breachCounts(bs: readonly Breach[]): string {
   return [...n].map(([k, v]) => `${v} ${k}`).join(", ");
 }
 
+/** Largest spacing of the solver's stations, metres (see planMission). */
+export const MAX_STATION_STEP_M = 2;
+
 /** The load stage's result: everything fixed before strips are laid out. */
 export interface PreparedMission {
   camera: Camera;
@@ -318,11 +325,13 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     if (lat < south) south = lat;
     if (lat > north) north = lat;
   }
-  for (const lon of lons) {
-    if (lon < west) west = lon;
-    if (lon > east) east = lon;
-  }
   const [cLon, cLat] = lonLatCentre(lons, lats);
+  for (const lon of lons) {
+    // Longitudes in the wrap of the site's centre, so a site across the antimeridian has a narrow box.
+    const l = cLon + wrap180(lon - cLon);
+    if (l < west) west = l;
+    if (l > east) east = l;
+  }
 
   const source = await openDem(options.dem, {
     band: options.band,
@@ -344,7 +353,12 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
       west: west - marginLonDeg, east: east + marginLonDeg,
       south: Math.max(-90, south - marginLatDeg), north: Math.min(90, north + marginLatDeg),
     });
-    const raw = await readWindow(source, { west, south, east, north }, { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM });
+    const raw = source.crs.geographic
+      ? // A geographic DEM: the box in its own degrees, in the wrap of its own longitudes
+        // (a tile written from 179.95 to 180.05 E). The datum shift to the DEM's geographic
+        // CRS is metres at most, well inside the margin.
+        await readWindow(source, shiftedToDem(source, { west, south, east, north }), { marginM })
+      : await readWindow(source, { west: wrap180(west), south, east: wrap180(east) < wrap180(west) ? 180 : wrap180(east), north }, { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM });
     nativeGrid = raw;
     const onFrame = gridOnFrame(raw, frame);
     grid = onFrame.grid;
@@ -519,6 +533,18 @@ async function readText(file: string, key: string): Promise<string> {
   }
 }
 
+/** An angle difference in degrees, wrapped to [-180, 180). */
+function wrap180(d: number): number {
+  return d - 360 * Math.floor((d + 180) / 360);
+}
+
+/** A longitude box moved by whole turns to the wrap nearest the DEM's own longitudes. */
+function shiftedToDem(source: Parameters<typeof nativeBounds>[0], b: { west: number; south: number; east: number; north: number }) {
+  const nb = nativeBounds(source);
+  const k = Math.round(((nb.west + nb.east) / 2 - (b.west + b.east) / 2) / 360);
+  return { west: b.west + 360 * k, south: b.south, east: b.east + 360 * k, north: b.north };
+}
+
 function stem(file: string): string {
   return path.basename(file).replace(/\.[^.]+$/, "");
 }
@@ -526,6 +552,38 @@ function stem(file: string): string {
 function groundAt(grid: DemGrid, xy: XY, assumeGroundM?: number): number {
   const z = sampleBilinear(grid, [xy[0]], [xy[1]])[0];
   return Number.isFinite(z) ? z : (assumeGroundM ?? NaN);
+}
+
+/**
+ * Transits around unknown ground (DEM nodata, and beyond the DEM window), or
+ * undefined when there is none to avoid: `assumeGroundM` set (crossing is allowed,
+ * on that height, and warned), or a window without nodata whose outermost cell
+ * centres lie farther than the buffer from every leg end and the take-off (the
+ * legs then lie in their convex hull, inside the window's rectangle: nothing to
+ * route around, and no polygon work).
+ *
+ * The unknown ground is buffered by the safety radius + one station step + one
+ * cell diagonal: the solver's floor at a station reads the DEM that far (the
+ * safety disc reaching one station step, widened by one cell diagonal on fine
+ * DEMs), so along a routed leg it never touches nodata and the leg keeps its
+ * clearance on known ground.
+ */
+function routeAroundUnknown(grid: DemGrid, layout: Layout, options: PlanOptions, stationStepM: number): SolverOptions["routeAround"] {
+  if (options.assumeGroundM !== undefined) return undefined;
+  const diagM = Math.hypot(grid.cellSizeM[0], grid.cellSizeM[1]);
+  const clearM = options.clearance.safetyRadiusM + stationStepM + diagM;
+  let nodata = false;
+  for (let i = 0; i < grid.valid.length && !nodata; i++) nodata = grid.valid[i] === 0;
+  if (!nodata) {
+    const { x0, y0, dx, dy } = grid.transform;
+    const xs = [x0 + 0.5 * dx, x0 + (grid.width - 0.5) * dx], ys = [y0 + 0.5 * dy, y0 + (grid.height - 0.5) * dy];
+    const w = Math.min(...xs) + clearM + diagM, e = Math.max(...xs) - clearM - diagM;
+    const s = Math.min(...ys) + clearM + diagM, n = Math.max(...ys) - clearM - diagM;
+    const inside = (p: XY) => p[0] >= w && p[0] <= e && p[1] >= s && p[1] <= n;
+    if (inside(layout.takeoff) && layout.legs.every((l) => inside(l.from) && inside(l.to))) return undefined;
+  }
+  const around = aroundUnknownGround(grid.valid, grid.width, grid.height, grid.transform, clearM);
+  return around ? (a, b) => around.route(a, b) : undefined;
 }
 
 /**

@@ -88,8 +88,11 @@ export async function readPaddedWindow(source: DemSource, rows: readonly VerifyR
   let south = Infinity;
   let north = -Infinity;
   let maxAbsLat = 0;
+  const midLon = source.transform.x0 + (source.width * source.transform.dx) / 2;
   for (const r of rows) {
-    const [x, y] = conv.forward([r.longitude, r.latitude]);
+    let [x, y] = conv.forward([r.longitude, r.latitude]);
+    // Longitudes in the turn nearest the DEM's own (a geographic tile past 180 E).
+    if (source.crs.geographic) x += 360 * Math.round((midLon - x) / 360);
     if (!Number.isFinite(x) || !Number.isFinite(y)) throw new InputFileError(source.path, `the waypoint at ${r.longitude}, ${r.latitude} cannot be placed in the DEM's CRS (${source.crs.name})`);
     west = Math.min(west, x);
     east = Math.max(east, x);

@@ -57,9 +57,13 @@ export function flightPath(rows: readonly VerifyRow[], s: Surface): FlightPath {
   const r = new Float64Array(n);
   const z = new Float64Array(n);
   const ellipsoidal = grid.verticalDatum === "ellipsoid";
+  // A geographic DEM may hold longitudes past 180 (a tile from 179.95 to 180.05 E): take each
+  // longitude in the turn nearest the DEM's own.
+  const midLon = grid.transform.x0 + (grid.width * grid.transform.dx) / 2;
   for (let i = 0; i < n; i++) {
     const row = rows[i];
-    const [x, y] = conv.forward([row.longitude, row.latitude]);
+    let [x, y] = conv.forward([row.longitude, row.latitude]);
+    if (grid.crs.geographic) x += 360 * Math.round((midLon - x) / 360);
     [c[i], r[i]] = toIndex(s, x, y);
     z[i] = ellipsoidal ? row.altitudeEllipsoidM : row.altitudeAmslM;
     if (!Number.isFinite(z[i])) {

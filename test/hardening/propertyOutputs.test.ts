@@ -84,7 +84,7 @@ describe.skipIf(!HAS_GDAL)("property: any run ends in a plan whose files parse b
       { numRuns: 20, seed: 4242, endOnFailure: true },
     );
     expect(planned).toBeGreaterThan(5);
-  });
+  }, 300_000);
 
   it("regression: the first counterexample found (seed 8008) ends in a plan or a user error", async () => {
     // Found by propertySolver.test.ts: "solver: no path through the gates of strip 4

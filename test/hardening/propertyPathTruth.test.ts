@@ -129,5 +129,5 @@ describe.skipIf(!HAS_GDAL)("property: clearance, ceiling and known ground hold o
     );
     expect(internal, internal.join(" | ")).toEqual([]);
     expect(planned, `refused: ${refused.join(" | ")}`).toBeGreaterThanOrEqual(12);
-  });
+  }, 300_000);
 });

@@ -93,5 +93,5 @@ describe.skipIf(!HAS_GDAL)("property: the solver path stays in the hard corridor
     // would test nothing.
     expect(planned).toBeGreaterThan(refused + internal.length);
     if (internal.length) process.stderr.write(`propertySolver: ${internal.length} run(s) ended in an internal error (see propertyOutputs.test.ts): ${internal.join(" | ")}\n`);
-  });
+  }, 300_000);
 });
