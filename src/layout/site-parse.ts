@@ -72,16 +72,21 @@ export function parseGeoJsonSite(obj: unknown, source = "site"): ParsedSite {
   const polygons: LonLatPolygon[] = [];
   const others = new Map<string, number>();
   let name: string | undefined;
-  const visitGeometry = (g: unknown): void => {
-    if (!isObject(g) || typeof g.type !== "string") {
-      others.set("null geometry", (others.get("null geometry") ?? 0) + 1);
-      return;
+  // An explicit stack, not recursion: GeometryCollections nested 10^4 deep overflow the call stack.
+  const visitGeometry = (root: unknown): void => {
+    const pending: unknown[] = [root];
+    while (pending.length) {
+      const g = pending.pop();
+      if (!isObject(g) || typeof g.type !== "string") {
+        others.set("null geometry", (others.get("null geometry") ?? 0) + 1);
+        continue;
+      }
+      checkCrsMember(g, source);
+      if (g.type === "Polygon") polygons.push(coordsOf(g, 3, source) as LonLatPolygon);
+      else if (g.type === "MultiPolygon") for (const p of coordsOf(g, 4, source) as LonLatPolygon[]) polygons.push(p);
+      else if (g.type === "GeometryCollection" && Array.isArray(g.geometries)) for (let i = g.geometries.length - 1; i >= 0; i--) pending.push(g.geometries[i]);
+      else others.set(g.type, (others.get(g.type) ?? 0) + 1);
     }
-    checkCrsMember(g, source);
-    if (g.type === "Polygon") polygons.push(coordsOf(g, 3, source) as LonLatPolygon);
-    else if (g.type === "MultiPolygon") for (const p of coordsOf(g, 4, source) as LonLatPolygon[]) polygons.push(p);
-    else if (g.type === "GeometryCollection" && Array.isArray(g.geometries)) for (const h of g.geometries) visitGeometry(h);
-    else others.set(g.type, (others.get(g.type) ?? 0) + 1);
   };
   const visitFeature = (f: unknown): void => {
     if (!isObject(f)) return;
@@ -192,12 +197,19 @@ function isObject(v: unknown): v is Record<string, unknown> {
   return typeof v === "object" && v !== null && !Array.isArray(v);
 }
 
+/**
+ * Element descendants in document order. Walks with an explicit stack rather
+ * than recursing: a hostile file nested some 10^4 levels deep would otherwise
+ * overflow the call stack.
+ */
 function* descendants(el: Element): Generator<Element> {
-  for (let n: XmlNode | null = el.firstChild; n; n = n.nextSibling) {
-    if (n.nodeType === 1) {
-      yield n as Element;
-      yield* descendants(n as Element);
-    }
+  const pending: XmlNode[] = [];
+  for (let n: XmlNode | null = el.lastChild; n; n = n.previousSibling) pending.push(n);
+  while (pending.length) {
+    const n = pending.pop() as XmlNode;
+    if (n.nodeType !== 1) continue;
+    yield n as Element;
+    for (let c: XmlNode | null = n.lastChild; c; c = c.previousSibling) pending.push(c);
   }
 }
 

@@ -2,15 +2,20 @@
  * The site to image: read, validated and put into the local metric frame.
  * Validation follows RFC 7946 (WGS84 longitude/latitude, outer rings
  * counter-clockwise, holes clockwise) and refuses rings a strip layout
- * cannot trust: self-intersecting ones and ones with fewer than three corners.
+ * cannot trust: rings that cross or touch themselves or each other, holes
+ * outside their outer ring or inside another hole, rings with fewer than
+ * three corners. Outlines of many vertices (cadastre exports) are simplified
+ * in the local frame, the area kept to 0.1 %.
  */
 import type { MultiPolygon, Polygon, Position } from "geojson";
-import { featureCollection, intersect, kinks, lineString, polygon as turfPolygon } from "@turf/turf";
+import { featureCollection, intersect, polygon as turfPolygon } from "@turf/turf";
 import { InputError } from "../errors.js";
 import type { LocalFrame } from "../geo/frame.js";
 import { normaliseLonDeg } from "../geo/longitude.js";
-import type { Site } from "./types.js";
+import type { Site, SiteSimplification } from "./types.js";
 import { parseSiteText, bboxPolygon, type LonLatPolygon } from "./site-parse.js";
+import { ringProblem } from "./ring-check.js";
+import { simplifyRingIndices } from "./simplify.js";
 
 export { siteCoverage, type SiteCoverage } from "./coverage.js";
 export { siteRings } from "./rings.js";
@@ -23,6 +28,8 @@ export interface ReadSiteOptions {
   fileName?: string;
   /** Name to give the site (wins over the file's own). */
   name?: string;
+  /** See `SiteFromLonLatOptions.simplifyToleranceM`. */
+  simplifyToleranceM?: number;
 }
 
 /**
@@ -35,7 +42,11 @@ export interface ReadSiteOptions {
 export function readSite(text: string, frame: SiteFrame, opts: ReadSiteOptions = {}): Site {
   const source = opts.fileName ?? "site";
   const parsed = parseSiteText(text, source);
-  return siteFromLonLat(parsed.polygons, frame, { name: opts.name ?? parsed.name ?? baseName(opts.fileName) ?? "site", source });
+  return siteFromLonLat(parsed.polygons, frame, {
+    name: opts.name ?? parsed.name ?? baseName(opts.fileName) ?? "site",
+    source,
+    ...(opts.simplifyToleranceM !== undefined ? { simplifyToleranceM: opts.simplifyToleranceM } : {}),
+  });
 }
 
 /**
@@ -47,20 +58,57 @@ export function siteFromBbox(bbox: readonly number[], frame: SiteFrame, name = "
 }
 
 /**
+ * Outlines with more vertices than this are simplified even when no tolerance
+ * is given: the strip layout scans every edge per band slab (band.ts), about
+ * n² per heading, so 10 000 vertices take some 35 s over the 36 auto headings
+ * and 2 000 about 1.5 s.
+ */
+export const AUTO_SIMPLIFY_ABOVE_VERTICES = 2_000;
+/**
+ * Tolerance used then, metres: a tenth of the finest DEM grids commonly made
+ * from drone imagery (0.5 m; common practice), far below any strip spacing.
+ */
+export const DEFAULT_SIMPLIFY_TOLERANCE_M = 0.05;
+/** Largest change of the site area simplification may make, percent. */
+export const MAX_SIMPLIFY_AREA_CHANGE_PCT = 0.1;
+
+export interface SiteFromLonLatOptions {
+  name: string;
+  /** File (or field) named in messages. */
+  source?: string;
+  /**
+   * Douglas-Peucker tolerance for the outline in the local frame, metres (a
+   * fraction of a DEM cell suits: the terrain is not known finer). 0 keeps
+   * every vertex. Default: DEFAULT_SIMPLIFY_TOLERANCE_M for outlines of more
+   * than AUTO_SIMPLIFY_ABOVE_VERTICES vertices, else none. The tolerance is
+   * halved until the area changes by at most MAX_SIMPLIFY_AREA_CHANGE_PCT and
+   * the simplified rings are still valid; what was done is on `site.simplification`.
+   */
+  simplifyToleranceM?: number;
+}
+
+/**
  * Validates WGS84 polygons and projects them. Longitudes are unwrapped so a
  * polygon crossing the antimeridian stays one piece in the frame; the WGS84
- * copy is split at 180 degrees as RFC 7946 section 3.1.9 asks.
+ * copy is split at 180 degrees as RFC 7946 section 3.1.9 asks. Large outlines
+ * are simplified in the frame (see `SiteFromLonLatOptions.simplifyToleranceM`).
  * @example siteFromLonLat([[[[15,47],[15.01,47],[15.01,47.01],[15,47]]]], frame, { name: "a" })
  */
-export function siteFromLonLat(polygons: readonly LonLatPolygon[], frame: SiteFrame, opts: { name: string; source?: string }): Site {
+export function siteFromLonLat(polygons: readonly LonLatPolygon[], frame: SiteFrame, opts: SiteFromLonLatOptions): Site {
   const source = opts.source ?? "site";
+  const tolIn = opts.simplifyToleranceM;
+  if (tolIn !== undefined && !(Number.isFinite(tolIn) && tolIn >= 0)) {
+    throw new InputError("simplifyToleranceM", tolIn, "a number of metres >= 0 (0 keeps every vertex)");
+  }
+  if (!Array.isArray(polygons)) throw new InputError(source, polygons, "a list of polygons");
   const notes: string[] = [];
   const cleaned: number[][][][] = [];
   let refLon: number | undefined;
   polygons.forEach((poly, pi) => {
-    if (poly.length === 0) throw new InputError(`${source} polygon ${pi + 1}`, poly, "a polygon with an outer ring", "empty polygon");
+    if (!Array.isArray(poly) || poly.length === 0) throw new InputError(`${source} polygon ${pi + 1}`, poly, "a polygon with an outer ring", "empty polygon");
     const rings = poly.map((ring, ri) => {
       const label = ringLabel(source, pi, ri, polygons.length);
+      if (!Array.isArray(ring)) throw new InputError(label, ring, "a ring: a list of [longitude, latitude] positions", "malformed ring");
       checkWgs84(ring, label);
       const open = openRing(ring);
       const corners = distinctCorners(open);
@@ -70,7 +118,7 @@ export function siteFromLonLat(polygons: readonly LonLatPolygon[], frame: SiteFr
       refLon ??= open[0][0];
       return unwrapRing(open, refLon);
     });
-    checkSimple(rings, pi, polygons.length, source);
+    checkRings(rings, pi, polygons.length, source);
     rings.forEach((ring, ri) => {
       const a = signedArea(ring);
       const ccw = a > 0;
@@ -88,17 +136,72 @@ export function siteFromLonLat(polygons: readonly LonLatPolygon[], frame: SiteFr
 
   checkNoOverlap(cleaned, source);
 
-  const localPolys: Position[][][] = cleaned.map((rings) =>
-    rings.map((ring) => closeRing(ring.map(([lon, lat]) => frame.fromWgs84(lon, lat)))),
-  );
-  let areaM2 = 0;
-  for (const rings of localPolys) rings.forEach((r, i) => (areaM2 += (i === 0 ? 1 : -1) * Math.abs(signedArea(r))));
+  const projected: number[][][][] = cleaned.map((rings) => rings.map((ring) => ring.map(([lon, lat]) => frame.fromWgs84(lon, lat))));
+  const vertices = cleaned.reduce((n, rings) => n + rings.reduce((k, r) => k + r.length, 0), 0);
+  const tolerance = tolIn ?? (vertices > AUTO_SIMPLIFY_ABOVE_VERTICES ? DEFAULT_SIMPLIFY_TOLERANCE_M : 0);
+  const fullAreaM2 = polygonsArea(projected);
+  const simple = tolerance > 0 ? simplifyPolygons(projected, tolerance, fullAreaM2) : null;
+  const keptLocal = simple ? simple.kept.map((rings, pi) => rings.map((idx, ri) => pick(projected[pi][ri], idx))) : projected;
+  const keptLonLat = simple ? simple.kept.map((rings, pi) => rings.map((idx, ri) => pick(cleaned[pi][ri], idx))) : cleaned;
+  const localPolys: Position[][][] = keptLocal.map((rings) => rings.map(closeRing));
+  const areaM2 = simple ? simple.areaM2 : fullAreaM2;
 
   const local: Polygon | MultiPolygon =
     localPolys.length === 1 ? { type: "Polygon", coordinates: localPolys[0] } : { type: "MultiPolygon", coordinates: localPolys };
-  const site: Site = { local, wgs84: wgs84Geometry(cleaned), areaM2, name: opts.name };
+  const site: Site = { local, wgs84: wgs84Geometry(keptLonLat), areaM2, name: opts.name };
+  if (simple) {
+    const s: SiteSimplification = { fromVertices: vertices, toVertices: simple.vertices, toleranceM: simple.toleranceM, areaChangePct: simple.areaChangePct };
+    site.simplification = s;
+    notes.push(simplificationNote(s));
+  }
   if (notes.length) site.notes = notes;
   return site;
+}
+
+/**
+ * The simplified rings' vertex indices, at the largest tolerance from `toleranceM`
+ * down (halving) whose rings stay valid and whose area is within
+ * MAX_SIMPLIFY_AREA_CHANGE_PCT of `fullAreaM2`. Null when no vertex can go.
+ */
+function simplifyPolygons(
+  polys: number[][][][],
+  toleranceM: number,
+  fullAreaM2: number,
+): { kept: Uint32Array[][]; vertices: number; toleranceM: number; areaM2: number; areaChangePct: number } | null {
+  const total = polys.reduce((n, rings) => n + rings.reduce((k, r) => k + r.length, 0), 0);
+  const coords = polys.map((rings) => rings.map((r) => [Float64Array.from(r, (p) => p[0]), Float64Array.from(r, (p) => p[1])] as const));
+  // Ten halvings take the tolerance to a thousandth: past that the outline is kept as it is.
+  for (let tol = toleranceM, tries = 0; tries < 10; tol /= 2, tries++) {
+    const kept = coords.map((rings) => rings.map(([xs, ys]) => simplifyRingIndices(xs, ys, tol)));
+    const vertices = kept.reduce((n, rings) => n + rings.reduce((k, r) => k + r.length, 0), 0);
+    if (vertices === total) return null;
+    const rings = kept.map((rs, pi) => rs.map((idx, ri) => pick(polys[pi][ri], idx)));
+    const areaM2 = polygonsArea(rings);
+    const areaChangePct = (Math.abs(areaM2 - fullAreaM2) / fullAreaM2) * 100;
+    if (areaChangePct > MAX_SIMPLIFY_AREA_CHANGE_PCT) continue;
+    // Dropping vertices can make a ring cut a corner through a neighbour: then try finer.
+    if (rings.some((rs) => ringProblem(rs) !== null)) continue;
+    return { kept, vertices, toleranceM: tol, areaM2, areaChangePct };
+  }
+  return null;
+}
+
+function simplificationNote(s: SiteSimplification): string {
+  const n = (v: number) => v.toLocaleString("en-US");
+  const tol = s.toleranceM >= 0.01 ? s.toleranceM.toFixed(2) : s.toleranceM.toPrecision(2);
+  const pct = s.areaChangePct >= 0.01 ? s.areaChangePct.toFixed(2) : s.areaChangePct.toPrecision(1);
+  return `outline simplified from ${n(s.fromVertices)} to ${n(s.toVertices)} vertices within ${tol} m (Douglas-Peucker in the local frame; area changed by ${pct} %)`;
+}
+
+function pick(ring: readonly number[][], idx: Uint32Array): number[][] {
+  return Array.from(idx, (i) => ring[i]);
+}
+
+/** Area of polygons of open rings (outer minus holes), in the rings' units squared. */
+function polygonsArea(polys: readonly (readonly number[][])[][]): number {
+  let a = 0;
+  for (const rings of polys) rings.forEach((r, i) => (a += (i === 0 ? 1 : -1) * Math.abs(signedArea(r))));
+  return a;
 }
 
 function ringLabel(source: string, pi: number, ri: number, nPolys: number): string {
@@ -108,10 +211,11 @@ function ringLabel(source: string, pi: number, ri: number, nPolys: number): stri
 
 function checkWgs84(ring: readonly number[][], label: string): void {
   for (const p of ring) {
-    const [lon, lat] = p;
-    if (!Array.isArray(p) || !Number.isFinite(lon) || !Number.isFinite(lat)) {
+    // Checked before destructuring: a bare number in a ring is not iterable.
+    if (!Array.isArray(p) || !Number.isFinite(p[0]) || !Number.isFinite(p[1])) {
       throw new InputError(label, p, "[longitude, latitude] number pairs", "malformed position");
     }
+    const [lon, lat] = p;
     if (Math.abs(lon) > 180 || Math.abs(lat) > 90) {
       throw new InputError(
         label,
@@ -134,8 +238,14 @@ function openRing(ring: readonly number[][]): number[][] {
   return out;
 }
 
+/** Distinct corners of a ring, counted up to 3 (all that matters). */
 function distinctCorners(ring: readonly number[][]): number {
-  return new Set(ring.map((p) => `${p[0]},${p[1]}`)).size;
+  const seen: number[][] = [];
+  for (const p of ring) {
+    if (!seen.some((q) => q[0] === p[0] && q[1] === p[1])) seen.push(p);
+    if (seen.length === 3) break;
+  }
+  return seen.length;
 }
 
 /** Longitudes made continuous along the ring and near `refLon` (antimeridian). */
@@ -149,22 +259,24 @@ function unwrapRing(ring: number[][], refLon: number): number[][] {
   });
 }
 
-function checkSimple(rings: number[][][], pi: number, nPolys: number, source: string): void {
-  rings.forEach((ring, ri) => {
-    const k = kinks(lineString(closeRing(ring))).features[0];
-    if (k) {
-      const [lon, lat] = k.geometry.coordinates;
-      throw new InputError(ringLabel(source, pi, ri, nPolys), `kink at ${fmtLonLat(lon, lat)}`, "a simple ring that does not cross itself", "the ring self-intersects");
-    }
-  });
-  if (rings.length > 1) {
-    const k = kinks(turfPolygon(rings.map(closeRing))).features[0];
-    if (k) {
-      const [lon, lat] = k.geometry.coordinates;
-      const label = nPolys > 1 ? `${source} polygon ${pi + 1}` : source;
-      throw new InputError(label, `rings cross at ${fmtLonLat(lon, lat)}`, "holes that lie inside the outer ring without touching it", "a hole crosses another ring");
-    }
+/**
+ * Refuses rings that touch or cross themselves or each other, holes outside
+ * the outer ring and holes inside holes (see ring-check.ts), naming the ring.
+ */
+function checkRings(rings: number[][][], pi: number, nPolys: number, source: string): void {
+  const p = ringProblem(rings);
+  if (!p) return;
+  const at = fmtLonLat(p.x, p.y);
+  const holes = "holes that lie inside the outer ring without touching it or each other";
+  if (p.kind === "self") {
+    throw new InputError(ringLabel(source, pi, p.ring, nPolys), `kink at ${at}`, "a simple ring that does not cross or touch itself", "the ring self-intersects");
   }
+  if (p.kind === "cross") {
+    const other = p.ringA === 0 ? "the outer ring" : `hole ${p.ringA}`;
+    throw new InputError(ringLabel(source, pi, p.ringB, nPolys), `meets ${other} at ${at}`, holes, `the hole crosses or touches ${other}`);
+  }
+  const where = p.kind === "hole-outside" ? "lies outside the outer ring" : `lies inside hole ${p.inside}`;
+  throw new InputError(ringLabel(source, pi, p.ring, nPolys), `first corner at ${at}`, holes, `the hole ${where}`);
 }
 
 /**
@@ -174,8 +286,21 @@ function checkSimple(rings: number[][][], pi: number, nPolys: number, source: st
 function checkNoOverlap(polys: number[][][][], source: string): void {
   if (polys.length < 2 || polys.length > 200) return;
   const features = polys.map((rings) => turfPolygon(rings.map(closeRing)));
+  // Outer-ring boxes first: the clipping is costly on big outlines and most pairs lie apart.
+  const boxes = polys.map((rings) => {
+    const b = [Infinity, Infinity, -Infinity, -Infinity];
+    for (const [x, y] of rings[0]) {
+      if (x < b[0]) b[0] = x;
+      if (y < b[1]) b[1] = y;
+      if (x > b[2]) b[2] = x;
+      if (y > b[3]) b[3] = y;
+    }
+    return b;
+  });
   for (let i = 0; i < features.length; i++) {
     for (let j = i + 1; j < features.length; j++) {
+      const [a, b] = [boxes[i], boxes[j]];
+      if (a[0] > b[2] || b[0] > a[2] || a[1] > b[3] || b[1] > a[3]) continue;
       if (intersect(featureCollection([features[i], features[j]]))) {
         throw new InputError(source, `polygons ${i + 1} and ${j + 1}`, "polygons that do not overlap (merge overlapping ones into one)", "two polygons of the site overlap");
       }
@@ -209,9 +334,13 @@ function signedArea(ring: readonly number[][]): number {
 function wgs84Geometry(polys: number[][][][]): Polygon | MultiPolygon {
   const out: Position[][][] = [];
   for (const rings of polys) {
-    const lons = rings[0].map((p) => p[0]);
-    const west = Math.min(...lons);
-    const east = Math.max(...lons);
+    // A loop, not Math.min(...lons): spreading 10^5 arguments overflows the stack.
+    let west = Infinity;
+    let east = -Infinity;
+    for (const p of rings[0]) {
+      if (p[0] < west) west = p[0];
+      if (p[0] > east) east = p[0];
+    }
     if (west >= -180 && east <= 180) {
       out.push(rings.map(closeRing));
       continue;

@@ -14,6 +14,19 @@ export interface Site {
   name: string;
   /** Silent fixes made while reading (e.g. a ring rewound to RFC 7946 winding), for the summary. */
   notes?: string[];
+  /** Present when the outline was simplified (`local`, `wgs84` and `areaM2` are of the simplified outline). */
+  simplification?: SiteSimplification;
+}
+
+/** What simplifying a site outline did. */
+export interface SiteSimplification {
+  /** Vertices of all rings (without closing repeats) before and after. */
+  fromVertices: number;
+  toVertices: number;
+  /** Largest distance of a dropped vertex from the kept outline, metres (Douglas-Peucker tolerance). */
+  toleranceM: number;
+  /** |area after - area before| / area before, percent (both in the local frame). */
+  areaChangePct: number;
 }
 
 /** One straight leg of the flight path, in flight order. */
@@ -31,6 +44,12 @@ export interface LayoutLeg {
    * site, e.g. an excluded courtyard). Sorted, disjoint; absent when none.
    */
   noPhotoIntervals?: [number, number][];
+  /**
+   * Transit legs only: the vertices between `from` and `to` of a way around
+   * unknown ground (the leg flies from, via..., to in straight pieces, and
+   * `lengthM` is the polyline's length). Absent: straight.
+   */
+  via?: XY[];
 }
 
 export interface Layout {
