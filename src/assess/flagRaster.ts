@@ -98,13 +98,14 @@ export function paintCauseZones(
   for (const leg of legs) {
     // A transit bridging an unflyable stretch of a strip still lies over that strip's zone.
     if (leg.kind !== "strip" && !leg.conflictGap) continue;
-    const p = leg.profile;
+    // A bridge routed around unknown ground keeps the strip's own stations it skipped.
+    const p = leg.skipped ?? leg.profile;
     const m = p.s.length;
     if (m === 0) continue;
-    const len = Math.hypot(leg.to[0] - leg.from[0], leg.to[1] - leg.from[1]);
+    const len = Math.hypot(p.x[m - 1] - p.x[0], p.y[m - 1] - p.y[0]);
     if (!(len > 0)) continue;
-    const ux = (leg.to[0] - leg.from[0]) / len;
-    const uy = (leg.to[1] - leg.from[1]) / len;
+    const ux = (p.x[m - 1] - p.x[0]) / len;
+    const uy = (p.y[m - 1] - p.y[0]) / len;
     for (let k = 0; k < m; k++) {
       const bits = stationFlagBits(p.status[k], p.cause[k]);
       if (bits === 0) continue;

@@ -179,13 +179,18 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
   let bridge = "";
   let casing = "";
   let dots = "";
+  // Transits through their waypoints: a leg routed around unknown ground is not straight.
+  const through = (leg: ReportLeg) => {
+    const pts = leg.waypoints.length >= 2 ? leg.waypoints.map((w) => [w.x, w.y]) : [leg.from, leg.to];
+    return pts.map(([x, y], i) => `${i ? "L" : "M"}${vx(v, x)},${vy(v, y)}`).join("");
+  };
   for (const leg of legs) {
     if (leg.kind === "transit" && leg.conflictGap) {
-      bridge += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
+      bridge += through(leg);
       continue;
     }
     if (leg.kind === "transit") {
-      transit += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
+      transit += through(leg);
       continue;
     }
     const p = leg.profile;

@@ -4,7 +4,7 @@ import type { LayoutLeg, XY } from "../layout/types.js";
 import { corridorAlong } from "./corridor.js";
 import { gradientLimits, segmentSpeed } from "./gradient.js";
 import { minLinkPathOnLattice } from "./minLinkPath.js";
-import { stationsAlongLeg } from "./stations.js";
+import { stationsAlongLeg, stationsAlongPolyline } from "./stations.js";
 import { hardEnvelope, targetGates } from "./targetGates.js";
 import {
   CAUSE_CLIMB,
@@ -41,6 +41,12 @@ interface Piece {
   stepToM?: number;
   /** Waypoint added before the path: the previous leg's end height, left by a vertical step. */
   stepFromM?: number;
+  /** Stations at the vertices of a polyline transit (first and last included): each becomes a waypoint. */
+  corners?: Int32Array;
+  /** A bridge routed off its strip's line: how many of the strip's stations it skips as unflyable. */
+  unflyable?: number;
+  /** The same bridge's straight profile along the strip (its skipped stations). */
+  skipped?: StationProfile;
 }
 
 /**
@@ -68,14 +74,18 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
 
   for (const leg of legs) {
-    const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
-    const prof = corridorAlong(work, st, opts, { band: leg.kind === "strip" });
     if (leg.kind === "transit") {
-      pieces.push({ kind: "transit", strip: leg.strip, profile: prof, conflictGap: false });
+      pieces.push({ kind: "transit", strip: leg.strip, conflictGap: false, ...transitCorridor(work, leg, opts) });
       continue;
     }
+    const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
+    const prof = corridorAlong(work, st, opts, { band: true });
     stripProfiles.push(prof);
+    const first = pieces.length;
     splitStrip(prof, leg.strip, opts.onConflict, pieces);
+    // A bridge between two flyable pieces of the strip goes around unknown ground where it can
+    // (a bridge at a strip's end starts or ends on the unknown ground itself: left as it is).
+    for (let i = first + 1; i < pieces.length - 1; i++) if (pieces[i].conflictGap) routeBridge(work, pieces[i], opts);
   }
   checkTargetReachable(stripProfiles, opts);
 
@@ -100,8 +110,10 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
 
   const out: SolvedLeg[] = pieces.map((p, i) => buildLeg(p, paths[i]!, vertices[i]!, opts));
   const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
-  for (const leg of out) {
+  for (const [i, leg] of out.entries()) {
     if (leg.kind !== "strip" && !leg.conflictGap) continue;
+    // A routed bridge flies elsewhere: count the strip's stations it skipped, as a straight one would.
+    if (pieces[i].unflyable !== undefined) { counts.unflyable += pieces[i].unflyable!; continue; }
     const st = leg.profile.status;
     const n = st.length;
     for (let k = 0; k < n; k++) {
@@ -140,8 +152,7 @@ export function solveTransit(
   validateSolverOptions(opts);
   const work = opts.assumeGroundM !== undefined ? fillNodata(grid, opts.assumeGroundM) : grid;
   const warnings: SolveWarning[] = [];
-  const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
-  const piece: Piece = { kind: "transit", strip: leg.strip, profile: corridorAlong(work, st, opts, { band: false }), conflictGap: false };
+  const piece: Piece = { kind: "transit", strip: leg.strip, conflictGap: false, ...transitCorridor(work, leg, opts) };
   const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
   const r = solvePiece(piece, opts, bandWidthM, startAltM, endAltM, warnings);
   if (r.stepToM !== undefined) piece.stepToM = r.stepToM;
@@ -149,6 +160,52 @@ export function solveTransit(
   const out = buildLeg(piece, r.altitudeM, r.vertexStation, opts);
   ceilingBreaches([out], warnings);
   return { leg: out, warnings };
+}
+
+/**
+ * A transit's corridor: along its polyline when it has one; else straight, unless the
+ * straight leg's floor needs unknown ground somewhere and `routeAround` finds a way
+ * around it (then along that way, every vertex a waypoint).
+ */
+function transitCorridor(work: DemGrid, leg: LayoutLeg, opts: SolverOptions): { profile: StationProfile; corners?: Int32Array } {
+  const halfAlong = opts.zoneHalfAlongM ?? opts.stationStepM / 2;
+  if (leg.via?.length) {
+    const { stations, corners } = stationsAlongPolyline([leg.from, ...leg.via, leg.to], opts.stationStepM, opts.zoneHalfAcrossM, halfAlong);
+    return { profile: corridorAlong(work, stations, opts, { band: false }), corners };
+  }
+  const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, halfAlong);
+  const straight = corridorAlong(work, st, opts, { band: false });
+  return aroundUnknown(work, straight, opts) ?? { profile: straight };
+}
+
+/** Reroutes a bridge over a strip's unknown ground (see aroundUnknown), keeping the count of stations it skips. */
+function routeBridge(work: DemGrid, piece: Piece, opts: SolverOptions): void {
+  const routed = aroundUnknown(work, piece.profile, opts);
+  if (!routed) return;
+  let unflyable = 0;
+  for (const st of piece.profile.status) if (st === STATUS_UNFLYABLE) unflyable++;
+  piece.skipped = piece.profile;
+  piece.profile = routed.profile;
+  piece.corners = routed.corners;
+  piece.unflyable = unflyable;
+}
+
+/**
+ * The corridor along the way around unknown ground from a straight profile's first
+ * station to its last, or null: when the straight floor is known everywhere (nothing
+ * to avoid), when nodata is assumed to be ground, or when no way exists (the leg then
+ * flies straight and solvePiece warns of the crossing).
+ */
+function aroundUnknown(work: DemGrid, straight: StationProfile, opts: SolverOptions): { profile: StationProfile; corners: Int32Array } | null {
+  if (!opts.routeAround || opts.assumeGroundM !== undefined) return null;
+  const n = straight.s.length;
+  let unknown = false;
+  for (let k = 0; k < n && !unknown; k++) unknown = straight.hardLowM[k] !== straight.hardLowM[k];
+  if (!unknown) return null;
+  const way = opts.routeAround([straight.x[0], straight.y[0]], [straight.x[n - 1], straight.y[n - 1]]);
+  if (!way || way.length < 3) return null;
+  const { stations, corners } = stationsAlongPolyline(way, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
+  return { profile: corridorAlong(work, stations, opts, { band: false }), corners };
 }
 
 function ceilingWords(ref: SolverOptions["ceiling"]["reference"]): string {
@@ -333,11 +390,14 @@ function buildLeg(p: Piece, alt: Float64Array, vs: Int32Array, opts: SolverOptio
     timeS += Math.abs(dz) / (dz > 0 ? opts.aircraft.maxClimbMps : opts.aircraft.maxDescentMps);
     wps.push(waypoint(prof, 0, p.stepFromM, 0));
   }
-  for (let v = 0; v < vs.length; v++) {
-    const k = vs[v];
+  // A polyline's corners are waypoints too: the path is linear in distance between its
+  // vertices, so a corner's height is the path's there and the climb gradient is unchanged.
+  const at = p.corners ? mergeStations(vs, p.corners) : vs;
+  for (let v = 0; v < at.length; v++) {
+    const k = at[v];
     let speed = 0;
     if (v > 0) {
-      const a = vs[v - 1];
+      const a = at[v - 1];
       const D = prof.s[k] - prof.s[a];
       const g = (alt[k] - alt[a]) / D;
       speed = segmentSpeed(opts, p.kind, g);
@@ -353,7 +413,18 @@ function buildLeg(p: Piece, alt: Float64Array, vs: Int32Array, opts: SolverOptio
   }
   const from: XY = [prof.x[0], prof.y[0]];
   const to: XY = [prof.x[n - 1], prof.y[n - 1]];
-  return { kind: p.kind, strip: p.strip, from, to, waypoints: wps, profile: prof, lengthM: prof.s[n - 1], timeS, ...(p.conflictGap ? { conflictGap: true } : {}) };
+  return { kind: p.kind, strip: p.strip, from, to, waypoints: wps, profile: prof, lengthM: prof.s[n - 1], timeS, ...(p.conflictGap ? { conflictGap: true } : {}), ...(p.skipped ? { skipped: p.skipped } : {}) };
+}
+
+/** Sorted union of two sorted station index lists. */
+function mergeStations(a: Int32Array, b: Int32Array): Int32Array {
+  const out: number[] = [];
+  let i = 0, j = 0;
+  while (i < a.length || j < b.length) {
+    const v = j >= b.length || (i < a.length && a[i] <= b[j]) ? a[i++] : b[j++];
+    if (out[out.length - 1] !== v) out.push(v);
+  }
+  return Int32Array.from(out);
 }
 
 function waypoint(prof: StationProfile, k: number, altM: number, speedMps: number): Waypoint {

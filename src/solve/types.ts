@@ -57,6 +57,14 @@ export interface SolverOptions {
   onConflict: "skip" | "clearance";
   /** Height to assume where the DEM has no data; undefined: nodata is unflyable. */
   assumeGroundM?: number;
+  /**
+   * A way around unknown ground for transits (connectors, legs to and from take-off,
+   * bridges over a strip's unflyable stretch): the polyline [a, ..., b] when the
+   * straight segment from a to b would pass over or near unknown ground and a way
+   * around exists, else null (the leg flies straight, warned where it crosses).
+   * Undefined: every transit is straight.
+   */
+  routeAround?: (a: XY, b: XY) => XY[] | null;
   /** Camera pixel pitch / focal length (GSD = height * ifov); lets input errors say which GSD range is legal. */
   ifov?: number;
 }
@@ -109,6 +117,12 @@ export interface SolvedLeg {
   timeS: number;
   /** True for a transit that bridges a stretch of a strip skipped as unflyable (`onConflict: "skip"`). */
   conflictGap?: boolean;
+  /**
+   * A bridge routed around unknown ground instead of along its strip: the strip's own
+   * stations it skips (unflyable, on the strip's line, as a straight bridge's profile
+   * would be), for whatever maps the strip's unflyable stretch. Absent otherwise.
+   */
+  skipped?: StationProfile;
 }
 
 export interface SolveWarning {
