@@ -17,11 +17,12 @@ export { utmZoneOf } from "./utmZone.js";
 export interface SiteFrame extends LocalFrame {
   /**
    * dem: the DEM's own metric CRS; dem-metres: the DEM's own CRS with its
-   * unit (feet) taken as metres; local-eqc: a local equirectangular frame on
-   * a geographic DEM's degrees (see localEquirectangular.ts). These three use
+   * unit (feet) taken as metres; dem-scaled: the DEM's own conformal CRS divided by
+   * its point scale at the site; local-eqc: a local equirectangular frame on
+   * a geographic DEM's degrees (see localEquirectangular.ts). These four use
    * the DEM's cells as they are; utm and ups resample the DEM.
    */
-  source: "dem" | "dem-metres" | "local-eqc" | "utm" | "ups";
+  source: "dem" | "dem-metres" | "dem-scaled" | "local-eqc" | "utm" | "ups";
   reason: string;
   scaleFactor: number;
 }
@@ -155,12 +156,48 @@ function tryDemFrame(crs: CrsInfo, lon: number, lat: number, box: LonLatBox): Si
     return "proj4 cannot use its definition";
   }
   const k = checkedScale(frame, lon, lat, box);
-  if (typeof k === "string") return k;
+  if (typeof k === "string") return scaledDemFrame(crs, frame, lon, lat, box) ?? k;
   const fromNative: NativeAffine = { sx: crs.linearUnitM, sy: crs.linearUnitM, ox: 0, oy: 0 };
   const reason = metres
     ? `the DEM's own metric CRS (${crs.name}), scale ${k.toFixed(6)} at the site`
     : `the DEM's own CRS (${crs.name}) with its unit (${crs.linearUnitM} m) taken as metres, scale ${k.toFixed(6)} at the site`;
   return { ...frame, fromNative, source: metres ? "dem" : "dem-metres", reason, scaleFactor: k };
+}
+
+/**
+ * A conformal projection far from true scale at the site (Web Mercator away from the
+ * equator: sec(lat)) is still true to scale up to one factor k over a small site: the
+ * DEM's own CRS divided by its point scale at the centre (`+to_meter=k`, since PROJ and
+ * proj4 divide by the unit last) keeps the DEM's cells, rescaled, and is checked like any
+ * frame over the window. Null when the scale differs by direction (not conformal) or
+ * drifts too much across the window.
+ */
+function scaledDemFrame(crs: CrsInfo, metresFrame: LocalFrame, lon: number, lat: number, box: LonLatBox): SiteFrame | null {
+  let kE: number, kN: number;
+  try {
+    [kE, kN] = pointScaleFactors(metresFrame.fromWgs84, lon, Math.max(-89.99, Math.min(89.99, lat)));
+  } catch {
+    return null;
+  }
+  if (!(kE > 0 && kN > 0) || Math.abs(kE / kN - 1) > MAX_FRAME_SCALE_ERROR) return null;
+  const k0 = Math.sqrt(kE * kN);
+  const def = `${crs.proj4.replace(/\s*\+(units|to_meter)=\S+/g, "")} +to_meter=${k0}`.replace(/\s+/g, " ").trim();
+  let frame: LocalFrame;
+  try {
+    frame = frameFromProj4(def, null, `${crs.name}, divided by its scale ${k0.toFixed(6)} at the site`);
+  } catch {
+    return null;
+  }
+  const k = checkedScale(frame, lon, lat, box);
+  if (typeof k === "string") return null;
+  const sx = crs.linearUnitM / k0;
+  return {
+    ...frame,
+    fromNative: { sx, sy: sx, ox: 0, oy: 0 },
+    source: "dem-scaled",
+    reason: `the DEM's own CRS (${crs.name}) divided by its point scale ${k0.toFixed(6)} at the site (no resampling), scale ${k.toFixed(6)} over the window`,
+    scaleFactor: k,
+  };
 }
 
 /**

@@ -231,3 +231,27 @@ describe.skipIf(!HAS_GDAL)("unknown ground: flown around, or announced, never si
     expect(v.warnings.some((b: { limit: string }) => b.limit === "nodata")).toBe(true);
   });
 });
+
+describe.skipIf(!HAS_GDAL)("ground = the DEM on a conformal CRS far from true scale (Web Mercator at 46.5 N)", () => {
+  it("the DEM's cells are kept (its CRS divided by its point scale): ground at 300 points equals GDAL's bilinear ground within 0.05 m", async () => {
+    // GDAL makes the DEM: the 1" ridges warped to EPSG:3857 (scale sec(46.5) = 1.45 there).
+    const dir = tempDir("truth-merc");
+    const dem = path.join(dir, "ridges_3857.tif");
+    execFileSync("gdalwarp", ["-q", "-t_srs", "EPSG:3857", "-r", "bilinear", "-tr", "40", "40", path.join(ROOT, "fixtures/truth/ridges_geo1s.tif"), dem]);
+    const file = await loadPlanFile(path.join(ROOT, "fixtures/truth/ridges_geo1s-plan.yaml"));
+    const m = await prepareMission(resolvePlanOptions({ ...file.data, dem }, {}, file.dir));
+    expect(m.frame.source).toBe("dem-scaled");
+    const site = JSON.parse(readFileSync(path.join(ROOT, "fixtures/truth/ridges_geo1s-site.geojson"), "utf8"));
+    const ring: [number, number][] = (site.features?.[0]?.geometry ?? site.geometry).coordinates[0];
+    const lons = ring.map((p) => p[0]), lats = ring.map((p) => p[1]);
+    let seed = 11;
+    const rnd = () => ((seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0) / 2 ** 32);
+    const pts: [number, number][] = Array.from({ length: 300 }, () => [Math.min(...lons) + (Math.max(...lons) - Math.min(...lons)) * rnd(), Math.min(...lats) + (Math.max(...lats) - Math.min(...lats)) * rnd()]);
+    const ref = gdalBilinearM(dem, cs2csFromWgs84(3857, pts));
+    const xy = pts.map(([lon, lat]) => m.frame.fromWgs84(lon, lat));
+    const ours = sampleBilinear(m.grid, xy.map((p) => p[0]), xy.map((p) => p[1]));
+    let worst = 0;
+    pts.forEach((_p, i) => (worst = Math.max(worst, Math.abs(ours[i] - ref[i]))));
+    expect(worst).toBeLessThanOrEqual(0.05);
+  });
+});

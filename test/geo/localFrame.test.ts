@@ -104,12 +104,19 @@ describe("localFrameFor: which frame a site gets", () => {
     expect(f.reason).toMatch(/scale at the site is/);
   });
 
-  it("Web Mercator is metric in name only: at 60 N its scale is 1/cos(60) = 2, so UTM is used", () => {
+  it("Web Mercator is metric in name only: at 60 N its scale is 1/cos(60) = 2, so the frame divides it out; on the equator its north-south scale differs from east-west, so UTM is used", () => {
     // Mercator point scale sec(lat) on the sphere (Snyder, Map Projections: A Working Manual, 1987, from memory)
     const merc: CrsInfo = { proj4: epsg3857.proj4, epsg: 3857, name: epsg3857.name, geographic: false, linearUnitM: 1 };
-    const f = localFrameFor(10, 60, merc);
-    expect(f.source).toBe("utm");
-    expect(f.reason).toMatch(/scale at the site is 1\.99/);
+    // Conformal, so the DEM's own CRS divided by its point scale at the site is true to scale
+    // over a small window: the DEM's cells are kept (no resampling).
+    const f = localFrameFor(10, 60, merc, { west: 9.98, east: 10.02, south: 59.99, north: 60.01 });
+    expect(f.source).toBe("dem-scaled");
+    expect(f.fromNative!.sx).toBeCloseTo(1 / 1.9966, 3);
+    expect(Math.abs(f.scaleFactor - 1)).toBeLessThan(MAX_FRAME_SCALE_ERROR);
+    // Against GeographicLib's geodesic: a 1 km east-west line at 60 N measures 1 km in the frame within 0.3 %.
+    const d = Geodesic.WGS84.Inverse(60, 10, 60, 10.01796).s12!;
+    const [x1, y1] = f.fromWgs84(10, 60), [x2, y2] = f.fromWgs84(10.01796, 60);
+    expect(Math.abs(Math.hypot(x2 - x1, y2 - y1) / d - 1)).toBeLessThan(0.003);
     // Even on the equator it fails: its northing grows at the sphere's a = 6 378 137 m per radian
     // while the ellipsoid's meridian radius there is a(1 - e^2) = 6 335 439 m (WGS84 constants,
     // NIMA TR8350.2), a scale of 1.00674.
