@@ -239,7 +239,7 @@ describe.skipIf(!HAS_GDAL)("ground = the DEM on a conformal CRS far from true sc
     const dem = path.join(dir, "ridges_3857.tif");
     execFileSync("gdalwarp", ["-q", "-t_srs", "EPSG:3857", "-r", "bilinear", "-tr", "40", "40", path.join(ROOT, "fixtures/truth/ridges_geo1s.tif"), dem]);
     const file = await loadPlanFile(path.join(ROOT, "fixtures/truth/ridges_geo1s-plan.yaml"));
-    const m = await prepareMission(resolvePlanOptions({ ...file.data, dem }, {}, file.dir));
+    const m = await prepareMission(resolvePlanOptions({ ...(file.data as object), dem }, {}, file.dir));
     expect(m.frame.source).toBe("dem-scaled");
     const site = JSON.parse(readFileSync(path.join(ROOT, "fixtures/truth/ridges_geo1s-site.geojson"), "utf8"));
     const ring: [number, number][] = (site.features?.[0]?.geometry ?? site.geometry).coordinates[0];
