@@ -5,7 +5,6 @@
  */
 import path from "node:path";
 import type { OutputFile } from "../export/atomicDir.js";
-import { waypointRows } from "../export/rows.js";
 import { waypointsCsv } from "../export/waypointsCsv.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
@@ -42,7 +41,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const summary = planSummary(run);
   const flights = run.flights.flights.map((f) => f.legs);
   const heights = { datum: run.verticalDatum, undulationM: undulationFor(run.verticalDatum), takeoffGroundM: run.takeoff.groundM };
-  const rows = waypointRows(flights, run.frame.toWgs84, heights);
+  const rows = run.rows;
   const exportInput: PlanExportInput = {
     name: run.site.name,
     site: run.site,

@@ -26,6 +26,7 @@ import { siteCoverage } from "../layout/coverage.js";
 import { layoutStrips } from "../layout/strips.js";
 import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
 import { solveTransit } from "../solve/solveLegs.js";
+import { clearanceFloorM } from "../solve/clearance.js";
 import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
@@ -34,7 +35,7 @@ import type { AssessedLeg } from "../assess/exposures.js";
 import type { Assessment } from "../assess/types.js";
 import { splitFlights, type FlightSplit } from "../export/flights.js";
 import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
-import { waypointRows } from "../export/rows.js";
+import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
 import { limitsFromPlanOptions } from "../verify/limits.js";
 import type { Breach, VerifyResult } from "../verify/types.js";
@@ -66,6 +67,8 @@ export interface PlanRun {
    * DEM in its own CRS; `undeclared` are its breaches that no plan warning announced.
    */
   verification: VerifyResult & { undeclared: Breach[] };
+  /** The waypoint table the exporters write (and the check above read), in flight order. */
+  rows: WaypointRow[];
   /** Waypoints per flight against the autopilot's limit (null: no limit given). */
   budget: WaypointBudgetSummary | null;
   warnings: SolveWarning[];
@@ -166,7 +169,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   };
   const around = routeAroundUnknown(grid, layout, options, stationStepM);
   if (around) solverOptions.routeAround = around;
-  assertTargetReachable(requirement, camera, targetHeightM, options);
+  assertTargetReachable(requirement, camera, targetHeightM, options, clearanceFloorM(solverOptions.clearance));
   const ordered = solveInBestStripOrder(grid, layout.legs, layout.takeoff, solverOptions);
   if (ordered.legs !== layout.legs) layout = { ...layout, legs: ordered.legs };
   const solve = ordered.solve;
@@ -254,6 +257,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     takeoff: { x: layout.takeoff[0], y: layout.takeoff[1], lon: tLon, lat: tLat, groundM: takeoffGround },
     budget: budget.summary,
     verification,
+    rows,
     warnings,
     timings,
   };
@@ -442,8 +446,7 @@ function waypointBudgetCheck(
  * ceiling everywhere is bad input, named by the user's key, with the GSD range
  * this camera can legally and safely reach.
  */
-function assertTargetReachable(requirement: Requirement, camera: Camera, targetHeightM: number, o: PlanOptions): void {
-  const floorM = o.clearance.minM + o.clearance.obstacleMarginM + (o.demAccuracyM ?? 0);
+function assertTargetReachable(requirement: Requirement, camera: Camera, targetHeightM: number, o: PlanOptions, floorM: number): void {
   const key = o.target.by === "gsd" ? "target.gsdCm" : "target.smallestFeatureCm";
   const value = o.target.by === "gsd" ? o.target.gsdCm : o.target.smallestFeatureCm;
   const lo = (floorM * camera.ifov * 100).toFixed(2);

@@ -1,5 +1,15 @@
 import type { DemGrid } from "../dem/grid.js";
 import { extremaInRadius } from "../dem/sample.js";
+import type { SolverOptions } from "./types.js";
+
+/**
+ * Height the path keeps above the highest ground within the safety radius: minimum
+ * clearance + obstacle margin + the DEM's stated accuracy (height it cannot trust).
+ * @example clearanceFloorM({ minM: 30, safetyRadiusM: 15, obstacleMarginM: 5, demAccuracyM: 0.5 }) // 35.5
+ */
+export function clearanceFloorM(c: SolverOptions["clearance"]): number {
+  return c.minM + c.obstacleMarginM + (c.demAccuracyM ?? 0);
+}
 
 /**
  * Highest ground within `radiusM` of each point: exactly extremaInRadius's

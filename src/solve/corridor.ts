@@ -2,7 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect, extremaInRadius, sampleBilinear } from "../dem/sample.js";
 import { discExtremaExact, rimExtend } from "../dem/discExact.js";
 import type { Stations } from "../layout/types.js";
-import { maxGroundInRadius } from "./clearance.js";
+import { clearanceFloorM, maxGroundInRadius } from "./clearance.js";
 import { surfaceCeiling } from "./surfaceCeiling.js";
 import { zoneExtremaAlongLine } from "./zoneExtrema.js";
 import {
@@ -55,8 +55,8 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
   const bandHighM = new Float64Array(n).fill(NaN);
   const status = new Uint8Array(n);
   const cause = new Uint8Array(n);
-  const { minM, safetyRadiusM, obstacleMarginM } = opts.clearance;
-  const accuracyM = opts.clearance.demAccuracyM ?? 0;
+  const { safetyRadiusM } = opts.clearance;
+  const floorM = clearanceFloorM(opts.clearance);
   // Reach between stations: the largest gap between neighbours (the last one may be shorter).
   let reachM = 0;
   for (let i = 1; i < n; i++) reachM = Math.max(reachM, st.s[i] - st.s[i - 1]);
@@ -72,12 +72,12 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
     maxGroundInRadius(grid, st.x, st.y, discM, hardLowM);
     for (let i = 0; i < n; i++) hardLowM[i] = rimExtend(grid, st.x[i], st.y[i], discM, hardLowM[i], true);
   } else maxGroundInRadius(grid, st.x, st.y, discM + diagM, hardLowM);
-  for (let i = 0; i < n; i++) hardLowM[i] += obstacleMarginM + minM + accuracyM;
+  for (let i = 0; i < n; i++) hardLowM[i] += floorM;
   let knownLowM: Float64Array | undefined;
   for (let i = 0; i < n; i++) {
     if (hardLowM[i] === hardLowM[i]) continue;
     knownLowM ??= hardLowM.slice();
-    knownLowM[i] = maxKnownInRadius(grid, st.x[i], st.y[i], discM + diagM) + obstacleMarginM + minM + accuracyM;
+    knownLowM[i] = maxKnownInRadius(grid, st.x[i], st.y[i], discM + diagM) + floorM;
   }
 
   const C = opts.ceiling.heightM;

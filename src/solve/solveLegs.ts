@@ -2,6 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import type { LayoutLeg, XY } from "../layout/types.js";
 import { corridorAlong } from "./corridor.js";
+import { clearanceFloorM } from "./clearance.js";
 import { gradientLimits, segmentSpeed } from "./gradient.js";
 import { minLinkPathOnLattice } from "./minLinkPath.js";
 import { stationsAlongLeg, stationsAlongPolyline } from "./stations.js";
@@ -43,8 +44,6 @@ interface Piece {
   stepFromM?: number;
   /** Stations at the vertices of a polyline transit (first and last included): each becomes a waypoint. */
   corners?: Int32Array;
-  /** A bridge routed off its strip's line: how many of the strip's stations it skips as unflyable. */
-  unflyable?: number;
   /** The same bridge's straight profile along the strip (its skipped stations). */
   skipped?: StationProfile;
 }
@@ -110,11 +109,10 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
 
   const out: SolvedLeg[] = pieces.map((p, i) => buildLeg(p, paths[i]!, vertices[i]!, opts));
   const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
-  for (const [i, leg] of out.entries()) {
+  for (const leg of out) {
     if (leg.kind !== "strip" && !leg.conflictGap) continue;
     // A routed bridge flies elsewhere: count the strip's stations it skipped, as a straight one would.
-    if (pieces[i].unflyable !== undefined) { counts.unflyable += pieces[i].unflyable!; continue; }
-    const st = leg.profile.status;
+    const st = (leg.skipped ?? leg.profile).status;
     const n = st.length;
     for (let k = 0; k < n; k++) {
       // A gap shares its end stations with the strips beside it: count only its own.
@@ -178,16 +176,13 @@ function transitCorridor(work: DemGrid, leg: LayoutLeg, opts: SolverOptions): { 
   return aroundUnknown(work, straight, opts) ?? { profile: straight };
 }
 
-/** Reroutes a bridge over a strip's unknown ground (see aroundUnknown), keeping the count of stations it skips. */
+/** Reroutes a bridge over a strip's unknown ground (see aroundUnknown), keeping the strip's stations it skips. */
 function routeBridge(work: DemGrid, piece: Piece, opts: SolverOptions): void {
   const routed = aroundUnknown(work, piece.profile, opts);
   if (!routed) return;
-  let unflyable = 0;
-  for (const st of piece.profile.status) if (st === STATUS_UNFLYABLE) unflyable++;
   piece.skipped = piece.profile;
   piece.profile = routed.profile;
   piece.corners = routed.corners;
-  piece.unflyable = unflyable;
 }
 
 /**
@@ -280,7 +275,7 @@ function solvePiece(
     const v = prof.hardLowM[k] === prof.hardLowM[k] ? prof.hardLowM[k] : (prof.knownLowM?.[k] ?? NaN);
     if (v === v) knownLow = Math.max(knownLow, v);
   }
-  if (knownLow === -Infinity) knownLow = opts.takeoffGroundM + opts.clearance.minM + opts.clearance.obstacleMarginM + (opts.clearance.demAccuracyM ?? 0);
+  if (knownLow === -Infinity) knownLow = opts.takeoffGroundM + clearanceFloorM(opts.clearance);
   let unknownM = 0;
   for (let k = 0; k < n; k++) {
     lo[k] = prof.hardLowM[k];

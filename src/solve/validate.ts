@@ -1,4 +1,5 @@
 import { InputError } from "../errors.js";
+import { clearanceFloorM } from "./clearance.js";
 import type { SolverOptions } from "./types.js";
 
 /** One-line InputErrors for options no plan can satisfy (before any DEM work). */
@@ -23,7 +24,7 @@ export function validateSolverOptions(o: SolverOptions): void {
   if (o.aircraft.minSpeedMps > o.aircraft.speedMps) {
     throw new InputError("aircraft.minSpeedMps", o.aircraft.minSpeedMps, `at most the photo speed (${o.aircraft.speedMps} m/s)`);
   }
-  const floorM = o.clearance.minM + o.clearance.obstacleMarginM + (o.clearance.demAccuracyM ?? 0);
+  const floorM = clearanceFloorM(o.clearance);
   if (o.ceiling.heightM <= floorM) {
     throw new InputError("ceiling.heightM", o.ceiling.heightM, `more than the minimum clearance + obstacle margin + DEM accuracy (${floorM} m)`,
       "the ceiling is at or below the minimum clearance, so no height is both legal and safe");
