@@ -46,7 +46,7 @@ export { planGeoJson } from "./export/geojson.js";
 export { planKml } from "./export/kml.js";
 export { planGpx } from "./export/gpx.js";
 export { assessmentGeoTiffs } from "./export/geotiffRasters.js";
-export { splitFlights, type Flight } from "./export/flights.js";
+export { splitFlights, type Flight } from "./route/flights.js";
 
 // report
 export { renderReport } from "./report/render.js";

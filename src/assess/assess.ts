@@ -5,11 +5,12 @@ import { InputError } from "../errors.js";
 import { computeCoverage } from "./coverage.js";
 import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
-import { effectFlags, paintCauseZones } from "./flagRaster.js";
+import { effectFlags, paintCauseZones, paintKeepOutCuts } from "./flagRaster.js";
 import { flagPolygons, type ToWgs84 } from "./flagPolygons.js";
 import { rasteriseSite } from "./siteMask.js";
 import { assessmentStats } from "./stats.js";
 import type { Assessment } from "./types.js";
+import type { XY } from "../layout/types.js";
 
 /**
  * The independent check of a plan: from the final waypoints, place the
@@ -36,6 +37,11 @@ export interface AssessOptions {
   nadirBy?: NadirBy;
   /** Threads for the coverage pass (see CoverageOptions). */
   threads?: number;
+  /**
+   * Stretches of strips cut at keep-out zones, with the footprint they would have
+   * imaged: too-few-images cells under them get the keep-out bit.
+   */
+  keepOut?: { cuts: readonly { from: XY; to: XY }[]; footprintAcrossM: number; footprintAlongM: number };
 }
 
 /**
@@ -71,6 +77,7 @@ export function assessPlan(
   const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera, { nadirBy: opts.nadirBy, threads: opts.threads });
   const flags = effectFlags(grid, inSite, gsdCm, images, requirement.lowGsdM * 100, requirement.highGsdM * 100, minImages);
   paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
+  if (opts.keepOut) paintKeepOutCuts(flags, grid, inSite, opts.keepOut.cuts, opts.keepOut.footprintAcrossM / 2, opts.keepOut.footprintAlongM / 2);
 
   const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
   const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip });

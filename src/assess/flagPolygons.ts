@@ -28,7 +28,7 @@ export type ToWgs84 = (x: number, y: number) => [number, number];
  *   keyed by FlagKind.key; `areaM2` is the flagged cell area (cells x cellAreaM2).
  */
 export function flagPolygons(
-  flags: Uint8Array,
+  flags: Uint16Array,
   width: number,
   height: number,
   transform: GeoTransform,
@@ -40,8 +40,8 @@ export function flagPolygons(
   // One pass for all kinds: flag-byte histogram (cell counts) and the OR of each row and
   // column (bounding boxes), instead of one scan of the grid per kind.
   const hist = new Float64Array(256);
-  const rowOr = new Uint8Array(height);
-  const colOr = new Uint8Array(width);
+  const rowOr = new Uint16Array(height);
+  const colOr = new Uint16Array(width);
   for (let r = 0; r < height; r++) {
     const base = r * width;
     let ro = 0;

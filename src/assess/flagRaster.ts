@@ -8,7 +8,7 @@ import {
   STATUS_UNFLYABLE,
   type SolvedLeg,
 } from "../solve/types.js";
-import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA, FLAG_RELIEF, FLAG_UNFLYABLE } from "./flags.js";
+import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_KEEP_OUT, FLAG_NODATA, FLAG_RELIEF, FLAG_UNFLYABLE } from "./flags.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 
 /**
@@ -42,9 +42,9 @@ export function effectFlags(
   lowGsdCm: number,
   highGsdCm: number,
   minImages: number,
-): Uint8Array {
+): Uint16Array {
   const n = grid.width * grid.height;
-  const flags = new Uint8Array(n);
+  const flags = new Uint16Array(n);
   const lo = lowGsdCm * (1 - BAND_SLACK);
   const hi = highGsdCm * (1 + BAND_SLACK);
   const valid = grid.valid;
@@ -85,7 +85,7 @@ export function stationFlagBits(status: number, cause: number): number {
  * paintCauseZones(flags, grid, inSite, solved.legs, layout.spacingM / 2);
  */
 export function paintCauseZones(
-  flags: Uint8Array,
+  flags: Uint16Array,
   grid: DemGrid,
   inSite: Uint8Array,
   legs: readonly SolvedLeg[],
@@ -120,6 +120,44 @@ export function paintCauseZones(
         orientedRectColSpan(y0 + (r + 0.5) * dy, px, py, ux, uy, halfAlong, zoneHalfAcrossM, x0, dx, width, span);
         const base = r * width;
         for (let c = span[0]; c <= span[1]; c++) if (inSite[base + c] === 1) flags[base + c] |= bits;
+      }
+    }
+  }
+}
+
+/**
+ * The keep-out bit on site cells with too few images that a cut stretch of a
+ * strip would have imaged: the rectangle around the stretch reaching half the
+ * footprint across the track and half the footprint past each end (a photo at
+ * the stretch's end images that far along). Cells that lose images for another
+ * reason elsewhere keep only the too-few-images bit.
+ * @example paintKeepOutCuts(flags, grid, inSite, layout.keepOutCuts ?? [], 50, 33)
+ */
+export function paintKeepOutCuts(
+  flags: Uint16Array,
+  grid: DemGrid,
+  inSite: Uint8Array,
+  cuts: readonly { from: readonly [number, number]; to: readonly [number, number] }[],
+  halfAcrossM: number,
+  halfFootprintAlongM: number,
+): void {
+  const { width, height } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const rows = new Int32Array(2);
+  const span = new Int32Array(2);
+  for (const { from, to } of cuts) {
+    const len = Math.hypot(to[0] - from[0], to[1] - from[1]);
+    if (!(len > 0)) continue;
+    const ux = (to[0] - from[0]) / len, uy = (to[1] - from[1]) / len;
+    const px = (from[0] + to[0]) / 2, py = (from[1] + to[1]) / 2;
+    const halfAlong = len / 2 + halfFootprintAlongM;
+    orientedRectRowRange(py, ux, uy, halfAlong, halfAcrossM, y0, dy, height, rows);
+    for (let r = rows[0]; r <= rows[1]; r++) {
+      orientedRectColSpan(y0 + (r + 0.5) * dy, px, py, ux, uy, halfAlong, halfAcrossM, x0, dx, width, span);
+      const base = r * width;
+      for (let c = span[0]; c <= span[1]; c++) {
+        const i = base + c;
+        if (inSite[i] === 1 && (flags[i] & FLAG_FEW_IMAGES) !== 0) flags[i] |= FLAG_KEEP_OUT;
       }
     }
   }

@@ -1,8 +1,9 @@
 /**
- * Per-cell flag bits of the assessment (written to flags.tif as UInt8).
+ * Per-cell flag bits of the assessment (written to flags.tif as UInt16).
  * Effect bits (1, 2, 4) are the assessment's own measurement of what is
  * wrong with the cell; cause bits (8, 16, 64, 128) are the solver's
- * explanation of why, painted from its stations; 32 comes from the DEM.
+ * explanation of why, painted from its stations; 32 comes from the DEM;
+ * 256 marks the too-few-images ground that a keep-out zone's cut hides.
  */
 export const FLAG_COARSE = 1;
 export const FLAG_FINE = 2;
@@ -13,10 +14,14 @@ export const FLAG_NODATA = 32;
 export const FLAG_UNFLYABLE = 64;
 /** Cause: the ground within the strip's zone varies more than the band allows (solver CAUSE_RELIEF). */
 export const FLAG_RELIEF = 128;
+/** Effect: fewer images than required where strips were cut at a keep-out zone (the cut's footprint). */
+export const FLAG_KEEP_OUT = 256;
+/** Distinct flag values: every combination of the nine bits. */
+export const FLAG_VALUES = 512;
 
 export interface FlagKind {
   bit: number;
-  key: "coarse" | "fine" | "fewImages" | "ceiling" | "clearance" | "nodata" | "unflyable" | "relief";
+  key: "coarse" | "fine" | "fewImages" | "ceiling" | "clearance" | "nodata" | "unflyable" | "relief" | "keepOut";
   label: string;
   /** Plain words for the report and the terminal summary. */
   explanation: string;
@@ -89,5 +94,14 @@ export const RELIEF_FLAG_KIND: FlagKind = {
   remedy: "Raise the tolerance, narrow the strip spacing (more overlap), or fly the heading along the slope.",
 };
 
-/** Every kind the assessment reports: FLAG_KINDS and the relief cause. */
-export const ASSESSMENT_FLAG_KINDS: readonly FlagKind[] = [...FLAG_KINDS, RELIEF_FLAG_KIND];
+/** The keep-out effect (bit 256): ground the cut strips no longer image often enough. */
+export const KEEP_OUT_FLAG_KIND: FlagKind = {
+  bit: FLAG_KEEP_OUT,
+  key: "keepOut",
+  label: "hidden by a keep-out zone",
+  explanation: "Strips stop where they would enter a keep-out zone or its buffer, so this ground has fewer images than required.",
+  remedy: "Image it from outside the zone (an oblique pass or a strip along the zone's edge), narrow the zone's buffer if your rules allow, or accept the gap.",
+};
+
+/** Every kind the assessment reports: FLAG_KINDS, the relief cause and the keep-out effect. */
+export const ASSESSMENT_FLAG_KINDS: readonly FlagKind[] = [...FLAG_KINDS, RELIEF_FLAG_KIND, KEEP_OUT_FLAG_KIND];

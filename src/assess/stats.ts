@@ -1,5 +1,5 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
-import { FLAG_COARSE, FLAG_FINE, ASSESSMENT_FLAG_KINDS } from "./flags.js";
+import { FLAG_COARSE, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { countStats, quantilesFloat32 } from "./quantiles.js";
 
 /**
@@ -15,7 +15,7 @@ import { countStats, quantilesFloat32 } from "./quantiles.js";
 export interface StatsInput {
   gsdCm: Float32Array;
   images: Uint16Array;
-  flags: Uint8Array;
+  flags: Uint16Array;
   inSite: Uint8Array;
   /** DEM data mask (DemGrid.valid). */
   valid: Uint8Array;
@@ -49,16 +49,16 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   if (maxStrip < 0) for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
   maxStrip = Math.max(0, maxStrip);
 
-  // One pass: a histogram of flag bytes per strip (strip 0: cells no photo sees) gives every
-  // count; flag kinds are read off the 256 bins afterwards instead of testing 7 bits per cell.
-  const flagHist = new Float64Array((maxStrip + 1) * 256);
+  // One pass: a histogram of flag values per strip (strip 0: cells no photo sees) gives every
+  // count; flag kinds are read off the 512 bins afterwards instead of testing 9 bits per cell.
+  const flagHist = new Float64Array((maxStrip + 1) * FLAG_VALUES);
   const seenCount = new Int32Array(maxStrip + 2);
   const withData = new Uint8Array(n);
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     withData[i] = valid[i];
     const s = nadirStrip[i];
-    flagHist[s * 256 + flags[i]]++;
+    flagHist[s * FLAG_VALUES + flags[i]]++;
     if (gsdCm[i] === gsdCm[i]) seenCount[s + 1]++;
   }
   const start = new Int32Array(maxStrip + 2);
@@ -81,8 +81,8 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     let all = 0;
     let flagged = 0;
     for (let s = s0; s <= s1; s++) {
-      for (let f = 0; f < 256; f++) {
-        const c = flagHist[s * 256 + f];
+      for (let f = 0; f < FLAG_VALUES; f++) {
+        const c = flagHist[s * FLAG_VALUES + f];
         if (c === 0) continue;
         all += c;
         if (f !== 0) flagged += c;

@@ -22,7 +22,7 @@ export interface AssessmentRasters {
   /** Number of exposures whose footprint covers the cell. */
   images: Uint16Array;
   /** Bitmask, see flags.ts. 0 outside the site. */
-  flags: Uint8Array;
+  flags: Uint16Array;
   /** 1 for cells whose centre lies inside the site. */
   inSite: Uint8Array;
   /** Strip number of the most nadir exposure seeing the cell; 0 where none (added by the assessment). */

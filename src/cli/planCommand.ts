@@ -10,7 +10,7 @@ import { existsSync } from "node:fs";
 import { summaryText } from "./summaryText.js";
 import { stageProgress } from "./progress.js";
 
-const STAGES: readonly PlanStage[] = ["load", "layout", "solve", "assess", "baseline"];
+const STAGES: readonly PlanStage[] = ["load", "layout", "solve", "route", "assess", "baseline"];
 
 /**
  * Runs `gsdplan plan` for parsed CLI options: resolve options, plan, write the

@@ -26,6 +26,12 @@ export function summaryText(s: PlanSummary, outDir: string, opts: { explainAllFl
   lines.push(
     `  one constant altitude instead (${f(c.altitudeAmslM)} m AMSL): within band ${f(c.withinBandPct)} %, GSD p5-p95 ${f(c.gsdCm.p5, 2)}-${f(c.gsdCm.p95, 2)} cm/px, ceiling broken over ${f(c.ceilingBreachAreaM2, 0)} m2`,
   );
+  const k = s.keepOut;
+  if (k && k.zones.length) {
+    const zones = k.zones.map((z) => `${z.name} (${z.bufferM ? `buffer ${z.bufferM} m, ` : ""}${f(z.siteRemovedPct)} % of the site)`).join("; ");
+    lines.push(`  keep-out zones: ${zones}; strips cut over ${f(k.stripCutM, 0)} m`);
+  }
+  if (k && k.routedTransits) lines.push(`  ${k.routedTransits} transit(s) routed around keep-out zones or unknown ground, ${f(k.detourM, 0)} m longer than straight`);
   lines.push(`  ceiling ${s.ceiling.heightM} m, rule: ${s.ceiling.rule}`);
   lines.push(`  heights: AMSL (${s.verticalDatum}), ellipsoidal via ${s.geoidModel}, and above take-off (ground ${f(s.takeoff.groundAmslM, 2)} m AMSL)`);
   const flagged = ASSESSMENT_FLAG_KINDS.filter((k) => (s.flagged.byKind[k.key]?.cells ?? 0) > 0);

@@ -3,12 +3,13 @@
  * right-hand rule (exterior rings counterclockwise, 3.1.6), and a third
  * coordinate that is the height above the WGS84 ellipsoid (section 4), so
  * line and point altitudes here are ellipsoidal; AMSL rides in properties.
- * Every feature has a `layer` property: site, leg, waypoint, flag, takeoff.
+ * Every feature has a `layer` property: site, leg, waypoint, flag, takeoff,
+ * keepOut (a zone as drawn) and keepOutBuffer (a zone grown by its buffer).
  */
 import { rewind } from "@turf/turf";
 import type { Feature, FeatureCollection, Geometry, MultiPolygon, Polygon, Position } from "geojson";
-import { FLAG_KINDS } from "../assess/flags.js";
-import { legLines, roundDeg, roundM, type PlanExportInput } from "./layers.js";
+import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
+import { legLines, roundDeg, roundM, wgs84Polygons, type PlanExportInput } from "./layers.js";
 
 const ALTITUDE_NOTE = "coordinate altitude: metres above the WGS84 ellipsoid (RFC 7946, section 4)";
 
@@ -63,12 +64,20 @@ export function planGeoJson(input: PlanExportInput): FeatureCollection {
   }
   for (const [kind, f] of Object.entries(input.flags ?? {})) {
     if (!f.geometry.coordinates.length) continue;
-    const info = FLAG_KINDS.find((k) => k.key === kind);
+    const info = ASSESSMENT_FLAG_KINDS.find((k) => k.key === kind);
     features.push({
       type: "Feature",
       geometry: rfc7946Polygon(f.geometry),
       properties: { layer: "flag", kind, bit: f.properties.bit, area_m2: roundM(f.properties.areaM2), label: info?.label ?? kind, explanation: info?.explanation ?? "" },
     });
+  }
+  for (const z of input.keepOut ?? []) {
+    const drawn = wgs84Polygons(z.polygons, input.toWgs84);
+    features.push({ type: "Feature", geometry: rfc7946Polygon({ type: "MultiPolygon", coordinates: drawn }), properties: { layer: "keepOut", name: z.name, buffer_m: z.bufferM } });
+    if (z.bufferM > 0) {
+      const grown = wgs84Polygons(z.buffered, input.toWgs84);
+      features.push({ type: "Feature", geometry: rfc7946Polygon({ type: "MultiPolygon", coordinates: grown }), properties: { layer: "keepOutBuffer", name: z.name, buffer_m: z.bufferM } });
+    }
   }
   const t = input.takeoff;
   // groundAmslM is already above sea level: add N for the ellipsoid.

@@ -1,6 +1,6 @@
 /**
  * gsd.tif (Float32, cm/px), images.tif (UInt16 image count) and flags.tif
- * (UInt8 bitmask, see assess/flags.ts) on the assessment grid, written with
+ * (UInt16 bitmask, see assess/flags.ts) on the assessment grid, written with
  * geotiff.js's writer (uncompressed, one strip).
  *
  * Georeferencing follows the GeoTIFF 1.0 spec: ModelTiepointTag and
@@ -20,7 +20,7 @@ import type { CrsInfo, GeoTransform } from "../dem/grid.js";
 import type { AssessmentRasters } from "../assess/types.js";
 
 export const IMAGES_NODATA = 65535;
-/** 255 would set both "coarser" (1) and "finer" (2), which no cell can be: safe as nodata with all eight bits in use. */
+/** 255 would set both "coarser" (1) and "finer" (2), which no cell can be: safe as nodata whatever bits are in use. */
 export const FLAGS_NODATA = 255;
 
 export type RasterCrs = Pick<CrsInfo, "epsg" | "proj4" | "geographic"> & { name?: string };
@@ -73,27 +73,28 @@ export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: k
     for (let i = 0; i < n; i++) gsd[i] = inSite[i] === 1 ? r.gsdCm[i] : NaN;
     return rasterGeoTiff(gsd, grid, crs, "nan");
   }
-  if (which === "images.tif") {
-    const meta = rasterMeta(grid, crs, String(IMAGES_NODATA));
-    const shell = tiffShell(new Uint16Array(1), n, meta);
-    if (LITTLE_ENDIAN_HOST && shell.offset % 2 === 0) {
-      const dst = new Uint16Array(shell.out.buffer, shell.offset, n);
-      const im = r.images;
-      for (let i = 0; i < n; i++) {
-        const v = inSite[i] === 1 ? Math.min(im[i], IMAGES_NODATA - 1) : IMAGES_NODATA;
-        dst[i] = ((v & 0xff) << 8) | (v >>> 8);
-      }
-      return shell.out.buffer as ArrayBuffer;
+  if (which === "images.tif") return uint16GeoTiff(r.images, inSite, IMAGES_NODATA, grid, crs);
+  return uint16GeoTiff(r.flags, inSite, FLAGS_NODATA, grid, crs);
+}
+
+/**
+ * A UInt16 raster: site cells' values (capped below nodata), nodata elsewhere;
+ * on a little-endian host masked and byte-swapped straight into the file.
+ */
+function uint16GeoTiff(values: Uint16Array, inSite: Uint8Array, nodata: number, grid: Parameters<typeof rasterMeta>[0], crs: Parameters<typeof rasterMeta>[1]): ArrayBuffer {
+  const n = values.length;
+  const shell = tiffShell(new Uint16Array(1), n, rasterMeta(grid, crs, String(nodata)));
+  if (LITTLE_ENDIAN_HOST && shell.offset % 2 === 0) {
+    const dst = new Uint16Array(shell.out.buffer, shell.offset, n);
+    for (let i = 0; i < n; i++) {
+      const v = inSite[i] === 1 ? Math.min(values[i], nodata - 1) : nodata;
+      dst[i] = ((v & 0xff) << 8) | (v >>> 8);
     }
-    const images = new Uint16Array(n);
-    for (let i = 0; i < n; i++) images[i] = inSite[i] === 1 ? Math.min(r.images[i], IMAGES_NODATA - 1) : IMAGES_NODATA;
-    return rasterGeoTiff(images, grid, crs, String(IMAGES_NODATA));
+    return shell.out.buffer as ArrayBuffer;
   }
-  const shell = tiffShell(new Uint8Array(1), n, rasterMeta(grid, crs, String(FLAGS_NODATA)));
-  const dst = shell.out.subarray(shell.offset);
-  const fl = r.flags;
-  for (let i = 0; i < n; i++) dst[i] = inSite[i] === 1 ? fl[i] : FLAGS_NODATA;
-  return shell.out.buffer as ArrayBuffer;
+  const out = new Uint16Array(n);
+  for (let i = 0; i < n; i++) out[i] = inSite[i] === 1 ? Math.min(values[i], nodata - 1) : nodata;
+  return rasterGeoTiff(out, grid, crs, String(nodata));
 }
 
 /** Float32 NaN as JavaScript stores it (0x7fc00000), byte-swapped. */

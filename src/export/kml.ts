@@ -5,9 +5,9 @@
  * "LonLat84_5773", EPSG:5773 = EGM96 height). Flag and site polygons are
  * clamped to the ground. All text is XML-escaped.
  */
-import { FLAG_KINDS } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
 import type { Position } from "geojson";
-import { legLines, type PlanExportInput } from "./layers.js";
+import { legLines, wgs84Polygons, type PlanExportInput } from "./layers.js";
 import { escapeXml as x } from "./xml.js";
 
 const ALTITUDE_NOTE =
@@ -63,11 +63,25 @@ export function planKml(input: PlanExportInput): string {
   if (flags.length) {
     o.push("<Folder><name>Flags</name>");
     for (const [kind, f] of flags) {
-      const info = FLAG_KINDS.find((k) => k.key === kind);
+      const info = ASSESSMENT_FLAG_KINDS.find((k) => k.key === kind);
       o.push(
         `<Placemark><name>${x(info?.label ?? kind)}</name><description>${x(`${info?.explanation ?? kind} (${f.properties.areaM2.toFixed(0)} m²)`)}</description>` +
           `${multiPolygonKml(f.geometry.coordinates)}</Placemark>`,
       );
+    }
+    o.push("</Folder>");
+  }
+
+  if (input.keepOut?.length) {
+    o.push("<Folder><name>Keep-out zones</name>");
+    for (const z of input.keepOut) {
+      o.push(`<Placemark><name>${x(z.name)}</name><description>${x("Keep-out zone: no leg enters it.")}</description>${multiPolygonKml(wgs84Polygons(z.polygons, input.toWgs84))}</Placemark>`);
+      if (z.bufferM > 0) {
+        o.push(
+          `<Placemark><name>${x(`${z.name} (buffer ${z.bufferM} m)`)}</name><description>${x(`The zone grown by ${z.bufferM} m: no leg enters it.`)}</description>` +
+            `${multiPolygonKml(wgs84Polygons(z.buffered, input.toWgs84))}</Placemark>`,
+        );
+      }
     }
     o.push("</Folder>");
   }

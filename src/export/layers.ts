@@ -20,6 +20,32 @@ export interface PlanExportInput {
   flags?: FlagPolygons;
   /** Take-off point and its ground height (metres AMSL). */
   takeoff: { lon: number; lat: number; groundAmslM: number };
+  /** Keep-out zones on the local frame: as drawn, and grown by their buffers. */
+  keepOut?: readonly KeepOutLayer[];
+}
+
+export interface KeepOutLayer {
+  name: string;
+  bufferM: number;
+  /** Per polygon, outer ring then holes, local frame. */
+  polygons: readonly (readonly (readonly [number, number])[])[][];
+  buffered: readonly (readonly (readonly [number, number])[])[][];
+}
+
+/**
+ * Local-frame polygons as WGS84 [lon, lat] polygons with closed rings (winding as
+ * given: the GeoJSON writer rewinds to RFC 7946, KML does not mind).
+ * @example wgs84Polygons([[[[0, 0], [10, 0], [10, 10]]]], frame.toWgs84)
+ */
+export function wgs84Polygons(polys: KeepOutLayer["polygons"], toWgs84: (x: number, y: number) => [number, number]): number[][][][] {
+  return polys.map((rings) =>
+    rings.map((ring) => {
+      const out = ring.map(([x, y]) => toWgs84(x, y) as number[]);
+      const f = out[0], l = out[out.length - 1];
+      if (f[0] !== l[0] || f[1] !== l[1]) out.push([f[0], f[1]]);
+      return out;
+    }),
+  );
 }
 
 export interface LegLine {

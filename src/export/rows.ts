@@ -12,6 +12,9 @@
  */
 import type { VerticalDatum } from "../dem/grid.js";
 import type { SolvedLeg, Waypoint } from "../solve/types.js";
+import { legsJoin } from "../route/waypointCount.js";
+
+export { countRows, legsJoin } from "../route/waypointCount.js";
 
 export interface WaypointRow {
   /** 1-based flight (battery) number. */
@@ -50,8 +53,6 @@ export interface HeightReference {
   takeoffGroundM: number;
 }
 
-const JOIN_TOLERANCE_M = 0.01;
-
 /**
  * A height in the legs' datum as [AMSL, ellipsoidal] at a WGS84 point.
  *
@@ -60,26 +61,6 @@ const JOIN_TOLERANCE_M = 0.01;
 export function heightReferences(h: number, lon: number, lat: number, heights: HeightReference): [number, number] {
   const n = heights.undulationM(lon, lat);
   return heights.datum === "ellipsoid" ? [h - n, h] : [h, h + n];
-}
-
-/** True when `b`'s first waypoint is the same point as `a`'s last (one row for both). */
-export function legsJoin(a: SolvedLeg, b: SolvedLeg): boolean {
-  const p = a.waypoints[a.waypoints.length - 1];
-  const q = b.waypoints[0];
-  if (!p || !q) return false;
-  return (
-    Math.hypot(p.x - q.x, p.y - q.y) <= JOIN_TOLERANCE_M && Math.abs(p.altitudeAmslM - q.altitudeAmslM) <= JOIN_TOLERANCE_M
-  );
-}
-
-/** Number of rows a flight's legs give (the autopilot's waypoint count). */
-export function countRows(legs: readonly SolvedLeg[]): number {
-  let n = 0;
-  for (let i = 0; i < legs.length; i++) {
-    n += legs[i].waypoints.length;
-    if (i > 0 && legsJoin(legs[i - 1], legs[i])) n -= 1;
-  }
-  return n;
 }
 
 /**

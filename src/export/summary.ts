@@ -5,7 +5,7 @@
 import type { AssessmentStats } from "../assess/types.js";
 import type { VerticalDatum } from "../dem/grid.js";
 import type { CeilingReference, SolveWarning } from "../solve/types.js";
-import type { Flight } from "./flights.js";
+import type { Flight } from "../route/flights.js";
 import type { WaypointRow } from "./rows.js";
 
 export interface SummaryInput {

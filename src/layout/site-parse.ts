@@ -67,13 +67,53 @@ export function bboxPolygon(bbox: readonly number[], field = "site.bbox"): LonLa
  * @example parseGeoJsonSite({ type: "Polygon", coordinates: [ring] })
  */
 export function parseGeoJsonSite(obj: unknown, source = "site"): ParsedSite {
-  if (!isObject(obj) || typeof obj.type !== "string") throw new InputFileError(source, "not a GeoJSON object (no `type` member)");
-  checkCrsMember(obj, source);
+  const { container, parts } = geoJsonParts(obj, source);
   const polygons: LonLatPolygon[] = [];
   const others = new Map<string, number>();
   let name: string | undefined;
+  for (const part of parts) {
+    if (part.notObject) continue;
+    for (const p of part.polygons) polygons.push(p);
+    for (const [type, n] of part.others) others.set(type, (others.get(type) ?? 0) + n);
+    const props = part.properties;
+    if (name === undefined && part.polygons.length > 0 && props && typeof props.name === "string") name = props.name;
+  }
+  if (polygons.length === 0) {
+    throw new InputError(source, describeFound(container, others), ALLOWED, "no polygon found");
+  }
+  return { polygons, name, format: "geojson" };
+}
+
+/** What one GeoJSON feature (or a bare geometry) holds. */
+export interface GeoJsonPart {
+  /** Position in the FeatureCollection's `features` (0 for a lone Feature or a bare geometry). */
+  index: number;
+  /** True for an entry of `features` that is not an object (no geometry was read from it). */
+  notObject: boolean;
+  /** Its Polygons and MultiPolygons' polygons, GeometryCollections opened. */
+  polygons: LonLatPolygon[];
+  /** Other geometry types found, with counts ("null geometry" for a missing or malformed one). */
+  others: Map<string, number>;
+  /** The feature's `properties` when it is an object; null for a bare geometry. */
+  properties: Record<string, unknown> | null;
+}
+
+/**
+ * A GeoJSON object cut into its features, each with its polygons and what else
+ * it holds. `container` is "FeatureCollection", "Feature" or "" for a bare
+ * geometry. Refuses a declared CRS other than WGS84 on any member and
+ * malformed coordinates, at the first one met in file order; `subject` names
+ * what must be WGS84 in that message ("the site", "keep-out zones").
+ * @example geoJsonParts({ type: "Feature", properties: { name: "a" }, geometry: poly }).parts[0].polygons.length // 1
+ */
+export function geoJsonParts(obj: unknown, source = "site", subject = "the site"): { container: string; parts: GeoJsonPart[] } {
+  if (!isObject(obj) || typeof obj.type !== "string") throw new InputFileError(source, "not a GeoJSON object (no `type` member)");
+  const checkCrs = (o: Record<string, unknown>) => checkCrsMember(o, source, subject);
+  checkCrs(obj);
+  const parts: GeoJsonPart[] = [];
   // An explicit stack, not recursion: GeometryCollections nested 10^4 deep overflow the call stack.
-  const visitGeometry = (root: unknown): void => {
+  const visitGeometry = (root: unknown, part: GeoJsonPart): void => {
+    const { polygons, others } = part;
     const pending: unknown[] = [root];
     while (pending.length) {
       const g = pending.pop();
@@ -81,35 +121,38 @@ export function parseGeoJsonSite(obj: unknown, source = "site"): ParsedSite {
         others.set("null geometry", (others.get("null geometry") ?? 0) + 1);
         continue;
       }
-      checkCrsMember(g, source);
+      checkCrs(g);
       if (g.type === "Polygon") polygons.push(coordsOf(g, 3, source) as LonLatPolygon);
       else if (g.type === "MultiPolygon") for (const p of coordsOf(g, 4, source) as LonLatPolygon[]) polygons.push(p);
       else if (g.type === "GeometryCollection" && Array.isArray(g.geometries)) for (let i = g.geometries.length - 1; i >= 0; i--) pending.push(g.geometries[i]);
       else others.set(g.type, (others.get(g.type) ?? 0) + 1);
     }
   };
-  const visitFeature = (f: unknown): void => {
-    if (!isObject(f)) return;
-    checkCrsMember(f, source);
-    const before = polygons.length;
-    visitGeometry(f.geometry);
-    const props = f.properties;
-    if (name === undefined && polygons.length > before && isObject(props) && typeof props.name === "string") name = props.name;
+  const newPart = (index: number, notObject: boolean, properties: Record<string, unknown> | null): GeoJsonPart => {
+    const part: GeoJsonPart = { index, notObject, polygons: [], others: new Map(), properties };
+    parts.push(part);
+    return part;
+  };
+  const visitFeature = (f: unknown, index: number): void => {
+    if (!isObject(f)) {
+      newPart(index, true, null);
+      return;
+    }
+    checkCrs(f);
+    const part = newPart(index, false, isObject(f.properties) ? f.properties : null);
+    visitGeometry(f.geometry, part);
   };
   let container = obj.type;
   if (obj.type === "FeatureCollection") {
     if (!Array.isArray(obj.features)) throw new InputFileError(source, "FeatureCollection without a `features` array");
-    for (const f of obj.features) visitFeature(f);
+    for (let i = 0; i < obj.features.length; i++) visitFeature(obj.features[i], i);
   } else if (obj.type === "Feature") {
-    visitFeature(obj);
+    visitFeature(obj, 0);
   } else {
     container = "";
-    visitGeometry(obj);
+    visitGeometry(obj, newPart(0, false, null));
   }
-  if (polygons.length === 0) {
-    throw new InputError(source, describeFound(container, others), ALLOWED, "no polygon found");
-  }
-  return { polygons, name, format: "geojson" };
+  return { container, parts };
 }
 
 /**
@@ -118,24 +161,14 @@ export function parseGeoJsonSite(obj: unknown, source = "site"): ParsedSite {
  * @example parseKmlSite(kmlText).polygons[0][0] // outer ring
  */
 export function parseKmlSite(text: string, source = "site"): ParsedSite {
-  let root: Element | null;
-  try {
-    root = new DOMParser().parseFromString(text, "text/xml").documentElement;
-  } catch (e) {
-    throw new InputFileError(source, `not well-formed XML (${(e as Error).message.split("\n")[0]})`);
-  }
-  if (!root || root.localName !== "kml") throw new InputFileError(source, "not a KML document (root element is not <kml>)");
+  const root = parseKmlRoot(text, source);
   const polygons: LonLatPolygon[] = [];
   const others = new Map<string, number>();
   for (const el of descendants(root)) {
-    const tag = el.localName;
+    const tag = el.localName ?? "";
     if (tag === "Polygon") {
-      const outer = childrenNamed(el, "outerBoundaryIs").flatMap((b) => childrenNamed(b, "LinearRing"));
-      if (outer.length !== 1) throw new InputFileError(source, "a KML Polygon needs exactly one outerBoundaryIs/LinearRing");
-      const rings = [kmlRing(outer[0], source)];
-      for (const b of childrenNamed(el, "innerBoundaryIs")) for (const r of childrenNamed(b, "LinearRing")) rings.push(kmlRing(r, source));
-      polygons.push(rings);
-    } else if (tag === "Point" || tag === "LineString" || tag === "Model" || tag === "Track") {
+      polygons.push(kmlPolygon(el, source));
+    } else if (KML_OTHER_GEOMETRIES.has(tag)) {
       others.set(tag, (others.get(tag) ?? 0) + 1);
     }
   }
@@ -148,6 +181,38 @@ export function parseKmlSite(text: string, source = "site"): ParsedSite {
     }
   }
   return { polygons, name, format: "kml" };
+}
+
+/** KML geometries that hold no area (counted to say what a file holds instead of polygons). */
+export const KML_OTHER_GEOMETRIES: ReadonlySet<string> = new Set(["Point", "LineString", "Model", "Track"]);
+
+/**
+ * The <kml> root element of KML text; refuses text that is not well-formed XML
+ * or whose root is not <kml>.
+ * @example parseKmlRoot('<kml xmlns="http://www.opengis.net/kml/2.2"/>').localName // "kml"
+ */
+export function parseKmlRoot(text: string, source = "site"): Element {
+  let root: Element | null;
+  try {
+    root = new DOMParser().parseFromString(text, "text/xml").documentElement;
+  } catch (e) {
+    throw new InputFileError(source, `not well-formed XML (${(e as Error).message.split("\n")[0]})`);
+  }
+  if (!root || root.localName !== "kml") throw new InputFileError(source, "not a KML document (root element is not <kml>)");
+  return root;
+}
+
+/**
+ * The rings of a KML <Polygon> element: its outerBoundaryIs ring first, then
+ * every innerBoundaryIs ring, as [lon, lat] (altitudes dropped).
+ * @example kmlPolygon(polygonElement, "zones.kml")[0] // the outer ring
+ */
+export function kmlPolygon(el: Element, source = "site"): LonLatPolygon {
+  const outer = childrenNamed(el, "outerBoundaryIs").flatMap((b) => childrenNamed(b, "LinearRing"));
+  if (outer.length !== 1) throw new InputFileError(source, "a KML Polygon needs exactly one outerBoundaryIs/LinearRing");
+  const rings = [kmlRing(outer[0], source)];
+  for (const b of childrenNamed(el, "innerBoundaryIs")) for (const r of childrenNamed(b, "LinearRing")) rings.push(kmlRing(r, source));
+  return rings;
 }
 
 function kmlRing(ring: Element, source: string): number[][] {
@@ -163,14 +228,14 @@ function kmlRing(ring: Element, source: string): number[][] {
   return out;
 }
 
-function checkCrsMember(obj: Record<string, unknown>, source: string): void {
+function checkCrsMember(obj: Record<string, unknown>, source: string, subject: string): void {
   const crs = obj.crs;
   if (crs === undefined || crs === null) return;
   const props = isObject(crs) ? crs.properties : undefined;
   const nameVal = isObject(props) ? (props.name ?? props.href) : undefined;
   const named = typeof nameVal === "string" ? nameVal : JSON.stringify(crs);
   if (!WGS84_CRS_NAMES.test(named)) {
-    throw new InputError(`${source} crs`, named, "WGS84 longitude/latitude (RFC 7946 allows no other CRS)", "the site must be WGS84; reproject it first (e.g. ogr2ogr -t_srs EPSG:4326)");
+    throw new InputError(`${source} crs`, named, "WGS84 longitude/latitude (RFC 7946 allows no other CRS)", `${subject} must be WGS84; reproject it first (e.g. ogr2ogr -t_srs EPSG:4326)`);
   }
 }
 
@@ -184,7 +249,12 @@ function coordsOf(g: Record<string, unknown>, depth: number, source: string): un
   return c as unknown[];
 }
 
-function describeFound(container: string, others: Map<string, number>): string {
+/**
+ * Words for what a file holds instead of polygons, e.g. "a FeatureCollection
+ * with only 2 Points"; `container` "" for a bare geometry.
+ * @example describeFound("FeatureCollection", new Map([["Point", 2]])) // "a FeatureCollection with only 2 Points"
+ */
+export function describeFound(container: string, others: ReadonlyMap<string, number>): string {
   const parts = [...others.entries()].map(([type, n]) => (n === 1 ? `a ${type}` : `${n} ${type}s`));
   const what = parts.length === 0 ? "nothing" : parts.length === 1 ? parts[0] : `${parts.slice(0, -1).join(", ")} and ${parts[parts.length - 1]}`;
   if (!container) return what === "nothing" ? "an empty geometry" : what;
@@ -193,7 +263,11 @@ function describeFound(container: string, others: Map<string, number>): string {
   return `${article} ${container} with only ${what}`;
 }
 
-function isObject(v: unknown): v is Record<string, unknown> {
+/**
+ * A plain object (not null, not an array).
+ * @example isObject({ type: "Feature" }) // true
+ */
+export function isObject(v: unknown): v is Record<string, unknown> {
   return typeof v === "object" && v !== null && !Array.isArray(v);
 }
 
@@ -201,8 +275,9 @@ function isObject(v: unknown): v is Record<string, unknown> {
  * Element descendants in document order. Walks with an explicit stack rather
  * than recursing: a hostile file nested some 10^4 levels deep would otherwise
  * overflow the call stack.
+ * @example for (const el of descendants(root)) if (el.localName === "Placemark") count++;
  */
-function* descendants(el: Element): Generator<Element> {
+export function* descendants(el: Element): Generator<Element> {
   const pending: XmlNode[] = [];
   for (let n: XmlNode | null = el.lastChild; n; n = n.previousSibling) pending.push(n);
   while (pending.length) {
@@ -213,7 +288,11 @@ function* descendants(el: Element): Generator<Element> {
   }
 }
 
-function childrenNamed(el: Element, localName: string): Element[] {
+/**
+ * Child elements of `el` with the given local name (any namespace), in order.
+ * @example childrenNamed(placemark, "name")[0]?.textContent
+ */
+export function childrenNamed(el: Element, localName: string): Element[] {
   const out: Element[] = [];
   for (let n: XmlNode | null = el.firstChild; n; n = n.nextSibling) if (n.nodeType === 1 && (n as Element).localName === localName) out.push(n as Element);
   return out;

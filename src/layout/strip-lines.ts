@@ -5,7 +5,7 @@
  */
 import type { LayoutLeg, Site, XY } from "./types.js";
 import { bandProjection, edgesInStripFrame } from "./band.js";
-import { expandIntervals, subtractIntervals, type Interval } from "./intervals.js";
+import { expandIntervals, mergeIntervals, subtractIntervals, type Interval } from "./intervals.js";
 import { siteRings } from "./rings.js";
 
 export interface StripLineOptions {
@@ -21,7 +21,15 @@ export interface StripLineOptions {
   holeMarginM?: number;
   /** Take-off point in the local frame; default the outer-ring corner nearest the first strip's start. */
   takeoff?: XY;
+  /**
+   * Where the aircraft may not fly along a straight segment: intervals of metres
+   * from `from` towards `to` (sorted or not, may overlap). Strips are cut there.
+   */
+  keepOut?: (from: XY, to: XY) => Interval[];
 }
+
+/** A strip piece shorter than this after a keep-out cut is dropped, metres. */
+const MIN_PIECE_M = 1;
 
 /** One piece of a strip line, along-track coordinates on that line. */
 interface Piece {
@@ -51,7 +59,11 @@ interface StripLine {
  * The transit back to the take-off point carries the last strip's number.
  * @example stripLegsAtHeading(site, 90, { spacingM: 40, footprintAlongM: 50 }).legs[1].kind // "strip"
  */
-export function stripLegsAtHeading(site: Site, headingDeg: number, opts: StripLineOptions): { legs: LayoutLeg[]; takeoff: XY; stripCount: number } {
+export function stripLegsAtHeading(
+  site: Site,
+  headingDeg: number,
+  opts: StripLineOptions,
+): { legs: LayoutLeg[]; takeoff: XY; stripCount: number; keepOutCuts: KeepOutCut[] } {
   const { spacingM, footprintAlongM } = opts;
   const holeMarginM = opts.holeMarginM ?? footprintAlongM / 2;
   const h = (headingDeg * Math.PI) / 180;
@@ -66,7 +78,9 @@ export function stripLegsAtHeading(site: Site, headingDeg: number, opts: StripLi
   // 1e-9 keeps a width that is an exact multiple of the spacing from gaining a strip to rounding.
   const n = Math.max(1, Math.ceil(widthM / spacingM - 1e-9));
   const firstC = outerEdges.cMin + (widthM - (n - 1) * spacingM) / 2;
+  const toXY = (a: number, c: number): XY => [a * ux + c * uy, a * uy - c * ux];
   const lines: StripLine[] = [];
+  const keepOutCuts: KeepOutCut[] = [];
   for (let k = 0; k < n; k++) {
     const c = firstC + k * spacingM;
     const lo = c - spacingM / 2;
@@ -77,18 +91,22 @@ export function stripLegsAtHeading(site: Site, headingDeg: number, opts: StripLi
     const ground = bandProjection(outerEdges, lo, hi);
     const photo = hasHoles ? expandIntervals(bandProjection(allEdges, lo, hi), holeMarginM) : [];
     const noPhoto = hasHoles ? ground.flatMap((iv) => subtractIntervals(iv, photo, 1e-6)) : [];
-    const pieces = expandIntervals(ground, footprintAlongM / 2).map(([a0, a1]): Piece => ({
+    let pieces = expandIntervals(ground, footprintAlongM / 2).map(([a0, a1]): Piece => ({
       a0,
       a1,
       noPhoto: noPhoto.filter((iv) => iv[0] >= a0 && iv[1] <= a1),
     }));
+    if (opts.keepOut) pieces = pieces.flatMap((p) => cutAtKeepOut(p, c, toXY, opts.keepOut!, keepOutCuts));
     if (pieces.length) lines.push({ c, pieces });
   }
 
-  const toXY = (a: number, c: number): XY => [a * ux + c * uy, a * uy - c * ux];
   const startOf = (line: StripLine, forward: boolean): XY =>
     forward ? toXY(line.pieces[0].a0, line.c) : toXY(line.pieces[line.pieces.length - 1].a1, line.c);
 
+  if (!lines.length) {
+    // Nothing left to fly (every strip cut away at keep-out zones): no legs; the caller refuses.
+    return { legs: [], takeoff: opts.takeoff ?? [outer[0][0][0], outer[0][0][1]], stripCount: 0, keepOutCuts };
+  }
   // Choose which end of the site to start from: the option whose first point is nearest the take-off.
   const first = lines[0];
   const last = lines[lines.length - 1];
@@ -124,7 +142,29 @@ export function stripLegsAtHeading(site: Site, headingDeg: number, opts: StripLi
     }
   });
   push("transit", ordered.length, takeoff);
-  return { legs, takeoff, stripCount: ordered.length };
+  return { legs, takeoff, stripCount: ordered.length, keepOutCuts };
+}
+
+/** A stretch of a strip line taken out because it lies in a keep-out zone or its buffer. */
+export interface KeepOutCut {
+  from: XY;
+  to: XY;
+}
+
+/**
+ * A piece without its keep-out stretches: the flyable sub-pieces (no-photo
+ * intervals clipped to each), the removed stretches appended to `cuts`.
+ */
+function cutAtKeepOut(p: Piece, c: number, toXY: (a: number, c: number) => XY, keepOut: (from: XY, to: XY) => Interval[], cuts: KeepOutCut[]): Piece[] {
+  const out = keepOut(toXY(p.a0, c), toXY(p.a1, c)).map((iv): Interval => [p.a0 + Math.max(0, iv[0]), p.a0 + Math.min(p.a1 - p.a0, iv[1])]);
+  if (!out.length) return [p];
+  const merged = mergeIntervals(out);
+  for (const [u, v] of merged) if (v > u) cuts.push({ from: toXY(u, c), to: toXY(v, c) });
+  return subtractIntervals([p.a0, p.a1], merged, MIN_PIECE_M).map(([a0, a1]): Piece => ({
+    a0,
+    a1,
+    noPhoto: p.noPhoto.map((iv): Interval => [Math.max(iv[0], a0), Math.min(iv[1], a1)]).filter((iv) => iv[1] > iv[0]),
+  }));
 }
 
 function nearestCorner(rings: readonly number[][][], p: XY): XY {

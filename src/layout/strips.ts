@@ -6,7 +6,7 @@ import { InputError } from "../errors.js";
 import type { DemGrid } from "../dem/grid.js";
 import type { Layout, Site, XY } from "./types.js";
 import { chooseHeading, scoreHeading, type HeadingCostOptions } from "./heading.js";
-import { stripLegsAtHeading } from "./strip-lines.js";
+import { stripLegsAtHeading, type StripLineOptions } from "./strip-lines.js";
 
 export interface LayoutOptions {
   /** Strip direction, degrees clockwise from grid north, or `auto` to choose it. */
@@ -29,6 +29,8 @@ export interface LayoutOptions {
   turnCostS?: number;
   /** How far photos continue over a hole, metres (default footprintAlongM / 2). */
   holeMarginM?: number;
+  /** Where no leg may go along a segment (see StripLineOptions.keepOut): strips are cut there. */
+  keepOut?: StripLineOptions["keepOut"];
 }
 
 /**
@@ -60,7 +62,7 @@ export function layoutStrips(site: Site, opts: LayoutOptions): Layout {
     grid: opts.grid,
     maxClimbMps: opts.maxClimbMps,
   };
-  const lineOpts = { spacingM: opts.spacingM, footprintAlongM: opts.footprintAlongM, holeMarginM: opts.holeMarginM, takeoff: opts.takeoff };
+  const lineOpts = { spacingM: opts.spacingM, footprintAlongM: opts.footprintAlongM, holeMarginM: opts.holeMarginM, takeoff: opts.takeoff, keepOut: opts.keepOut };
 
   let headingDeg: number;
   let headingCandidates: Layout["headingCandidates"];
@@ -80,7 +82,7 @@ export function layoutStrips(site: Site, opts: LayoutOptions): Layout {
     headingCandidates = [scoreHeading(site, headingDeg, { ...lineOpts, ...cost })];
     headingReason = `heading ${headingDeg} as given`;
   }
-  const { legs, takeoff } = stripLegsAtHeading(site, headingDeg, lineOpts);
+  const { legs, takeoff, keepOutCuts } = stripLegsAtHeading(site, headingDeg, lineOpts);
   return {
     headingDeg,
     spacingM: opts.spacingM,
@@ -91,5 +93,6 @@ export function layoutStrips(site: Site, opts: LayoutOptions): Layout {
     takeoff,
     headingCandidates,
     headingReason,
+    ...(keepOutCuts.length ? { keepOutCuts } : {}),
   };
 }

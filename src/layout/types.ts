@@ -68,6 +68,8 @@ export interface Layout {
   /** Candidate headings and their scores, best first (for `auto`). */
   headingCandidates: { headingDeg: number; flightTimeS: number; altitudeChangeM: number; score: number }[];
   headingReason: string;
+  /** Stretches of strip lines taken out at keep-out zones (absent: none). */
+  keepOutCuts?: { from: XY; to: XY }[];
 }
 
 /**

@@ -8,7 +8,7 @@ import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout, Site } from "../layout/types.js";
 import type { CeilingReference } from "../solve/types.js";
-import { straightTransitLeg } from "../export/flights.js";
+import { straightTransitLeg } from "../route/flights.js";
 import { assessPlan } from "../assess/assess.js";
 import type { AssessedLeg } from "../assess/exposures.js";
 import type { Assessment, AssessmentRasters, GsdStats } from "../assess/types.js";

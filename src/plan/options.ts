@@ -76,6 +76,10 @@ export interface PlanOptions {
   minImages: number;
   onConflict: "skip" | "clearance";
   assumeGroundM?: number;
+  /** Keep-out zone files (absolute paths; empty: none). */
+  keepOut: string[];
+  /** Distance kept from every keep-out zone unless the zone gives its own, metres. */
+  keepOutBufferM: number;
   reservePct: number;
   blurPx: number;
 }
@@ -140,6 +144,8 @@ export async function loadPlanFile(file: string): Promise<LoadedPlanFile> {
  * @example parseFlagValue(SPEC_BY_KEY.get("target.gsdCm")!, "2.5") // 2.5
  */
 export function parseFlagValue(s: PlanOptionSpec, raw: unknown): unknown {
+  // A repeated flag (commander collects them): each value parsed alone.
+  if (Array.isArray(raw) && s.kind === "paths") return raw.flatMap((r) => parseFlagValue(s, r) as string[]);
   if (typeof raw !== "string") return raw;
   const text = raw.trim();
   const num = (t: string): number => {
@@ -164,6 +170,8 @@ export function parseFlagValue(s: PlanOptionSpec, raw: unknown): unknown {
     }
     case "heading":
       return text.toLowerCase() === "auto" ? "auto" : num(text);
+    case "paths":
+      return [raw];
     default:
       return raw;
   }
@@ -337,6 +345,8 @@ export function resolvePlanOptions(
     headingDeg: v.headingDeg ?? def("headingDeg"),
     minImages: v.minImages ?? def("minImages"),
     onConflict: v.onConflict ?? def("onConflict"),
+    keepOut: (v.keepOut === undefined ? [] : Array.isArray(v.keepOut) ? v.keepOut : [v.keepOut]).map((p: string) => resolvePath("keepOut", p)),
+    keepOutBufferM: v.keepOutBufferM ?? def("keepOutBufferM"),
     reservePct: v.reservePct ?? def("reservePct"),
     blurPx: v.blurPx ?? def("blurPx"),
   };

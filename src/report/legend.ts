@@ -2,7 +2,7 @@
 import { divergingTable256, gsdAtScalePosition, gsdScalePosition, tableColour, viridisTable256 } from "./colour.js";
 import { esc } from "./escape.js";
 import { fmt } from "./format.js";
-import { hatchPattern } from "./map.js";
+import { KEEP_OUT_COLOUR, hatchPattern, keepOutHatch } from "./map.js";
 import { niceStep, ticks } from "./nice.js";
 
 function bar(table: Uint8Array, x: number, y: number, w: number, h: number, steps = 64): string {
@@ -65,5 +65,32 @@ export function sequentialLegend(title: string, unit: string, lo: number, hi: nu
     t +
     extra +
     `</svg>`
+  );
+}
+
+/**
+ * Legend for keep-out zones: the zone's hatch, and the dashed buffer when any zone has one.
+ * Empty when there are no zones.
+ *
+ * @example keepOutLegend([{ bufferM: 20 }], "hatch-keep-out-legend") // "<svg ...>keep-out zone ... buffer ...</svg>"
+ */
+export function keepOutLegend(zones: { bufferM: number }[], hatchId: string): string {
+  if (!zones.length) return "";
+  const buffers = [...new Set(zones.map((z) => z.bufferM).filter((b) => b > 0))].sort((a, b) => a - b);
+  const x0 = 20, y0 = 6, sw = 22, sh = 14;
+  let body =
+    `<g class="legend-keep-out"><rect x="${x0}" y="${y0}" width="${sw}" height="${sh}" fill="url(#${esc(hatchId)})" stroke="${KEEP_OUT_COLOUR}" stroke-width="1.6"/>` +
+    `<text x="${x0 + sw + 6}" y="${y0 + 11}">keep-out zone</text></g>`;
+  if (buffers.length) {
+    const x1 = 170;
+    // One distance in words when all zones share it; else the range.
+    const words = buffers.length === 1 ? `${fmt(buffers[0])} m` : `${fmt(buffers[0])}–${fmt(buffers[buffers.length - 1])} m`;
+    body +=
+      `<g class="legend-keep-out-buffer"><rect x="${x1}" y="${y0}" width="${sw}" height="${sh}" fill="${KEEP_OUT_COLOUR}" fill-opacity="0.1" stroke="${KEEP_OUT_COLOUR}" stroke-width="1.3" stroke-dasharray="6 4"/>` +
+      `<text x="${x1 + sw + 6}" y="${y0 + 11}">buffer (${esc(words)}): no leg enters</text></g>`;
+  }
+  return (
+    `<svg class="legend keep-out-legend" viewBox="0 0 470 26" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Keep-out zones${buffers.length ? " and their buffers" : ""}">` +
+    `<defs>${keepOutHatch(hatchId, 6)}</defs>${body}</svg>`
   );
 }

@@ -179,7 +179,8 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
   let bridge = "";
   let casing = "";
   let dots = "";
-  // Transits through their waypoints: a leg routed around unknown ground is not straight.
+  // Transits through their waypoints: a leg routed around unknown ground or a keep-out zone
+  // is not straight (the solver makes every corner of its way a waypoint).
   const through = (leg: ReportLeg) => {
     const pts = leg.waypoints.length >= 2 ? leg.waypoints.map((w) => [w.x, w.y]) : [leg.from, leg.to];
     return pts.map(([x, y], i) => `${i ? "L" : "M"}${vx(v, x)},${vy(v, y)}`).join("");
@@ -289,4 +290,57 @@ export function mapSvg(v: MapView, id: string, label: string, body: string, defs
 /** A diagonal hatch pattern (for out-of-band and flagged cells). */
 export function hatchPattern(id: string, colour: string, angleDeg: number, gap = 7): string {
   return `<pattern id="${esc(id)}" patternUnits="userSpaceOnUse" width="${gap}" height="${gap}" patternTransform="rotate(${angleDeg})"><line x1="0" y1="0" x2="0" y2="${gap}" stroke="${colour}" stroke-width="1.6"/></pattern>`;
+}
+
+/** Keep-out zone colour on every map: a magenta no flag kind, site or leg uses. */
+export const KEEP_OUT_COLOUR = "#c51b7d";
+/** Its hatch angle: steeper than the out-of-band (45°) and few-images (−45°) hatches and every flag kind's. */
+export const KEEP_OUT_HATCH_ANGLE = -75;
+
+/**
+ * Polygons of local-frame rings as path data; a closing repeat of the first vertex is dropped (Z closes).
+ *
+ * @example ringsPath(v, [[[[0, 0], [10, 0], [10, 10]]]]) // "M..,..L..,..L..,..Z"
+ */
+export function ringsPath(v: MapView, polygons: XY[][][]): string {
+  let d = "";
+  for (const poly of polygons)
+    for (const ring of poly) {
+      let n = ring.length;
+      if (n > 1 && ring[0][0] === ring[n - 1][0] && ring[0][1] === ring[n - 1][1]) n--;
+      if (n < 2) continue;
+      for (let i = 0; i < n; i++) d += (i ? "L" : "M") + vx(v, ring[i][0]) + "," + vy(v, ring[i][1]);
+      d += "Z";
+    }
+  return d;
+}
+
+/**
+ * Keep-out zones: each zone hatched with a solid outline, its buffer (what no leg enters)
+ * tinted and outlined dashed. Holes stay open (evenodd). `hatchId` names a pattern made by
+ * keepOutHatch in the same map's defs. Empty when there are no zones.
+ *
+ * @example mapSvg(v, "m", "map", keepOutLayer(v, zones, "hatch-keep-out"), keepOutHatch("hatch-keep-out"))
+ */
+export function keepOutLayer(v: MapView, zones: { bufferM: number; polygons: XY[][][]; buffered: XY[][][] }[], hatchId: string): string {
+  if (!zones.length) return "";
+  let s = "";
+  zones.forEach((z, i) => {
+    const buffer =
+      z.bufferM > 0
+        ? `<path class="zone-buffer" d="${ringsPath(v, z.buffered)}" fill-rule="evenodd" fill="${KEEP_OUT_COLOUR}" fill-opacity="0.1" stroke="${KEEP_OUT_COLOUR}" stroke-width="1.3" stroke-dasharray="6 4"/>`
+        : "";
+    const area = `<path class="zone-area" d="${ringsPath(v, z.polygons)}" fill-rule="evenodd" fill="url(#${esc(hatchId)})" stroke="${KEEP_OUT_COLOUR}" stroke-width="1.6"/>`;
+    s += `<g class="keep-out-zone" data-zone="${i}">${buffer}${area}</g>`;
+  });
+  return `<g class="keep-out">${s}</g>`;
+}
+
+/**
+ * The keep-out hatch pattern for a map's defs.
+ *
+ * @example mapSvg(v, "m", "map", body, keepOutHatch("hatch-keep-out-m"))
+ */
+export function keepOutHatch(id: string, gap = 7): string {
+  return hatchPattern(id, KEEP_OUT_COLOUR, KEEP_OUT_HATCH_ANGLE, gap);
 }

@@ -8,6 +8,7 @@ import type { MultiPolygon, Polygon } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { GsdStats } from "../assess/types.js";
 import type { XY } from "../layout/types.js";
+import type { KeepOutZoneReport } from "../route/types.js";
 
 /** The `summary.json` object (issue 6 keys). Extra keys are kept and shown in the numbers table. */
 export interface ReportSummary {
@@ -54,7 +55,11 @@ export interface ReportRasters {
   transform: GeoTransform;
   gsdCm: Float32Array;
   images: Uint16Array;
-  flags: Uint8Array;
+  /**
+   * Flag bits (src/assess/flags.ts). 16 bits since the keep-out bit (256); report-data
+   * written before that holds them as 8 bits, and both read back.
+   */
+  flags: Uint8Array | Uint16Array;
   inSite: Uint8Array;
 }
 
@@ -108,6 +113,12 @@ export interface BaselineStats extends ComparisonStats {
   clearanceShortfall?: { cells: number; areaM2: number; clearanceM: number };
 }
 
+/**
+ * A keep-out zone as the report draws and lists it: the plan's own record (rings outer
+ * first, then holes; a closing repeat of the first vertex is allowed).
+ */
+export type ReportKeepOutZone = KeepOutZoneReport;
+
 /** Counts of in-site cells per GSD bin: counts[i] covers [edgesCm[i], edgesCm[i+1]). */
 export interface Histogram {
   edgesCm: number[];
@@ -129,6 +140,8 @@ export interface ReportInput {
   legs: ReportLeg[];
   /** Take-off point, local frame. */
   takeoff: XY;
+  /** Keep-out zones of the plan (`zones: []` or absent when it has none: older report-data has no key). */
+  keepOut?: { zones: ReportKeepOutZone[] };
   /** The constant-altitude comparison; absent when not computed. */
   baseline?: BaselineStats;
   /** Our plan's ceiling breaches from the same check (expected zero: the ceiling is a hard bound). */

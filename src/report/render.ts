@@ -12,10 +12,10 @@ import { hillshade } from "./hillshade.js";
 import { gsdRgba, imagesRgba, pngDataUri, shadeRgba } from "./png.js";
 import { maskOutline } from "./contours.js";
 import {
-  aglRange, contourLayer, hatchPattern, legsLayer, mapSvg, mapView, northArrow, outlinePath,
+  aglRange, contourLayer, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
   rasterImage, scaleBar, sitePath, takeoffMarker, type MapView,
 } from "./map.js";
-import { gsdLegend, sequentialLegend } from "./legend.js";
+import { gsdLegend, keepOutLegend, sequentialLegend } from "./legend.js";
 import { profileLegend, stripProfiles } from "./profiles.js";
 import { gsdHistogramSvg } from "./charts.js";
 import { esc, jsonForScript } from "./escape.js";
@@ -35,9 +35,10 @@ const FLAG_STYLE: Record<FlagKind["key"], { colour: string; angle: number }> = {
   nodata: { colour: "#444444", angle: -30 },
   unflyable: { colour: "#d62728", angle: 60 },
   relief: { colour: "#1b7837", angle: -60 },
+  keepOut: { colour: "#01665e", angle: 15 },
 };
 
-const EFFECT_KEYS = new Set(["coarse", "fine", "fewImages"]);
+const EFFECT_KEYS = new Set(["coarse", "fine", "fewImages", "keepOut"]);
 
 /** A number in a cell, with its summary key and exact value for machines and tests. */
 function num(key: string, v: unknown, text?: string): string {
@@ -105,6 +106,9 @@ const KEY_LABELS: Record<string, string> = {
   "constantAltitude.withinBandPct": "One constant altitude: site within the band, %",
   "constantAltitude.flaggedAreaM2": "One constant altitude: flagged area, m²",
   "constantAltitude.ceilingBreachAreaM2": "One constant altitude: ceiling broken over, m²",
+  "keepOut.stripCutM": "Strip length cut at keep-out zones, m",
+  "keepOut.routedTransits": "Transits routed around obstacles",
+  "keepOut.detourM": "Length added by routing around obstacles, m",
 };
 
 function labelFor(key: string): string {
@@ -151,6 +155,11 @@ export function renderReport(input: ReportInput): string {
   const smallShade = (cls: string) => rasterImage(small, inp.dem.transform, inp.dem.width, inp.dem.height, shadeUri, cls);
   const smallSite = (attrs: string) => sitePath(small, inp.site, attrs);
   const smallOverlays = scaleBar(small) + northArrow(small, inp.gridConvergenceDeg);
+  // Keep-out zones on every map: above the rasters and flags, below the legs. Each map has
+  // its own pattern id, as ids are shared by the whole page.
+  const zones = inp.keepOut?.zones ?? [];
+  const zoneLayer = (v: MapView, map: string) => (zones.length ? `<g class="layer" data-layer="keep-out">${keepOutLayer(v, zones, `hatch-keep-out-${map}`)}</g>` : "");
+  const zoneDefs = (map: string) => (zones.length ? keepOutHatch(`hatch-keep-out-${map}`) : "");
 
   // 1. Map
   const contours = contourLayer(view, inp.dem);
@@ -162,10 +171,12 @@ export function renderReport(input: ReportInput): string {
     shadeImg("shade") +
       `<g class="layer" data-layer="contours">${contours.svg}</g>` +
       site(`fill="#ffffff" fill-opacity="0.12" stroke="#111" stroke-width="2" stroke-dasharray="8 4"`) +
+      zoneLayer(view, "main") +
       `<g class="layer" data-layer="legs">${legsLayer(view, inp.legs, agl)}</g>` +
       `<g class="layer" data-layer="contours-labels">${contours.labels}</g>` +
       takeoffMarker(view, inp.takeoff) +
       overlays,
+    zoneDefs("main"),
   );
 
   // 2. GSD and image maps
@@ -183,8 +194,9 @@ export function renderReport(input: ReportInput): string {
       rasterImage(small, r.transform, r.width, r.height, gsdUri, "raster") +
       outlinePath(small, r.transform, maskOutline(outBand, r.width, r.height), `fill="url(#hatch-outband)" stroke="#111" stroke-width="0.7" stroke-opacity="0.8"`) +
       smallSite(`fill="none" stroke="#111" stroke-width="1.5"`) +
+      zoneLayer(small, "gsd") +
       smallOverlays,
-    hatchPattern("hatch-outband", "#111", 45, 6),
+    hatchPattern("hatch-outband", "#111", 45, 6) + zoneDefs("gsd"),
   );
   let maxImages = 0;
   for (let i = 0; i < r.images.length; i++) if (r.inSite[i] && r.images[i] > maxImages) maxImages = r.images[i];
@@ -199,8 +211,9 @@ export function renderReport(input: ReportInput): string {
       rasterImage(small, r.transform, r.width, r.height, pngDataUri(r.width, r.height, imagesRgba(r, maxImages)), "raster") +
       outlinePath(small, r.transform, maskOutline(fewMask, r.width, r.height), `fill="url(#hatch-few)" stroke="#d62728" stroke-width="1.2"`) +
       smallSite(`fill="none" stroke="#111" stroke-width="1.5"`) +
+      zoneLayer(small, "images") +
       smallOverlays,
-    hatchPattern("hatch-few", "#d62728", -45, 6),
+    hatchPattern("hatch-few", "#d62728", -45, 6) + zoneDefs("images"),
   );
 
   // 3. Flags
@@ -221,10 +234,12 @@ export function renderReport(input: ReportInput): string {
     small,
     "map-flags",
     "Map of flagged ground by kind",
-    smallShade("shade") + smallSite(`fill="#fff" fill-opacity="0.25" stroke="#111" stroke-width="1.5"`) + flagLayers + smallOverlays,
-    flagDefs,
+    smallShade("shade") + smallSite(`fill="#fff" fill-opacity="0.25" stroke="#111" stroke-width="1.5"`) + flagLayers + zoneLayer(small, "flags") + smallOverlays,
+    flagDefs + zoneDefs("flags"),
   );
   const byKind = s.flagged?.byKind ?? {};
+  // A share of the site; a tiny non-zero one is not printed as 0.0.
+  const pctText = (p: number) => (p > 0 && p < 0.05 ? "< 0.1" : fmt(p, 1)) + " %";
   let flagRows = "";
   // Kinds present on this site first, in their usual order; the others follow, muted.
   const present = (k: FlagKind) => (byKind[k.key]?.cells ?? 0) > 0;
@@ -238,9 +253,26 @@ export function renderReport(input: ReportInput): string {
       `<td><svg class="swatch" viewBox="0 0 22 16" width="22" height="16"><defs>${hatchPattern(`hatch-swatch-${k.key}`, st.colour, st.angle, 5)}</defs><rect x="0.5" y="0.5" width="21" height="15" fill="url(#hatch-swatch-${k.key})" stroke="${st.colour}" stroke-width="1.2"/></svg></td>` +
       `<td><strong>${esc(k.label)}</strong><br><span class="muted">${EFFECT_KEYS.has(k.key) ? "effect" : "cause"}</span></td>` +
       `<td class="r">${f ? num(`flagged.byKind.${k.key}.areaM2`, f.areaM2, fmtArea(f.areaM2)) : "–"}</td>` +
-      `<td class="r">${f && f.pct !== undefined ? num(`flagged.byKind.${k.key}.pct`, f.pct, (f.pct > 0 && f.pct < 0.05 ? "< 0.1" : fmt(f.pct, 1)) + " %") : "–"}</td>` +
+      `<td class="r">${f && f.pct !== undefined ? num(`flagged.byKind.${k.key}.pct`, f.pct, pctText(f.pct)) : "–"}</td>` +
       `<td>${esc(k.explanation)}</td><td>${esc(k.remedy)}</td></tr>`;
   }
+
+  // Keep-out zones: what each took from the site. Zones may overlap, so no total.
+  const zoneRows = zones
+    .map((z, i) => {
+      const key = `keepOut.zones.${i}`;
+      return (
+        `<tr data-zone="${i}"><td>${esc(z.name)}</td><td><code>${esc(z.source)}</code></td>` +
+        `<td class="r">${z.bufferM > 0 ? num(`${key}.bufferM`, z.bufferM, `${fmt(z.bufferM)} m`) : "none"}</td>` +
+        `<td class="r">${num(`${key}.siteRemovedM2`, z.siteRemovedM2, `${fmt(z.siteRemovedM2, 0)} m²`)}</td>` +
+        `<td class="r">${num(`${key}.siteRemovedPct`, z.siteRemovedPct, pctText(z.siteRemovedPct))}</td></tr>`
+      );
+    })
+    .join("");
+  const zoneTable = zones.length
+    ? `<h3>Keep-out zones</h3><table class="zones" id="keep-out-table"><thead><tr><th>Zone</th><th>File</th><th class="r">Buffer</th><th class="r">Site removed</th><th class="r">Share</th></tr></thead><tbody>${zoneRows}</tbody></table>` +
+      `<p class="muted">No leg enters a zone or its buffer; strips stop at the buffer and transits go around it. The site area inside a zone or its buffer is not flown over.</p>`
+    : "";
 
   // 4. Profiles
   const profiles = stripProfiles(inp.legs);
@@ -343,9 +375,9 @@ export function renderReport(input: ReportInput): string {
 <aside class="caution-box"><strong>Before you fly.</strong> ${esc(STANDARD_CAUTIONS[0])} ${esc(STANDARD_CAUTIONS[5])}</aside>
 
 <section id="map"><h2>1 · Map</h2>
-<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, bridges over unflyable stretches red, waypoints as dots. ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
-<div class="toggles no-print"><label><input type="checkbox" data-toggle="contours" checked> contours</label><label><input type="checkbox" data-toggle="legs" checked> legs and waypoints</label></div>
-<figure class="mapfig">${mainMap}<figcaption>${sequentialLegend("Height above ground on the strips", "m", agl[0], agl[1])}</figcaption></figure>
+<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, bridges over unflyable stretches red, waypoints as dots.${zones.length ? ` Keep-out zones hatched magenta${zones.some((z) => z.bufferM > 0) ? ", their buffers dashed" : ""}.` : ""} ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
+<div class="toggles no-print"><label><input type="checkbox" data-toggle="contours" checked> contours</label><label><input type="checkbox" data-toggle="legs" checked> legs and waypoints</label>${zones.length ? `<label><input type="checkbox" data-toggle="keep-out" checked> keep-out zones</label>` : ""}</div>
+<figure class="mapfig">${mainMap}<figcaption>${sequentialLegend("Height above ground on the strips", "m", agl[0], agl[1])}${keepOutLegend(zones, "hatch-keep-out-legend-main")}</figcaption></figure>
 </section>
 
 <section id="gsd"><h2>2 · Ground sample distance</h2>
@@ -353,13 +385,14 @@ export function renderReport(input: ReportInput): string {
 <figure class="mapfig">${gsdMap}<figcaption>${gsdLegend(g.target, g.low, g.high, "hatch-legend-outband")}</figcaption></figure>
 <figure class="mapfig">${imgMap}<figcaption>${sequentialLegend("Images per ground cell", "count", 0, Math.max(1, maxImages), minImages !== undefined ? `<text x="336" y="33" class="small">hatched: fewer than ${esc(minImages)}</text>` : "")}</figcaption></figure>
 </div>
-<p class="muted">GSD is the nadir figure from the most nadir exposure over each ground cell, from the independent check of the final waypoints. Map cells are ${fmt(r.transform.dx, 1)} m; the figures in the tables are at full DEM resolution.</p>
+<p class="muted">GSD is the nadir figure from the most nadir exposure over each ground cell, from the independent check of the final waypoints. Map cells are ${fmt(r.transform.dx, 1)} m; the figures in the tables are at full DEM resolution.${zones.length ? " Keep-out zones are hatched magenta, as on the map above." : ""}</p>
 </section>
 
 <section id="flags"><h2>3 · Flags</h2>
-<figure class="mapfig narrow">${flagMap}</figure>
+<figure class="mapfig narrow">${flagMap}${zones.length ? `<figcaption>${keepOutLegend(zones, "hatch-keep-out-legend-flags")}</figcaption>` : ""}</figure>
 <table class="flags"><thead><tr><th></th><th>Kind</th><th class="r">Area</th><th class="r">Share</th><th>What it means</th><th>What you can do</th></tr></thead><tbody>${flagRows}</tbody></table>
 <p class="muted">Effects say what is wrong with the ground cell; causes say why the plan could not do better there. A cell can carry several.</p>
+${zoneTable}
 </section>
 
 <section id="profiles"><h2>4 · Strip profiles</h2>

@@ -134,9 +134,30 @@ function checkShape(inp: Partial<ReportInput> | undefined): string | null {
   const n = r.width * r.height;
   if (!(r.gsdCm instanceof Float32Array) || r.gsdCm.length !== n) return "rasters.gsdCm does not match the raster size";
   if (!(r.images instanceof Uint16Array) || r.images.length !== n) return "rasters.images does not match the raster size";
-  if (!(r.flags instanceof Uint8Array) || r.flags.length !== n) return "rasters.flags does not match the raster size";
+  // Uint8 in report-data written before the keep-out bit (256), Uint16 since.
+  if (!(r.flags instanceof Uint8Array || r.flags instanceof Uint16Array) || r.flags.length !== n) return "rasters.flags does not match the raster size";
   if (!(r.inSite instanceof Uint8Array) || r.inSite.length !== n) return "rasters.inSite does not match the raster size";
   if (!Array.isArray(inp.legs)) return "missing legs";
   if (!inp.site || (inp.site.type !== "Polygon" && inp.site.type !== "MultiPolygon")) return "site must be a Polygon or MultiPolygon";
+  return inp.keepOut === undefined ? null : keepOutProblem(inp.keepOut);
+}
+
+const isNum = (v: unknown) => typeof v === "number";
+const isPolygons = (v: unknown) =>
+  Array.isArray(v) &&
+  v.every((poly) => Array.isArray(poly) && poly.every((ring) => Array.isArray(ring) && ring.every((p) => Array.isArray(p) && p.length >= 2 && isNum(p[0]) && isNum(p[1]))));
+
+/** The keep-out zones' shape (optional key: report-data from before keep-out zones has none). */
+function keepOutProblem(k: unknown): string | null {
+  const zones = (k as { zones?: unknown } | null)?.zones;
+  if (!Array.isArray(zones)) return "keepOut.zones must be a list";
+  for (let i = 0; i < zones.length; i++) {
+    const z = zones[i] as Record<string, unknown> | null;
+    const at = `keepOut.zones[${i}]`;
+    if (!z || typeof z !== "object") return `${at} must be an object`;
+    if (typeof z.name !== "string" || typeof z.source !== "string") return `${at} must give name and source as text`;
+    for (const key of ["bufferM", "siteRemovedM2", "siteRemovedPct"]) if (!isNum(z[key])) return `${at}.${key} must be a number`;
+    for (const key of ["polygons", "buffered"]) if (!isPolygons(z[key])) return `${at}.${key} must be polygons of [x, y] rings`;
+  }
   return null;
 }

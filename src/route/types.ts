@@ -33,3 +33,33 @@ export interface ArcOptions {
   /** The same as a share of the buffer distance; the smaller of the two applies. Default 0.02. */
   maxDeviationShare?: number;
 }
+
+/** A keep-out zone as the user drew it, on the local frame: one name, one or more polygons. */
+export interface LocalKeepOut {
+  name: string;
+  /** Zone file base name. */
+  source: string;
+  bufferM: number;
+  /** Polygons (outer ring first, then holes), local frame. */
+  polygons: XY[][][];
+}
+
+/** What one keep-out zone did to a plan, for the summary and the report. */
+export interface KeepOutZoneReport {
+  name: string;
+  /** Zone file base name. */
+  source: string;
+  bufferM: number;
+  /** The zone as drawn, local-frame metres (per polygon: outer ring first, then holes). */
+  polygons: XY[][][];
+  /** The zone grown by its buffer: what no leg enters (the zone itself when bufferM is 0). */
+  buffered: XY[][][];
+  /** Site area inside the zone or its buffer, m², and its share of the site, percent. */
+  siteRemovedM2: number;
+  siteRemovedPct: number;
+}
+
+/** The keep-out zones of a plan (none: an empty list). */
+export interface KeepOutReport {
+  zones: KeepOutZoneReport[];
+}

@@ -186,18 +186,17 @@ function routeBridge(work: DemGrid, piece: Piece, opts: SolverOptions): void {
 }
 
 /**
- * The corridor along the way around unknown ground from a straight profile's first
- * station to its last, or null: when the straight floor is known everywhere (nothing
- * to avoid), when nodata is assumed to be ground, or when no way exists (the leg then
- * flies straight and solvePiece warns of the crossing).
+ * The corridor along the way around obstacles (unknown ground, keep-out zones) from a
+ * straight profile's first station to its last, or null: when routeAround finds the
+ * straight leg clear, or when no way exists (the leg then flies straight and
+ * solvePiece warns of any crossing of unknown ground).
  */
 function aroundUnknown(work: DemGrid, straight: StationProfile, opts: SolverOptions): { profile: StationProfile; corners: Int32Array } | null {
-  if (!opts.routeAround || opts.assumeGroundM !== undefined) return null;
+  if (!opts.routeAround) return null;
   const n = straight.s.length;
   let unknown = false;
-  for (let k = 0; k < n && !unknown; k++) unknown = straight.hardLowM[k] !== straight.hardLowM[k];
-  if (!unknown) return null;
-  const way = opts.routeAround([straight.x[0], straight.y[0]], [straight.x[n - 1], straight.y[n - 1]]);
+  if (opts.assumeGroundM === undefined) for (let k = 0; k < n && !unknown; k++) unknown = straight.hardLowM[k] !== straight.hardLowM[k];
+  const way = opts.routeAround([straight.x[0], straight.y[0]], [straight.x[n - 1], straight.y[n - 1]], unknown);
   if (!way || way.length < 3) return null;
   const { stations, corners } = stationsAlongPolyline(way, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
   return { profile: corridorAlong(work, stations, opts, { band: false }), corners };

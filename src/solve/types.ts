@@ -58,13 +58,14 @@ export interface SolverOptions {
   /** Height to assume where the DEM has no data; undefined: nodata is unflyable. */
   assumeGroundM?: number;
   /**
-   * A way around unknown ground for transits (connectors, legs to and from take-off,
+   * A way around obstacles for transits (connectors, legs to and from take-off,
    * bridges over a strip's unflyable stretch): the polyline [a, ..., b] when the
-   * straight segment from a to b would pass over or near unknown ground and a way
-   * around exists, else null (the leg flies straight, warned where it crosses).
-   * Undefined: every transit is straight.
+   * straight segment from a to b enters a keep-out zone, or (`unknownOnStraight`:
+   * the solver found the straight leg's floor needs unknown ground) passes over or
+   * near unknown ground, and a way around exists; else null (the leg flies straight,
+   * warned where it crosses unknown ground). Undefined: every transit is straight.
    */
-  routeAround?: (a: XY, b: XY) => XY[] | null;
+  routeAround?: (a: XY, b: XY, unknownOnStraight: boolean) => XY[] | null;
   /** Camera pixel pitch / focal length (GSD = height * ifov); lets input errors say which GSD range is legal. */
   ifov?: number;
 }

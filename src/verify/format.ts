@@ -13,6 +13,7 @@ const LIMIT_TITLES: Record<string, string> = {
   climb: "climb rate",
   descent: "descent rate",
   nodata: "unknown ground (nodata)",
+  keepOut: "keep-out zones (a leg inside a zone or its buffer)",
   takeoff: "take-off",
   band: "detail band (nadir GSD at strip waypoints)",
 };
@@ -33,11 +34,18 @@ export function verifyText(result: VerifyResult, limits: VerifyLimits, header?: 
   out.push(
     `checked: ${c.flights} flight(s), ${c.legs} legs, ${(c.pathLengthM / 1000).toFixed(2)} km of path, ${c.samples} exact terrain evaluations; ` +
       `clearance floor ${round(c.clearanceFloorM)} m above the highest ground within ${round(limits.safetyRadiusM)} m; ` +
-      `ceiling ${round(limits.ceilingM)} m (${limits.ceilingReference}); climb ${round(limits.maxClimbMps)} m/s, descent ${round(limits.maxDescentMps)} m/s; tolerance ${c.toleranceM} m`,
+      `ceiling ${round(limits.ceilingM)} m (${limits.ceilingReference}); climb ${round(limits.maxClimbMps)} m/s, descent ${round(limits.maxDescentMps)} m/s; tolerance ${c.toleranceM} m` +
+      (c.keepOutZones ? `; ${c.keepOutZones} keep-out zone${c.keepOutZones === 1 ? "" : "s"} (${zoneList(limits)}), tolerance ${c.keepOutToleranceM} m` : ""),
   );
   out.push(`caution: ${VERIFY_CAUTION}`);
   out.push(verdictLine(result));
   return out.join("\n") + "\n";
+}
+
+function zoneList(limits: VerifyLimits): string {
+  const zones = limits.keepOutZones ?? [];
+  const shown = zones.slice(0, 5).map((z) => `${JSON.stringify(z.name)} ${z.bufferM > 0 ? `buffer ${round(z.bufferM)} m` : "no buffer"}`);
+  return zones.length > 5 ? `${shown.join(", ")} and ${zones.length - 5} more` : shown.join(", ");
 }
 
 function groupLines(list: readonly Breach[], prefix: string): string[] {
@@ -81,9 +89,17 @@ export function verifyJson(result: VerifyResult, limits: VerifyLimits): string {
     latitude: b.latitude,
     sizeM: b.sizeM,
     lengthM: b.lengthM,
+    ...(b.zone !== undefined ? { zone: b.zone } : {}),
     message: b.message,
   });
-  return JSON.stringify({ ok: result.ok, breaches: result.breaches.map(strip), warnings: result.warnings.map(strip), checked: result.checked, limits, caution: VERIFY_CAUTION }, null, 2) + "\n";
+  // Zones by name, buffer and size: their rings are the plan's files, not the check's result.
+  const shownLimits = limits.keepOutZones
+    ? {
+        ...limits,
+        keepOutZones: limits.keepOutZones.map((z) => ({ name: z.name, bufferM: z.bufferM, polygons: z.polygons.length, vertices: z.polygons.reduce((n, p) => n + p.reduce((k, r) => k + r.length, 0), 0) })),
+      }
+    : limits;
+  return JSON.stringify({ ok: result.ok, breaches: result.breaches.map(strip), warnings: result.warnings.map(strip), checked: result.checked, limits: shownLimits, caution: VERIFY_CAUTION }, null, 2) + "\n";
 }
 
 const round = (v: number) => Math.round(v * 1000) / 1000;

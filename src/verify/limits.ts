@@ -1,7 +1,8 @@
 import type { PlanOptions } from "../plan/options.js";
 import { makeCamera, type CameraSpec } from "../camera/makeCamera.js";
 import { requirementFrom } from "../camera/requirement.js";
-import type { VerifyLimits } from "./types.js";
+import type { ParsedKeepOut } from "../route/zoneFile.js";
+import type { VerifyLimits, VerifyZone } from "./types.js";
 
 /**
  * The limits a plan promises, taken from resolved plan options (only the
@@ -51,4 +52,13 @@ function bandOf(o: PlanOptions): Pick<VerifyLimits, "band"> {
  */
 export function clearanceFloorM(l: Pick<VerifyLimits, "clearanceM" | "obstacleMarginM" | "demAccuracyM">): number {
   return l.clearanceM + l.obstacleMarginM + l.demAccuracyM;
+}
+
+/**
+ * Keep-out zones as the check reads them: each zone's own buffer where its file
+ * gives one, else the plan's keepOutBufferM.
+ * @example keepOutZonesFor(await readKeepOutFiles(options.keepOut), options.keepOutBufferM)
+ */
+export function keepOutZonesFor(parsed: readonly ParsedKeepOut[], defaultBufferM: number): VerifyZone[] {
+  return parsed.map((z) => ({ name: z.name, polygons: z.polygons, bufferM: z.bufferM ?? defaultBufferM }));
 }

@@ -14,7 +14,8 @@ import { readCells } from "../dem/window.js";
 import { InputFileError } from "../errors.js";
 import { loadPlanFile, resolvePlanOptions, type PlanOptions } from "../plan/options.js";
 import { parseWaypointsCsv } from "./csv.js";
-import { limitsFromPlanOptions } from "./limits.js";
+import { readKeepOutFiles } from "../route/zoneFile.js";
+import { keepOutZonesFor, limitsFromPlanOptions } from "./limits.js";
 import type { VerifyLimits, VerifyRow } from "./types.js";
 
 const WGS84 = "+proj=longlat +datum=WGS84 +no_defs";
@@ -45,8 +46,8 @@ export function verifyMarginM(l: VerifyLimits): number {
 }
 
 /**
- * Reads `<target>/waypoints.csv` (or the CSV `target` names), the plan file and the
- * DEM window under the rows plus verifyMarginM.
+ * Reads `<target>/waypoints.csv` (or the CSV `target` names), the plan file, its
+ * keep-out zone files and the DEM window under the rows plus verifyMarginM.
  * @example const { rows, limits, dem } = await loadVerifyInputs("out", "site/plan.yaml")
  */
 export async function loadVerifyInputs(target: string, planFile: string): Promise<VerifyInputs> {
@@ -63,6 +64,7 @@ export async function loadVerifyInputs(target: string, planFile: string): Promis
   const file = await loadPlanFile(planFile);
   const options = resolvePlanOptions(file.data, {}, file.dir);
   const limits = limitsFromPlanOptions(options);
+  if (options.keepOut.length) limits.keepOutZones = keepOutZonesFor(await readKeepOutFiles(options.keepOut), options.keepOutBufferM);
   const source = await openDem(options.dem, {
     band: options.band,
     ...(options.demVerticalDatum ? { verticalDatum: options.demVerticalDatum } : {}),

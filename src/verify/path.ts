@@ -38,6 +38,8 @@ export interface FlightPath {
   takeoffVertical: Uint8Array;
   /** WGS84 of a point given in index space. */
   toLonLat: (c: number, r: number) => [number, number];
+  /** Index space of a WGS84 point (as the rows are placed; NaN where the DEM's CRS cannot hold it). */
+  fromLonLat: (lon: number, lat: number) => [number, number];
 }
 
 /** Legs shorter than this (metres) are vertical moves: rows carry 1e-8 degree (about 1 mm). */
@@ -60,11 +62,14 @@ export function flightPath(rows: readonly VerifyRow[], s: Surface): FlightPath {
   // A geographic DEM may hold longitudes past 180 (a tile from 179.95 to 180.05 E): take each
   // longitude in the turn nearest the DEM's own.
   const midLon = grid.transform.x0 + (grid.width * grid.transform.dx) / 2;
+  const fromLonLat = (lon: number, lat: number): [number, number] => {
+    let [x, y] = conv.forward([lon, lat]);
+    if (grid.crs.geographic) x += 360 * Math.round((midLon - x) / 360);
+    return toIndex(s, x, y);
+  };
   for (let i = 0; i < n; i++) {
     const row = rows[i];
-    let [x, y] = conv.forward([row.longitude, row.latitude]);
-    if (grid.crs.geographic) x += 360 * Math.round((midLon - x) / 360);
-    [c[i], r[i]] = toIndex(s, x, y);
+    [c[i], r[i]] = fromLonLat(row.longitude, row.latitude);
     z[i] = ellipsoidal ? row.altitudeEllipsoidM : row.altitudeAmslM;
     if (!Number.isFinite(z[i])) {
       const col = ellipsoidal ? "altitude_ellipsoid_m" : "altitude_amsl_m";
@@ -96,7 +101,7 @@ export function flightPath(rows: readonly VerifyRow[], s: Surface): FlightPath {
     const [lon, lat] = inv.forward([x, y]);
     return [lon, lat];
   };
-  return { rows, n, c, r, z, sx, sy, lengthM, isLeg, takeoffVertical, toLonLat };
+  return { rows, n, c, r, z, sx, sy, lengthM, isLeg, takeoffVertical, toLonLat, fromLonLat };
 }
 
 /**

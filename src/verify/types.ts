@@ -47,9 +47,20 @@ export interface VerifyLimits {
    * safety (a warning). Absent when the plan file's camera cannot be resolved.
    */
   band?: { lowGsdCm: number; highGsdCm: number; gsdCmPerM: number };
+  /** Places no part of the path may enter, nor come closer to than their buffer. */
+  keepOutZones?: VerifyZone[];
 }
 
-export type VerifyLimitName = "ground" | "clearance" | "ceiling" | "climb" | "descent" | "nodata" | "takeoff" | "band";
+/** A keep-out zone as the check reads it. */
+export interface VerifyZone {
+  name: string;
+  /** Polygons of [lon, lat] rings (WGS84 degrees), outer ring first, then holes; any winding, closing repeat optional. */
+  polygons: number[][][][];
+  /** Horizontal distance to keep from the zone, metres (the zone's own, else the plan's keepOutBufferM). */
+  bufferM: number;
+}
+
+export type VerifyLimitName = "ground" | "clearance" | "ceiling" | "climb" | "descent" | "nodata" | "keepOut" | "takeoff" | "band";
 
 /** A broken promise (or, in `warnings`, a crossing of assumed ground). */
 export interface Breach {
@@ -62,10 +73,15 @@ export interface Breach {
   /** Where the breach is worst (WGS84 degrees). */
   longitude: number;
   latitude: number;
-  /** Metres by which the limit is broken; for climb and descent the ratio rate / limit. */
+  /**
+   * Metres by which the limit is broken; for climb and descent the ratio rate / limit; for
+   * keepOut how far inside the zone's buffer the leg goes (buffer + depth inside the zone).
+   */
   sizeM: number;
   /** Length of the leg over which the limit is broken, metres (0 for a waypoint's own problem). */
   lengthM: number;
+  /** For keepOut: the zone's name. */
+  zone?: string;
   message: string;
 }
 
@@ -87,6 +103,10 @@ export interface VerifyChecked {
    * midpoint (beside near-vertical DEM walls); see clearance.ts.
    */
   unresolvedLeaves: number;
+  /** Keep-out zones every leg was checked against. */
+  keepOutZones: number;
+  /** Keep-out decision tolerance, metres: a leg may come this much nearer a zone than its buffer. */
+  keepOutToleranceM: number;
 }
 
 export interface VerifyResult {

@@ -2,20 +2,22 @@
  * The independent check of a written plan: from the waypoint list alone, the
  * DEM in its own CRS and the plan's limits, re-derive every promise the plan
  * makes and report each breach with its place, size and limit. It shares no
- * code with the solver or the assessment: only the DEM reading (src/dem) and
- * the plan-file reading (src/plan/options.ts) are common.
+ * code with the solver or the assessment: only the DEM reading (src/dem), the
+ * plan-file reading (src/plan/options.ts) and the keep-out file reading
+ * (src/route/zoneFile.ts, no geometry) are common.
  */
 import type { DemGrid } from "../dem/grid.js";
 import { checkGroundCeilingLeg, checkSurfaceCeilingLeg, checkTakeoffCeilingLeg } from "./ceiling.js";
 import { TOLERANCE_M, checkClearanceLeg, emptyFinding, type LegFinding, type LegSpec } from "./clearance.js";
 import { clearanceFloorM } from "./limits.js";
+import { KEEP_OUT_TOLERANCE_M, keepOutHits } from "./keepOut.js";
 import { checkUnknownLeg, type UnknownFinding } from "./nodata.js";
 import { flightPath, type FlightPath } from "./path.js";
 import { TAKEOFF_TOLERANCE_M, flightSpans, groundMismatches, rateBreaches, shortDistanceM } from "./points.js";
 import { groundAtIndex, knownGroundAtIndex, makeSurface } from "./surface.js";
 import type { Breach, VerifyLimitName, VerifyLimits, VerifyResult, VerifyRow } from "./types.js";
 
-export const LIMIT_ORDER: readonly VerifyLimitName[] = ["ground", "clearance", "ceiling", "climb", "descent", "nodata", "takeoff", "band"];
+export const LIMIT_ORDER: readonly VerifyLimitName[] = ["ground", "clearance", "ceiling", "climb", "descent", "nodata", "keepOut", "takeoff", "band"];
 
 const CEILING_WORDS = {
   ground: "above the ground straight below",
@@ -110,6 +112,22 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
     }
   }
 
+  // Keep-out zones: every leg (take-off moves too: a take-off inside a zone is in it), exact per chord.
+  const zones = limits.keepOutZones ?? [];
+  for (const h of keepOutHits(path, zones)) {
+    const z = zones[h.zone];
+    const f: LegFinding = { ...emptyFinding(), worstT: h.t, lengthM: h.lengthM };
+    const name = JSON.stringify(z.name);
+    const buffer = z.bufferM > 0 ? `its ${num(z.bufferM)} m buffer` : "it";
+    const b = legBreach(path, h.leg, "keepOut", f, h.depthM, (where) =>
+      h.insideM > 0
+        ? `${where}: enters keep-out zone ${name}, ${m(h.insideM)} inside its outline${z.bufferM > 0 ? ` (${m(h.depthM)} inside its ${num(z.bufferM)} m buffer)` : ""}, over ${m(h.lengthM)} of the leg`
+        : `${where}: passes ${m(-h.insideM)} from keep-out zone ${name}, ${m(h.depthM)} inside ${buffer}, over ${m(h.lengthM)} of the leg`,
+    );
+    b.zone = z.name;
+    breaches.push(b);
+  }
+
   for (const r of rateBreaches(path, limits.maxClimbMps, limits.maxDescentMps)) {
     const f: LegFinding = { ...emptyFinding(), worstT: 0.5, lengthM: path.lengthM[r.leg] };
     const dz = path.z[r.leg + 1] - path.z[r.leg];
@@ -164,6 +182,7 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
     }
   }
 
+  // Stable sort: within a limit and a row, breaches keep the order found (keep-out zones in file order).
   const order = (b: Breach) => LIMIT_ORDER.indexOf(b.limit) * 1e9 + b.fromRow;
   breaches.sort((x, y) => order(x) - order(y));
   warnings.sort((x, y) => order(x) - order(y));
@@ -171,7 +190,8 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
     ok: breaches.length === 0,
     breaches,
     warnings,
-    checked: { rows: path.n, flights: spans.length, legs, pathLengthM, samples, clearanceFloorM: floorM, toleranceM: TOLERANCE_M, unresolvedLeaves: unresolved },
+    checked: { rows: path.n, flights: spans.length, legs, pathLengthM, samples, clearanceFloorM: floorM, toleranceM: TOLERANCE_M, unresolvedLeaves: unresolved,
+      keepOutZones: zones.length, keepOutToleranceM: KEEP_OUT_TOLERANCE_M },
   };
 }
 

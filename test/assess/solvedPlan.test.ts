@@ -75,7 +75,7 @@ async function agreement(stationStep: "cell" | "trigger", nadirBy: NadirBy, zone
     ...l,
     profile: { ...l.profile, status: new Uint8Array(l.profile.status.length), cause: l.profile.status.map((s) => (s === STATUS_OK ? CAUSE_CEILING : 0)) },
   }));
-  const okZone = new Uint8Array(flags.length);
+  const okZone = new Uint16Array(flags.length);
   paintCauseZones(okZone, grid, inSite, okOnly, zoneAcross);
   let okCells = 0;
   let okInBand = 0;

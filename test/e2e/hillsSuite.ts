@@ -474,7 +474,7 @@ export function hillsPlanSuite(c: HillsCase): void {
       const tifs = [
         { name: "gsd.tif", type: "Float32", nodata: NaN },
         { name: "images.tif", type: "UInt16", nodata: 65535 },
-        { name: "flags.tif", type: "Byte", nodata: 255 },
+        { name: "flags.tif", type: "UInt16", nodata: 255 },
       ];
       let grid: { transform: { x0: number; y0: number; dx: number; dy: number }; crs: { epsg: number | null } };
       beforeAll(() => {

@@ -18,7 +18,7 @@ function rasters(): AssessmentRasters {
   const inSite = new Uint8Array(n);
   const gsdCm = new Float32Array(n).fill(NaN);
   const images = new Uint16Array(n);
-  const flags = new Uint8Array(n);
+  const flags = new Uint16Array(n);
   for (let row = 0; row < H; row++) {
     for (let col = 1; col < W; col++) {
       const i = row * W + col;
@@ -54,7 +54,7 @@ describe.skipIf(!HAS_GDAL)("assessment GeoTIFFs read by GDAL (gdalinfo, gdalloca
   for (const [name, type, nodata] of [
     ["gsd.tif", "Float32", "NaN"],
     ["images.tif", "UInt16", IMAGES_NODATA],
-    ["flags.tif", "Byte", FLAGS_NODATA],
+    ["flags.tif", "UInt16", FLAGS_NODATA],
   ] as const) {
     it(`${name}: same geotransform, EPSG:32633, ${type}, nodata ${nodata}`, () => {
       const j = info(name);

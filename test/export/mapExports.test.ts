@@ -199,3 +199,40 @@ describe("plan.gpx (GPX 1.1)", () => {
     expect(out).toMatch(new RegExp(`Feature Count: ${inp.rows.length}\\b`));
   });
 });
+
+describe("keep-out zones in plan.geojson and plan.kml", () => {
+  // A yard with a courtyard hole (local ring clockwise on purpose) and a 10 m buffer drawn as a square.
+  const inp: PlanExportInput = {
+    ...input(),
+    keepOut: [{
+      name: `Yard & "north" <gate>`,
+      bufferM: 10,
+      polygons: [[[[500_100, 5_216_300], [500_100, 5_216_380], [500_180, 5_216_380], [500_180, 5_216_300]], [[500_120, 5_216_320], [500_160, 5_216_320], [500_160, 5_216_360], [500_120, 5_216_360]]]],
+      buffered: [[[[500_090, 5_216_290], [500_190, 5_216_290], [500_190, 5_216_390], [500_090, 5_216_390]]]],
+    }],
+  };
+
+  it.skipIf(!HAS_GDAL)("GeoJSON: GDAL (ogrinfo, sqlite dialect) reads the zone with its hole and the buffer, areas as drawn", () => {
+    const dir = mkdtempSync(path.join(tmpdir(), "gsdplan-ko-"));
+    const f = path.join(dir, "plan.geojson");
+    writeFileSync(f, JSON.stringify(planGeoJson(inp)));
+    // Areas in UTM 33N (EPSG:32633): 80 x 80 - 40 x 40 = 4800 m2 and 100 x 100 = 10000 m2.
+    const sql = "SELECT layer, name, buffer_m, ST_Area(ST_Transform(geometry, 32633)) AS a, ST_NumInteriorRing(ST_GeometryN(geometry, 1)) AS holes FROM plan WHERE layer LIKE 'keepOut%'";
+    const out = execFileSync("ogrinfo", ["-ro", "-q", "-dialect", "sqlite", "-sql", sql, f]).toString();
+    const rows = out.split("OGRFeature(SELECT)").slice(1).map((b) => Object.fromEntries([...b.matchAll(/(\w+) \((?:String|Integer|Real)\) = (.*)/g)].map((m) => [m[1], m[2]])));
+    expect(rows.map((r) => [r.layer, r.name, r.buffer_m, r.holes])).toEqual([["keepOut", `Yard & "north" <gate>`, "10", "1"], ["keepOutBuffer", `Yard & "north" <gate>`, "10", "0"]]);
+    // Coordinates are written to 1e-8 degree (about 1 mm): areas within 0.5 m2.
+    expect(Math.abs(Number(rows[0].a) - 4800)).toBeLessThan(0.5);
+    expect(Math.abs(Number(rows[1].a) - 10000)).toBeLessThan(0.5);
+  });
+
+  it("KML: a folder with the zone (hole as innerBoundaryIs) and its buffer, names escaped (togeojson parses them back)", () => {
+    const text = planKml(inp);
+    const back = kml(parseXml(text));
+    const zone = back.features.find((f) => f.properties?.name === `Yard & "north" <gate>`) as Feature<Polygon>;
+    expect(zone.geometry.type).toBe("Polygon");
+    expect(zone.geometry.coordinates).toHaveLength(2);
+    expect(back.features.some((f) => f.properties?.name === `Yard & "north" <gate> (buffer 10 m)`)).toBe(true);
+    expect(text).toContain("<Folder><name>Keep-out zones</name>");
+  });
+});

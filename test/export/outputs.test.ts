@@ -28,7 +28,7 @@ describe("planOutputFiles + writeOutputSet", () => {
     const w = 3, h = 2, n = w * h;
     const grid = {
       width: w, height: h, transform: { x0: 500_000, y0: 5_216_000, dx: 1, dy: -1 },
-      gsdCm: new Float32Array(n).fill(2), images: new Uint16Array(n).fill(5), flags: new Uint8Array(n), inSite: new Uint8Array(n).fill(1),
+      gsdCm: new Float32Array(n).fill(2), images: new Uint16Array(n).fill(5), flags: new Uint16Array(n), inSite: new Uint8Array(n).fill(1),
     };
     const summary = buildSummary({
       name: "set", flights: [], rows, photos: 0, headingDeg: 0, lineSpacingM: 1, triggerDistanceM: 1,

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import type { AssessmentStats } from "../../src/assess/types.js";
-import { splitFlights } from "../../src/export/flights.js";
+import { splitFlights } from "../../src/route/flights.js";
 import { waypointRows } from "../../src/export/rows.js";
 import { buildSummary, summaryJson } from "../../src/export/summary.js";
 import { smallPlan, timedLeg } from "./legs.js";

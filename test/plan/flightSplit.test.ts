@@ -8,7 +8,7 @@
  * point, and the flight time is a number.
  */
 import { describe, it, expect } from "vitest";
-import { splitFlights } from "../../src/export/flights.js";
+import { splitFlights } from "../../src/route/flights.js";
 import type { XY } from "../../src/layout/types.js";
 import { leg } from "../export/legs.js";
 

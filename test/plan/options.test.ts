@@ -231,3 +231,25 @@ describe("documentation tables", async () => {
     expect(planOptionsHelp().map((h) => h.flags.split(" ")[0])).toEqual(PLAN_OPTION_SPECS.map((s) => s.flag));
   });
 });
+
+describe("keep-out keys", () => {
+  it("takes one path or a list, resolved against the plan file's folder; none by default, buffer 0", () => {
+    expect(resolvePlanOptions(good(), {}, "/data/site").keepOut).toEqual([]);
+    expect(resolvePlanOptions(good(), {}, "/data/site").keepOutBufferM).toBe(0);
+    expect(resolvePlanOptions({ ...good(), keepOut: "yard.geojson" }, {}, "/data/site").keepOut).toEqual(["/data/site/yard.geojson"]);
+    expect(resolvePlanOptions({ ...good(), keepOut: ["a.kml", "/abs/b.geojson"] }, {}, "/data/site").keepOut).toEqual(["/data/site/a.kml", "/abs/b.geojson"]);
+  });
+
+  it("a repeated --keep-out flag gives every file, resolved against the shell's folder, and replaces the file's list", () => {
+    const flags = flagOverridesFromParsed({ keepOut: ["x.geojson", "y.kml"], keepOutBufferM: "12.5" });
+    expect(flags).toEqual({ keepOut: ["x.geojson", "y.kml"], keepOutBufferM: 12.5 });
+    const o = resolvePlanOptions({ ...good(), keepOut: "yard.geojson" }, flags, "/data/site", "/home/pilot");
+    expect(o.keepOut).toEqual(["/home/pilot/x.geojson", "/home/pilot/y.kml"]);
+    expect(o.keepOutBufferM).toBe(12.5);
+  });
+
+  it("refuses a negative buffer and an empty list, naming the key", () => {
+    expect(errorOf(() => resolvePlanOptions({ ...good(), keepOutBufferM: -1 }, {}, "/d")).message).toMatch(/^keepOutBufferM: out of range \(got -1; allowed: a number >= 0\)/);
+    expect(errorOf(() => resolvePlanOptions({ ...good(), keepOut: [] }, {}, "/d")).message).toMatch(/^keepOut: /);
+  });
+});

@@ -1,5 +1,5 @@
 import type { Command } from "commander";
-import { PLAN_OPTION_SPECS } from "../../plan/optionsSchema.js";
+import { addPlanFlags } from "../planFlags.js";
 
 /**
  * `gsdplan layout`: lays out the flight strips for a plan (a plan file and/or
@@ -13,7 +13,7 @@ export function registerLayout(program: Command): void {
     .description("lay out flight strips over the site and print the summary: strips, spacing, trigger distance, ground speed and its binding limit, heading and why")
     .option("--plan <file>", "plan file (JSON or YAML); flags override its keys")
     .option("--json", "print the layout (local-frame metres) as JSON");
-  for (const s of PLAN_OPTION_SPECS) cmd.option(s.kind === "boolean" ? s.flag : `${s.flag} <value>`, s.description);
+  addPlanFlags(cmd, (s) => s.description);
   cmd.action(async (opts: Record<string, unknown>) => {
     process.stdout.write(await runLayoutCommand(opts));
   });
@@ -26,9 +26,8 @@ export function registerLayout(program: Command): void {
 export async function runLayoutCommand(opts: Record<string, unknown>): Promise<string> {
   // Stage modules (geotiff, proj4, turf behind them) load only when the command runs.
   const { loadPlanFile, resolvePlanOptions, flagOverridesFromParsed } = await import("../../plan/options.js");
-  const { prepareMission } = await import("../../plan/plan.js");
+  const { prepareMission, missionLayout } = await import("../../plan/plan.js");
   const { siteCoverage } = await import("../../layout/site.js");
-  const { layoutStrips } = await import("../../layout/strips.js");
   const { layoutSummaryLines } = await import("../../layout/summary.js");
 
   const file = typeof opts.plan === "string" ? await loadPlanFile(opts.plan) : undefined;
@@ -36,18 +35,7 @@ export async function runLayoutCommand(opts: Record<string, unknown>): Promise<s
   const m = await prepareMission(po);
   const { frame, site, grid, speed } = m;
   const coverage = siteCoverage(site, grid);
-  const layout = layoutStrips(site, {
-    headingDeg: po.headingDeg,
-    spacingM: m.spacingM,
-    triggerM: m.triggerM,
-    footprintAcrossM: m.footprint.acrossM,
-    footprintAlongM: m.footprint.alongM,
-    takeoff: po.takeoff ? frame.fromWgs84(po.takeoff[0], po.takeoff[1]) : undefined,
-    photoSpeedMps: speed.speedMps,
-    transitSpeedMps: po.aircraft.transitSpeedMps,
-    grid,
-    maxClimbMps: po.aircraft.maxClimbMps,
-  });
+  const layout = missionLayout(m, po);
   if (opts.json) {
     return (
       JSON.stringify(

@@ -1,6 +1,7 @@
 import type { Command } from "commander";
 import { PLAN_OPTION_SPECS } from "../../plan/optionsSchema.js";
 import { EXIT_FLAGGED } from "../run.js";
+import { addPlanFlags } from "../planFlags.js";
 
 /**
  * `gsdplan plan [plan-file] --out <dir>`: the main job end to end. Every
@@ -19,7 +20,7 @@ export function registerPlan(program: Command): void {
     .option("--quiet", "no progress display")
     .option("--json", "print summary.json to stdout instead of the text summary")
     .option("--fail-on-flags", "exit with code 3 when any site cell is flagged");
-  for (const s of PLAN_OPTION_SPECS) cmd.option(s.kind === "boolean" ? s.flag : `${s.flag} <value>`, optionHelp(s));
+  addPlanFlags(cmd, optionHelp);
   cmd.addHelpText("after", planHelpAfter());
   cmd.action(async (planFile: string | undefined, opts: Record<string, unknown>) => {
     const { runPlanCommand } = await import("../planCommand.js");

@@ -14,7 +14,7 @@ export function registerVerify(program: Command): void {
     .requiredOption("--plan <plan-file>", "the plan file whose DEM and limits the waypoints must keep")
     .option("--json", "print the result as JSON")
     .description(
-      "check a waypoint list on its whole path against the DEM (in its own CRS) and the plan's limits: ground, clearance, ceiling, climb and descent rates, unknown ground, take-off",
+      "check a waypoint list on its whole path against the DEM (in its own CRS) and the plan's limits: ground, clearance, ceiling, climb and descent rates, unknown ground, keep-out zones and their buffers, take-off",
     )
     .addHelpText("after", "\nExit codes: 0 no breach, 3 any breach, 2 bad input, 1 internal error.\nA clean check is not a permission to fly: local rules apply and the pilot in command decides.")
     .action(async (target: string, opts: { plan: string; json?: boolean }) => {

@@ -1,9 +1,9 @@
 import { describe, it, expect } from "vitest";
 import type { XY } from "../../src/layout/types.js";
 import type { SolvedLeg } from "../../src/solve/types.js";
-import { flightTimeS, splitFlights, straightTransitLeg } from "../../src/export/flights.js";
+import { flightTimeS, splitFlights, straightTransitLeg } from "../../src/route/flights.js";
 import { countRows, waypointRows } from "../../src/export/rows.js";
-import { timedLeg } from "./legs.js";
+import { timedLeg } from "../export/legs.js";
 
 // Four strips of 100 s each, joined by 10 s transits; every transit to or from
 // take-off takes 20 s. All at one altitude, so legs join without vertical moves.

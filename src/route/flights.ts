@@ -11,7 +11,7 @@
  */
 import type { XY } from "../layout/types.js";
 import type { SolvedLeg, SolveWarning, StationProfile, Waypoint } from "../solve/types.js";
-import { countRows, legsJoin } from "./rows.js";
+import { countRows, legsJoin } from "./waypointCount.js";
 
 export interface Flight {
   /** 1-based. */
