@@ -95,11 +95,16 @@ export function paintCauseZones(
   const { x0, y0, dx, dy } = grid.transform;
   const rows = new Int32Array(2);
   const span = new Int32Array(2);
+  const profiles: SolvedLeg["profile"][] = [];
   for (const leg of legs) {
+    // Strip ends over unknown ground that a transit replaced still lie over their strips' zones.
+    profiles.push(...(leg.trimmed ?? []));
     // A transit bridging an unflyable stretch of a strip still lies over that strip's zone.
     if (leg.kind !== "strip" && !leg.conflictGap) continue;
     // A bridge routed around unknown ground keeps the strip's own stations it skipped.
-    const p = leg.skipped ?? leg.profile;
+    profiles.push(leg.skipped ?? leg.profile);
+  }
+  for (const p of profiles) {
     const m = p.s.length;
     if (m === 0) continue;
     const len = Math.hypot(p.x[m - 1] - p.x[0], p.y[m - 1] - p.y[0]);

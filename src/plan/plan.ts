@@ -311,6 +311,22 @@ export function missionLayout(m: PreparedMission, options: PlanOptions): Layout 
   return layout;
 }
 
+/** Keep-out zones within this distance of the site's box widen the DEM window to hold them, metres. */
+const ZONE_REACH_M = 1000;
+/** Room beyond a zone's buffer and the safety radius for a way around it, metres. */
+const ZONE_ROOM_M = 30;
+
+/** True when some vertex of the zone lies within `reachM` of the box (degrees, in the wrap of `cLon`). */
+function zoneNear(polygons: readonly number[][][][], box: { west: number; east: number; south: number; north: number }, cLon: number, reachM: number): boolean {
+  const dLat = reachM / 110_000;
+  for (const poly of polygons) for (const [lon, lat] of poly[0]) {
+    const dLon = reachM / (110_000 * Math.max(0.01, Math.cos((lat * Math.PI) / 180)));
+    const l = cLon + wrap180(lon - cLon);
+    if (l >= box.west - dLon && l <= box.east + dLon && lat >= box.south - dLat && lat <= box.north + dLat) return true;
+  }
+  return false;
+}
+
 /** Largest spacing of the solver's stations, metres (see planMission). */
 export const MAX_STATION_STEP_M = 1;
 
@@ -372,6 +388,24 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     if (l < west) west = l;
     if (l > east) east = l;
   }
+  // The window also holds the take-off point and the keep-out zones near the site (with
+  // their buffers and the safety radius): legs to take-off and ways around a zone fly there.
+  const parsedZones: LonLatKeepOut[] = options.keepOut.length ? await readKeepOutFiles(options.keepOut) : [];
+  const include = (lon: number, lat: number, padM: number) => {
+    const l = cLon + wrap180(lon - cLon);
+    const dLat = padM / 110_000, dLon = padM / (110_000 * Math.max(0.01, Math.cos((lat * Math.PI) / 180)));
+    west = Math.min(west, l - dLon);
+    east = Math.max(east, l + dLon);
+    south = Math.max(-90, Math.min(south, lat - dLat));
+    north = Math.min(90, Math.max(north, lat + dLat));
+  };
+  if (options.takeoff) include(options.takeoff[0], options.takeoff[1], 0);
+  const siteBox = { west, east, south, north };
+  for (const z of parsedZones) {
+    const padM = (z.bufferM ?? options.keepOutBufferM) + options.clearance.safetyRadiusM + ZONE_ROOM_M;
+    if (!zoneNear(z.polygons, siteBox, cLon, ZONE_REACH_M)) continue;
+    for (const poly of z.polygons) for (const [lon, lat] of poly[0]) include(lon, lat, padM);
+  }
 
   const source = await openDem(options.dem, {
     band: options.band,
@@ -430,7 +464,6 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     gsdM: requirement.lowGsdM,
     blurPx: options.blurPx,
   });
-  const parsedZones: LonLatKeepOut[] = options.keepOut.length ? await readKeepOutFiles(options.keepOut) : [];
   const keepOut = parsedZones.length ? keepOutSet(localKeepOuts(parsedZones, frame.fromWgs84, options.keepOutBufferM)) : null;
   const keepOutZones = keepOutZonesFor(parsedZones, options.keepOutBufferM);
   return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings };

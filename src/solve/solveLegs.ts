@@ -46,6 +46,8 @@ interface Piece {
   corners?: Int32Array;
   /** The same bridge's straight profile along the strip (its skipped stations). */
   skipped?: StationProfile;
+  /** Unflyable stretches at strip ends over unknown ground this transit replaces (see trimEndBridges). */
+  trimmed?: StationProfile[];
 }
 
 /**
@@ -86,6 +88,7 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
     // (a bridge at a strip's end starts or ends on the unknown ground itself: left as it is).
     for (let i = first + 1; i < pieces.length - 1; i++) if (pieces[i].conflictGap) routeBridge(work, pieces[i], opts);
   }
+  if (opts.routeAround) trimEndBridges(work, pieces, opts);
   checkTargetReachable(stripProfiles, opts);
 
   const paths: (Float64Array | null)[] = pieces.map(() => null);
@@ -110,6 +113,7 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   const out: SolvedLeg[] = pieces.map((p, i) => buildLeg(p, paths[i]!, vertices[i]!, opts));
   const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
   for (const leg of out) {
+    for (const t of leg.trimmed ?? []) for (let k = 0; k < t.status.length; k++) if (t.status[k] === STATUS_UNFLYABLE) counts.unflyable++;
     if (leg.kind !== "strip" && !leg.conflictGap) continue;
     // A routed bridge flies elsewhere: count the strip's stations it skipped, as a straight one would.
     const st = (leg.skipped ?? leg.profile).status;
@@ -174,6 +178,51 @@ function transitCorridor(work: DemGrid, leg: LayoutLeg, opts: SolverOptions): { 
   const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, halfAlong);
   const straight = corridorAlong(work, st, opts, { band: false });
   return aroundUnknown(work, straight, opts) ?? { profile: straight };
+}
+
+/**
+ * A strip that begins or ends over unknown ground (a DEM hole, the DEM's edge, a strip
+ * cut at a keep-out zone beside a hole) would start or end with a bridge flown along
+ * the strip over that ground: a bridge at a strip's end has the unknown ground at its
+ * own end, so no way around it exists. Instead the strip starts (ends) at its first
+ * (last) flyable station, and the transit before (after) it is made again to reach that
+ * station, around the obstacles; the dropped stretch rides on that transit as `trimmed`
+ * so its unflyable stations are still counted and mapped. A strip with no flyable
+ * station at all is replaced by one transit from the leg before it to the leg after it.
+ */
+function trimEndBridges(work: DemGrid, pieces: Piece[], opts: SolverOptions): void {
+  const isBridge = (p: Piece | undefined) => p !== undefined && p.conflictGap;
+  const isTransit = (p: Piece | undefined) => p !== undefined && p.kind === "transit" && !p.conflictGap;
+  const end = (p: Piece, last: boolean): XY => {
+    const k = last ? p.profile.s.length - 1 : 0;
+    return [p.profile.x[k], p.profile.y[k]];
+  };
+  const overUnknown = (p: Piece) => {
+    for (let k = 0; k < p.profile.cause.length; k++) if (p.profile.cause[k] & CAUSE_NODATA) return true;
+    return false;
+  };
+  const remake = (before: Piece, from: XY, to: XY, trimmed: StationProfile[]): Piece => {
+    const leg: LayoutLeg = { kind: "transit", strip: before.strip, from, to, lengthM: Math.hypot(to[0] - from[0], to[1] - from[1]) };
+    return { kind: "transit", strip: before.strip, conflictGap: false, ...transitCorridor(work, leg, opts), trimmed: [...(before.trimmed ?? []), ...trimmed] };
+  };
+  for (let i = 0; i < pieces.length; i++) {
+    const p = pieces[i];
+    if (!isBridge(p) || !overUnknown(p)) continue;
+    const leading = isTransit(pieces[i - 1]);
+    const trailing = isTransit(pieces[i + 1]);
+    if (leading && trailing) {
+      const prev = pieces[i - 1], next = pieces[i + 1];
+      pieces.splice(i - 1, 3, remake(prev, end(prev, false), end(next, true), [p.profile, ...(next.trimmed ?? [])]));
+      i -= 2;
+    } else if (leading) {
+      const prev = pieces[i - 1];
+      pieces.splice(i - 1, 2, remake(prev, end(prev, false), end(p, true), [p.profile]));
+      i -= 1;
+    } else if (trailing) {
+      const next = pieces[i + 1];
+      pieces.splice(i, 2, remake(next, end(p, false), end(next, true), [p.profile, ...(next.trimmed ?? [])]));
+    }
+  }
 }
 
 /** Reroutes a bridge over a strip's unknown ground (see aroundUnknown), keeping the strip's stations it skips. */
@@ -407,7 +456,7 @@ function buildLeg(p: Piece, alt: Float64Array, vs: Int32Array, opts: SolverOptio
   }
   const from: XY = [prof.x[0], prof.y[0]];
   const to: XY = [prof.x[n - 1], prof.y[n - 1]];
-  return { kind: p.kind, strip: p.strip, from, to, waypoints: wps, profile: prof, lengthM: prof.s[n - 1], timeS, ...(p.conflictGap ? { conflictGap: true } : {}), ...(p.skipped ? { skipped: p.skipped } : {}) };
+  return { kind: p.kind, strip: p.strip, from, to, waypoints: wps, profile: prof, lengthM: prof.s[n - 1], timeS, ...(p.conflictGap ? { conflictGap: true } : {}), ...(p.skipped ? { skipped: p.skipped } : {}), ...(p.trimmed?.length ? { trimmed: p.trimmed } : {}) };
 }
 
 /** Sorted union of two sorted station index lists. */

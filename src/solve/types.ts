@@ -124,6 +124,11 @@ export interface SolvedLeg {
    * would be), for whatever maps the strip's unflyable stretch. Absent otherwise.
    */
   skipped?: StationProfile;
+  /**
+   * A transit that replaces unflyable stretches at strip ends over unknown ground: those
+   * stretches' profiles (on their strips' lines), for whatever maps and counts them.
+   */
+  trimmed?: StationProfile[];
 }
 
 export interface SolveWarning {
