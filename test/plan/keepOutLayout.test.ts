@@ -106,3 +106,44 @@ describe("assumedGroundCrossings", () => {
     expect(w[0].message).toMatch(/Leg into strip 3 crosses ground the DEM does not know once \(21 m; 21 m in all\), flown on the assumed ground height of 350 m/);
   });
 });
+
+describe("a take-off point ringed by unknown ground", () => {
+  it("is refused in one line that says no way avoids the unknown ground", async () => {
+    const { makeDetour } = await import("../../src/route/detour.js");
+    const { bufferZones } = await import("../../src/route/obstacles.js");
+    // Unknown ground as a square ring around the take-off point at (0, 0).
+    const ringZone = bufferZones([{ name: "unknown ground 1", bufferM: 0, rings: [[[-100, -100], [100, -100], [100, 100], [-100, 100]], [[-50, -50], [-50, 50], [50, 50], [50, -50]]] }]);
+    const l = layoutOf([strip(1, [150, 0], [300, 0])], [0, 0]);
+    const e = errorOf(() => applyKeepOut(l, null, makeDetour(ringZone), [12.5, 47.1]));
+    expect(e.message).toBe("takeoff: no way from the take-off point to any strip avoids unknown ground (DEM nodata) and keep-out zones (got [12.5,47.1]; allowed: a point from which the site can be reached over known ground)");
+    expect(e.message.split("\n")).toHaveLength(1);
+  });
+});
+
+describe("the DEM window holds a take-off point beyond the site's margin", () => {
+  it("plans from a take-off 300 m west of the site (the hills fixture, GDAL-written; heights read back by GDAL in the e2e suite)", async () => {
+    const { loadPlanFile, resolvePlanOptions } = await import("../../src/plan/options.js");
+    const { prepareMission } = await import("../../src/plan/plan.js");
+    const f = await loadPlanFile(new URL("../../fixtures/e2e/hills-utm33-small-plan.yaml", import.meta.url).pathname);
+    // UTM 33N 500440 E, 5200400 N (cs2cs, EPSG:32633 -> EPSG:4326): west of the site by about 300 m.
+    const o = resolvePlanOptions(f.data, { takeoff: [15.0057829, 46.9571286] }, f.dir);
+    const m = await prepareMission(o);
+    const [x, y] = m.frame.fromWgs84(15.0057829, 46.9571286);
+    const { x0, y0, dx, dy } = m.grid.transform;
+    const col = (x - x0) / dx, row = (y - y0) / dy;
+    expect(col).toBeGreaterThan(0.5);
+    expect(row).toBeGreaterThan(0.5);
+    expect(col).toBeLessThan(m.grid.width - 0.5);
+    expect(row).toBeLessThan(m.grid.height - 0.5);
+  });
+});
+
+function errorOf(fn: () => unknown): InputError {
+  try {
+    fn();
+  } catch (e) {
+    if (e instanceof InputError) return e;
+    throw e;
+  }
+  throw new Error("expected an InputError");
+}
