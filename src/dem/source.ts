@@ -99,7 +99,9 @@ function wrap(file: string, e: unknown): InputFileError {
  * dem.crs.epsg; // 32633
  * await dem.close();
  */
-export async function openDem(path: string, opts: OpenDemOptions = {}): Promise<DemSource> {
+export async function openDem(spec: string | readonly string[], opts: OpenDemOptions = {}): Promise<DemSource> {
+  if (typeof spec !== "string" && spec.length !== 1) throw new InputError("dem", spec, "one GeoTIFF file", "a list of DEM files is not read yet");
+  const path = typeof spec === "string" ? spec : spec[0];
   let fileSize: number;
   try {
     const st = statSync(path);

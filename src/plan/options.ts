@@ -45,8 +45,11 @@ export type TargetOptions = { tolerancePct: number } & (
 
 export interface PlanOptions {
   name?: string;
-  /** Absolute path. */
-  dem: string;
+  /**
+   * The elevation model: one source, or a list (tiles; later ones win where they overlap).
+   * Each is an absolute path (GeoTIFF, folder of GeoTIFFs, GDAL VRT) or an http(s) URL.
+   */
+  dem: string | string[];
   demVerticalDatum?: "egm96" | "egm2008" | "ellipsoid";
   demVerticalUnit?: "metre" | "foot" | "us-survey-foot";
   demSurface?: "dtm" | "dsm";
@@ -145,7 +148,10 @@ export async function loadPlanFile(file: string): Promise<LoadedPlanFile> {
  */
 export function parseFlagValue(s: PlanOptionSpec, raw: unknown): unknown {
   // A repeated flag (commander collects them): each value parsed alone.
-  if (Array.isArray(raw) && s.kind === "paths") return raw.flatMap((r) => parseFlagValue(s, r) as string[]);
+  if (Array.isArray(raw) && (s.kind === "paths" || s.kind === "sources")) {
+    const all = raw.flatMap((r) => parseFlagValue(s, r) as string | string[]);
+    return s.kind === "sources" && all.length === 1 ? all[0] : all;
+  }
   if (typeof raw !== "string") return raw;
   const text = raw.trim();
   const num = (t: string): number => {
@@ -172,6 +178,11 @@ export function parseFlagValue(s: PlanOptionSpec, raw: unknown): unknown {
       return text.toLowerCase() === "auto" ? "auto" : num(text);
     case "paths":
       return [raw];
+    case "sources": {
+      // A comma-separated flag is a list; a URL's own commas are rare enough to ask for repetition instead.
+      const parts = text.split(",").map((t) => t.trim()).filter(Boolean);
+      return parts.length === 1 ? parts[0] : parts;
+    }
     default:
       return raw;
   }
@@ -246,6 +257,8 @@ export function resolvePlanOptions(
   };
   const resolvePath = (key: string, p: string | undefined) =>
     p === undefined ? "" : path.resolve(fromFlag.has(key) ? flagDir : planFileDir, p);
+  // A URL stays as it is; anything else is a path.
+  const resolveSource = (key: string, p: string | undefined) => (p !== undefined && /^https?:\/\//i.test(p) ? p : resolvePath(key, p));
 
   need("dem", v.dem);
   need("area", v.area);
@@ -313,7 +326,7 @@ export function resolvePlanOptions(
   const clr = v.clearance ?? {};
   const ovl = v.overlap ?? {};
   const out: PlanOptions = {
-    dem: resolvePath("dem", v.dem),
+    dem: Array.isArray(v.dem) ? v.dem.map((p: string) => resolveSource("dem", p)) : resolveSource("dem", v.dem),
     band: v.band ?? def("band"),
     area: resolvePath("area", v.area),
     camera: {

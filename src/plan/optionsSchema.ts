@@ -12,7 +12,7 @@
  */
 import { z } from "zod";
 
-export type OptionKind = "number" | "integer" | "string" | "path" | "paths" | "enum" | "boolean" | "lonlat" | "heading";
+export type OptionKind = "number" | "integer" | "string" | "path" | "paths" | "sources" | "enum" | "boolean" | "lonlat" | "heading";
 
 export interface PlanOptionSpec {
   /** Dotted plan-file key, e.g. `camera.focalLengthMm`. */
@@ -125,6 +125,8 @@ function allowedText(s: PlanOptionSpec): string {
       return "a file path (relative paths start at the plan file's folder)";
     case "paths":
       return "a file path or a list of file paths (relative paths start at the plan file's folder; the flag may be repeated)";
+    case "sources":
+      return "a file, folder or http(s) URL, or a list of them (relative paths start at the plan file's folder; the flag may be repeated or comma-separated)";
     case "lonlat":
       return "[longitude, latitude] in degrees, longitude -180..180, latitude -90..90";
     case "heading":
@@ -144,7 +146,7 @@ function allowedText(s: PlanOptionSpec): string {
 /** The plan-file keys, their flags, constraints and defaults. */
 export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
   spec("name", "--name", "string", "Plan name for the summary and exported files (default: the site's name)."),
-  spec("dem", "--dem", "path", "Elevation model, a GeoTIFF (required)."),
+  spec("dem", "--dem", "sources", "Elevation model (required): a GeoTIFF, a list of GeoTIFF tiles, a folder of them, a GDAL VRT mosaic, or an http(s) URL of a cloud-optimized GeoTIFF."),
   spec("demVerticalDatum", "--dem-vertical-datum", "enum", "Vertical datum of the DEM heights; overrides what the file declares.", {
     choices: ["egm96", "egm2008", "ellipsoid"],
   }),
@@ -343,6 +345,7 @@ function leafSchema(s: PlanOptionSpec): z.ZodType {
     case "path":
       return z.string().min(1);
     case "paths":
+    case "sources":
       return z.union([z.string().min(1), z.array(z.string().min(1)).min(1)]);
     case "enum":
       return z.enum(s.choices as [string, ...string[]]);
@@ -405,6 +408,7 @@ export function planOptionsHelp(): { flags: string; description: string }[] {
     string: "<text>",
     path: "<file>",
     paths: "<file>",
+    sources: "<file|url>",
     enum: "<choice>",
     boolean: "[bool]",
     lonlat: "<lon,lat>",

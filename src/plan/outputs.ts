@@ -121,7 +121,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
     gsdHistogram: histogram(planRasters.gsdCm, planRasters.inSite, edges),
     baselineHistogram: histogram(baseRasters.gsdCm, baseRasters.inSite, edges),
     files: {
-      dem: path.basename(run.options.dem),
+      dem: (Array.isArray(run.options.dem) ? run.options.dem : [run.options.dem]).map((d) => path.basename(d)).join(", "),
       area: path.basename(run.options.area),
       ...(meta.planFile ? { planFile: path.basename(meta.planFile) } : {}),
       outputs: [...OUTPUT_NAMES],

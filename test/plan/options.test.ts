@@ -253,3 +253,16 @@ describe("keep-out keys", () => {
     expect(errorOf(() => resolvePlanOptions({ ...good(), keepOut: [] }, {}, "/d")).message).toMatch(/^keepOut: /);
   });
 });
+
+describe("dem sources", () => {
+  it("one source stays a string; a list, a URL and a comma-separated or repeated flag are kept as given (URLs unresolved)", () => {
+    expect(resolvePlanOptions(good(), {}, "/data/site").dem).toBe("/data/site/dem.tif");
+    expect(resolvePlanOptions({ ...good(), dem: ["t1.tif", "tiles/", "https://example.org/dem.tif"] }, {}, "/data/site").dem).toEqual([
+      "/data/site/t1.tif",
+      "/data/site/tiles",
+      "https://example.org/dem.tif",
+    ]);
+    expect(flagOverridesFromParsed({ dem: ["a.tif,b.tif", "c.vrt"] })).toEqual({ dem: ["a.tif", "b.tif", "c.vrt"] });
+    expect(flagOverridesFromParsed({ dem: ["a.tif"] })).toEqual({ dem: "a.tif" });
+  });
+});
