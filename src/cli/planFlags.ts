@@ -9,7 +9,7 @@ import { PLAN_OPTION_SPECS, type PlanOptionSpec } from "../plan/optionsSchema.js
 export function addPlanFlags(cmd: Command, help: (s: PlanOptionSpec) => string): Command {
   for (const s of PLAN_OPTION_SPECS) {
     if (s.kind === "boolean") cmd.option(s.flag, help(s));
-    else if (s.kind === "paths" || s.kind === "sources") cmd.option(`${s.flag} <value>`, `${help(s)} (repeatable)`, (v: string, prev: string[] | undefined) => [...(prev ?? []), v]);
+    else if (s.kind === "paths" || s.kind === "sources" || s.kind === "lonlat") cmd.option(`${s.flag} <value>`, `${help(s)} (repeatable)`, (v: string, prev: string[] | undefined) => [...(prev ?? []), v]);
     else cmd.option(`${s.flag} <value>`, help(s));
   }
   return cmd;

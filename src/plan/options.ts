@@ -72,9 +72,13 @@ export interface PlanOptions {
     enduranceMin: number;
     /** null: no limit. */
     maxWaypoints: number | null;
+    /** Greatest horizontal distance from the flight's take-off point, metres; 0: no limit. */
+    maxRangeM: number;
   };
-  /** [lon, lat]; undefined: chosen by the layout. */
+  /** [lon, lat]; undefined: chosen by the layout (or proposed per block), or `takeoffs` given. */
   takeoff?: [number, number];
+  /** Candidate take-off points [lon, lat] when more than one is given: each block uses the nearest that reaches it. */
+  takeoffs?: [number, number][];
   headingDeg: "auto" | number;
   minImages: number;
   onConflict: "skip" | "clearance";
@@ -148,6 +152,8 @@ export async function loadPlanFile(file: string): Promise<LoadedPlanFile> {
  */
 export function parseFlagValue(s: PlanOptionSpec, raw: unknown): unknown {
   // A repeated flag (commander collects them): each value parsed alone.
+  // A repeated --takeoff: one point, or a list of candidates.
+  if (Array.isArray(raw) && s.kind === "lonlat") return raw.length === 1 ? parseFlagValue(s, raw[0]) : raw.map((r) => parseFlagValue(s, r));
   if (Array.isArray(raw) && (s.kind === "paths" || s.kind === "sources")) {
     const all = raw.flatMap((r) => parseFlagValue(s, r) as string | string[]);
     return s.kind === "sources" && all.length === 1 ? all[0] : all;
@@ -354,6 +360,7 @@ export function resolvePlanOptions(
       maxDescentMps: air.maxDescentMps ?? def("aircraft.maxDescentMps"),
       enduranceMin: air.enduranceMin ?? def("aircraft.enduranceMin"),
       maxWaypoints: air.maxWaypoints ?? null,
+      maxRangeM: air.maxRangeM ?? def("aircraft.maxRangeM"),
     },
     headingDeg: v.headingDeg ?? def("headingDeg"),
     minImages: v.minImages ?? def("minImages"),
@@ -368,7 +375,11 @@ export function resolvePlanOptions(
   if (v.demVerticalUnit !== undefined) out.demVerticalUnit = v.demVerticalUnit;
   if (v.demSurface !== undefined) out.demSurface = v.demSurface;
   if (v.demAccuracyM !== undefined) out.demAccuracyM = v.demAccuracyM;
-  if (v.takeoff !== undefined) out.takeoff = [v.takeoff[0], v.takeoff[1]];
+  if (v.takeoff !== undefined) {
+    const list: [number, number][] = Array.isArray(v.takeoff[0]) ? v.takeoff.map((p: number[]) => [p[0], p[1]]) : [[v.takeoff[0], v.takeoff[1]]];
+    if (list.length === 1) out.takeoff = list[0];
+    else out.takeoffs = list;
+  }
   if (v.assumeGroundM !== undefined) out.assumeGroundM = v.assumeGroundM;
   return out;
 }
@@ -421,6 +432,14 @@ function issueToErrors(issue: z.core.$ZodIssue, fromFlag: Set<string>): InputErr
       const full = key ? `${key}.${k}` : k;
       return unknownKey(full, key, (input as Record<string, unknown> | undefined)?.[k]);
     });
+  }
+  if (issue.code === "invalid_union" && s && ["lonlat", "paths", "sources"].includes(s.kind)) {
+    // A key that takes one value or a list (schema branches [one, list]): report the problem of
+    // the form the value has, not "not accepted".
+    const branches = (issue as { errors?: z.core.$ZodIssue[][] }).errors ?? [];
+    const isList = Array.isArray(input) && (s.kind !== "lonlat" || Array.isArray(input[0]));
+    const chosen = branches[isList ? 1 : 0];
+    if (chosen?.length) return chosen.flatMap((i) => issueToErrors({ ...i, path: [...issue.path, ...i.path] } as z.core.$ZodIssue, fromFlag));
   }
   const allowed = s?.allowed ?? (GROUP_DESCRIPTIONS[key] ? `an object with ${knownKeysAt(key).join(", ")}` : "see gsdplan plan --help");
   if (typeof input === "string" && s && NUMERIC_KINDS.has(s.kind) && input.trim() !== "" && Number.isFinite(Number(input))) {

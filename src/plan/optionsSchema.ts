@@ -79,6 +79,9 @@ export const PLAN_DEFAULTS = {
     maxClimbMps: 3,
     maxDescentMps: 2,
     enduranceMin: 20,
+    // 500 m: a common visual-line-of-sight distance for a small aircraft in practice (from memory;
+    // the rules require sight, not a distance: US 14 CFR 107.31, EU Regulation 2019/947 open category).
+    maxRangeM: 500,
   },
   headingDeg: "auto" as const,
   // Two images is the bare minimum for stereo; five or more is usual for a solid
@@ -128,7 +131,7 @@ function allowedText(s: PlanOptionSpec): string {
     case "sources":
       return "a file, folder or http(s) URL, or a list of them (relative paths start at the plan file's folder; the flag may be repeated or comma-separated)";
     case "lonlat":
-      return "[longitude, latitude] in degrees, longitude -180..180, latitude -90..90";
+      return "[longitude, latitude] in degrees (or a list of them), longitude -180..180, latitude -90..90";
     case "heading":
       return "auto, or degrees clockwise from north, 0 <= value < 360";
     default: {
@@ -269,11 +272,16 @@ export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
     default: D.aircraft.enduranceMin,
     defaultNote: "typical small multirotor, from memory",
   }),
+  spec("aircraft.maxRangeM", "--max-range-m", "number", "Greatest horizontal distance from the flight's take-off point, metres; 0: no limit. Larger sites are split into blocks, each flown from its own take-off point.", {
+    gte: 0,
+    default: D.aircraft.maxRangeM,
+    defaultNote: "a common visual line of sight in practice, from memory",
+  }),
   spec("aircraft.maxWaypoints", "--max-waypoints", "integer", "Most waypoints the autopilot takes in one flight (default: no limit).", {
     gte: 2,
   }),
 
-  spec("takeoff", "--takeoff", "lonlat", "Take-off point [longitude, latitude] (default: the site corner nearest the first strip). Flag form: --takeoff LON,LAT."),
+  spec("takeoff", "--takeoff", "lonlat", "Take-off point [longitude, latitude], or a list of candidate points when the site needs several (each block uses the nearest that reaches it); default: a site corner, or one proposed per block. Flag form: --takeoff LON,LAT (repeatable)."),
   spec("headingDeg", "--heading-deg", "heading", "Strip direction, degrees clockwise from north, or auto.", { default: D.headingDeg }),
   spec("minImages", "--min-images", "integer", "Fewest images that must see each ground cell.", {
     gte: 1,
@@ -351,8 +359,10 @@ function leafSchema(s: PlanOptionSpec): z.ZodType {
       return z.enum(s.choices as [string, ...string[]]);
     case "boolean":
       return z.boolean();
-    case "lonlat":
-      return z.tuple([z.number().gte(-180).lte(180), z.number().gte(-90).lte(90)]);
+    case "lonlat": {
+      const point = z.tuple([z.number().gte(-180).lte(180), z.number().gte(-90).lte(90)]);
+      return z.union([point, z.array(point).min(1)]);
+    }
     case "heading":
       return z.union([z.literal("auto"), z.number().gte(0).lt(360)]);
   }
