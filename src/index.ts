@@ -46,7 +46,15 @@ export { planGeoJson } from "./export/geojson.js";
 export { planKml } from "./export/kml.js";
 export { planGpx } from "./export/gpx.js";
 export { assessmentGeoTiffs } from "./export/geotiffRasters.js";
+
+// route: keep-out zones, ways around obstacles, blocks, flights
 export { splitFlights, type Flight } from "./route/flights.js";
+export { readKeepOutFiles, parseKeepOutText, type ParsedKeepOut } from "./route/zoneFile.js";
+export { makeDetour, type Detour } from "./route/detour.js";
+export { blockGrid, blocksOf, blockLegs, stripFrame, stripPieces } from "./route/blocks.js";
+export { proposeTakeoff } from "./route/takeoffSite.js";
+export { cutLegAt } from "./route/resume.js";
+export { flightsCsv, FLIGHT_CSV_COLUMNS } from "./export/flightsCsv.js";
 
 // report
 export { renderReport } from "./report/render.js";
@@ -58,7 +66,7 @@ export type { ReportInput } from "./report/model.js";
 export { loadPlanFile, resolvePlanOptions, type PlanOptions } from "./plan/options.js";
 export { PLAN_OPTION_SPECS, PLAN_DEFAULTS } from "./plan/optionsSchema.js";
 export { planMission, prepareMission, type PlanRun } from "./plan/plan.js";
-export { planOutputs, OUTPUT_NAMES } from "./plan/outputs.js";
+export { planOutputs, flightRows, OUTPUT_NAMES } from "./plan/outputs.js";
 export { planSummary, type PlanSummary } from "./plan/summary.js";
 
 // verify: the independent check of a written plan
@@ -68,3 +76,6 @@ export { loadVerifyInputs, readPaddedWindow, type VerifyInputs } from "./verify/
 export { parseWaypointsCsv } from "./verify/csv.js";
 export { limitsFromPlanOptions } from "./verify/limits.js";
 export { verifyText, verifyJson } from "./verify/format.js";
+
+// campaign: many sites in one run
+export { runCampaign } from "./campaign/runCampaign.js";

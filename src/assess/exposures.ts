@@ -14,7 +14,11 @@ import type { Exposure } from "./types.js";
 export type NoPhotoIntervals = ReadonlyArray<readonly [number, number]>;
 
 /** A solved leg that layout may have marked with stretches without photos. */
-export type AssessedLeg = SolvedLeg & { noPhotoIntervals?: NoPhotoIntervals };
+export type AssessedLeg = SolvedLeg & {
+  noPhotoIntervals?: NoPhotoIntervals;
+  /** Along-track distance of the first photo from the leg start: a strip resumed after a battery change continues its spacing. */
+  photoPhaseM?: number;
+};
 
 export interface ExposureOptions {
   /**
@@ -46,8 +50,9 @@ export function exposuresFromLegs(legs: readonly AssessedLeg[], triggerM: number
     const ux = ddx / len;
     const uy = ddy / len;
     // Half a millimetre of slack keeps a photo that lands on the leg end despite rounding.
-    const n = Math.floor(len / triggerM + 1e-9);
-    const s0 = phase === "centred" ? (len - n * triggerM) / 2 : 0;
+    const own = leg.photoPhaseM;
+    const n = Math.floor((len - (own ?? 0)) / triggerM + 1e-9);
+    const s0 = own !== undefined ? own : phase === "centred" ? (len - n * triggerM) / 2 : 0;
     const gaps = leg.noPhotoIntervals ?? [];
     const wps = leg.waypoints;
     let seg = 0;

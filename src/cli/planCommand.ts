@@ -4,7 +4,9 @@ import path from "node:path";
 import { flagOverridesFromParsed, loadPlanFile, resolvePlanOptions } from "../plan/options.js";
 import { planMission, type PlanStage } from "../plan/plan.js";
 import { planOutputs } from "../plan/outputs.js";
-import { writeOutputSet } from "../export/atomicDir.js";
+import { writeOutputSet, type OutputFile } from "../export/atomicDir.js";
+import type { PlanOptions } from "../plan/options.js";
+import type { PlanSummary } from "../plan/summary.js";
 import { InputError } from "../errors.js";
 import { existsSync } from "node:fs";
 import { summaryText } from "./summaryText.js";
@@ -35,21 +37,58 @@ export async function runPlanCommand(
   }
 
   const progress = stageProgress(process.stderr, Boolean(opts.quiet) || Boolean(opts.json), STAGES);
-  const run = await planMission(options, { onStage: (s) => progress.stage(s), now: () => performance.now() });
-  progress.stage("write");
-  const { files, summary } = planOutputs(run, {
+  const summary = await planToFolder(options, {
+    outDir,
+    force: Boolean(opts.force),
     ...(file ? { planFile: file.file } : {}),
-    toolVersion: await toolVersion(),
-    generatedAt: new Date().toISOString(),
+    onStage: (s) => progress.stage(s),
   });
-  await writeOutputSet(outDir, files, { force: Boolean(opts.force) });
   progress.done();
   if (opts.json) process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
   else process.stdout.write(summaryText(summary, outDir, extra));
   return { flagged: summary.flagged.cells > 0, outDir };
 }
 
-async function toolVersion(): Promise<string> {
+/** What planToFolder needs besides the options. */
+export interface PlanToFolderOptions {
+  outDir: string;
+  /** Replace earlier outputs of the same names. */
+  force?: boolean;
+  /** The plan file the options came from (its name goes into the report). */
+  planFile?: string;
+  /** Called at the start of each stage, then with "write" before the files are written. */
+  onStage?: (stage: PlanStage | "write") => void;
+  /**
+   * A last look at the output set before it is written (gsdplan campaign adds its
+   * inputs hash to summary.json here); the default writes the set as planned.
+   */
+  amendFiles?: (files: OutputFile[], summary: PlanSummary) => OutputFile[];
+  /** Threads for the assessment's coverage passes (see PlanHooks.threads). */
+  threads?: number;
+}
+
+/**
+ * The plan job shared by `gsdplan plan` and `gsdplan campaign`: plan from resolved
+ * options, build the output set and write it atomically into `outDir`.
+ * @example const summary = await planToFolder(resolvePlanOptions(data, {}, dir), { outDir: "out" });
+ */
+export async function planToFolder(options: PlanOptions, o: PlanToFolderOptions): Promise<PlanSummary> {
+  const run = await planMission(options, { ...(o.onStage ? { onStage: o.onStage } : {}), ...(o.threads !== undefined ? { threads: o.threads } : {}), now: () => performance.now() });
+  o.onStage?.("write");
+  const { files, summary } = planOutputs(run, {
+    ...(o.planFile ? { planFile: o.planFile } : {}),
+    toolVersion: await toolVersion(),
+    generatedAt: new Date().toISOString(),
+  });
+  await writeOutputSet(o.outDir, o.amendFiles ? o.amendFiles(files, summary) : files, { force: Boolean(o.force) });
+  return summary;
+}
+
+/**
+ * The version in package.json, "unknown" when it cannot be read.
+ * @example await toolVersion() // "0.1.0"
+ */
+export async function toolVersion(): Promise<string> {
   const pkg = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "..", "package.json");
   try {
     return JSON.parse(await readFile(pkg, "utf8")).version as string;
@@ -62,8 +101,9 @@ async function toolVersion(): Promise<string> {
  * Refuses an --out that cannot become a folder before minutes of planning: the
  * nearest existing ancestor must be a writable folder, and --out itself, if it
  * exists, a folder. The atomic writer checks again when it writes.
+ * @example await assertWritableTarget("out/site-a") // throws InputError when "out" is a file
  */
-async function assertWritableTarget(outDir: string): Promise<void> {
+export async function assertWritableTarget(outDir: string): Promise<void> {
   const { stat, access } = await import("node:fs/promises");
   const { constants } = await import("node:fs");
   let p = path.resolve(outDir);

@@ -26,6 +26,10 @@ export function summaryText(s: PlanSummary, outDir: string, opts: { explainAllFl
   lines.push(
     `  one constant altitude instead (${f(c.altitudeAmslM)} m AMSL): within band ${f(c.withinBandPct)} %, GSD p5-p95 ${f(c.gsdCm.p5, 2)}-${f(c.gsdCm.p95, 2)} cm/px, ceiling broken over ${f(c.ceilingBreachAreaM2, 0)} m2`,
   );
+  if (s.blocks && s.blocks.length > 1) {
+    const proposed = s.blocks.filter((b) => b.takeoffFrom === "proposed").length;
+    lines.push(`  ${s.blocks.length} blocks within the ${s.maxRangeM} m range, each from its own take-off point${proposed ? ` (${proposed} proposed: confirm access on site)` : ""}`);
+  }
   const k = s.keepOut;
   if (k && k.zones.length) {
     const zones = k.zones.map((z) => `${z.name} (${z.bufferM ? `buffer ${z.bufferM} m, ` : ""}${f(z.siteRemovedPct)} % of the site)`).join("; ");

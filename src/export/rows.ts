@@ -49,8 +49,8 @@ export interface HeightReference {
   datum: VerticalDatum;
   /** Geoid undulation N (metres) of the DEM's geoid at a WGS84 point, e.g. EGM96. */
   undulationM: (lon: number, lat: number) => number;
-  /** Ground height at the take-off point, in `datum`. */
-  takeoffGroundM: number;
+  /** Ground height at the take-off point, in `datum`; per flight (0-based index) when flights take off from different points. */
+  takeoffGroundM: number | readonly number[];
 }
 
 /**
@@ -77,6 +77,7 @@ export function waypointRows(
 ): WaypointRow[] {
   const rows: WaypointRow[] = [];
   flights.forEach((legs, fi) => {
+    const takeoffGround = typeof heights.takeoffGroundM === "number" ? heights.takeoffGroundM : heights.takeoffGroundM[fi];
     let strip = -1;
     let index = 0;
     const push = (leg: SolvedLeg, w: Waypoint, segment: "strip" | "transit", speedMps: number) => {
@@ -98,7 +99,7 @@ export function waypointRows(
         latitude: lat,
         altitudeAmslM,
         altitudeEllipsoidM,
-        altitudeTakeoffM: w.altitudeAmslM - heights.takeoffGroundM,
+        altitudeTakeoffM: w.altitudeAmslM - takeoffGround,
         groundAmslM: heightReferences(w.groundAmslM, lon, lat, heights)[0],
         heightAboveGroundM: w.heightAboveGroundM,
         // To cm/s, rounded down: the speed caps the climb and descent rates (gradient x speed),

@@ -45,6 +45,8 @@ export interface BaselineOptions {
   takeoffGroundM: number;
   /** The terrain-following plan's rasters: its site mask and GSD give its own breaches. */
   planRasters: AssessmentRasters;
+  /** Threads for the coverage pass (see CoverageOptions); default the assessment's own choice. */
+  threads?: number;
 }
 
 /**
@@ -78,6 +80,7 @@ export function constantAltitudeBaseline(
     nadirBy: "distance",
     // Only its figures are compared; its flags are not drawn.
     polygons: false,
+    ...(o.threads !== undefined ? { threads: o.threads } : {}),
   });
   const s = assessment.stats;
   return {

@@ -1,11 +1,14 @@
 /**
  * The output set of a plan run, as named files ready for the atomic writer:
- * waypoints.csv, plan.geojson, plan.kml, plan.gpx, gsd.tif, images.tif,
+ * waypoints.csv, flights.csv, plan.geojson, plan.kml, plan.gpx, gsd.tif, images.tif,
  * flags.tif, summary.json, report-data.json and report.html.
  */
 import path from "node:path";
 import type { OutputFile } from "../export/atomicDir.js";
 import { waypointsCsv } from "../export/waypointsCsv.js";
+import { flightsCsv, type FlightRow } from "../export/flightsCsv.js";
+import { heightReferences } from "../export/rows.js";
+import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
@@ -22,6 +25,7 @@ import { planSummary, type PlanSummary } from "./summary.js";
 
 export const OUTPUT_NAMES = [
   "waypoints.csv",
+  "flights.csv",
   "plan.geojson",
   "plan.kml",
   "plan.gpx",
@@ -71,6 +75,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const compactReport = () => (compact ??= compactReportInput(report));
   const files: OutputFile[] = [
     { name: "waypoints.csv", data: waypointsCsv(rows) },
+    { name: "flights.csv", data: () => flightsCsv(flightRows(run)) },
     { name: "plan.geojson", data: () => JSON.stringify(planGeoJson(exportInput)) + "\n" },
     { name: "plan.kml", data: () => planKml(exportInput) },
     { name: "plan.gpx", data: () => planGpx(exportInput) },
@@ -215,4 +220,34 @@ function clearanceShortfall(grid: DemGrid, inSite: Uint8Array, w: number, h: num
   if (!Number.isFinite(maxGroundM)) return undefined;
   const cellM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
   return { cells, areaM2: cells * cellM2, maxGroundM };
+}
+
+/**
+ * One row per flight: its block and take-off point, waypoints (rows of waypoints.csv),
+ * photos (placed as the assessment places them), length, duration, the farthest
+ * distance from its take-off point (legs are straight: the farthest point of a leg is
+ * one of its waypoints) and the strip it resumes.
+ * @example flightRows(run)[0].maxRangeM
+ */
+export function flightRows(run: PlanRun): FlightRow[] {
+  return run.flights.flights.map((f) => {
+    const t = f.takeoff?.xy ?? [run.takeoff.x, run.takeoff.y];
+    const [lon, lat] = run.frame.toWgs84(t[0], t[1]);
+    let far = 0;
+    for (const l of f.legs) for (const w of l.waypoints) far = Math.max(far, Math.hypot(w.x - t[0], w.y - t[1]));
+    return {
+      flight: f.index,
+      block: f.block ?? 1,
+      takeoffLongitude: lon,
+      takeoffLatitude: lat,
+      // The DEM's datum to AMSL, as waypoints.csv writes ground heights.
+      takeoffGroundAmslM: heightReferences(f.takeoff?.groundM ?? run.takeoff.groundM, lon, lat, { datum: run.verticalDatum, undulationM: undulationFor(run.verticalDatum), takeoffGroundM: 0 })[0],
+      waypoints: f.waypoints,
+      photos: exposuresFromLegs(f.legs as AssessedLeg[], run.layout.triggerM).length,
+      lengthM: f.lengthM,
+      durationS: f.timeS,
+      maxRangeM: far,
+      resumesStrip: f.resumesStrip ?? null,
+    };
+  });
 }

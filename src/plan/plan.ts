@@ -46,6 +46,7 @@ import { assertTakeoffOutside, keepOutSet, keepOutStretches, localKeepOuts, zone
 import type { KeepOutReport } from "../route/types.js";
 import { applyKeepOut, planObstacles } from "./obstacles.js";
 import { assumedGroundCrossings } from "./assumedCrossings.js";
+import { planBlocks, type PlannedBlock } from "./blocks.js";
 
 /** Everything a finished plan knows; the exporters and the report read it. */
 export interface PlanRun {
@@ -69,6 +70,8 @@ export interface PlanRun {
   takeoff: { x: number; y: number; lon: number; lat: number; groundM: number };
   /** The keep-out zones and what each took from the site (an empty list without zones). */
   keepOut: KeepOutReport;
+  /** The blocks, each flown from its own take-off point (one block when the range reaches the whole site). */
+  blocks: PlanBlock[];
   /**
    * The independent check (gsdplan verify) of the waypoints this plan writes, against the
    * DEM in its own CRS; `undeclared` are its breaches that no plan warning announced.
@@ -83,6 +86,17 @@ export interface PlanRun {
   timings: Record<string, number>;
 }
 
+/** A block of the plan and its take-off point. */
+export interface PlanBlock {
+  index: number;
+  takeoff: { x: number; y: number; lon: number; lat: number; groundM: number };
+  takeoffFrom: PlannedBlock["takeoffFrom"];
+  slopeDeg?: number;
+  strips: number[];
+  /** Farthest strip point from the take-off point, metres. */
+  farthestM: number;
+}
+
 export type PlanStage = "load" | "layout" | "solve" | "route" | "assess" | "baseline";
 
 export interface PlanHooks {
@@ -90,6 +104,8 @@ export interface PlanHooks {
   onStage?: (stage: PlanStage) => void;
   /** Clock for the timings (injected so the library reads no clock of its own by default). */
   now?: () => number;
+  /** Threads for the coverage passes (a campaign planning several sites at once passes 1); default the assessment's own choice. */
+  threads?: number;
 }
 
 /**
@@ -121,26 +137,36 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("load");
 
   stage("layout");
-  let layout = missionLayout(prepared, options);
+  const fullLayout = missionLayout(prepared, options);
   // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
   // past each station (see corridorAlong), which on a coarse DEM must stay small. (2 m was
   // tried: on the 1" ridges the solver's zones then drift from the photos' ground, and the
   // within-band share moved 7.7 points from an independent count.)
   const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], MAX_STATION_STEP_M);
-  const obstacles = planObstacles(grid, layout, options, stationStepM, keepOut);
-  const applied = applyKeepOut(layout, keepOut, obstacles.detour, options.takeoff);
-  layout = applied.layout;
-  warnings.push(...applied.warnings);
-  const takeoffGround = groundAt(grid, layout.takeoff, options.assumeGroundM);
-  if (!Number.isFinite(takeoffGround)) {
-    throw new InputError("takeoff", options.takeoff ?? frame.toWgs84(...layout.takeoff), "a point with DEM heights", "the DEM has no height at the take-off point");
-  }
+  const obstacles = planObstacles(grid, fullLayout, options, stationStepM, keepOut);
+  const candidates = (options.takeoffs ?? (options.takeoff ? [options.takeoff] : [])).map(([lon, lat]) => frame.fromWgs84(lon, lat));
+  if (keepOut) for (const [k, c] of candidates.entries()) assertTakeoffOutside(keepOut, c, (options.takeoffs ?? [options.takeoff])[k]);
+  const blocking = planBlocks({
+    layout: fullLayout, site, grid, rangeM: options.aircraft.maxRangeM, footprintAlongM: fp.alongM,
+    candidates, givenOne: options.takeoff !== undefined, keepOut,
+  });
+  warnings.push(...blocking.warnings);
+  const blockLayouts = blocking.blocks.map((blk) => {
+    const given = blk.takeoffFrom === "layout" ? undefined : frame.toWgs84(...blk.takeoff);
+    const applied = applyKeepOut({ ...fullLayout, takeoff: blk.takeoff, legs: blk.legs }, keepOut, obstacles.detour, given);
+    warnings.push(...applied.warnings);
+    const groundM = groundAt(grid, applied.layout.takeoff, options.assumeGroundM);
+    if (!Number.isFinite(groundM)) {
+      throw new InputError("takeoff", given ?? frame.toWgs84(...applied.layout.takeoff), "a point with DEM heights", "the DEM has no height at the take-off point");
+    }
+    return { block: blk, layout: applied.layout, groundM };
+  });
   lap("layout");
 
   stage("solve");
   const solverOptions: SolverOptions = {
     ceiling: options.ceiling,
-    takeoffGroundM: takeoffGround,
+    takeoffGroundM: blockLayouts[0].groundM,
     clearance: { ...options.clearance, ...(options.demAccuracyM !== undefined ? { demAccuracyM: options.demAccuracyM } : {}) },
     aircraft: {
       type: options.aircraft.type,
@@ -168,38 +194,53 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   };
   if (obstacles.routeAround) solverOptions.routeAround = obstacles.routeAround;
   assertTargetReachable(requirement, camera, targetHeightM, options, clearanceFloorM(solverOptions.clearance));
-  const ordered = solveInBestStripOrder(grid, layout.legs, layout.takeoff, solverOptions);
-  if (ordered.legs !== layout.legs) layout = { ...layout, legs: ordered.legs };
-  const solve = ordered.solve;
-  if (ordered.warning) warnings.push(ordered.warning);
-  warnings.push(...solve.warnings);
-  carryNoPhotoIntervals(solve.legs, layout.legs);
+  const solvedBlocks = blockLayouts.map((b) => {
+    // Each block's own take-off ground: a `takeoff` ceiling is measured from it.
+    const opts: SolverOptions = { ...solverOptions, takeoffGroundM: b.groundM };
+    const ordered = solveInBestStripOrder(grid, b.layout.legs, b.layout.takeoff, opts);
+    if (ordered.warning) warnings.push(ordered.warning);
+    warnings.push(...ordered.solve.warnings);
+    carryNoPhotoIntervals(ordered.solve.legs, ordered.legs);
+    return { ...b, layout: { ...b.layout, legs: ordered.legs }, solve: ordered.solve, opts };
+  });
+  const solve = mergeSolves(solvedBlocks.map((b) => b.solve));
+  let layout: Layout = { ...fullLayout, takeoff: solvedBlocks[0].layout.takeoff, legs: solvedBlocks.flatMap((b) => b.layout.legs) };
   lap("solve");
 
   stage("route");
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
-  const flights = splitFlights(solve.legs, {
-    takeoff: layout.takeoff,
-    enduranceMin: options.aircraft.enduranceMin,
-    reservePct: options.reservePct,
-    maxWaypoints: options.aircraft.maxWaypoints,
-    maxClimbMps: options.aircraft.maxClimbMps,
-    maxDescentMps: options.aircraft.maxDescentMps,
-    takeoffGroundM: takeoffGround,
-    // New legs to and from take-off go through the same solver, so they keep clearance.
-    transitLeg: (from, to, strip, direction) => transitThroughSolver(grid, from, to, strip, direction, solve.legs, solverOptions, transitWarnings),
-  });
+  const splits = solvedBlocks.map((b) =>
+    splitFlights(b.solve.legs, {
+      takeoff: b.layout.takeoff,
+      enduranceMin: options.aircraft.enduranceMin,
+      reservePct: options.reservePct,
+      maxWaypoints: options.aircraft.maxWaypoints,
+      maxClimbMps: options.aircraft.maxClimbMps,
+      maxDescentMps: options.aircraft.maxDescentMps,
+      takeoffGroundM: b.groundM,
+      triggerM,
+      // New legs to and from take-off go through the same solver, so they keep clearance.
+      transitLeg: (from, to, strip, direction, joinM) => transitThroughSolver(grid, from, to, strip, direction, b.solve.legs, b.opts, transitWarnings, joinM),
+    }),
+  );
+  const flights: FlightSplit = {
+    flights: splits.flatMap((sp, bi) => sp.flights.map((f) => ({ ...f, block: bi + 1, takeoff: { xy: solvedBlocks[bi].layout.takeoff, groundM: solvedBlocks[bi].groundM } }))).map((f, i) => ({ ...f, index: i + 1 })),
+    batteries: splits.reduce((n, sp) => n + sp.batteries, 0),
+    warnings: splits.flatMap((sp) => sp.warnings),
+  };
   warnings.push(...flights.warnings);
   // Flight splitting tries legs it then drops: only the warnings of legs flown count.
   for (const leg of flights.flights.flatMap((f) => f.legs)) warnings.push(...(transitWarnings.get(leg) ?? []));
   if (options.assumeGroundM !== undefined) warnings.push(...assumedGroundCrossings(grid, flights.flights.flatMap((f) => f.legs), options.assumeGroundM));
+  warnings.push(...rangeBreaches(flights.flights, options.aircraft.maxRangeM));
   const budget = waypointBudgetCheck(grid, layout, flights, solverOptions, options.aircraft.maxWaypoints, options.target.tolerancePct);
   warnings.push(...budget.warnings);
+  const takeoffGround = solvedBlocks[0].groundM;
   lap("route");
 
   // The same independent check `gsdplan verify` makes, on the rows about to be written.
   const rows = waypointRows(flights.flights.map((f) => f.legs), frame.toWgs84, {
-    datum: grid.verticalDatum, undulationM: undulationFor(grid.verticalDatum), takeoffGroundM: takeoffGround,
+    datum: grid.verticalDatum, undulationM: undulationFor(grid.verticalDatum), takeoffGroundM: flights.flights.map((f) => f.takeoff?.groundM ?? takeoffGround),
   });
   const checked = verifyWaypoints(rows, { ...limitsFromPlanOptions(options), keepOutZones }, nativeGrid);
   const undeclared = checked.breaches.filter((b) => !declared(b, warnings));
@@ -224,6 +265,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     // The nearest nadir point splits the ground between strips at the midline, as the
     // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
     nadirBy: "distance",
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
   });
   lap("assess");
@@ -237,6 +279,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
     planRasters: assessment.rasters,
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   });
   lap("baseline");
 
@@ -258,6 +301,17 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     baseline,
     takeoff: { x: layout.takeoff[0], y: layout.takeoff[1], lon: tLon, lat: tLat, groundM: takeoffGround },
     keepOut: { zones: keepOut ? zoneReports(keepOut, site.local, site.areaM2) : [] },
+    blocks: solvedBlocks.map((b) => {
+      const [lon, lat] = frame.toWgs84(...b.layout.takeoff);
+      return {
+        index: b.block.index,
+        takeoff: { x: b.layout.takeoff[0], y: b.layout.takeoff[1], lon, lat, groundM: b.groundM },
+        takeoffFrom: b.block.takeoffFrom,
+        ...(b.block.slopeDeg !== undefined ? { slopeDeg: b.block.slopeDeg } : {}),
+        strips: [...new Set(b.layout.legs.filter((l) => l.kind === "strip").map((l) => l.strip))],
+        farthestM: b.block.farthestM,
+      };
+    }),
     budget: budget.summary,
     verification,
     rows,
@@ -325,6 +379,40 @@ function zoneNear(polygons: readonly number[][][][], box: { west: number; east: 
     if (l >= box.west - dLon && l <= box.east + dLon && lat >= box.south - dLat && lat <= box.north + dLat) return true;
   }
   return false;
+}
+
+/** The blocks' solve results as one. */
+function mergeSolves(all: readonly SolveResult[]): SolveResult {
+  if (all.length === 1) return all[0];
+  const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
+  for (const r of all) {
+    counts.ok += r.counts.ok;
+    counts.detailLimited += r.counts.detailLimited;
+    counts.unflyable += r.counts.unflyable;
+  }
+  // Notes every block repeats (the ceiling rule, the obstacle margin) are said once.
+  const seen = new Set<string>();
+  const warnings = all.flatMap((r) => r.warnings).filter((w) => !seen.has(w.message) && seen.add(w.message));
+  return { legs: all.flatMap((r) => r.legs), warnings, counts };
+}
+
+/**
+ * A warning per flight with a waypoint farther than `rangeM` from its take-off point
+ * (legs are straight, so the farthest point of a leg is one of its ends).
+ */
+function rangeBreaches(flights: FlightSplit["flights"], rangeM: number): SolveWarning[] {
+  if (!(rangeM > 0)) return [];
+  const out: SolveWarning[] = [];
+  for (const f of flights) {
+    const t = f.takeoff?.xy ?? f.legs[0]?.from;
+    if (!t) continue;
+    let far = 0;
+    for (const l of f.legs) for (const w of l.waypoints) far = Math.max(far, Math.hypot(w.x - t[0], w.y - t[1]));
+    if (far > rangeM + 0.01) {
+      out.push({ code: "range", message: `Flight ${f.index} reaches ${far.toFixed(0)} m from its take-off point, beyond the ${rangeM} m range (aircraft.maxRangeM).` });
+    }
+  }
+  return out;
 }
 
 /** Largest spacing of the solver's stations, metres (see planMission). */
@@ -399,7 +487,7 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     south = Math.max(-90, Math.min(south, lat - dLat));
     north = Math.min(90, Math.max(north, lat + dLat));
   };
-  if (options.takeoff) include(options.takeoff[0], options.takeoff[1], 0);
+  for (const [lon, lat] of options.takeoffs ?? (options.takeoff ? [options.takeoff] : [])) include(lon, lat, 0);
   const siteBox = { west, east, south, north };
   for (const z of parsedZones) {
     const padM = (z.bufferM ?? options.keepOutBufferM) + options.clearance.safetyRadiusM + ZONE_ROOM_M;
@@ -638,11 +726,12 @@ function groundAt(grid: DemGrid, xy: XY, assumeGroundM?: number): number {
 function transitThroughSolver(
   grid: DemGrid, from: XY, to: XY, strip: number, direction: "out" | "back", solved: readonly SolvedLeg[], opts: SolverOptions,
   warningsOf: WeakMap<SolvedLeg, SolveWarning[]>,
+  joinM?: number,
 ): SolvedLeg {
   const lengthM = Math.hypot(to[0] - from[0], to[1] - from[1]);
   const leg: LayoutLeg = { kind: "transit", strip, from, to, lengthM };
-  const startAltM = direction === "back" ? joinHeightM(solved, from, "end") : undefined;
-  const endAltM = direction === "out" ? joinHeightM(solved, to, "start") : undefined;
+  const startAltM = direction === "back" ? (joinHeightM(solved, from, "end") ?? joinM) : undefined;
+  const endAltM = direction === "out" ? (joinHeightM(solved, to, "start") ?? joinM) : undefined;
   const r = solveTransit(grid, leg, opts, startAltM, endAltM);
   warningsOf.set(r.leg, r.warnings);
   return r.leg;

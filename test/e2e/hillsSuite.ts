@@ -25,6 +25,7 @@ export const CSV_HEADER =
 /** The output set of one run (issue 6, "Outputs in --out"). */
 export const OUTPUT_FILES = [
   "flags.tif",
+  "flights.csv",
   "gsd.tif",
   "images.tif",
   "plan.geojson",
@@ -132,6 +133,8 @@ export function hillsPlanSuite(c: HillsCase): void {
     let rows: Row[] = [];
     let header: string[] = [];
     let summary: Record<string, any> = {};
+    /** Each flight's take-off point and ground, from flights.csv (blocks take off from their own points). */
+    let takeoffOf = new Map<number, { lon: number; lat: number; groundAmslM: number }>();
     const inputs = [c.planFile, c.dem, c.site].map((f) => path.join(ROOT, f));
     let before: string[] = [];
 
@@ -142,6 +145,8 @@ export function hillsPlanSuite(c: HillsCase): void {
       run = runCli(["plan", c.planFile, "--out", out]);
       if (run.status !== 0) throw new Error(`plan failed (${run.status}): ${run.stderr}`);
       const csv = parseCsv(readFileSync(path.join(out, "waypoints.csv"), "utf8"));
+      const fl = parseCsv(readFileSync(path.join(out, "flights.csv"), "utf8"));
+      takeoffOf = new Map(fl.rows.map((r) => [Number(r[0]), { lon: Number(r[2]), lat: Number(r[3]), groundAmslM: Number(r[4]) }]));
       header = csv.header;
       rows = csv.rows.map((r) => ({
         flight: Number(r[0]),
@@ -210,19 +215,19 @@ export function hillsPlanSuite(c: HillsCase): void {
         expect(worst).toBeLessThanOrEqual(0.1);
       });
 
-      it("above take-off = AMSL - take-off ground, and that ground is GDAL's height at the take-off point", () => {
-        const t = summary.takeoff;
-        for (const r of rows) expect(Math.abs(r.takeoff - (r.amsl - t.groundAmslM))).toBeLessThanOrEqual(0.0151);
-        const [xy] = cs2csFromWgs84(c.demEpsg, [[t.lon, t.lat]]);
-        const [g] = gdalBilinearM(path.join(ROOT, c.dem), [xy], c.demUnitToM);
-        expect(Math.abs(t.groundAmslM - g)).toBeLessThanOrEqual(0.05);
+      it("above take-off = AMSL - the flight's take-off ground, and that ground is GDAL's height at its take-off point", () => {
+        for (const r of rows) expect(Math.abs(r.takeoff - (r.amsl - takeoffOf.get(r.flight)!.groundAmslM))).toBeLessThanOrEqual(0.0151);
+        const points = [...new Map([...takeoffOf.values()].map((t) => [`${t.lon},${t.lat}`, t])).values()];
+        const xy = cs2csFromWgs84(c.demEpsg, points.map((t) => [t.lon, t.lat]));
+        const g = gdalBilinearM(path.join(ROOT, c.dem), xy, c.demUnitToM);
+        points.forEach((t, i) => expect(Math.abs(t.groundAmslM - g[i])).toBeLessThanOrEqual(0.05));
       });
 
-      it("every flight starts and ends over the take-off point; its first row is a transit at speed 0 (issue 6)", () => {
-        const t = summary.takeoff;
+      it("every flight starts and ends over its take-off point; its first row is a transit at speed 0 (issue 6)", () => {
         const flights = [...new Set(rows.map((r) => r.flight))];
         expect(flights).toEqual(Array.from({ length: summary.flights }, (_, i) => i + 1));
         for (const f of flights) {
+          const t = takeoffOf.get(f)!;
           const fr = rows.filter((r) => r.flight === f);
           const first = fr[0];
           const last = fr[fr.length - 1];

@@ -5,6 +5,7 @@ import { registerPlan } from "./plan.js";
 import { registerReport } from "./report.js";
 import { registerDemo } from "./demo.js";
 import { registerVerify } from "./verify.js";
+import { registerCampaign } from "./campaign.js";
 
 /**
  * Every subcommand registers itself here. Command modules must keep heavy
@@ -17,4 +18,5 @@ export function registerCommands(program: Command): void {
   registerReport(program);
   registerDemo(program);
   registerVerify(program);
+  registerCampaign(program);
 }

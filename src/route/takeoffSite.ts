@@ -1,0 +1,76 @@
+/**
+ * Where to take off for a block when the user gave no point that reaches it:
+ * on DEM ground inside the site, outside keep-out zones, on the flattest ground
+ * near the block's centre. Pure: grid, masks and tests in, a point out.
+ */
+import type { DemGrid } from "../dem/grid.js";
+import type { XY } from "../layout/types.js";
+
+export interface TakeoffSearch {
+  grid: DemGrid;
+  /** 1 where a cell centre lies inside the site (the assessment's rasterised site). */
+  inSite: Uint8Array;
+  /** True where the aircraft may not be (keep-out zones with their buffers). */
+  blocked?: (p: XY) => boolean;
+  /** True when every point of the block is within range of p. */
+  reaches: (p: XY) => boolean;
+}
+
+export interface ProposedTakeoff {
+  xy: XY;
+  /** Ground slope there, degrees (Horn's 3 x 3 gradient). */
+  slopeDeg: number;
+  /** Distance from the block's centre, metres. */
+  offsetM: number;
+}
+
+/** Slopes within this many degrees count as equally flat: the nearer point wins. */
+const SLOPE_STEP_DEG = 0.5;
+
+/**
+ * The proposed take-off cell: among site cells within `radiusM` of `centre`
+ * (widened by doubling up to `maxRadiusM` until one qualifies) whose 3 x 3
+ * neighbourhood has data, that lie outside keep-out zones and from which the
+ * whole block is in range, the one with the least slope, rounded to 0.5 degrees,
+ * nearest the centre on a tie. Slope is Horn's method (B. K. P. Horn, "Hill
+ * shading and the reflectance map", Proc. IEEE 69(1), 1981: the 3 x 3 weighted
+ * gradient GDAL's gdaldem slope uses). Null when no cell qualifies.
+ * @example proposeTakeoff(search, [250, 300], 75, 500)?.xy
+ */
+export function proposeTakeoff(s: TakeoffSearch, centre: XY, radiusM: number, maxRadiusM: number): ProposedTakeoff | null {
+  const { grid } = s;
+  const { width, height, heights, valid } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const [cw, ch] = grid.cellSizeM;
+  for (let r = radiusM; ; r = Math.min(2 * r, maxRadiusM)) {
+    const c0 = Math.max(1, Math.floor((centre[0] - r - x0) / dx - 0.5));
+    const c1 = Math.min(width - 2, Math.ceil((centre[0] + r - x0) / dx - 0.5));
+    const rA = Math.floor((centre[1] - r - y0) / dy - 0.5), rB = Math.ceil((centre[1] + r - y0) / dy - 0.5);
+    const r0 = Math.max(1, Math.min(rA, rB)), r1 = Math.min(height - 2, Math.max(rA, rB));
+    let best: ProposedTakeoff | null = null;
+    let bestKey = Infinity;
+    for (let row = r0; row <= r1; row++) {
+      for (let col = c0; col <= c1; col++) {
+        const i = row * width + col;
+        if (s.inSite[i] !== 1) continue;
+        const xy: XY = [x0 + (col + 0.5) * dx, y0 + (row + 0.5) * dy];
+        const offsetM = Math.hypot(xy[0] - centre[0], xy[1] - centre[1]);
+        if (offsetM > r) continue;
+        let ok = true;
+        for (let a = -1; a <= 1 && ok; a++) for (let b = -1; b <= 1 && ok; b++) ok = valid[i + a * width + b] === 1;
+        if (!ok) continue;
+        const z = (a: number, b: number) => heights[i + a * width + b];
+        // Horn: dz/dx and dz/dy from the weighted 3 x 3 differences (rows run with dy).
+        const gx = (z(-1, 1) + 2 * z(0, 1) + z(1, 1) - z(-1, -1) - 2 * z(0, -1) - z(1, -1)) / (8 * cw);
+        const gy = (z(1, -1) + 2 * z(1, 0) + z(1, 1) - z(-1, -1) - 2 * z(-1, 0) - z(-1, 1)) / (8 * ch);
+        const slopeDeg = (Math.atan(Math.hypot(gx, gy)) * 180) / Math.PI;
+        const key = Math.round(slopeDeg / SLOPE_STEP_DEG) * 1e7 + offsetM;
+        if (key >= bestKey) continue;
+        if (s.blocked?.(xy) || !s.reaches(xy)) continue;
+        best = { xy, slopeDeg, offsetM };
+        bestKey = key;
+      }
+    }
+    if (best || r >= maxRadiusM) return best;
+  }
+}
