@@ -8,6 +8,8 @@
 //   3. scaling over 0.5, 1 and 4 km2, and one case from a source four times the size
 //   4. constant-altitude baseline vs ours, and the solver's quality figures
 //   5. assessment alone at its working size (assess.mjs)
+//   6. the DEM window from four tiles vs one file, and from a COG over loopback HTTP vs
+//      the same COG from disk, beside gdal_translate on the tiles' VRT (mosaic.mjs)
 //
 // Runs against the build in dist/ (built first with `npm run build` when missing, or when
 // --build is given). Every measured job runs in its own process (peak memory is its own).
@@ -29,6 +31,7 @@ import { join, dirname } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import { cpus, loadavg, totalmem } from "node:os";
 import { runDemWindowBench } from "./dem-window.mjs";
+import { runMosaicBench } from "./mosaic.mjs";
 import { benchPlan } from "./plan.mjs";
 import { benchScaling } from "./scaling.mjs";
 import { benchQuality } from "./baseline.mjs";
@@ -46,7 +49,7 @@ const opt = (name, def) => {
   const i = args.indexOf(`--${name}`);
   return i >= 0 ? args[i + 1] : def;
 };
-const only = new Set(String(opt("only", "1,2,3,4,5")).split(",").map((s) => s.trim()));
+const only = new Set(String(opt("only", "1,2,3,4,5,6")).split(",").map((s) => s.trim()));
 const timeoutS = Number(opt("timeout", 300));
 const repeat = Number(opt("repeat", 3));
 const log = (m) => process.stderr.write(`[bench ${new Date().toISOString().slice(11, 19)} load ${loadavg()[0].toFixed(1)}] ${m}\n`);
@@ -100,8 +103,21 @@ function save() {
   writeFileSync(tmp, JSON.stringify(results, null, 2) + "\n");
   renameSync(tmp, outFile);
 }
-function attempt(name, fn) {
+/** As attempt, for a section that is measured asynchronously (it runs a server meanwhile). */
+async function attemptAsync(name, fn) {
   const t = performance.now();
+  let value, error;
+  try {
+    value = await fn();
+  } catch (e) {
+    error = e;
+  }
+  return attempt(name, () => {
+    if (error) throw error;
+    return value;
+  }, t);
+}
+function attempt(name, fn, t = performance.now()) {
   try {
     const r = fn();
     results.sections[name] = r;
@@ -124,6 +140,10 @@ if (only.has("3")) demLarge();
 if (only.has("1")) {
   log("1: DEM window read vs gdal_translate");
   attempt("demWindow", () => runDemWindowBench({ repeat }));
+}
+if (only.has("6")) {
+  log("6: DEM window from four tiles and from a COG over loopback HTTP (scripts/bench/mosaic.mjs)");
+  await attemptAsync("mosaic", () => runMosaicBench({ repeat }));
 }
 if (only.has("5")) {
   log("5: assessment alone (scripts/bench/assess.mjs)");
@@ -279,6 +299,18 @@ function tableRows(s) {
     rows.push(row("5", "assessment process peak RSS", fmt.mb(a.peakRssBytes), `grid ${fmt.mb(r.cells * 4)}`, a.peakRssBytes / (r.cells * 4), "< 1 GB", a.peakRssBytes < GB));
     rows.push(row("5", "cells per second", fmt.n(r.cellsPerSecond), "", NaN));
     if (p && !p.error && !p.timedOut) rows.push(row("5", "assess stage inside the 4 km2 plan (wall / CPU)", `${fmt.s(p.stagesS.assess)} / ${fmt.s(p.stagesCpuS.assess)}`, "", NaN, "< 3 s", p.stagesS.assess < 3));
+  }
+
+  // 6. Tiles and COG over HTTP
+  const mo = s.mosaic;
+  failed("6", "DEM window from tiles / over HTTP", mo);
+  if (mo && !mo.error) {
+    const r = mo.ratios;
+    rows.push(row("6", "DEM window 4000x4000 from 4 tiles, read", fmt.s(mo.fourTiles.readS), `one file ${fmt.s(mo.oneFile.readS)}; gdal_translate on the VRT ${fmt.s(mo.gdal.vrt.wallS)} (one file ${fmt.s(mo.gdal.oneFile.wallS)})`, r.tilesOverOneFile, "<= 1.2x", r.tilesOverOneFile <= 1.2));
+    rows.push(row("6", "  the same, CPU (all threads)", fmt.s(mo.fourTiles.readCpuS), `one file ${fmt.s(mo.oneFile.readCpuS)}; gdal_translate on the VRT ${fmt.s(mo.gdal.vrt.cpuS)}`, r.tilesOverOneFileCpu, "<= 1.2x", r.tilesOverOneFileCpu <= 1.2));
+    rows.push(row("6", "DEM window from a COG over loopback HTTP, read", fmt.s(mo.cogHttp.readS), `the COG from disk ${fmt.s(mo.cogDisk.readS)}`, r.httpOverDisk, "<= 2x", r.httpOverDisk <= 2));
+    rows.push(row("6", "  the same, CPU of the reader", fmt.s(mo.cogHttp.readCpuS), `the COG from disk ${fmt.s(mo.cogDisk.readCpuS)}`, r.httpOverDiskCpu, "<= 2x", r.httpOverDiskCpu <= 2));
+    rows.push(row("6", "  bytes fetched over HTTP per read", fmt.mb(mo.cogHttp.bytesFetchedPerRead), `window ${fmt.mb(4000 * 4000 * 4)} as Float32`, NaN));
   }
   return rows;
 }

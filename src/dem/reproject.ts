@@ -1,9 +1,9 @@
-import proj4 from "proj4";
 import { InputError } from "../errors.js";
 import type { CrsInfo, DemGrid } from "./grid.js";
 import { transformBounds } from "./bounds.js";
 import { proj4LinearUnitM } from "./crs.js";
-import { MAX_CELLS } from "./source.js";
+import { MAX_CELLS } from "./limits.js";
+import { CentreLattice } from "./lattice.js";
 
 /** Options of toMetricGrid. */
 export interface ToMetricOptions {
@@ -14,10 +14,6 @@ export interface ToMetricOptions {
   name?: string;
 }
 
-// Source coordinates are computed exactly every LATTICE cells and interpolated in between,
-// the approach of GDAL's approximate transformer (gdalwarp -et); over a few hundred metres
-// a map projection is linear far below a centimetre.
-const LATTICE = 16;
 
 function sameCrs(a: CrsInfo, targetProj4: string, epsg: number | null | undefined): boolean {
   if (a.proj4.trim() === targetProj4.trim()) return true;
@@ -49,39 +45,18 @@ export function toMetricGrid(grid: DemGrid, targetProj4: string, opts: ToMetricO
   const height = Math.max(1, Math.ceil((y0 - tb.south) / cellM));
   if (width * height > MAX_CELLS) throw new InputError("cellM", cellM, "a cell size giving at most 2^31 cells", `reprojected grid would be ${width} x ${height} cells`);
 
-  // Source column/row (fractional, cell centres at integers) of lattice nodes.
-  const conv = proj4(targetProj4, grid.crs.proj4);
-  const lw = Math.ceil((width - 1) / LATTICE) + 1;
-  const lh = Math.ceil((height - 1) / LATTICE) + 1;
-  const lc = new Float64Array(lw * lh);
-  const lr = new Float64Array(lw * lh);
-  for (let j = 0; j < lh; j++) {
-    const row = Math.min(j * LATTICE, height - 1);
-    const y = y0 - (row + 0.5) * cellM;
-    for (let i = 0; i < lw; i++) {
-      const col = Math.min(i * LATTICE, width - 1);
-      const [sx, sy] = conv.forward([x0 + (col + 0.5) * cellM, y]);
-      lc[j * lw + i] = (sx - st.x0) / st.dx - 0.5;
-      lr[j * lw + i] = (sy - st.y0) / st.dy - 0.5;
-    }
-  }
+  // Where each target cell centre lies in the source CRS (exact every LATTICE_STEP cells).
+  const lattice = new CentreLattice({ x0, y0, dx: cellM, dy: -cellM }, 0, 0, width, height, targetProj4, grid.crs.proj4);
 
   const heights = new Float32Array(width * height);
   const valid = new Uint8Array(width * height);
   const sw = grid.width, sh = grid.height, src = grid.heights, sv = grid.valid;
   for (let row = 0; row < height; row++) {
-    const j = Math.min(Math.floor(row / LATTICE), lh - 2 < 0 ? 0 : lh - 2);
-    const rA = Math.min(j * LATTICE, height - 1), rB = Math.min((j + 1) * LATTICE, height - 1);
-    const v = rB > rA ? (row - rA) / (rB - rA) : 0;
-    const j1 = Math.min(j + 1, lh - 1);
     for (let col = 0; col < width; col++) {
-      const i = Math.min(Math.floor(col / LATTICE), lw - 2 < 0 ? 0 : lw - 2);
-      const cA = Math.min(i * LATTICE, width - 1), cB = Math.min((i + 1) * LATTICE, width - 1);
-      const u = cB > cA ? (col - cA) / (cB - cA) : 0;
-      const i1 = Math.min(i + 1, lw - 1);
-      const k00 = j * lw + i, k10 = j * lw + i1, k01 = j1 * lw + i, k11 = j1 * lw + i1;
-      let c = (1 - v) * ((1 - u) * lc[k00] + u * lc[k10]) + v * ((1 - u) * lc[k01] + u * lc[k11]);
-      let r = (1 - v) * ((1 - u) * lr[k00] + u * lr[k10]) + v * ((1 - u) * lr[k01] + u * lr[k11]);
+      const [sx, sy] = lattice.at(col, row);
+      // Source column/row, cell centres at integers.
+      let c = (sx - st.x0) / st.dx - 0.5;
+      let r = (sy - st.y0) / st.dy - 0.5;
       const o = row * width + col;
       // Outside the source raster (beyond its outer cell edges): nodata.
       if (!(c >= -0.5 && c <= sw - 0.5 && r >= -0.5 && r <= sh - 0.5)) {

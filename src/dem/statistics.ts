@@ -17,26 +17,56 @@ export interface DemStatistics {
 
 /** Options of demStatistics. */
 export interface DemStatisticsOptions {
-  /** Most cells to decode (default 1 000 000); smaller files are read whole. */
+  /** Rasters of at most this many cells are read whole, if that is quick (default 50 000 000). */
+  maxExactCells?: number;
+  /** Time a whole read may take, milliseconds (default 1000); past it the figures are estimated. */
+  budgetMs?: number;
+  /** Cells decoded for an estimate (default 1 000 000). */
   maxSamples?: number;
+  /** Clock in milliseconds (default performance.now), injected for tests. */
+  now?: () => number;
+  /** Cells per read while going through a whole raster (default 4 000 000): bounds its memory. */
+  chunkCells?: number;
 }
 
 /**
- * Min/max/mean height and nodata share from a bounded sample: the whole raster when it
- * has at most `maxSamples` cells, else whole strips/tiles spread evenly over the file
- * (each decoded block is read once, so the cost is bounded by maxSamples plus one block).
+ * Min/max/mean height and nodata share. Exact (every cell read, chunk by chunk) when the
+ * raster has at most `maxExactCells` cells and the read keeps to `budgetMs` (judged from
+ * the pace of the chunks read so far); otherwise an estimate from whole strips/tiles spread
+ * evenly over the raster (each decoded block read once: the cost is bounded by maxSamples
+ * plus one block), with `exact: false`.
  * @example
- * const s = await demStatistics(dem, { maxSamples: 250_000 });
- * s.exact; // true for small files
+ * const s = await demStatistics(dem);
+ * s.exact; // true for files of up to ~50 M cells that read within about a second
  */
 export async function demStatistics(source: DemSource, opts: DemStatisticsOptions = {}): Promise<DemStatistics> {
-  const maxSamples = Math.max(1, Math.floor(opts.maxSamples ?? 1_000_000));
+  const maxExact = opts.maxExactCells ?? 50_000_000;
+  const budgetMs = opts.budgetMs ?? 1000;
+  const now = opts.now ?? (() => performance.now());
   const total = source.width * source.height;
-  const acc = { min: Infinity, max: -Infinity, sum: 0, valid: 0, cells: 0 };
-  if (total <= maxSamples) {
-    await accumulate(source, { col0: 0, row0: 0, col1: source.width, row1: source.height }, acc);
-    return finish(acc, true);
+  if (total <= maxExact) {
+    const acc = { min: Infinity, max: -Infinity, sum: 0, valid: 0, cells: 0 };
+    // Whole rows of blocks per chunk, so no block is decoded twice.
+    const bh = Math.max(1, source.blockHeight);
+    const rows = Math.max(bh, Math.floor((opts.chunkCells ?? 4_000_000) / source.width / bh) * bh);
+    const t0 = now();
+    let done = true;
+    for (let r = 0; r < source.height; r += rows) {
+      await accumulate(source, { col0: 0, row0: r, col1: source.width, row1: Math.min(source.height, r + rows) }, acc);
+      const elapsed = now() - t0;
+      // The pace so far says whether the rest fits the budget.
+      if (acc.cells < total && (elapsed * total) / acc.cells > budgetMs) {
+        done = false;
+        break;
+      }
+    }
+    if (done) return finish(acc, true);
   }
+  return estimate(source, Math.max(1, Math.floor(opts.maxSamples ?? 1_000_000)));
+}
+
+async function estimate(source: DemSource, maxSamples: number): Promise<DemStatistics> {
+  const acc = { min: Infinity, max: -Infinity, sum: 0, valid: 0, cells: 0 };
   const bw = source.blockWidth;
   const bh = source.blockHeight;
   const bx = Math.ceil(source.width / bw);

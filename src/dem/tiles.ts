@@ -1,6 +1,8 @@
 import { getDecoder, type GeoTIFFImage } from "geotiff";
 import { InputFileError } from "../errors.js";
 import type { DemSource } from "./source.js";
+import { remoteClient, remoteFailure } from "./tiffSource.js";
+import { fetchRuns, type RangeBlock, type RangeClient } from "./remote.js";
 import type { CellWindow } from "./window.js";
 import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
 
@@ -8,8 +10,10 @@ type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint
 
 // Compressions whose decoders need only the default parameters (LERC and JPEG need more).
 const SIMPLE_COMPRESSIONS = new Set([1, 5, 8, 32946, 32773, 50000]);
-// Blocks decoded at once: bounds the compressed and decoded blocks alive together.
-const BATCH = 16;
+// Blocks in flight at once: bounds the compressed and decoded blocks alive together. A pool
+// rather than lockstep batches, so that fetching some blocks (over HTTP above all) overlaps
+// decoding others.
+const IN_FLIGHT = 16;
 
 function rawView(fmt: DemSource["sampleFormat"], bits: number, buf: ArrayBuffer): Raw {
   if (fmt === "float") return bits === 64 ? new Float64Array(buf, 0, buf.byteLength >> 3) : new Float32Array(buf, 0, buf.byteLength >> 2);
@@ -17,11 +21,20 @@ function rawView(fmt: DemSource["sampleFormat"], bits: number, buf: ArrayBuffer)
   return bits === 8 ? new Uint8Array(buf) : bits === 16 ? new Uint16Array(buf, 0, buf.byteLength >> 1) : new Uint32Array(buf, 0, buf.byteLength >> 2);
 }
 
+/** Where a window lands in a larger output: its first cell at (col, row) of rows `stride` cells wide. */
+export interface OutputPlace {
+  stride: number;
+  col: number;
+  row: number;
+}
+
 /**
  * Decodes the strips/tiles under a cell window and writes heights in metres straight
- * into the output (one pass: no intermediate window of raw samples). Returns false when
- * the file's layout needs geotiff's general reader (big-endian, mixed sample sizes,
- * JPEG/LERC), so the caller can fall back to it.
+ * into the output (one pass: no intermediate window of raw samples), by default as a
+ * window-sized grid, or at `place` in a larger one (a mosaic's). Returns false, having
+ * written nothing, when the file's layout needs geotiff's general reader (big-endian,
+ * mixed sample sizes, JPEG/LERC), so the caller can fall back to it.
+ * @example if (!(await decodeWindowDirect(dem, image, win, heights, valid))) { ... }
  */
 export async function decodeWindowDirect(
   source: DemSource,
@@ -29,6 +42,7 @@ export async function decodeWindowDirect(
   win: CellWindow,
   heights: Float32Array,
   valid: Uint8Array,
+  place: OutputPlace = { stride: win.col1 - win.col0, col: 0, row: 0 },
 ): Promise<boolean> {
   const fd = image.fileDirectory;
   const bitsAll = Array.from(fd.getValue("BitsPerSample") as ArrayLike<number>);
@@ -54,7 +68,9 @@ export async function decodeWindowDirect(
   const base = source.compressionCode === 5 ? new StrictLzwDecoder(params) : await getDecoder(source.compressionCode, params as never);
   const decoderFor = source.compressionCode === 50000 ? (ty: number) => withZstdContentSize(base, blockBytes(ty)) : () => base;
 
-  const outW = win.col1 - win.col0;
+  const outW = place.stride;
+  // Output index of cell (col, row): (row - wr0) * outW + (col - wc0).
+  const wc0 = win.col0 - place.col, wr0 = win.row0 - place.row;
   const k = source.scale * source.verticalUnitM;
   const c = source.offset * source.verticalUnitM;
   const nd = source.nodata === null ? NaN : source.sampleFormat === "float" && source.bitsPerSample === 32 ? Math.fround(source.nodata) : source.nodata;
@@ -66,18 +82,62 @@ export async function decodeWindowDirect(
   const jobs: [number, number][] = [];
   for (let ty = ty0; ty < ty1; ty++) for (let tx = tx0; tx < tx1; tx++) jobs.push([tx, ty]);
 
-  for (let j = 0; j < jobs.length; j += BATCH) {
-    await Promise.all(
-      jobs.slice(j, j + BATCH).map(async ([tx, ty]) => {
-        const data = await readBlock(source, image, decoderFor(ty), tx, ty, planar === 2 ? s : 0, blockBytes(ty));
-        const raw = rawView(source.sampleFormat, source.bitsPerSample, data);
-        const colA = Math.max(win.col0, tx * tw), colB = Math.min(win.col1, (tx + 1) * tw);
-        const rowA = Math.max(win.row0, ty * th), rowB = Math.min(win.row1, (ty + 1) * th, source.height);
-        copyBlock(raw, tw, tx * tw, ty * th, pixStride, sampleOff, colA, colB, rowA, rowB, win.col0, win.row0, outW, heights, valid, k, c, nd);
-      }),
-    );
+  const sample = planar === 2 ? s : 0;
+  const place1 = (tx: number, ty: number, data: ArrayBuffer) => {
+    const raw = rawView(source.sampleFormat, source.bitsPerSample, data);
+    const colA = Math.max(win.col0, tx * tw), colB = Math.min(win.col1, (tx + 1) * tw);
+    const rowA = Math.max(win.row0, ty * th), rowB = Math.min(win.row1, (ty + 1) * th, source.height);
+    copyBlock(raw, tw, tx * tw, ty * th, pixStride, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, valid, k, c, nd);
+  };
+
+  const client = remoteClient(source);
+  if (client) {
+    await decodeRemote(source, image, client, jobs, sample, decoderFor, blockBytes, place1);
+    return true;
   }
+  let next = 0;
+  const worker = async () => {
+    while (next < jobs.length) {
+      const [tx, ty] = jobs[next++];
+      place1(tx, ty, await readBlock(source, image, decoderFor(ty), tx, ty, sample, blockBytes(ty)));
+    }
+  };
+  await Promise.all(Array.from({ length: Math.min(IN_FLIGHT, jobs.length) }, worker));
   return true;
+}
+
+/**
+ * Over HTTP, the blocks of a window are fetched by the runs they form in the file (the
+ * tiles of a row of a COG lie one after another), a few runs at a time, each decoded as it
+ * arrives: exactly the bytes the window needs, in few requests, with fetching overlapping
+ * decoding. geotiff's block cache stays for the header, where reads are small and scattered.
+ */
+async function decodeRemote(
+  source: DemSource, image: GeoTIFFImage, client: RangeClient, jobs: [number, number][], sample: number,
+  decoderFor: (ty: number) => unknown, blockBytes: (ty: number) => number, place1: (tx: number, ty: number, data: ArrayBuffer) => void,
+): Promise<void> {
+  const fd = image.fileDirectory;
+  const across = Math.ceil(source.width / image.getTileWidth()), down = Math.ceil(source.height / image.getTileHeight());
+  const tag = image.isTiled ? "Tile" : "Strip";
+  const blocks: RangeBlock<[number, number]>[] = [];
+  for (const job of jobs) {
+    const index = (image.planarConfiguration === 2 ? sample * across * down : 0) + job[1] * across + job[0];
+    const offset = Number(await fd.loadValueIndexed(`${tag}Offsets`, index));
+    const length = Number(await fd.loadValueIndexed(`${tag}ByteCounts`, index));
+    blocks.push({ offset, length, key: job });
+  }
+  await fetchRuns(client, blocks, async (key, bytes) => {
+    const [tx, ty] = key;
+    let data: ArrayBuffer;
+    try {
+      // A block of 0 bytes is sparse (GDAL leaves empty blocks out): geotiff's reader fills it.
+      data = bytes.byteLength === 0 ? ((await image.getTileOrStrip(tx, ty, sample, decoderFor(ty) as never)).data as ArrayBuffer) : ((await (decoderFor(ty) as { decode(b: ArrayBuffer): Promise<ArrayBuffer> }).decode(bytes)) as ArrayBuffer);
+    } catch (e) {
+      throw await damagedBlock(source, image, tx, ty, sample, String((e as Error)?.message ?? e).split("\n")[0]);
+    }
+    if (data.byteLength < blockBytes(ty)) throw await damagedBlock(source, image, tx, ty, sample, `decodes to ${data.byteLength} bytes, ${blockBytes(ty)} expected`);
+    place1(tx, ty, data);
+  });
 }
 
 /**
@@ -91,6 +151,9 @@ async function readBlock(source: DemSource, image: GeoTIFFImage, decoder: unknow
   try {
     data = (await image.getTileOrStrip(tx, ty, sample, decoder as never)).data as ArrayBuffer;
   } catch (e) {
+    // Over HTTP, a failed fetch is the server's fault, not damage in the file.
+    const remote = remoteFailure(source);
+    if (remote) throw remote;
     throw await damagedBlock(source, image, tx, ty, sample, String((e as Error)?.message ?? e).split("\n")[0]);
   }
   if (data.byteLength < need) throw await damagedBlock(source, image, tx, ty, sample, `decodes to ${data.byteLength} bytes, ${need} expected`);

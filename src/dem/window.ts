@@ -1,6 +1,7 @@
 import { InputError, InputFileError } from "../errors.js";
 import type { DemGrid } from "./grid.js";
-import { demHandles, type DemSource } from "./source.js";
+import { demHandles, remoteFailure, type DemSource } from "./source.js";
+import { cellReaderOf } from "./cellReaders.js";
 import { cellSizeMetres, metresPerDegree } from "./cellsize.js";
 import { transformBounds, type Bounds } from "./bounds.js";
 import { decodeWindowDirect } from "./tiles.js";
@@ -78,23 +79,36 @@ export async function readWindow(source: DemSource, bbox: Bounds, opts: ReadWind
 }
 
 /**
- * Reads a window given in cell indices (see readWindow for the conversions).
+ * Reads a window given in cell indices (see readWindow for the conversions). A mosaic
+ * (several files, a VRT) reads through its own reader, on its own grid.
  * @example const grid = await readCells(dem, { col0: 0, row0: 0, col1: 100, row1: 50 });
  */
 export async function readCells(source: DemSource, win: CellWindow): Promise<DemGrid> {
-  const { image } = demHandles(source);
   const width = win.col1 - win.col0;
   const height = win.row1 - win.row0;
-  let heights: Float32Array = new Float32Array(width * height);
-  let valid: Uint8Array = new Uint8Array(width * height);
-  if (!(await decodeWindowDirect(source, image, win, heights, valid))) {
-    // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).
-    const rasters = (await image.readRasters({
-      window: [win.col0, win.row0, win.col1, win.row1],
-      samples: [source.band - 1],
-      interleave: false,
-    })) as unknown as ArrayLike<number>[];
-    ({ heights, valid } = toMetres(rasters[0], source));
+  let heights: Float32Array;
+  let valid: Uint8Array;
+  const custom = cellReaderOf(source);
+  if (custom) {
+    ({ heights, valid } = await custom(win));
+  } else {
+    const { image } = demHandles(source);
+    heights = new Float32Array(width * height);
+    valid = new Uint8Array(width * height);
+    if (!(await decodeWindowDirect(source, image, win, heights, valid))) {
+      // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).
+      let rasters: ArrayLike<number>[];
+      try {
+        rasters = (await image.readRasters({
+          window: [win.col0, win.row0, win.col1, win.row1],
+          samples: [source.band - 1],
+          interleave: false,
+        })) as unknown as ArrayLike<number>[];
+      } catch (e) {
+        throw remoteFailure(source) ?? e;
+      }
+      ({ heights, valid } = toMetres(rasters[0], source));
+    }
   }
 
   const { x0, y0, dx, dy } = source.transform;

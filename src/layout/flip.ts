@@ -33,6 +33,11 @@ export function flipStripDirections(legs: readonly LayoutLeg[], takeoff: XY): La
       if (leg.noPhotoIntervals?.length) {
         flipped.noPhotoIntervals = leg.noPhotoIntervals.map(([a, b]) => [leg.lengthM - b, leg.lengthM - a] as [number, number]).reverse();
       }
+      if (leg.photoGrid) {
+        // The same photo positions counted from the other end.
+        const { firstM, everyM } = leg.photoGrid;
+        flipped.photoGrid = { firstM: (((leg.lengthM - firstM) % everyM) + everyM) % everyM, everyM };
+      }
       out.push(flipped);
       here = flipped.to;
     }

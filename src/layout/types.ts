@@ -50,6 +50,11 @@ export interface LayoutLeg {
    * `lengthM` is the polyline's length). Absent: straight.
    */
   via?: XY[];
+  /**
+   * Strip legs only: where the photos fall when the leg continues a line's photo sequence
+   * (a line cut at a block seam): at firstM + k x everyM from `from`. Absent: from `from`.
+   */
+  photoGrid?: { firstM: number; everyM: number };
 }
 
 export interface Layout {

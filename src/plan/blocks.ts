@@ -5,7 +5,7 @@
 import type { DemGrid } from "../dem/grid.js";
 import { rasteriseSite } from "../assess/siteMask.js";
 import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
-import { blockGrid, blockLegs, blocksOf, farthestFromM, stripFrame, stripPieces, type Block } from "../route/blocks.js";
+import { blockGrid, blockLegs, blocksOf, farthestFromM, stripFrame, stripPieces, type Block, type BlockGrid, type StripFrame } from "../route/blocks.js";
 import { pointInsideAny } from "../route/inside.js";
 import type { KeepOutSet } from "../route/keepOut.js";
 import { proposeTakeoff } from "../route/takeoffSite.js";
@@ -30,7 +30,7 @@ export interface BlockInputs {
   site: Site;
   grid: DemGrid;
   rangeM: number;
-  footprintAlongM: number;
+  triggerM: number;
   /** Candidate take-off points in the local frame (the user's `takeoff` list, or one point). */
   candidates: XY[];
   /** True when the user gave exactly one take-off point. */
@@ -42,9 +42,8 @@ export interface BlockInputs {
  * The blocks of a plan. With no range limit, or when the layout's take-off point
  * reaches every strip, the layout is one block as it is. Otherwise the strips are
  * cut into the fewest blocks of whole lines and equal lengths that a centred take-off
- * point reaches (route/blocks.ts blockGrid), grown past each seam by half a
- * footprint along (the front overlap carries across the seam; lines are the same
- * across blocks, so the side overlap does too), and each block takes off from the
+ * point reaches (route/blocks.ts blockGrid), each line cut between two of its photos
+ * and keeping its photo sequence across the seam (blocksOf), and each block takes off from the
  * nearest candidate that reaches it, else from a proposed point (route/takeoffSite.ts).
  * @example const { blocks, warnings } = planBlocks(inputs);
  */
@@ -71,11 +70,26 @@ export function planBlocks(b: BlockInputs): { blocks: PlannedBlock[]; warnings: 
   const one = asIs();
   if (one.farthestM <= b.rangeM) return { blocks: [one], warnings };
 
-  const seamM = b.footprintAlongM / 2;
+  // A seam moves by up to half a trigger distance to fall between two photos.
+  const seamM = b.triggerM / 2;
   const lines = new Set(pieces.map((p) => p.c)).size;
   const spacing = b.layout.spacingM;
-  const grid = blockGrid(whole.aMax - whole.aMin, lines, spacing, b.rangeM, seamM);
-  const blocks = blocksOf(pieces, grid, seamM);
+  // One block still, when some point near the middle reaches all of it (the grid's slack
+  // is for blocks whose take-off point is not known yet): a proposed or given point.
+  const halfDiagonalM = Math.hypot((whole.aMax - whole.aMin) / 2, (whole.cMax - whole.cMin) / 2);
+  if (halfDiagonalM <= b.rangeM) {
+    const single = blocksFor(b, { along: 1, across: 1, slackM: b.rangeM - halfDiagonalM }, whole, frame);
+    if (!single.warnings.some((w) => w.code === "range")) return { blocks: single.blocks, warnings: [...warnings, ...single.warnings] };
+  }
+  const res = blocksFor(b, blockGrid(whole.aMax - whole.aMin, lines, spacing, b.rangeM, seamM), whole, frame);
+  return { blocks: res.blocks, warnings: [...warnings, ...res.warnings] };
+}
+
+/** The blocks of one grid, each with its take-off point and legs. */
+function blocksFor(b: BlockInputs, grid: BlockGrid, whole: Block, frame: StripFrame): { blocks: PlannedBlock[]; warnings: SolveWarning[] } {
+  const warnings: SolveWarning[] = [];
+  const pieces = whole.pieces;
+  const blocks = blocksOf(pieces, grid, b.triggerM);
   const inSite = rasteriseSite(b.site.local, b.grid.width, b.grid.height, b.grid.transform);
   const out: PlannedBlock[] = [];
   let strip = 1;
@@ -91,7 +105,7 @@ export function planBlocks(b: BlockInputs): { blocks: PlannedBlock[]; warnings: 
       const found = proposeTakeoff(
         { grid: b.grid, inSite, reaches, ...(b.keepOut ? { blocked: (p: XY) => pointInsideAny(b.keepOut!.index, p) } : {}) },
         centre,
-        grid.slackM,
+        Math.max(grid.slackM, b.grid.cellSizeM[0] * 2),
         b.rangeM,
       );
       if (found) {
@@ -112,11 +126,15 @@ export function planBlocks(b: BlockInputs): { blocks: PlannedBlock[]; warnings: 
         message: `Block ${blk.index}: no take-off point on the site's DEM ground outside keep-out zones reaches all of it within ${b.rangeM} m (farthest ${farthestFromM(blk, frame, takeoff).toFixed(0)} m): give a take-off point, or a larger aircraft.maxRangeM if your rules allow.`,
       });
     }
-    const legs = blockLegs(blk, frame, takeoff, strip);
+    const legs = blockLegs(blk, frame, takeoff, strip, b.triggerM);
     strip = legs.lastStrip + 1;
     out.push({ index: blk.index, takeoff, takeoffFrom, ...(slopeDeg !== undefined ? { slopeDeg } : {}), legs: legs.legs, farthestM: farthestFromM(blk, frame, takeoff) });
   }
   const proposed = out.filter((p) => p.takeoffFrom === "proposed").length;
+  if (out.length === 1) {
+    warnings.push({ code: "takeoff-proposed", message: `The take-off point was moved to reach the whole site within the ${b.rangeM} m range: the pilot must confirm access, footing and line of sight there.` });
+    return { blocks: out, warnings };
+  }
   warnings.push({
     code: "blocks",
     message:

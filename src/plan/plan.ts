@@ -147,7 +147,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const candidates = (options.takeoffs ?? (options.takeoff ? [options.takeoff] : [])).map(([lon, lat]) => frame.fromWgs84(lon, lat));
   if (keepOut) for (const [k, c] of candidates.entries()) assertTakeoffOutside(keepOut, c, (options.takeoffs ?? [options.takeoff])[k]);
   const blocking = planBlocks({
-    layout: fullLayout, site, grid, rangeM: options.aircraft.maxRangeM, footprintAlongM: fp.alongM,
+    layout: fullLayout, site, grid, rangeM: options.aircraft.maxRangeM, triggerM,
     candidates, givenOne: options.takeoff !== undefined, keepOut,
   });
   warnings.push(...blocking.warnings);
@@ -751,12 +751,12 @@ function joinHeightM(legs: readonly SolvedLeg[], xy: XY, end: "start" | "end"): 
 
 /**
  * The solver may split a strip around an unflyable stretch; the layout's
- * no-photo intervals (holes) are in the original strip's along-track distance,
- * so shift them onto each solved piece.
+ * no-photo intervals (holes) and photo grid are in the original strip's
+ * along-track distance, so shift them onto each solved piece.
  */
 function carryNoPhotoIntervals(solved: SolvedLeg[], layoutLegs: LayoutLeg[]): void {
   const byStrip = new Map<number, LayoutLeg[]>();
-  for (const l of layoutLegs) if (l.kind === "strip" && l.noPhotoIntervals?.length) {
+  for (const l of layoutLegs) if (l.kind === "strip" && (l.noPhotoIntervals?.length || l.photoGrid)) {
     const list = byStrip.get(l.strip) ?? [];
     list.push(l);
     byStrip.set(l.strip, list);
@@ -771,8 +771,13 @@ function carryNoPhotoIntervals(solved: SolvedLeg[], layoutLegs: LayoutLeg[]): vo
       // The piece must lie on this layout leg (same line, inside its extent).
       const off = Math.abs(-(leg.from[0] - src.from[0]) * uy + (leg.from[1] - src.from[1]) * ux);
       if (off > 0.01 || s0 < -0.01 || s1 > src.lengthM + 0.01) continue;
-      const shifted = src
-        .noPhotoIntervals!.map(([a, b]) => [Math.max(0, a - s0), Math.min(leg.lengthM, b - s0)] as [number, number])
+      if (src.photoGrid) {
+        // A piece of a line cut at a block seam keeps the line's photo positions.
+        const { firstM, everyM } = src.photoGrid;
+        leg.photoPhaseM = (((firstM - s0) % everyM) + everyM) % everyM;
+      }
+      const shifted = (src.noPhotoIntervals ?? [])
+        .map(([a, b]) => [Math.max(0, a - s0), Math.min(leg.lengthM, b - s0)] as [number, number])
         .filter(([a, b]) => b > a);
       if (shifted.length) leg.noPhotoIntervals = shifted;
     }

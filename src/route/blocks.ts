@@ -13,6 +13,11 @@ export interface StripPiece {
   a1: number;
   /** Along-track stretches without photos, in metres from a0 (the layout's holes). */
   noPhoto?: [number, number][];
+  /**
+   * Along coordinate of the line's photo grid origin: photos fall at photoGridA + k x trigger,
+   * so pieces of one line cut at a seam continue one sequence of photos. Absent: the piece's own ends.
+   */
+  photoGridA?: number;
 }
 
 /** One block: its strip pieces (cut at the block's along edges, overlapping the seams). */
@@ -75,8 +80,8 @@ export interface BlockGrid {
 /**
  * The fewest blocks whose every point lies within `rangeM` of the block's centre
  * less `slackM`: blocks are rectangles of whole strips across (lines `spacingM`
- * apart) and equal lengths along, each grown by `seamM` past each inner seam (so
- * photos overlap across it). Every split of the strips across (1, 2, ... blocks)
+ * apart) and equal lengths along, each seam free to move by up to `seamM` (a line is
+ * cut between two of its photos, see blocksOf). Every split of the strips across (1, 2, ... blocks)
  * is tried with the fewest blocks along that fits; the least total wins, the more
  * square on a tie (shorter transits within a block).
  * @example blockGrid(5000, 80, 40, 500, 25) // { along: 9, across: 9, ... } for a 5 km x 3.2 km site
@@ -106,11 +111,15 @@ export function blockGrid(alongM: number, lines: number, spacingM: number, range
 /**
  * The pieces grouped into blocks: lines split across into `grid.across` groups of
  * consecutive strips (sizes differing by at most one), the along extent into
- * `grid.along` equal lengths, each piece cut at the seams and grown by `seamM`
- * past each seam it was cut at (not past its own ends). Empty blocks are dropped.
- * @example blocksOf(pieces, blockGrid(...), 25).length
+ * `grid.along` equal lengths. A piece is cut at each seam moved to the nearest point
+ * halfway between two of its photos (photos every `triggerM` from its start), and
+ * every part keeps that photo grid (`photoGridA`): flown in two blocks, the line's
+ * photos are the photos of the uncut line, so the front overlap carries across the
+ * seam with no photo missing or doubled; the lines are the same in every block, so
+ * the side overlap does too. Empty blocks are dropped.
+ * @example blocksOf(pieces, blockGrid(...), 22.5).length
  */
-export function blocksOf(pieces: readonly StripPiece[], grid: BlockGrid, seamM: number): Block[] {
+export function blocksOf(pieces: readonly StripPiece[], grid: BlockGrid, triggerM: number): Block[] {
   const lines = [...new Set(pieces.map((p) => p.c))].sort((u, v) => u - v);
   const aMin = Math.min(...pieces.map((p) => p.a0));
   const aMax = Math.max(...pieces.map((p) => p.a1));
@@ -124,14 +133,16 @@ export function blocksOf(pieces: readonly StripPiece[], grid: BlockGrid, seamM: 
       const mine: StripPiece[] = [];
       for (const p of pieces) {
         if (groupOf.get(p.c) !== g) continue;
-        const a0 = Math.max(p.a0, j === 0 ? -Infinity : lo - seamM);
-        const a1 = Math.min(p.a1, j + 1 === grid.along ? Infinity : hi + seamM);
-        // The piece's own part of this block must be more than a seam's overlap.
-        if (Math.min(p.a1, hi) - Math.max(p.a0, lo) <= 0 || a1 - a0 < 1) continue;
+        const origin = p.photoGridA ?? p.a0;
+        // A seam halfway between two photos of this piece's grid.
+        const seam = (a: number) => origin + (Math.round((a - origin) / triggerM - 0.5) + 0.5) * triggerM;
+        const a0 = Math.max(p.a0, j === 0 ? -Infinity : seam(lo));
+        const a1 = Math.min(p.a1, j + 1 === grid.along ? Infinity : seam(hi));
+        if (a1 - a0 < 1) continue;
         const noPhoto = p.noPhoto
           ?.map(([u, v]): [number, number] => [Math.max(p.a0 + u, a0) - a0, Math.min(p.a0 + v, a1) - a0])
           .filter(([u, v]) => v > u);
-        mine.push({ strip: p.strip, c: p.c, a0, a1, ...(noPhoto?.length ? { noPhoto } : {}) });
+        mine.push({ strip: p.strip, c: p.c, a0, a1, photoGridA: origin, ...(noPhoto?.length ? { noPhoto } : {}) });
       }
       if (!mine.length) continue;
       blocks.push({
@@ -165,7 +176,7 @@ export function farthestFromM(block: Block, frame: StripFrame, p: XY): number {
  * transits, and back. Strip numbers count on from `firstStrip`.
  * @example blockLegs(block, frame, takeoff, 1).legs[1].kind // "strip"
  */
-export function blockLegs(block: Block, frame: StripFrame, takeoff: XY, firstStrip: number): { legs: LayoutLeg[]; lastStrip: number } {
+export function blockLegs(block: Block, frame: StripFrame, takeoff: XY, firstStrip: number, triggerM: number): { legs: LayoutLeg[]; lastStrip: number } {
   const lines = [...new Set(block.pieces.map((p) => p.c))].sort((u, v) => u - v);
   const byLine = lines.map((c) => block.pieces.filter((p) => p.c === c).sort((u, v) => u.a0 - v.a0));
   const d = (p: XY) => Math.hypot(p[0] - takeoff[0], p[1] - takeoff[1]);
@@ -181,9 +192,10 @@ export function blockLegs(block: Block, frame: StripFrame, takeoff: XY, firstStr
   const ordered = best.asc ? byLine : [...byLine].reverse();
   const legs: LayoutLeg[] = [];
   let here = takeoff;
-  const push = (kind: LayoutLeg["kind"], strip: number, to: XY, noPhoto?: [number, number][]) => {
+  const push = (kind: LayoutLeg["kind"], strip: number, to: XY, noPhoto?: [number, number][], phase?: number) => {
     const leg: LayoutLeg = { kind, strip, from: here, to, lengthM: Math.hypot(to[0] - here[0], to[1] - here[1]) };
     if (noPhoto?.length) leg.noPhotoIntervals = noPhoto;
+    if (phase !== undefined) leg.photoGrid = { firstM: phase, everyM: triggerM };
     legs.push(leg);
     here = to;
   };
@@ -196,9 +208,21 @@ export function blockLegs(block: Block, frame: StripFrame, takeoff: XY, firstStr
       push("transit", strip, frame.toXY(fwd ? p.a0 : p.a1, p.c));
       const np = p.noPhoto?.map(([u, v]): [number, number] => (fwd ? [u, v] : [len - v, len - u]));
       if (!fwd) np?.reverse();
-      push("strip", strip, frame.toXY(fwd ? p.a1 : p.a0, p.c), np);
+      push("strip", strip, frame.toXY(fwd ? p.a1 : p.a0, p.c), np, photoPhase(p, fwd, triggerM));
     }
   });
   push("transit", strip, takeoff);
   return { legs, lastStrip: strip };
+}
+
+/**
+ * Distance from where the piece is flown from to its first photo on its line's grid
+ * (photos at photoGridA + k x trigger): going forward the first grid point at or after
+ * a0, going back the last one at or before a1. Undefined without a grid.
+ */
+function photoPhase(p: StripPiece, forward: boolean, triggerM: number): number | undefined {
+  if (p.photoGridA === undefined) return undefined;
+  const g = p.photoGridA;
+  if (forward) return g + Math.ceil((p.a0 - g) / triggerM - 1e-9) * triggerM - p.a0;
+  return p.a1 - (g + Math.floor((p.a1 - g) / triggerM + 1e-9) * triggerM);
 }

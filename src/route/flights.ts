@@ -12,7 +12,7 @@
 import type { XY } from "../layout/types.js";
 import type { SolvedLeg, SolveWarning, StationProfile, Waypoint } from "../solve/types.js";
 import { countRows, legsJoin } from "./waypointCount.js";
-import { cutLegAt } from "./resume.js";
+import { cutLegAt, type ResumableLeg } from "./resume.js";
 
 export interface Flight {
   /** 1-based. */
@@ -192,10 +192,10 @@ export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions):
   return { flights: out, batteries: out.length, warnings };
 }
 
-/** True when flight f's first strip leg is the rest of a strip cut at a battery's end (it carries a photo phase). */
+/** True when flight f's first strip leg is the rest of a strip cut at a battery's end. */
 function resumedStart(f: SolvedLeg[]): boolean {
-  const s = f.find((l) => l.kind === "strip") as (SolvedLeg & { photoPhaseM?: number }) | undefined;
-  return s !== undefined && s.photoPhaseM !== undefined;
+  const s = f.find((l) => l.kind === "strip") as ResumableLeg | undefined;
+  return s?.resumes === true;
 }
 
 function firstStrip(f: SolvedLeg[]): number {

@@ -10,6 +10,8 @@ export type ResumableLeg = SolvedLeg & {
   noPhotoIntervals?: [number, number][];
   /** Along-track distance of the leg's first photo from its start (a resumed strip's phase); default 0. */
   photoPhaseM?: number;
+  /** True when the leg starts where an earlier flight left its strip. */
+  resumes?: boolean;
 };
 
 /**
@@ -70,6 +72,7 @@ export function cutLegAt(leg: ResumableLeg, sCut: number, triggerM: number): [Re
     lengthM: len - sCut,
     timeS: secondTime + (wps[0].s === wps[1]?.s ? 0 : extra),
     photoPhaseM: nextPhase,
+    resumes: true,
     ...clipNoPhoto(np, sCut, len),
   };
   if (!first.noPhotoIntervals) delete first.noPhotoIntervals;

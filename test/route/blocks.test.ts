@@ -32,27 +32,43 @@ describe("blockGrid", () => {
 describe("blocksOf and blockLegs", () => {
   const frame = stripFrame(90); // along = east, across = south
   const pieces: StripPiece[] = [0, 40, 80, 120].map((c, i) => ({ strip: i + 1, c, a0: 0, a1: 1000 }));
-  const blocks = blocksOf(pieces, { along: 2, across: 2, slackM: 0 }, 25);
-  it("cuts lines into groups across and equal lengths along, grown 25 m past the inner seam", () => {
+  const blocks = blocksOf(pieces, { along: 2, across: 2, slackM: 0 }, 20);
+  it("cuts lines into groups across and equal lengths along, each seam halfway between two photos (500 m -> 510 m for photos every 20 m)", () => {
     expect(blocks).toHaveLength(4);
     expect(blocks.map((b) => [b.aMin, b.aMax, b.cMin, b.cMax])).toEqual([
-      [0, 525, 0, 40],
-      [475, 1000, 0, 40],
-      [0, 525, 80, 120],
-      [475, 1000, 80, 120],
+      [0, 510, 0, 40],
+      [510, 1000, 0, 40],
+      [0, 510, 80, 120],
+      [510, 1000, 80, 120],
     ]);
   });
   it("flies a block back and forth from the end nearest its take-off, and numbers strips on", () => {
     const t = frame.toXY(0, -10);
-    const { legs, lastStrip } = blockLegs(blocks[0], frame, t, 7);
+    const { legs, lastStrip } = blockLegs(blocks[0], frame, t, 7, 20);
     expect(legs.map((l) => l.kind)).toEqual(["transit", "strip", "transit", "strip", "transit"]);
     expect(legs.filter((l) => l.kind === "strip").map((l) => l.strip)).toEqual([7, 8]);
     expect(lastStrip).toBe(8);
     expect(legs[1].from).toEqual(frame.toXY(0, 0));
-    expect(legs[1].to).toEqual(frame.toXY(525, 0));
-    expect(legs[3].from).toEqual(frame.toXY(525, 40));
-    // The farthest strip end from the take-off point: (525, 40) from (0, -10).
-    expect(farthestFromM(blocks[0], frame, t)).toBeCloseTo(Math.hypot(525, 50), 9);
+    expect(legs[1].to).toEqual(frame.toXY(510, 0));
+    expect(legs[3].from).toEqual(frame.toXY(510, 40));
+    // The farthest strip end from the take-off point: (510, 40) from (0, -10).
+    expect(farthestFromM(blocks[0], frame, t)).toBeCloseTo(Math.hypot(510, 50), 9);
+  });
+  it("keeps each line's photos on one grid across the seam: 0, 20, ..., 500 in one block, 520, ..., 1000 in the next", () => {
+    const photosOf = (legs: ReturnType<typeof blockLegs>["legs"]) =>
+      legs.filter((l) => l.kind === "strip").flatMap((l) => {
+        const [a0] = frame.toAC(l.from), [a1] = frame.toAC(l.to);
+        const dir = Math.sign(a1 - a0);
+        const out: number[] = [];
+        for (let s = l.photoGrid!.firstM; s <= l.lengthM + 1e-9; s += l.photoGrid!.everyM) out.push(Math.round((a0 + dir * s) * 1e6) / 1e6);
+        return out.map((a) => [frame.toAC(l.from)[1], a]);
+      });
+    const west = photosOf(blockLegs(blocks[0], frame, frame.toXY(0, -10), 1, 20).legs);
+    const east = photosOf(blockLegs(blocks[1], frame, frame.toXY(1000, -10), 1, 20).legs);
+    for (const c of [0, 40]) {
+      const along = [...west, ...east].filter(([cc]) => Math.abs(cc - c) < 1e-6).map(([, a]) => a).sort((u, v) => u - v);
+      expect(along).toEqual(Array.from({ length: 51 }, (_, k) => k * 20));
+    }
   });
 });
 
