@@ -105,7 +105,9 @@ function blocksFor(b: BlockInputs, grid: BlockGrid, whole: Block, frame: StripFr
       const found = proposeTakeoff(
         { grid: b.grid, inSite, reaches, ...(b.keepOut ? { blocked: (p: XY) => pointInsideAny(b.keepOut!.index, p) } : {}) },
         centre,
-        Math.max(grid.slackM, b.grid.cellSizeM[0] * 2),
+        // Near the centre: within the grid's slack, and never less than 15 % of the range (the
+        // reach test keeps only points that reach the whole block).
+        Math.max(grid.slackM, 0.15 * b.rangeM, b.grid.cellSizeM[0] * 2),
         b.rangeM,
       );
       if (found) {

@@ -50,6 +50,8 @@ export interface PlanOptions {
    * Each is an absolute path (GeoTIFF, folder of GeoTIFFs, GDAL VRT) or an http(s) URL.
    */
   dem: string | string[];
+  /** Terrain model beside a surface model in `dem` (same forms as `dem`). */
+  dtm?: string | string[];
   demVerticalDatum?: "egm96" | "egm2008" | "ellipsoid";
   demVerticalUnit?: "metre" | "foot" | "us-survey-foot";
   demSurface?: "dtm" | "dsm";
@@ -83,6 +85,12 @@ export interface PlanOptions {
   minImages: number;
   onConflict: "skip" | "clearance";
   assumeGroundM?: number;
+  /** Width imaged along a line site, metres (required when the area is a line). */
+  lineWidthM?: number;
+  /** Strips along a line site; undefined: the fewest that cover the width. */
+  lineStrips?: number;
+  /** A second family of strips at the heading plus 90 degrees. */
+  crossStrips: boolean;
   /** Keep-out zone files (absolute paths; empty: none). */
   keepOut: string[];
   /** Distance kept from every keep-out zone unless the zone gives its own, metres. */
@@ -326,6 +334,9 @@ export function resolvePlanOptions(
       );
     }
   }
+  if (v.dtm !== undefined && v.demSurface !== "dsm") {
+    problems.push(new InputError(label("dtm"), v.dtm, "a terrain model beside a surface model: set demSurface: dsm for the dem", "dtm given without a surface model"));
+  }
   if (problems.length) throw combined(problems);
 
   const ceil = v.ceiling ?? {};
@@ -367,6 +378,7 @@ export function resolvePlanOptions(
     onConflict: v.onConflict ?? def("onConflict"),
     keepOut: (v.keepOut === undefined ? [] : Array.isArray(v.keepOut) ? v.keepOut : [v.keepOut]).map((p: string) => resolvePath("keepOut", p)),
     keepOutBufferM: v.keepOutBufferM ?? def("keepOutBufferM"),
+    crossStrips: v.crossStrips ?? def("crossStrips"),
     reservePct: v.reservePct ?? def("reservePct"),
     blurPx: v.blurPx ?? def("blurPx"),
   };
@@ -381,6 +393,9 @@ export function resolvePlanOptions(
     else out.takeoffs = list;
   }
   if (v.assumeGroundM !== undefined) out.assumeGroundM = v.assumeGroundM;
+  if (v.dtm !== undefined) out.dtm = Array.isArray(v.dtm) ? v.dtm.map((p: string) => resolveSource("dtm", p)) : resolveSource("dtm", v.dtm);
+  if (v.lineWidthM !== undefined) out.lineWidthM = v.lineWidthM;
+  if (v.lineStrips !== undefined) out.lineStrips = v.lineStrips;
   return out;
 }
 

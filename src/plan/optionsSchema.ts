@@ -88,6 +88,7 @@ export const PLAN_DEFAULTS = {
   // reconstruction (common practice): raise it for dense models.
   minImages: 2,
   onConflict: "skip" as const,
+  crossStrips: false,
   // No distance kept beyond a keep-out zone's own outline unless asked: the zone is drawn as the
   // user means it; a buffer for GNSS and wind drift is theirs to set.
   keepOutBufferM: 0,
@@ -150,6 +151,7 @@ function allowedText(s: PlanOptionSpec): string {
 export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
   spec("name", "--name", "string", "Plan name for the summary and exported files (default: the site's name)."),
   spec("dem", "--dem", "sources", "Elevation model (required): a GeoTIFF, a list of GeoTIFF tiles, a folder of them, a GDAL VRT mosaic, or an http(s) URL of a cloud-optimized GeoTIFF."),
+  spec("dtm", "--dtm", "sources", "Terrain model (bare earth) beside a surface model given as dem with demSurface dsm: the ground ceiling, heights above terrain and the take-off ground use it; same forms as dem."),
   spec("demVerticalDatum", "--dem-vertical-datum", "enum", "Vertical datum of the DEM heights; overrides what the file declares.", {
     choices: ["egm96", "egm2008", "ellipsoid"],
   }),
@@ -291,6 +293,11 @@ export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
   spec("onConflict", "--on-conflict", "enum", "Where clearance and ceiling conflict: skip that part of the strip, or keep clearance and break the ceiling (flagged).", {
     choices: ["skip", "clearance"],
     default: D.onConflict,
+  }),
+  spec("lineWidthM", "--line-width-m", "number", "Width imaged along a line site (area given as a LineString), centred on the line, metres; required with a line.", { gt: 0 }),
+  spec("lineStrips", "--line-strips", "integer", "Strips along a line site (default: the fewest that cover lineWidthM with the side overlap).", { gte: 1 }),
+  spec("crossStrips", "--cross-strips", "boolean", "Fly a second family of strips at the heading plus 90 degrees over the same site (for 3D models of facades and steep faces).", {
+    default: D.crossStrips,
   }),
   spec("keepOut", "--keep-out", "paths", "Keep-out zones no leg may enter: GeoJSON or KML polygons in WGS84, holes allowed; each feature's name names its zone."),
   spec("keepOutBufferM", "--keep-out-buffer-m", "number", "Horizontal distance every leg keeps from every keep-out zone, metres (a feature's own bufferM property overrides it).", {

@@ -104,15 +104,27 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
   const clearanceM = summary.clearance.floorM;
   const shortfall = clearanceShortfall(run.grid, planRasters.inSite, planRasters.width, planRasters.height, b.altitudeAmslM, clearanceM);
   const site = run.site.local;
+  // Block take-off ground from the DEM's datum to AMSL, as flightRows and waypoints.csv write it.
+  const toAmsl = (h: number, lon: number, lat: number) => heightReferences(h, lon, lat, { datum: run.verticalDatum, undulationM: undulationFor(run.verticalDatum), takeoffGroundM: 0 })[0];
   return {
     siteName: run.site.name,
     summary: summary as unknown as ReportInput["summary"],
     dem: run.grid,
     rasters: planRasters,
     site,
-    legs: run.flights.flights.flatMap((f) => f.legs),
+    legs: run.flights.flights.flatMap((f) => f.legs.map((l) => ({ ...l, flight: f.index, block: f.block ?? 1 }))),
     takeoff: [run.takeoff.x, run.takeoff.y],
     keepOut: run.keepOut,
+    blocks: run.blocks.map((b) => ({
+      index: b.index,
+      takeoff: { x: b.takeoff.x, y: b.takeoff.y, lon: b.takeoff.lon, lat: b.takeoff.lat, groundAmslM: toAmsl(b.takeoff.groundM, b.takeoff.lon, b.takeoff.lat) },
+      takeoffFrom: b.takeoffFrom,
+      ...(b.slopeDeg !== undefined ? { slopeDeg: b.slopeDeg } : {}),
+      strips: b.strips,
+      farthestM: b.farthestM,
+    })),
+    maxRangeM: run.options.aircraft.maxRangeM,
+    flights: flightRows(run),
     baseline: {
       altitudeAmslM: b.altitudeAmslM,
       heightAboveMedianGroundM: b.heightAboveMedianGroundM,

@@ -29,3 +29,14 @@ export function fmtArea(m2: number): string {
   if (!Number.isFinite(m2)) return "–";
   return m2 >= 10_000 ? `${fmt(m2 / 10_000, 2)} ha` : `${fmt(m2, 0)} m²`;
 }
+
+/**
+ * Seconds as minutes and seconds, "m:ss" (minutes past 59 stay minutes: a flight is one battery).
+ *
+ * @example fmtMinSec(287) // "4:47"; fmtMinSec(3725) // "62:05"
+ */
+export function fmtMinSec(s: number): string {
+  if (!Number.isFinite(s) || s < 0) return "–";
+  const t = Math.round(s);
+  return `${Math.floor(t / 60)}:${String(t % 60).padStart(2, "0")}`;
+}

@@ -2,7 +2,7 @@
 import { divergingTable256, gsdAtScalePosition, gsdScalePosition, tableColour, viridisTable256 } from "./colour.js";
 import { esc } from "./escape.js";
 import { fmt } from "./format.js";
-import { KEEP_OUT_COLOUR, hatchPattern, keepOutHatch } from "./map.js";
+import { BLOCK_COLOUR, KEEP_OUT_COLOUR, RANGE_DASH, TAKEOFF_COLOUR, hatchPattern, keepOutHatch, takeoffTriangle } from "./map.js";
 import { niceStep, ticks } from "./nice.js";
 
 function bar(table: Uint8Array, x: number, y: number, w: number, h: number, steps = 64): string {
@@ -93,4 +93,50 @@ export function keepOutLegend(zones: { bufferM: number }[], hatchId: string): st
     `<svg class="legend keep-out-legend" viewBox="0 0 470 26" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Keep-out zones${buffers.length ? " and their buffers" : ""}">` +
     `<defs>${keepOutHatch(hatchId, 6)}</defs>${body}</svg>`
   );
+}
+
+/**
+ * Legend for blocks and ranges: the numbered take-off marker, a proposed (hollow) one when
+ * any point was proposed, the dashed range circle with its radius, and the block outline.
+ * Entries flow left to right and wrap; empty when there is nothing to explain (one block
+ * and no range limit).
+ *
+ * @example blocksLegend({ blocks: 2, proposed: true, rangeM: 500 }) // "<svg ...>take-off point (block n) ... range (500 m) ... block</svg>"
+ */
+export function blocksLegend(o: { blocks: number; proposed: boolean; rangeM: number }): string {
+  const W = 470, rowH = 22, sw = 26;
+  const entries: { key: string; swatch: (x: number, y: number) => string; text: string }[] = [];
+  const marker = (hollow: boolean, label: string) => (x: number, y: number) => {
+    const cx = x + 9, cy = y + 8;
+    const fill = hollow ? `fill="#fff" stroke="${TAKEOFF_COLOUR}" stroke-width="2.2"` : `fill="${TAKEOFF_COLOUR}" stroke="#fff" stroke-width="1.5"`;
+    return `<path d="${takeoffTriangle(cx, cy)}" transform="translate(${cx} ${cy}) scale(0.8) translate(${-cx} ${-cy})" ${fill}/>${label ? `<text x="${x + 18}" y="${y + 12}" font-weight="600">${esc(label)}</text>` : ""}`;
+  };
+  if (o.blocks > 1) {
+    entries.push({ key: "takeoff", swatch: marker(false, "n"), text: "take-off point (block n)" });
+    if (o.proposed) entries.push({ key: "proposed", swatch: marker(true, ""), text: "proposed take-off point: the pilot must confirm access" });
+  }
+  if (o.rangeM > 0) {
+    entries.push({
+      key: "range",
+      swatch: (x, y) => `<path d="M${x},${y + 14}A${sw},${sw} 0 0 1 ${x + sw},${y + 2}" fill="none" stroke="${TAKEOFF_COLOUR}" stroke-width="1.6" stroke-dasharray="${RANGE_DASH}"/>`,
+      text: `range (${o.rangeM >= 1000 ? `${fmt(o.rangeM / 1000)} km` : `${fmt(o.rangeM)} m`})`,
+    });
+  }
+  if (o.blocks > 1) {
+    entries.push({
+      key: "block",
+      swatch: (x, y) => `<rect x="${x}" y="${y + 2}" width="${sw}" height="12" fill="${BLOCK_COLOUR}" fill-opacity="0.05" stroke="${BLOCK_COLOUR}" stroke-width="2" stroke-opacity="0.55"/>`,
+      text: "block",
+    });
+  }
+  if (!entries.length) return "";
+  let x = 20, y = 4, body = "";
+  for (const e of entries) {
+    // About 6.2 units a character at the legend's 11 px: enough to keep entries apart.
+    const w = sw + 30 + Math.ceil(e.text.length * 6.2);
+    if (x > 20 && x + w > W) (x = 20), (y += rowH);
+    body += `<g class="legend-entry" data-entry="${e.key}">${e.swatch(x, y)}<text x="${x + sw + 8}" y="${y + 12}">${esc(e.text)}</text></g>`;
+    x += w;
+  }
+  return `<svg class="legend blocks-legend" viewBox="0 0 ${W} ${y + rowH}" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Blocks, their take-off points and ranges">${body}</svg>`;
 }

@@ -6,7 +6,8 @@
 import type { MultiPolygon, Polygon } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { XY } from "../layout/types.js";
-import type { ReportGrid, ReportLeg } from "./model.js";
+import type { ReportBlock, ReportGrid, ReportLeg } from "./model.js";
+import { TAKEOFF_FROM_WORDS } from "./blocks.js";
 import { contourInterval, contourLines, type Polyline } from "./contours.js";
 import { tableColour, viridisTable256 } from "./colour.js";
 import { esc } from "./escape.js";
@@ -225,14 +226,100 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
   );
 }
 
-/** Take-off marker: a triangle with a label. */
-export function takeoffMarker(v: MapView, xy: XY): string {
+/** Take-off marker colour, and the range circle's (the range belongs to the take-off point). */
+export const TAKEOFF_COLOUR = "#d62728";
+/** Block outline colour: the report's accent blue, no flag kind, zone or leg uses it. */
+export const BLOCK_COLOUR = "#1f5f8b";
+/** The range circle's dash: longer than the transits' (5 4) and the zone buffers' (6 4), so the three read apart. */
+export const RANGE_DASH = "12 6";
+
+/**
+ * A take-off triangle's path data about (x, y) in map units: apex 9 units above, base 6 below.
+ *
+ * @example takeoffTriangle(100, 50) // "M100,41L108,56L92,56Z"
+ */
+export function takeoffTriangle(x: number, y: number): string {
+  return `M${x},${r1(y - 9)}L${r1(x + 8)},${r1(y + 6)}L${r1(x - 8)},${r1(y + 6)}Z`;
+}
+
+/**
+ * Take-off marker: a triangle with a label. A proposed point (one the pilot must still
+ * confirm) is drawn hollow; `title` becomes its tooltip.
+ *
+ * @example takeoffMarker(v, [500640, 4600110]) // the single take-off point, labelled "Take-off"
+ */
+export function takeoffMarker(v: MapView, xy: XY, o: { label?: string; title?: string; proposed?: boolean; attrs?: string } = {}): string {
   const x = vx(v, xy[0]);
   const y = vy(v, xy[1]);
+  const fill = o.proposed ? `fill="#fff" stroke="${TAKEOFF_COLOUR}" stroke-width="2.2"` : `fill="${TAKEOFF_COLOUR}" stroke="#fff" stroke-width="1.5"`;
   return (
-    `<g class="takeoff"><path d="M${x},${r1(y - 9)}L${r1(x + 8)},${r1(y + 6)}L${r1(x - 8)},${r1(y + 6)}Z" fill="#d62728" stroke="#fff" stroke-width="1.5"/>` +
-    `<text x="${r1(x + 11)}" y="${r1(y + 4)}" class="halo">Take-off</text></g>`
+    `<g class="takeoff"${o.attrs ? " " + o.attrs : ""}>${o.title ? `<title>${esc(o.title)}</title>` : ""}<path d="${takeoffTriangle(x, y)}" ${fill}/>` +
+    `<text x="${r1(x + 11)}" y="${r1(y + 4)}" class="halo">${esc(o.label ?? "Take-off")}</text></g>`
   );
+}
+
+/**
+ * The tooltip of a block's take-off point: how it was chosen, its ground and reach.
+ *
+ * @example takeoffTitle(block) // "Take-off point of block 2, proposed: the pilot must confirm access (ground slope 4.7°). Ground 324.7 m AMSL; farthest strip point 381 m."
+ */
+export function takeoffTitle(b: ReportBlock): string {
+  const slope = b.slopeDeg !== undefined ? ` (ground slope ${fmt(b.slopeDeg, 1)}°)` : "";
+  return `Take-off point of block ${b.index}, ${TAKEOFF_FROM_WORDS[b.takeoffFrom]}${slope}. Ground ${fmt(b.takeoff.groundAmslM, 1)} m AMSL; farthest strip point ${fmt(b.farthestM, 0)} m.`;
+}
+
+/**
+ * One take-off marker per block, labelled with the block's number ("Take-off 2"), hollow
+ * where the point was proposed, with a tooltip saying how it was chosen.
+ *
+ * @example blockTakeoffMarkers(v, input.blocks) // '<g class="takeoff" data-block="1" ...>...</g>...'
+ */
+export function blockTakeoffMarkers(v: MapView, blocks: readonly ReportBlock[]): string {
+  return blocks
+    .map((b) =>
+      takeoffMarker(v, [b.takeoff.x, b.takeoff.y], {
+        label: `Take-off ${b.index}`,
+        title: takeoffTitle(b),
+        proposed: b.takeoffFrom === "proposed",
+        attrs: `data-block="${b.index}" data-takeoff-from="${esc(b.takeoffFrom)}"`,
+      }),
+    )
+    .join("");
+}
+
+/**
+ * Range circles: a dashed circle of radius `rangeM` (in map units, `rangeM * k`) about each
+ * take-off point. Empty when there is no limit (`rangeM` 0).
+ *
+ * @example rangeCircles(v, [{ block: 1, xy: [500345, 5200329] }], 500) // '<g class="ranges"><circle class="range" ... r="..."/></g>'
+ */
+export function rangeCircles(v: MapView, centres: readonly { block?: number; xy: XY }[], rangeM: number): string {
+  if (!(rangeM > 0) || !centres.length) return "";
+  const r = r1(rangeM * v.k);
+  let s = "";
+  for (const c of centres)
+    s +=
+      `<circle class="range"${c.block !== undefined ? ` data-block="${c.block}"` : ""} data-range-m="${rangeM}" cx="${vx(v, c.xy[0])}" cy="${vy(v, c.xy[1])}" r="${r}" ` +
+      `fill="none" stroke="${TAKEOFF_COLOUR}" stroke-width="1.6" stroke-opacity="0.85" stroke-dasharray="${RANGE_DASH}"/>`;
+  return `<g class="ranges">${s}</g>`;
+}
+
+/**
+ * Block extents: each block's outline (local-frame polygons, outer ring then holes), light,
+ * with its number as a tooltip.
+ *
+ * @example blockOutlines(v, [{ block: 1, polygons: [[[[0, 0], [100, 0], [100, 50]]]] }])
+ */
+export function blockOutlines(v: MapView, extents: readonly { block: number; polygons: XY[][][] }[]): string {
+  let s = "";
+  for (const e of extents) {
+    const d = ringsPath(v, e.polygons);
+    if (!d) continue;
+    s +=
+      `<path class="block-extent" data-block="${e.block}" d="${d}" fill-rule="evenodd" fill="${BLOCK_COLOUR}" fill-opacity="0.05" stroke="${BLOCK_COLOUR}" stroke-width="2" stroke-opacity="0.6" stroke-linejoin="round">` +
+      `<title>Block ${e.block}</title></path>`;
+  }
+  return s ? `<g class="blocks">${s}</g>` : "";
 }
 
 /** A scale bar of a nice length (1, 2 or 5 x 10^k m) about a fifth of the map wide. */

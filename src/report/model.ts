@@ -9,6 +9,7 @@ import type { GeoTransform } from "../dem/grid.js";
 import type { GsdStats } from "../assess/types.js";
 import type { XY } from "../layout/types.js";
 import type { KeepOutZoneReport } from "../route/types.js";
+import type { FlightRow } from "../export/flightsCsv.js";
 
 /** The `summary.json` object (issue 6 keys). Extra keys are kept and shown in the numbers table. */
 export interface ReportSummary {
@@ -91,7 +92,31 @@ export interface ReportLeg {
   lengthM: number;
   /** A transit bridging a stretch of its strip that was skipped as unflyable (SolvedLeg.conflictGap). */
   conflictGap?: boolean;
+  /** 1-based flight the leg belongs to (absent in report-data written before blocks). */
+  flight?: number;
+  /** 1-based block of that flight (absent in report-data written before blocks). */
+  block?: number;
 }
+
+/** How a block's take-off point was chosen (PlanBlock.takeoffFrom). */
+export type TakeoffFrom = "given" | "layout" | "candidate" | "proposed";
+
+/** A block of the plan, flown from its own take-off point (local frame, metres AMSL). */
+export interface ReportBlock {
+  /** 1-based. */
+  index: number;
+  takeoff: { x: number; y: number; lon: number; lat: number; groundAmslM: number };
+  takeoffFrom: TakeoffFrom;
+  /** Ground slope at a proposed take-off point, degrees. */
+  slopeDeg?: number;
+  /** Strip numbers flown in the block (groups legs by block when the legs do not carry it). */
+  strips?: number[];
+  /** Farthest strip point from the take-off point, metres. */
+  farthestM: number;
+}
+
+/** One flight as flights.csv holds it (src/plan/outputs.ts flightRows). */
+export type ReportFlight = FlightRow;
 
 /** Figures of one assessed plan, for the side-by-side comparison. */
 export interface ComparisonStats {
@@ -140,6 +165,12 @@ export interface ReportInput {
   legs: ReportLeg[];
   /** Take-off point, local frame. */
   takeoff: XY;
+  /** The blocks, each with its take-off point (absent in report-data written before blocks). */
+  blocks?: ReportBlock[];
+  /** Greatest horizontal distance from a flight's take-off point, metres; 0 = no limit. */
+  maxRangeM?: number;
+  /** One row per flight, as flights.csv (absent in report-data written before blocks). */
+  flights?: ReportFlight[];
   /** Keep-out zones of the plan (`zones: []` or absent when it has none: older report-data has no key). */
   keepOut?: { zones: ReportKeepOutZone[] };
   /** The constant-altitude comparison; absent when not computed. */

@@ -12,14 +12,16 @@ import { hillshade } from "./hillshade.js";
 import { gsdRgba, imagesRgba, pngDataUri, shadeRgba } from "./png.js";
 import { maskOutline } from "./contours.js";
 import {
-  aglRange, contourLayer, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
-  rasterImage, scaleBar, sitePath, takeoffMarker, type MapView,
+  aglRange, blockOutlines, blockTakeoffMarkers, contourLayer, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
+  rangeCircles, rasterImage, scaleBar, sitePath, takeoffMarker, takeoffTitle, type MapView,
 } from "./map.js";
-import { gsdLegend, keepOutLegend, sequentialLegend } from "./legend.js";
+import { blocksLegend, gsdLegend, keepOutLegend, sequentialLegend } from "./legend.js";
+import { blockExtents } from "./blocks.js";
+import type { XY } from "../layout/types.js";
 import { profileLegend, stripProfiles } from "./profiles.js";
 import { gsdHistogramSvg } from "./charts.js";
 import { esc, jsonForScript } from "./escape.js";
-import { fmt, fmtArea, fmtDuration } from "./format.js";
+import { fmt, fmtArea, fmtDuration, fmtMinSec } from "./format.js";
 import { REPORT_CSS } from "./style.js";
 
 /** Cautions every report carries, whatever the plan says (domain practice). */
@@ -109,6 +111,7 @@ const KEY_LABELS: Record<string, string> = {
   "keepOut.stripCutM": "Strip length cut at keep-out zones, m",
   "keepOut.routedTransits": "Transits routed around obstacles",
   "keepOut.detourM": "Length added by routing around obstacles, m",
+  maxRangeM: "Range from the take-off point, m (0: no limit)",
 };
 
 function labelFor(key: string): string {
@@ -122,11 +125,15 @@ function labelFor(key: string): string {
   return key;
 }
 
-/** Decimals for the numbers table: the value's own (summary.json is already rounded), at most 7. */
+/**
+ * Decimals for the numbers table: the value's own (summary.json is already rounded, degrees
+ * to 8 decimals), at most 8. The tolerance only absorbs binary rounding (about 1e-16 of the
+ * value): a looser one took 15.00723519 for 15.0072352.
+ */
 function decimalsOf(v: number): number {
   if (!Number.isFinite(v) || Number.isInteger(v)) return 0;
-  for (let d = 1; d < 7; d++) if (Math.abs(v - +v.toFixed(d)) < 1e-9 * Math.max(1, Math.abs(v))) return d;
-  return 7;
+  for (let d = 1; d < 8; d++) if (Math.abs(v - +v.toFixed(d)) < 1e-12 * Math.max(1, Math.abs(v))) return d;
+  return 8;
 }
 
 /** The numbers table prints each summary value as summary.json holds it; codes without digit grouping. */
@@ -164,17 +171,31 @@ export function renderReport(input: ReportInput): string {
   // 1. Map
   const contours = contourLayer(view, inp.dem);
   const agl = aglRange(inp.legs);
+  // Blocks: with one block the single take-off marker as before; with several, each take-off
+  // point numbered and each block's extent outlined. The range circle about every take-off
+  // point whenever the plan has a range limit.
+  const blocks = inp.blocks ?? [];
+  const multiBlock = blocks.length > 1;
+  const rangeM = inp.maxRangeM ?? 0;
+  const rangeCentres = multiBlock ? blocks.map((b) => ({ block: b.index, xy: [b.takeoff.x, b.takeoff.y] as XY })) : [{ ...(blocks[0] ? { block: blocks[0].index } : {}), xy: inp.takeoff }];
+  const blockSvg = (multiBlock ? blockOutlines(view, blockExtents(inp.legs, blocks, s.lineSpacingM)) : "") + rangeCircles(view, rangeCentres, rangeM);
+  const blockLayer = blockSvg ? `<g class="layer" data-layer="blocks">${blockSvg}</g>` : "";
+  const takeoffs = multiBlock
+    ? blockTakeoffMarkers(view, blocks)
+    : takeoffMarker(view, inp.takeoff, blocks[0] ? { title: takeoffTitle(blocks[0]), attrs: `data-block="${blocks[0].index}" data-takeoff-from="${esc(blocks[0].takeoffFrom)}"` } : {});
+  const proposedAny = blocks.some((b) => b.takeoffFrom === "proposed");
   const mainMap = mapSvg(
     view,
     "map-main",
-    "Map: hill shade, contours, site, legs, waypoints and take-off",
+    `Map: hill shade, contours, site, legs, waypoints and take-off${multiBlock ? " points of the blocks" : ""}${rangeM > 0 ? ", range" : ""}`,
     shadeImg("shade") +
       `<g class="layer" data-layer="contours">${contours.svg}</g>` +
       site(`fill="#ffffff" fill-opacity="0.12" stroke="#111" stroke-width="2" stroke-dasharray="8 4"`) +
       zoneLayer(view, "main") +
+      blockLayer +
       `<g class="layer" data-layer="legs">${legsLayer(view, inp.legs, agl)}</g>` +
       `<g class="layer" data-layer="contours-labels">${contours.labels}</g>` +
-      takeoffMarker(view, inp.takeoff) +
+      takeoffs +
       overlays,
     zoneDefs("main"),
   );
@@ -317,6 +338,7 @@ export function renderReport(input: ReportInput): string {
     : `<p class="muted">The constant-altitude comparison was not computed for this plan.</p>`;
 
   // 6. Numbers
+  const flightsTable = flightTable(inp.flights ?? [], rangeM);
   let numberRows = "";
   for (const [key, v] of flattenNumbers(s)) {
     numberRows += `<tr><th>${esc(labelFor(key))}</th><td class="r">${num(key, v, tableText(key, v))}</td></tr>`;
@@ -375,9 +397,9 @@ export function renderReport(input: ReportInput): string {
 <aside class="caution-box"><strong>Before you fly.</strong> ${esc(STANDARD_CAUTIONS[0])} ${esc(STANDARD_CAUTIONS[5])}</aside>
 
 <section id="map"><h2>1 · Map</h2>
-<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, bridges over unflyable stretches red, waypoints as dots.${zones.length ? ` Keep-out zones hatched magenta${zones.some((z) => z.bufferM > 0) ? ", their buffers dashed" : ""}.` : ""} ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
-<div class="toggles no-print"><label><input type="checkbox" data-toggle="contours" checked> contours</label><label><input type="checkbox" data-toggle="legs" checked> legs and waypoints</label>${zones.length ? `<label><input type="checkbox" data-toggle="keep-out" checked> keep-out zones</label>` : ""}</div>
-<figure class="mapfig">${mainMap}<figcaption>${sequentialLegend("Height above ground on the strips", "m", agl[0], agl[1])}${keepOutLegend(zones, "hatch-keep-out-legend-main")}</figcaption></figure>
+<p class="muted">Hill shade by Horn's method (sun 315°, 45°), contours every ${fmt(contours.intervalM)} m (heavier every ${fmt(contours.intervalM * 5)} m), site outline dashed, strips coloured by height above ground, transits dashed, bridges over unflyable stretches red, waypoints as dots.${multiBlock ? ` Take-off points numbered by block${proposedAny ? " (hollow where proposed: the pilot must confirm access)" : ""}, each block's extent outlined blue.` : ""}${rangeM > 0 ? ` The dashed red circle is the range, ${esc(fmt(rangeM))} m from ${multiBlock ? "each" : "the"} take-off point.` : ""}${zones.length ? ` Keep-out zones hatched magenta${zones.some((z) => z.bufferM > 0) ? ", their buffers dashed" : ""}.` : ""} ${inp.crsName ? `Grid: ${esc(inp.crsName)}.` : ""}</p>
+<div class="toggles no-print"><label><input type="checkbox" data-toggle="contours" checked> contours</label><label><input type="checkbox" data-toggle="legs" checked> legs and waypoints</label>${zones.length ? `<label><input type="checkbox" data-toggle="keep-out" checked> keep-out zones</label>` : ""}${blockLayer ? `<label><input type="checkbox" data-toggle="blocks" checked> ${multiBlock ? "blocks and ranges" : "range"}</label>` : ""}</div>
+<figure class="mapfig">${mainMap}<figcaption>${sequentialLegend("Height above ground on the strips", "m", agl[0], agl[1])}${keepOutLegend(zones, "hatch-keep-out-legend-main")}${blocksLegend({ blocks: blocks.length, proposed: proposedAny, rangeM })}</figcaption></figure>
 </section>
 
 <section id="gsd"><h2>2 · Ground sample distance</h2>
@@ -408,7 +430,7 @@ ${zoneTable}
 <div>
 <h3>GSD distribution</h3>${gsdHistogramSvg(hist, g.target, g.low, g.high, inp.baselineHistogram)}
 <h3>Flights and batteries</h3>
-<p>${s.flights !== undefined ? num("flights", s.flights) : "–"} ${s.flights === 1 ? "flight" : "flights"}, ${s.batteries !== undefined ? num("batteries", s.batteries) : "–"} ${s.batteries === 1 ? "battery" : "batteries"}, ${s.flightTimeS !== undefined ? esc(fmtDuration(s.flightTimeS)) : "–"} in the air over ${s.pathLengthM !== undefined ? esc(fmt(s.pathLengthM / 1000, 2)) : "–"} km. Each flight starts and ends at the take-off point.</p>
+<p>${s.flights !== undefined ? num("flights", s.flights) : "–"} ${s.flights === 1 ? "flight" : "flights"}, ${s.batteries !== undefined ? num("batteries", s.batteries) : "–"} ${s.batteries === 1 ? "battery" : "batteries"}, ${s.flightTimeS !== undefined ? esc(fmtDuration(s.flightTimeS)) : "–"} in the air over ${s.pathLengthM !== undefined ? esc(fmt(s.pathLengthM / 1000, 2)) : "–"} km. ${multiBlock ? `The site is flown in ${esc(blocks.length)} blocks; each flight starts and ends at its block's take-off point (see the map and the flights table).` : "Each flight starts and ends at the take-off point."}</p>
 <h3>Vertical references</h3>
 <table class="numbers"><tbody>
 <tr><th>DEM heights</th><td>${esc(inp.verticalReferences.demDatum)}</td></tr>
@@ -420,6 +442,7 @@ ${inp.verticalReferences.altitudes.map((x) => `<tr><th><code>${esc(x.name)}</cod
 <li>DEM vertical accuracy: ${a.demAccuracyM !== undefined ? `${esc(fmt(a.demAccuracyM, 1))} m` : "not stated"}; clearance can be trusted only to within it.</li>
 ${(a.notes ?? []).map((n) => `<li>${esc(n)}</li>`).join("")}</ul>
 </div></div>
+${flightsTable}
 ${warnings.length ? `<h3>Warnings</h3><ul class="warnings">${warnings.map((w) => `<li>${esc(w)}</li>`).join("")}</ul>` : ""}
 <h3>Cautions</h3><ul class="cautions">${cautions.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>
 </section>
@@ -428,6 +451,44 @@ ${warnings.length ? `<h3>Warnings</h3><ul class="warnings">${warnings.map((w) =>
 <script>${script}</script>
 </body></html>
 `;
+}
+
+/**
+ * The flights table: one row per flight as flights.csv holds it, with the farthest point of
+ * each flight from its take-off point against the range. Empty without flights.
+ */
+function flightTable(flights: NonNullable<ReportInput["flights"]>, rangeM: number): string {
+  if (!flights.length) return "";
+  const rows = flights
+    .map((f, i) => {
+      const key = `flights.${i}`;
+      const over = rangeM > 0 && f.maxRangeM > rangeM;
+      // No-break spaces keep each distance with its unit when the column wraps.
+      const far = num(`${key}.maxRangeM`, f.maxRangeM, `${fmt(f.maxRangeM, 0)}\u00a0m`) + (rangeM > 0 ? ` of ${esc(fmt(rangeM))}\u00a0m` : "") + (over ? " (beyond the range)" : "");
+      return (
+        `<tr data-flight="${esc(f.flight)}" data-block="${esc(f.block)}"${over ? ` class="over-range"` : ""}>` +
+        `<td class="r">${num(`${key}.flight`, f.flight)}</td>` +
+        `<td class="r">${num(`${key}.block`, f.block)}</td>` +
+        `<td class="r latlon">${num(`${key}.takeoffLatitude`, f.takeoffLatitude, f.takeoffLatitude.toFixed(6))}, ${num(`${key}.takeoffLongitude`, f.takeoffLongitude, f.takeoffLongitude.toFixed(6))}</td>` +
+        `<td class="r">${num(`${key}.takeoffGroundAmslM`, f.takeoffGroundAmslM, fmt(f.takeoffGroundAmslM, 1))}</td>` +
+        `<td class="r">${num(`${key}.waypoints`, f.waypoints)}</td>` +
+        `<td class="r">${num(`${key}.photos`, f.photos)}</td>` +
+        `<td class="r">${num(`${key}.lengthM`, f.lengthM, fmt(f.lengthM, 0))}</td>` +
+        `<td class="r">${num(`${key}.durationS`, f.durationS, fmtMinSec(f.durationS))}</td>` +
+        `<td class="r far">${far}</td>` +
+        `<td>${f.resumesStrip !== null && f.resumesStrip !== undefined ? `resumes strip ${num(`${key}.resumesStrip`, f.resumesStrip)}` : ""}</td></tr>`
+      );
+    })
+    .join("");
+  return (
+    `<h3>Flights</h3><table class="flights" id="flights-table"><thead><tr>` +
+    `<th class="r">Flight</th><th class="r">Block</th><th class="r">Take-off lat, lon, °</th><th class="r">Take-off ground, m AMSL</th>` +
+    `<th class="r">Way&shy;points</th><th class="r">Photos</th><th class="r">Length, m</th><th class="r">Duration, min:s</th>` +
+    `<th class="r">Farthest from take-off${rangeM > 0 ? " / range" : ""}</th><th>Strip</th></tr></thead><tbody>${rows}</tbody></table>` +
+    `<p class="muted">One row per flight, as in <code>flights.csv</code>. Take-off points in WGS84 degrees; ground heights above mean sea level, as <code>waypoints.csv</code> writes them. ` +
+    `The farthest distance is horizontal, from the flight's own take-off point to its farthest waypoint (legs are straight between waypoints). ` +
+    `A flight that resumes a strip starts it at the waypoint where the previous flight stopped.</p>`
+  );
 }
 
 /** Layer toggles: the only script on the page (allowed by its hash in the CSP). */

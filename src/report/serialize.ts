@@ -139,7 +139,13 @@ function checkShape(inp: Partial<ReportInput> | undefined): string | null {
   if (!(r.inSite instanceof Uint8Array) || r.inSite.length !== n) return "rasters.inSite does not match the raster size";
   if (!Array.isArray(inp.legs)) return "missing legs";
   if (!inp.site || (inp.site.type !== "Polygon" && inp.site.type !== "MultiPolygon")) return "site must be a Polygon or MultiPolygon";
-  return inp.keepOut === undefined ? null : keepOutProblem(inp.keepOut);
+  return (
+    (inp.keepOut === undefined ? null : keepOutProblem(inp.keepOut)) ??
+    legBlocksProblem(inp.legs) ??
+    (inp.maxRangeM === undefined ? null : rangeProblem(inp.maxRangeM)) ??
+    (inp.blocks === undefined ? null : blocksProblem(inp.blocks)) ??
+    (inp.flights === undefined ? null : flightsProblem(inp.flights, inp.blocks))
+  );
 }
 
 const isNum = (v: unknown) => typeof v === "number";
@@ -158,6 +164,71 @@ function keepOutProblem(k: unknown): string | null {
     if (typeof z.name !== "string" || typeof z.source !== "string") return `${at} must give name and source as text`;
     for (const key of ["bufferM", "siteRemovedM2", "siteRemovedPct"]) if (!isNum(z[key])) return `${at}.${key} must be a number`;
     for (const key of ["polygons", "buffered"]) if (!isPolygons(z[key])) return `${at}.${key} must be polygons of [x, y] rings`;
+  }
+  return null;
+}
+
+/** A value as the error line quotes it: short, one line. */
+function shown(v: unknown): string {
+  const t = v === undefined ? "nothing" : JSON.stringify(v) ?? String(v);
+  return t.length > 40 ? `${t.slice(0, 37)}...` : t;
+}
+
+const isFiniteNum = (v: unknown): v is number => typeof v === "number" && Number.isFinite(v);
+const isCount = (v: unknown): v is number => Number.isInteger(v) && (v as number) >= 0;
+const isIndex = (v: unknown): v is number => Number.isInteger(v) && (v as number) >= 1;
+
+/** The optional flight and block numbers of each leg (report-data from before blocks has neither). */
+function legBlocksProblem(legs: unknown[]): string | null {
+  for (let i = 0; i < legs.length; i++) {
+    const l = legs[i] as Record<string, unknown> | null;
+    for (const key of ["flight", "block"])
+      if (l && l[key] !== undefined && !isIndex(l[key])) return `legs[${i}].${key} must be a whole number >= 1 (got ${shown(l[key])})`;
+  }
+  return null;
+}
+
+function rangeProblem(v: unknown): string | null {
+  return isFiniteNum(v) && v >= 0 ? null : `maxRangeM must be a number of metres >= 0, 0 for no limit (got ${shown(v)})`;
+}
+
+const TAKEOFF_FROM = ["given", "layout", "candidate", "proposed"];
+
+/** The blocks' shape (optional key: report-data from before blocks has none). */
+function blocksProblem(b: unknown): string | null {
+  if (!Array.isArray(b)) return `blocks must be a list (got ${shown(b)})`;
+  for (let i = 0; i < b.length; i++) {
+    const at = `blocks[${i}]`;
+    const x = b[i] as Record<string, unknown> | null;
+    if (!x || typeof x !== "object") return `${at} must be an object (got ${shown(x)})`;
+    if (!isIndex(x.index)) return `${at}.index must be a whole number >= 1 (got ${shown(x.index)})`;
+    const t = x.takeoff as Record<string, unknown> | null;
+    if (!t || typeof t !== "object") return `${at}.takeoff must be an object with x, y, lon, lat and groundAmslM (got ${shown(t)})`;
+    for (const key of ["x", "y", "lon", "lat", "groundAmslM"]) if (!isFiniteNum(t[key])) return `${at}.takeoff.${key} must be a finite number (got ${shown(t[key])})`;
+    if (Math.abs(t.lat as number) > 90 || Math.abs(t.lon as number) > 180) return `${at}.takeoff must have lon in [-180, 180] and lat in [-90, 90] (got ${shown([t.lon, t.lat])})`;
+    if (!TAKEOFF_FROM.includes(x.takeoffFrom as string)) return `${at}.takeoffFrom must be one of ${TAKEOFF_FROM.join(", ")} (got ${shown(x.takeoffFrom)})`;
+    if (x.slopeDeg !== undefined && !isFiniteNum(x.slopeDeg)) return `${at}.slopeDeg must be a finite number when given (got ${shown(x.slopeDeg)})`;
+    if (x.strips !== undefined && !(Array.isArray(x.strips) && x.strips.every(isIndex))) return `${at}.strips must be a list of strip numbers (got ${shown(x.strips)})`;
+    if (!(isFiniteNum(x.farthestM) && x.farthestM >= 0)) return `${at}.farthestM must be a number of metres >= 0 (got ${shown(x.farthestM)})`;
+    if (b.slice(0, i).some((y) => (y as { index: unknown }).index === x.index)) return `${at}.index ${shown(x.index)} repeats an earlier block's`;
+  }
+  return null;
+}
+
+/** The flights.csv rows' shape; a flight's block must be one of the blocks when they are given. */
+function flightsProblem(f: unknown, blocks: unknown): string | null {
+  if (!Array.isArray(f)) return `flights must be a list (got ${shown(f)})`;
+  const known = Array.isArray(blocks) ? new Set(blocks.map((b) => (b as { index: unknown }).index)) : null;
+  for (let i = 0; i < f.length; i++) {
+    const at = `flights[${i}]`;
+    const r = f[i] as Record<string, unknown> | null;
+    if (!r || typeof r !== "object") return `${at} must be an object (got ${shown(r)})`;
+    for (const key of ["flight", "block"]) if (!isIndex(r[key])) return `${at}.${key} must be a whole number >= 1 (got ${shown(r[key])})`;
+    if (known && !known.has(r.block)) return `${at}.block ${shown(r.block)} is not one of the blocks (${[...known].map(shown).join(", ")})`;
+    for (const key of ["takeoffLongitude", "takeoffLatitude", "takeoffGroundAmslM", "lengthM", "durationS", "maxRangeM"])
+      if (!isFiniteNum(r[key])) return `${at}.${key} must be a finite number (got ${shown(r[key])})`;
+    for (const key of ["waypoints", "photos"]) if (!isCount(r[key])) return `${at}.${key} must be a whole number >= 0 (got ${shown(r[key])})`;
+    if (r.resumesStrip !== null && !isIndex(r.resumesStrip)) return `${at}.resumesStrip must be a strip number or null (got ${shown(r.resumesStrip)})`;
   }
   return null;
 }

@@ -43,6 +43,11 @@ table.numbers th{font-weight:500;color:#333}
 table.cmp{max-width:720px}
 table.cmp tbody th{font-weight:500}
 tr.flag-absent{color:var(--muted)}
+table.flights th,table.flights td{padding:4px 5px}
+table.flights thead th{letter-spacing:0}
+table.flights th.r,table.flights td.latlon,table.flights td.far{white-space:normal}
+table.flights td.latlon .num{white-space:nowrap}
+tr.over-range td.far{color:#b40426;font-weight:600}
 tr.flag-absent td:nth-child(n+5){font-size:.8rem}
 .swatch{display:block}
 .lead{font-size:1.05rem}

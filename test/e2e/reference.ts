@@ -14,7 +14,8 @@ export function gdalinfoJson(file: string): {
   coordinateSystem: { wkt: string };
   bands: { type: string; noDataValue?: number | string }[];
 } {
-  return JSON.parse(execFileSync("gdalinfo", ["-json", file], { encoding: "utf8", env: ENV }));
+  // flags.tif's 65,536-entry colour table makes gdalinfo -json about 6 MB.
+  return JSON.parse(execFileSync("gdalinfo", ["-json", file], { encoding: "utf8", env: ENV, maxBuffer: 64 * 2 ** 20 }));
 }
 
 /**

@@ -47,7 +47,8 @@ describe("assessment GeoTIFFs read back by geotiff.js", () => {
 });
 
 describe.skipIf(!HAS_GDAL)("assessment GeoTIFFs read by GDAL (gdalinfo, gdallocationinfo from Debian's gdal-bin)", () => {
-  const info = (name: string) => JSON.parse(execFileSync("gdalinfo", ["-json", path.join(dir, name)]).toString());
+  // flags.tif's 65536-entry colour table makes gdalinfo -json about 6 MB, beyond execFileSync's default 1 MB buffer.
+  const info = (name: string) => JSON.parse(execFileSync("gdalinfo", ["-json", path.join(dir, name)], { maxBuffer: 256 * 2 ** 20 }).toString());
   const at = (name: string, col: number, row: number) =>
     execFileSync("gdallocationinfo", ["-valonly", path.join(dir, name), String(col), String(row)]).toString().trim();
 
@@ -66,6 +67,10 @@ describe.skipIf(!HAS_GDAL)("assessment GeoTIFFs read by GDAL (gdalinfo, gdalloca
       expect(j.bands[0].type).toBe(type);
       expect(j.bands[0].noDataValue).toBe(nodata);
       expect(j.metadata[""]?.AREA_OR_POINT).toBe("Area");
+      // One 512 x 512 tile and no overviews: the raster fits one tile (the COG driver's rule).
+      expect(j.bands[0].block).toEqual([512, 512]);
+      expect(j.bands[0].overviews ?? []).toEqual([]);
+      expect(j.metadata.IMAGE_STRUCTURE.LAYOUT).toBe("COG");
     });
   }
 

@@ -42,7 +42,7 @@ describe("planOutputFiles + writeOutputSet", () => {
     expect(JSON.parse(readFileSync(path.join(out, "plan.geojson"), "utf8")).type).toBe("FeatureCollection");
     expect(JSON.parse(readFileSync(path.join(out, "summary.json"), "utf8")).waypoints).toBe(rows.length);
     expect(readFileSync(path.join(out, "waypoints.csv"), "utf8").split("\r\n")).toHaveLength(rows.length + 2);
-    // TIFF 6.0, section 2: big-endian files start with "MM" and 42.
-    expect([...readFileSync(path.join(out, "gsd.tif")).subarray(0, 4)]).toEqual([0x4d, 0x4d, 0, 42]);
+    // TIFF 6.0, section 2: little-endian files (GDAL's COG byte order) start with "II" and 42.
+    expect([...readFileSync(path.join(out, "gsd.tif")).subarray(0, 4)]).toEqual([0x49, 0x49, 42, 0]);
   });
 });

@@ -266,3 +266,16 @@ describe("dem sources", () => {
     expect(flagOverridesFromParsed({ dem: ["a.tif"] })).toEqual({ dem: "a.tif" });
   });
 });
+
+describe("surface and terrain, line sites, cross strips", () => {
+  it("takes dtm only beside a surface model, in the forms dem takes", () => {
+    expect(resolvePlanOptions({ ...good(), demSurface: "dsm", dtm: "dtm.tif" }, {}, "/data/site").dtm).toBe("/data/site/dtm.tif");
+    expect(errorOf(() => resolvePlanOptions({ ...good(), dtm: "dtm.tif" }, {}, "/d")).message).toMatch(/^dtm: dtm given without a surface model/);
+  });
+  it("line keys and cross strips: checked ranges, cross strips off by default", () => {
+    const o = resolvePlanOptions({ ...good(), lineWidthM: 60, lineStrips: 3 }, {}, "/d");
+    expect([o.lineWidthM, o.lineStrips, o.crossStrips]).toEqual([60, 3, false]);
+    expect(errorOf(() => resolvePlanOptions({ ...good(), lineWidthM: 0 }, {}, "/d")).message).toMatch(/^lineWidthM: out of range/);
+    expect(resolvePlanOptions(good(), flagOverridesFromParsed({ crossStrips: true }), "/d").crossStrips).toBe(true);
+  });
+});

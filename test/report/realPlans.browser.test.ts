@@ -149,7 +149,22 @@ describe.skipIf(!HAS_CHROMIUM)("report of real plans in headless Chromium", () =
       expect(await page.locator("#map-main path.site").count()).toBe(1);
       expect(await page.locator("#map-main .legs path[stroke]").count()).toBeGreaterThan(2);
       expect(await page.locator("#map-main .waypoints circle").count()).toBeGreaterThan(Number(s.strips) * 2 - 1);
-      await visible(page, "#map-main .takeoff", 5, 5);
+      // One take-off marker per block (one when the plan has a single block or, in
+      // report-data from before blocks, none listed), each on screen; a range circle about
+      // each when the plan has a range; a flights table row per flight.
+      const blocks = p.input.blocks ?? [];
+      const markers = page.locator("#map-main g.takeoff");
+      expect(await markers.count()).toBe(Math.max(1, blocks.length));
+      const markerBoxes = await markers.evaluateAll((els) =>
+        els.map((e) => {
+          const b = (e as unknown as { getBoundingClientRect(): { width: number; height: number } }).getBoundingClientRect();
+          return { width: b.width, height: b.height };
+        }),
+      );
+      for (const box of markerBoxes) expect(box.width > 5 && box.height > 5, "take-off marker on screen").toBe(true);
+      expect(await page.locator("#map-main circle.range").count()).toBe((p.input.maxRangeM ?? 0) > 0 ? Math.max(1, blocks.length) : 0);
+      expect(await page.locator("#flights-table tbody tr").count()).toBe(p.input.flights?.length ?? 0);
+      if (p.input.flights) expect(p.input.flights.length).toBe(s.flights);
       await visible(page, "#map-main .scalebar", 40, 10);
       const arrow = page.locator("#map-main .north");
       await visible(page, "#map-main .north", 20, 20);
