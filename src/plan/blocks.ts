@@ -120,9 +120,28 @@ function blocksFor(b: BlockInputs, grid: BlockGrid, whole: Block, frame: StripFr
       }
     }
     if (!takeoff) {
-      // No site ground reaches the whole block: the nearest candidate, or the block's centre, and say so.
-      takeoff = b.candidates.length ? [...b.candidates].sort((p, q) => dist(p, centre) - dist(q, centre))[0] : centre;
-      takeoffFrom = b.candidates.length ? "candidate" : "proposed";
+      // No site ground reaches the whole block (part of it lies beyond the DEM, or in zones):
+      // the nearest candidate, else the site ground that reaches farthest into it, and say so.
+      if (b.candidates.length) {
+        takeoff = [...b.candidates].sort((p, q) => dist(p, centre) - dist(q, centre))[0];
+        takeoffFrom = "candidate";
+      } else {
+        for (const k of [1.25, 1.5, 2, 4]) {
+          const found = proposeTakeoff(
+            { grid: b.grid, inSite, reaches: (p: XY) => farthestFromM(blk, frame, p) <= k * b.rangeM, ...(b.keepOut ? { blocked: (p: XY) => pointInsideAny(b.keepOut!.index, p) } : {}) },
+            centre,
+            Math.max(grid.slackM, 0.15 * b.rangeM, b.grid.cellSizeM[0] * 2),
+            k * b.rangeM,
+          );
+          if (found) {
+            takeoff = found.xy;
+            slopeDeg = found.slopeDeg;
+            break;
+          }
+        }
+        takeoff ??= centre;
+        takeoffFrom = "proposed";
+      }
       warnings.push({
         code: "range",
         message: `Block ${blk.index}: no take-off point on the site's DEM ground outside keep-out zones reaches all of it within ${b.rangeM} m (farthest ${farthestFromM(blk, frame, takeoff).toFixed(0)} m): give a take-off point, or a larger aircraft.maxRangeM if your rules allow.`,
