@@ -35,6 +35,12 @@ export interface WaypointRow {
   altitudeTakeoffM: number;
   groundAmslM: number;
   heightAboveGroundM: number;
+  /**
+   * Altitude above the terrain model straight below, when a terrain model (`dtm`) is given
+   * beside a surface model; NaN where the terrain is unknown or no terrain model was given
+   * (then `heightAboveGroundM` is the one figure above the DEM).
+   */
+  heightAboveTerrainM: number;
   /** Ground speed on the leg ending here; 0 on a flight's first row and on vertical-only moves. */
   speedMps: number;
 }
@@ -51,6 +57,12 @@ export interface HeightReference {
   undulationM: (lon: number, lat: number) => number;
   /** Ground height at the take-off point, in `datum`; per flight (0-based index) when flights take off from different points. */
   takeoffGroundM: number | readonly number[];
+  /**
+   * Terrain height (in `datum`) at a local-frame point, for waypoints the solver did not
+   * place (take-off points, resume points); without it those rows leave the terrain figure
+   * unknown. Waypoints carrying `terrainAmslM` use that.
+   */
+  terrainAt?: (x: number, y: number) => number;
 }
 
 /**
@@ -102,6 +114,7 @@ export function waypointRows(
         altitudeTakeoffM: w.altitudeAmslM - takeoffGround,
         groundAmslM: heightReferences(w.groundAmslM, lon, lat, heights)[0],
         heightAboveGroundM: w.heightAboveGroundM,
+        heightAboveTerrainM: w.altitudeAmslM - (w.terrainAmslM ?? heights.terrainAt?.(w.x, w.y) ?? NaN),
         // To cm/s, rounded down: the speed caps the climb and descent rates (gradient x speed),
         // and every exporter and the check then read the same figure.
         speedMps: Math.floor(speedMps * 100 + 1e-9) / 100,

@@ -19,6 +19,8 @@ export const WAYPOINT_CSV_COLUMNS = [
   "ground_amsl_m",
   "height_above_ground_m",
   "speed_m_s",
+  // Added after the original twelve (the order is the contract): empty without a terrain model.
+  "height_above_terrain_m",
 ] as const;
 
 /** Degrees to 8 decimals (about 1 mm); heights and speeds to centimetres. */
@@ -57,6 +59,7 @@ export function waypointsCsv(rows: readonly WaypointRow[]): string {
         orEmpty(r.groundAmslM),
         orEmpty(r.heightAboveGroundM),
         r.speedMps.toFixed(M),
+        orEmpty(r.heightAboveTerrainM),
       ].join(","),
     );
   }

@@ -9,14 +9,22 @@ import { InputError, InputFileError } from "../errors.js";
 /** One polygon: rings of [lon, lat] pairs, the first ring the outer boundary. */
 export type LonLatPolygon = number[][][];
 
+/** One line: [lon, lat] positions in order. */
+export type LonLatLine = number[][];
+
 export interface ParsedSite {
   polygons: LonLatPolygon[];
+  /**
+   * The file's LineStrings (MultiLineStrings opened), used as a line site when
+   * the file holds no polygon; empty when it holds one (polygons win, as before).
+   */
+  lines: LonLatLine[];
   /** From the file's `name` property / KML <name>, when present. */
   name?: string;
   format: "geojson" | "kml" | "bbox";
 }
 
-const ALLOWED = "a GeoJSON Polygon, MultiPolygon, Feature or FeatureCollection with polygons, a KML 2.2 Polygon, or a bbox [west,south,east,north]";
+const ALLOWED = "a GeoJSON Polygon, MultiPolygon, LineString or MultiLineString (bare, in a Feature or FeatureCollection), a KML 2.2 Polygon or LineString, or a bbox [west,south,east,north]";
 
 /** CRS names RFC 7946's predecessor (GeoJSON 2008) used for WGS84 lon/lat. */
 const WGS84_CRS_NAMES = /^(urn:ogc:def:crs:OGC:1\.3:CRS84|urn:ogc:def:crs:OGC::CRS84|urn:ogc:def:crs:EPSG::4326|EPSG:4326|CRS84|WGS84)$/i;
@@ -40,7 +48,7 @@ export function parseSiteText(text: string, source = "site"): ParsedSite {
   }
   if (/^[[\d\s+\-.]/.test(t)) {
     const nums = t.replace(/^\[|\]$/g, "").split(/[\s,]+/).filter(Boolean).map(Number);
-    return { polygons: [bboxPolygon(nums, source)], format: "bbox" };
+    return { polygons: [bboxPolygon(nums, source)], lines: [], format: "bbox" };
   }
   throw new InputFileError(source, `not a site file: expected ${ALLOWED}`);
 }
@@ -69,19 +77,24 @@ export function bboxPolygon(bbox: readonly number[], field = "site.bbox"): LonLa
 export function parseGeoJsonSite(obj: unknown, source = "site"): ParsedSite {
   const { container, parts } = geoJsonParts(obj, source);
   const polygons: LonLatPolygon[] = [];
+  const lines: LonLatLine[] = [];
   const others = new Map<string, number>();
   let name: string | undefined;
+  let lineName: string | undefined;
   for (const part of parts) {
     if (part.notObject) continue;
     for (const p of part.polygons) polygons.push(p);
+    for (const l of part.lines) lines.push(l);
+    if (lineName === undefined && part.lines.length > 0 && part.properties && typeof part.properties.name === "string") lineName = part.properties.name;
     for (const [type, n] of part.others) others.set(type, (others.get(type) ?? 0) + n);
     const props = part.properties;
     if (name === undefined && part.polygons.length > 0 && props && typeof props.name === "string") name = props.name;
   }
+  if (polygons.length === 0 && lines.length > 0) return { polygons, lines, name: lineName, format: "geojson" };
   if (polygons.length === 0) {
     throw new InputError(source, describeFound(container, others), ALLOWED, "no polygon found");
   }
-  return { polygons, name, format: "geojson" };
+  return { polygons, lines: [], name, format: "geojson" };
 }
 
 /** What one GeoJSON feature (or a bare geometry) holds. */
@@ -92,6 +105,8 @@ export interface GeoJsonPart {
   notObject: boolean;
   /** Its Polygons and MultiPolygons' polygons, GeometryCollections opened. */
   polygons: LonLatPolygon[];
+  /** Its LineStrings and MultiLineStrings' lines (also counted in `others`, for messages that want polygons). */
+  lines: LonLatLine[];
   /** Other geometry types found, with counts ("null geometry" for a missing or malformed one). */
   others: Map<string, number>;
   /** The feature's `properties` when it is an object; null for a bare geometry. */
@@ -113,7 +128,7 @@ export function geoJsonParts(obj: unknown, source = "site", subject = "the site"
   const parts: GeoJsonPart[] = [];
   // An explicit stack, not recursion: GeometryCollections nested 10^4 deep overflow the call stack.
   const visitGeometry = (root: unknown, part: GeoJsonPart): void => {
-    const { polygons, others } = part;
+    const { polygons, lines, others } = part;
     const pending: unknown[] = [root];
     while (pending.length) {
       const g = pending.pop();
@@ -125,11 +140,15 @@ export function geoJsonParts(obj: unknown, source = "site", subject = "the site"
       if (g.type === "Polygon") polygons.push(coordsOf(g, 3, source) as LonLatPolygon);
       else if (g.type === "MultiPolygon") for (const p of coordsOf(g, 4, source) as LonLatPolygon[]) polygons.push(p);
       else if (g.type === "GeometryCollection" && Array.isArray(g.geometries)) for (let i = g.geometries.length - 1; i >= 0; i--) pending.push(g.geometries[i]);
-      else others.set(g.type, (others.get(g.type) ?? 0) + 1);
+      else {
+        if (g.type === "LineString") lines.push(coordsOf(g, 2, source) as LonLatLine);
+        else if (g.type === "MultiLineString") for (const l of coordsOf(g, 3, source) as LonLatLine[]) lines.push(l);
+        others.set(g.type, (others.get(g.type) ?? 0) + 1);
+      }
     }
   };
   const newPart = (index: number, notObject: boolean, properties: Record<string, unknown> | null): GeoJsonPart => {
-    const part: GeoJsonPart = { index, notObject, polygons: [], others: new Map(), properties };
+    const part: GeoJsonPart = { index, notObject, polygons: [], lines: [], others: new Map(), properties };
     parts.push(part);
     return part;
   };
@@ -163,16 +182,18 @@ export function geoJsonParts(obj: unknown, source = "site", subject = "the site"
 export function parseKmlSite(text: string, source = "site"): ParsedSite {
   const root = parseKmlRoot(text, source);
   const polygons: LonLatPolygon[] = [];
+  const lines: LonLatLine[] = [];
   const others = new Map<string, number>();
   for (const el of descendants(root)) {
     const tag = el.localName ?? "";
     if (tag === "Polygon") {
       polygons.push(kmlPolygon(el, source));
     } else if (KML_OTHER_GEOMETRIES.has(tag)) {
+      if (tag === "LineString") lines.push(kmlCoordinates(el, source));
       others.set(tag, (others.get(tag) ?? 0) + 1);
     }
   }
-  if (polygons.length === 0) throw new InputError(source, describeFound("KML document", others), ALLOWED, "no polygon found");
+  if (polygons.length === 0 && lines.length === 0) throw new InputError(source, describeFound("KML document", others), ALLOWED, "no polygon found");
   let name: string | undefined;
   for (const el of descendants(root)) {
     if (el.localName === "name" && el.textContent?.trim()) {
@@ -180,7 +201,7 @@ export function parseKmlSite(text: string, source = "site"): ParsedSite {
       break;
     }
   }
-  return { polygons, name, format: "kml" };
+  return { polygons, lines: polygons.length ? [] : lines, name, format: "kml" };
 }
 
 /** KML geometries that hold no area (counted to say what a file holds instead of polygons). */
@@ -216,8 +237,13 @@ export function kmlPolygon(el: Element, source = "site"): LonLatPolygon {
 }
 
 function kmlRing(ring: Element, source: string): number[][] {
-  const coords = childrenNamed(ring, "coordinates")[0];
-  if (!coords) throw new InputFileError(source, "a KML LinearRing without <coordinates>");
+  return kmlCoordinates(ring, source, "LinearRing");
+}
+
+/** The [lon, lat] positions of a KML element's <coordinates> child (altitudes dropped). */
+function kmlCoordinates(el: Element, source: string, what = "LineString"): number[][] {
+  const coords = childrenNamed(el, "coordinates")[0];
+  if (!coords) throw new InputFileError(source, `a KML ${what} without <coordinates>`);
   const out: number[][] = [];
   for (const tuple of (coords.textContent ?? "").trim().split(/\s+/)) {
     if (!tuple) continue;

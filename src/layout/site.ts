@@ -42,6 +42,9 @@ export interface ReadSiteOptions {
 export function readSite(text: string, frame: SiteFrame, opts: ReadSiteOptions = {}): Site {
   const source = opts.fileName ?? "site";
   const parsed = parseSiteText(text, source);
+  if (!parsed.polygons.length) {
+    throw new InputError(source, "a line", "a polygon here; a line is a site only with a width (lineSiteFromLonLat, plan key lineWidthM)", "the file holds lines, no polygon");
+  }
   return siteFromLonLat(parsed.polygons, frame, {
     name: opts.name ?? parsed.name ?? baseName(opts.fileName) ?? "site",
     source,

@@ -16,6 +16,16 @@ export interface Site {
   notes?: string[];
   /** Present when the outline was simplified (`local`, `wgs84` and `areaM2` are of the simplified outline). */
   simplification?: SiteSimplification;
+  /** Present when the site is a line buffered by half its width (a line site): strips follow the line. */
+  line?: SiteLine;
+}
+
+/** The line a line site was built from. */
+export interface SiteLine {
+  /** The lines in the local frame, metres, consecutive repeats dropped (file order). */
+  local: XY[][];
+  /** Width imaged, centred on the line, metres (`lineWidthM`). */
+  widthM: number;
 }
 
 /** What simplifying a site outline did. */

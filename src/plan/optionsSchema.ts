@@ -163,7 +163,7 @@ export const PLAN_OPTION_SPECS: readonly PlanOptionSpec[] = [
   }),
   spec("demAccuracyM", "--dem-accuracy-m", "number", "Stated vertical accuracy of the DEM, metres (e.g. 16 m LE90 for SRTM, decimetres for lidar); shown in the report.", { gte: 0 }),
   spec("band", "--band", "integer", "DEM band holding the heights, from 1.", { gte: 1, default: D.band }),
-  spec("area", "--area", "path", "Site outline: GeoJSON or KML polygon in WGS84 (required)."),
+  spec("area", "--area", "path", "Site (required): a GeoJSON or KML polygon in WGS84, or a line (LineString) with lineWidthM."),
 
   spec("camera.sensorWidthMm", "--sensor-width-mm", "number", "Sensor width (the image's long side), millimetres.", { gt: 0 }),
   spec("camera.sensorHeightMm", "--sensor-height-mm", "number", "Sensor height, millimetres.", { gt: 0 }),

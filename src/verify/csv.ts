@@ -1,6 +1,7 @@
 /**
  * Reads waypoints.csv as written by `gsdplan plan` or edited by hand in a
- * spreadsheet: the header must name the twelve columns in order; fields may
+ * spreadsheet: the header must name the columns in order (the twelve original ones,
+ * optionally followed by height_above_terrain_m, which verify recomputes); fields may
  * be quoted, lines may end in CRLF or LF; ground and height-above-ground may be
  * empty (they are recomputed from the DEM, not trusted).
  */
@@ -11,8 +12,11 @@ import type { VerifyRow } from "./types.js";
 /** The header verify expects: the waypoints.csv contract, as the exporter writes it. */
 export const VERIFY_CSV_COLUMNS = WAYPOINT_CSV_COLUMNS;
 
+/** Lists written before height_above_terrain_m was added carry the first twelve columns only. */
+const ORIGINAL_COLUMNS = WAYPOINT_CSV_COLUMNS.slice(0, WAYPOINT_CSV_COLUMNS.indexOf("height_above_terrain_m"));
+
 /** Columns that may be empty: everything verify recomputes or does not need. */
-const MAY_BE_EMPTY = new Set(["altitude_amsl_m", "altitude_ellipsoid_m", "altitude_takeoff_m", "ground_amsl_m", "height_above_ground_m"]);
+const MAY_BE_EMPTY = new Set(["altitude_amsl_m", "altitude_ellipsoid_m", "altitude_takeoff_m", "ground_amsl_m", "height_above_ground_m", "height_above_terrain_m"]);
 
 function unquote(f: string): string {
   const t = f.trim();
@@ -30,7 +34,8 @@ export function parseWaypointsCsv(text: string, file: string): VerifyRow[] {
   if (!lines.length) throw new InputFileError(file, "empty file: expected the waypoints.csv header and rows");
   const header = lines[0].split(",").map(unquote);
   const expected = VERIFY_CSV_COLUMNS.join(",");
-  if (header.join(",") !== expected) {
+  const columns = header.join(",") === ORIGINAL_COLUMNS.join(",") ? ORIGINAL_COLUMNS.length : VERIFY_CSV_COLUMNS.length;
+  if (header.join(",") !== expected && columns === VERIFY_CSV_COLUMNS.length) {
     throw new InputFileError(file, `bad header "${lines[0].slice(0, 120)}"; expected ${expected}`);
   }
   const rows: VerifyRow[] = [];
@@ -41,8 +46,8 @@ export function parseWaypointsCsv(text: string, file: string): VerifyRow[] {
     if (raw.trim() === "") continue;
     const f = raw.split(",").map(unquote);
     const rowNo = rows.length + 1;
-    if (f.length !== VERIFY_CSV_COLUMNS.length) {
-      throw new InputFileError(file, `line ${li + 1} (row ${rowNo}) has ${f.length} fields; expected ${VERIFY_CSV_COLUMNS.length}`);
+    if (f.length !== columns) {
+      throw new InputFileError(file, `line ${li + 1} (row ${rowNo}) has ${f.length} fields; expected ${columns}`);
     }
     const num = (k: number): number => {
       const name = VERIFY_CSV_COLUMNS[k];

@@ -16,7 +16,8 @@ import { loadPlanFile, resolvePlanOptions, type PlanOptions } from "../plan/opti
 import { parseWaypointsCsv } from "./csv.js";
 import { readKeepOutFiles } from "../route/zoneFile.js";
 import { keepOutZonesFor, limitsFromPlanOptions } from "./limits.js";
-import type { VerifyLimits, VerifyRow } from "./types.js";
+import type { VerifyDem, VerifyLimits, VerifyRow } from "./types.js";
+import { terrainOnGrid } from "../plan/terrainGrid.js";
 
 const WGS84 = "+proj=longlat +datum=WGS84 +no_defs";
 
@@ -31,7 +32,8 @@ export interface VerifyInputs {
   rows: VerifyRow[];
   options: PlanOptions;
   limits: VerifyLimits;
-  dem: DemGrid;
+  /** The DEM window; with the plan's `dtm`, the terrain model on its cells (`dem.terrain`). */
+  dem: VerifyDem;
   /** Notes about the DEM (undeclared datum or unit) for the report. */
   demWarnings: string[];
 }
@@ -47,7 +49,8 @@ export function verifyMarginM(l: VerifyLimits): number {
 
 /**
  * Reads `<target>/waypoints.csv` (or the CSV `target` names), the plan file, its
- * keep-out zone files and the DEM window under the rows plus verifyMarginM.
+ * keep-out zone files and the DEM window under the rows plus verifyMarginM (and, when the
+ * plan gives a terrain model `dtm`, that model on the same cells: the ceiling is checked on it).
  * @example const { rows, limits, dem } = await loadVerifyInputs("out", "site/plan.yaml")
  */
 export async function loadVerifyInputs(target: string, planFile: string): Promise<VerifyInputs> {
@@ -65,17 +68,24 @@ export async function loadVerifyInputs(target: string, planFile: string): Promis
   const options = resolvePlanOptions(file.data, {}, file.dir);
   const limits = limitsFromPlanOptions(options);
   if (options.keepOut.length) limits.keepOutZones = keepOutZonesFor(await readKeepOutFiles(options.keepOut), options.keepOutBufferM);
-  const source = await openDem(options.dem, {
-    band: options.band,
+  const vertical = {
     ...(options.demVerticalDatum ? { verticalDatum: options.demVerticalDatum } : {}),
     ...(options.demVerticalUnit ? { verticalUnit: VERTICAL_UNIT_NAMES[options.demVerticalUnit] } : {}),
-  });
+  };
+  const source = await openDem(options.dem, { band: options.band, ...vertical });
+  let dem: VerifyDem;
+  const demWarnings = [...source.warnings];
   try {
-    const dem = await readPaddedWindow(source, rows, verifyMarginM(limits));
-    return { csvPath, rows, options, limits, dem, demWarnings: [...source.warnings] };
+    dem = await readPaddedWindow(source, rows, verifyMarginM(limits));
   } finally {
     await source.close();
   }
+  if (options.dtm !== undefined) {
+    const t = await terrainOnGrid(options.dtm, vertical, dem);
+    demWarnings.push(...t.warnings);
+    dem = { ...dem, terrain: t.grid };
+  }
+  return { csvPath, rows, options, limits, dem, demWarnings };
 }
 
 /**

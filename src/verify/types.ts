@@ -26,6 +26,14 @@ export interface VerifyRow {
 
 export type CeilingReference = "ground" | "surface" | "takeoff";
 
+/**
+ * The DEM window the check reads, in the DEM's own CRS, with the terrain model (`dtm`,
+ * bare earth) on the same cells when one is given beside a surface model: the ceiling
+ * and the take-off ground are then checked on the terrain, clearance, the ground figures
+ * and the band on the surface.
+ */
+export type VerifyDem = import("../dem/grid.js").DemGrid & { terrain?: import("../dem/grid.js").DemGrid };
+
 /** The limits a plan promises, in metres and metres per second. */
 export interface VerifyLimits {
   clearanceM: number;

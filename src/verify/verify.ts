@@ -15,7 +15,7 @@ import { checkUnknownLeg, type UnknownFinding } from "./nodata.js";
 import { flightPath, type FlightPath } from "./path.js";
 import { TAKEOFF_TOLERANCE_M, flightSpans, groundMismatches, rateBreaches, shortDistanceM } from "./points.js";
 import { groundAtIndex, knownGroundAtIndex, makeSurface } from "./surface.js";
-import type { Breach, VerifyLimitName, VerifyLimits, VerifyResult, VerifyRow } from "./types.js";
+import type { Breach, VerifyDem, VerifyLimitName, VerifyLimits, VerifyResult, VerifyRow } from "./types.js";
 
 export const LIMIT_ORDER: readonly VerifyLimitName[] = ["ground", "clearance", "ceiling", "climb", "descent", "nodata", "keepOut", "takeoff", "band"];
 
@@ -27,14 +27,18 @@ const CEILING_WORDS = {
 
 /**
  * Checks waypoint rows against the plan's limits on a DEM window in the DEM's
- * own CRS (as readWindow returns it). Pure: no files, no clock.
+ * own CRS (as readWindow returns it). Pure: no files, no clock. With `dem.terrain` (a
+ * terrain model on the same cells beside a surface model) the ceiling and the take-off
+ * ground are measured on the terrain; clearance, ground figures and band on the surface.
  * @example
  * const { rows, limits, dem } = await loadVerifyInputs("out", "plan.yaml");
  * const result = verifyWaypoints(rows, limits, dem);
  * result.ok // true when no promise is broken
  */
-export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits, dem: DemGrid): VerifyResult {
+export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits, dem: VerifyDem): VerifyResult {
   const s = makeSurface(dem, limits.assumeGroundM);
+  // The legal ceilings refer to the terrain (bare earth): checked on it when given, same index space.
+  const t = dem.terrain ? makeSurface(onSameCells(dem.terrain, dem), limits.assumeGroundM) : s;
   const path = flightPath(rows, s);
   const floorM = clearanceFloorM(limits);
   const R = limits.safetyRadiusM;
@@ -42,7 +46,7 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
   const warnings: Breach[] = [];
   const spans = flightSpans(path);
   const takeoffGround = new Float64Array(path.n);
-  for (const f of spans) for (let i = f.first; i <= f.last; i++) takeoffGround[i] = groundAtIndex(s, path.c[f.first], path.r[f.first]);
+  for (const f of spans) for (let i = f.first; i <= f.last; i++) takeoffGround[i] = groundAtIndex(t, path.c[f.first], path.r[f.first]);
 
   const finding = emptyFinding();
   const unknown: UnknownFinding = { belowM: 0, nearM: 0, firstT: NaN };
@@ -81,8 +85,8 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
     }
 
     const ref = limits.ceilingReference;
-    if (ref === "ground") checkGroundCeilingLeg(s, leg, limits.ceilingM, finding);
-    else if (ref === "surface") checkSurfaceCeilingLeg(s, leg, limits.ceilingM, finding);
+    if (ref === "ground") checkGroundCeilingLeg(t, leg, limits.ceilingM, finding);
+    else if (ref === "surface") checkSurfaceCeilingLeg(t, leg, limits.ceilingM, finding);
     else if (takeoffGround[i] === takeoffGround[i]) checkTakeoffCeilingLeg(leg, takeoffGround[i], limits.ceilingM, finding);
     else finding.worst = -Infinity;
     samples += finding.samples;
@@ -193,6 +197,15 @@ export function verifyWaypoints(rows: readonly VerifyRow[], limits: VerifyLimits
     checked: { rows: path.n, flights: spans.length, legs, pathLengthM, samples, clearanceFloorM: floorM, toleranceM: TOLERANCE_M, unresolvedLeaves: unresolved,
       keepOutZones: zones.length, keepOutToleranceM: KEEP_OUT_TOLERANCE_M },
   };
+}
+
+/** The terrain window, refused unless it lies on the surface window's cells (one index space for both). */
+function onSameCells(terrain: DemGrid, dem: DemGrid): DemGrid {
+  const a = terrain.transform, b = dem.transform;
+  if (terrain.width !== dem.width || terrain.height !== dem.height || a.x0 !== b.x0 || a.y0 !== b.y0 || a.dx !== b.dx || a.dy !== b.dy) {
+    throw new Error("verifyWaypoints: the terrain model must be on the DEM window's cells");
+  }
+  return terrain;
 }
 
 function legBreach(path: FlightPath, i: number, limit: VerifyLimitName, f: LegFinding, sizeM: number, text: (where: string) => string): Breach {

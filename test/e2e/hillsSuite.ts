@@ -18,9 +18,9 @@ import { HAS_GDAL, HAS_PROJ } from "../helpers/tools.js";
 import { ROOT, parseCsv, runCli, sha256, tempDir, type CliResult } from "./cli.js";
 import { cs2csFromWgs84, gdalBilinearM, gdalCellValues, gdalinfoJson, projEgm96UndulationsM } from "./reference.js";
 
-/** The exact header of waypoints.csv (issue 6, "Outputs"). */
+/** The exact header of waypoints.csv (issue 6, "Outputs"; issue 13 added height_above_terrain_m after the contract columns). */
 export const CSV_HEADER =
-  "flight,strip,index,segment,longitude,latitude,altitude_amsl_m,altitude_ellipsoid_m,altitude_takeoff_m,ground_amsl_m,height_above_ground_m,speed_m_s";
+  "flight,strip,index,segment,longitude,latitude,altitude_amsl_m,altitude_ellipsoid_m,altitude_takeoff_m,ground_amsl_m,height_above_ground_m,speed_m_s,height_above_terrain_m";
 
 /** The output set of one run (issue 6, "Outputs in --out"). */
 export const OUTPUT_FILES = [
@@ -182,7 +182,7 @@ export function hillsPlanSuite(c: HillsCase): void {
     });
 
     describe("waypoints.csv", () => {
-      it("has exactly the contract header and twelve finite fields per row", () => {
+      it("has exactly the contract header, twelve finite contract fields per row, and an empty height above terrain without a dtm", () => {
         expect(header.join(",")).toBe(CSV_HEADER);
         expect(rows.length).toBeGreaterThan(2);
         expect(rows.length).toBe(summary.waypoints);
@@ -190,6 +190,7 @@ export function hillsPlanSuite(c: HillsCase): void {
           for (const v of [r.flight, r.strip, r.index, r.lon, r.lat, r.amsl, r.ell, r.takeoff, r.ground, r.agl, r.speed]) expect(Number.isFinite(v)).toBe(true);
           expect(["strip", "transit"]).toContain(r.segment);
         }
+        for (const line of readFileSync(path.join(out, "waypoints.csv"), "utf8").trim().split(/\r?\n/).slice(1)) expect(line.endsWith(",")).toBe(true);
       });
 
       it("ground equals GDAL's height at each waypoint within 0.05 m (bilinear from gdallocationinfo's four cells)", () => {

@@ -29,10 +29,10 @@ describe("waypoints.csv", () => {
 
   it("has exactly the contract's columns", () => {
     expect(header.join(",")).toBe(
-      "flight,strip,index,segment,longitude,latitude,altitude_amsl_m,altitude_ellipsoid_m,altitude_takeoff_m,ground_amsl_m,height_above_ground_m,speed_m_s",
+      "flight,strip,index,segment,longitude,latitude,altitude_amsl_m,altitude_ellipsoid_m,altitude_takeoff_m,ground_amsl_m,height_above_ground_m,speed_m_s,height_above_terrain_m",
     );
     expect(header).toEqual([...WAYPOINT_CSV_COLUMNS]);
-    for (const r of rows) expect(Object.keys(r)).toHaveLength(12);
+    for (const r of rows) expect(Object.keys(r)).toHaveLength(13);
   });
 
   it("writes each shared point once, on the row of the leg that ends there", () => {
