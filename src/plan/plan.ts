@@ -157,6 +157,13 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const obstacles = planObstacles(grid, crossLayout ? { ...fullLayout, legs: [...fullLayout.legs, ...crossLayout.legs] } : fullLayout, options, stationStepM, keepOut);
   const candidates = (options.takeoffs ?? (options.takeoff ? [options.takeoff] : [])).map(([lon, lat]) => frame.fromWgs84(lon, lat));
   if (keepOut) for (const [k, c] of candidates.entries()) assertTakeoffOutside(keepOut, c, (options.takeoffs ?? [options.takeoff])[k]);
+  if (options.takeoffs) {
+    for (const [k, c] of candidates.entries()) {
+      if (!Number.isFinite(groundAt(prepared.terrain ?? grid, c, options.assumeGroundM))) {
+        throw new InputError(`takeoff[${k}]`, options.takeoffs[k], "take-off points on the DEM", "the DEM has no height there");
+      }
+    }
+  }
   const blockLayouts: { block: PlannedBlock; layout: Layout; groundM: number }[] = [];
   for (const familyLayout of crossLayout ? [fullLayout, crossLayout] : [fullLayout]) {
     // The second family's blocks prefer the first's take-off points (fewer launch sites)

@@ -125,4 +125,13 @@ describe("blocks and resumed strips (hills fixture, 200 m range, 6 min battery)"
     for (const r of flightRows(given)) expect(ok.has(`${r.takeoffLongitude.toFixed(7)},${r.takeoffLatitude.toFixed(7)}`)).toBe(true);
     expect(given.blocks.every((b) => b.takeoffFrom === "candidate")).toBe(true);
   }, 120_000);
+
+  it("refuses a candidate take-off point off the DEM in one line naming it", async () => {
+    const { InputError } = await import("../../src/errors.js");
+    const cands: [number, number][] = [[run.blocks[0].takeoff.lon, run.blocks[0].takeoff.lat], [14.995, 46.955]];
+    // 14.995 E lies about 380 m west of the fixture DEM's west edge (500000 E is 15 E in UTM 33N).
+    const e = await plan({ "aircraft.maxRangeM": RANGE_M, takeoff: cands }).then(() => null, (err) => err);
+    expect(e).toBeInstanceOf(InputError);
+    expect(e.message).toMatch(/^takeoff\[1\]: the DEM has no height there \(got \[14\.995,46\.955\]; allowed: take-off points on the DEM\)$/);
+  }, 120_000);
 });
