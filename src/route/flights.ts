@@ -81,17 +81,26 @@ export function splitFlights(legs: readonly SolvedLeg[], o: FlightSplitOptions):
   const flights: SolvedLeg[][] = [];
   let current: SolvedLeg[] = [];
 
+  // Trying flights asks for the same legs to and from take-off again and again (every
+  // extension tried ends with the leg back from the same strip end): solve each once.
+  const solved = new Map<string, SolvedLeg>();
+  const transitLeg: FlightSplitOptions["transitLeg"] = (from, to, strip, direction, joinM) => {
+    const key = `${from[0]},${from[1]},${to[0]},${to[1]},${strip},${direction},${joinM}`;
+    let leg = solved.get(key);
+    if (!leg) solved.set(key, (leg = o.transitLeg(from, to, strip, direction, joinM)));
+    return leg;
+  };
   const opening = (b: Block, first: boolean): SolvedLeg[] => {
     if (first && b.leading.length && near(b.leading[0].from, o.takeoff)) return [...b.leading, ...b.body];
     if (near(o.takeoff, b.body[0].from)) return [...b.body];
-    return [o.transitLeg(o.takeoff, b.body[0].from, b.strip, "out", b.body[0].waypoints[0]?.altitudeAmslM), ...b.body];
+    return [transitLeg(o.takeoff, b.body[0].from, b.strip, "out", b.body[0].waypoints[0]?.altitudeAmslM), ...b.body];
   };
   const close = (f: SolvedLeg[]): SolvedLeg[] => {
     const last = f[f.length - 1];
     // A flight whose last strip ends over the take-off point needs no leg back: a
     // zero-length transit has no stations, so its altitudes and time come out NaN.
     if (near(last.to, o.takeoff)) return f;
-    return [...f, o.transitLeg(last.to, o.takeoff, last.strip, "back", last.waypoints[last.waypoints.length - 1]?.altitudeAmslM)];
+    return [...f, transitLeg(last.to, o.takeoff, last.strip, "back", last.waypoints[last.waypoints.length - 1]?.altitudeAmslM)];
   };
   const fits = (f: SolvedLeg[]) => flightTimeS(f, o) <= usableS && countRows(f) <= maxWp;
   /**
