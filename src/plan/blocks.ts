@@ -126,7 +126,7 @@ function blocksFor(b: BlockInputs, grid: BlockGrid, whole: Block, frame: StripFr
         takeoff = [...b.candidates].sort((p, q) => dist(p, centre) - dist(q, centre))[0];
         takeoffFrom = "candidate";
       } else {
-        for (const k of [1.25, 1.5, 2, 4]) {
+        for (const k of [1.25, 1.5, 2]) {
           const found = proposeTakeoff(
             { grid: b.grid, inSite, reaches: (p: XY) => farthestFromM(blk, frame, p) <= k * b.rangeM, ...(b.keepOut ? { blocked: (p: XY) => pointInsideAny(b.keepOut!.index, p) } : {}) },
             centre,

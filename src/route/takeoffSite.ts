@@ -26,12 +26,14 @@ export interface ProposedTakeoff {
 
 /** Slopes within this many degrees count as equally flat: the nearer point wins. */
 const SLOPE_STEP_DEG = 0.5;
+/** Candidate cells are visited on a lattice about this far apart, metres: a take-off spot is metres wide, and a 0.5 m DEM would otherwise cost 16x the work. */
+const LATTICE_M = 2;
 
 /**
  * The proposed take-off cell: among site cells within `radiusM` of `centre`
  * (widened by doubling up to `maxRadiusM` until one qualifies) whose 3 x 3
  * neighbourhood has data, that lie outside keep-out zones and from which the
- * whole block is in range, the one with the least slope, rounded to 0.5 degrees,
+ * whole block is in range (visited on a lattice about 2 m apart), the one with the least slope, rounded to 0.5 degrees,
  * nearest the centre on a tie. Slope is Horn's method (B. K. P. Horn, "Hill
  * shading and the reflectance map", Proc. IEEE 69(1), 1981: the 3 x 3 weighted
  * gradient GDAL's gdaldem slope uses). Null when no cell qualifies.
@@ -42,6 +44,7 @@ export function proposeTakeoff(s: TakeoffSearch, centre: XY, radiusM: number, ma
   const { width, height, heights, valid } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const [cw, ch] = grid.cellSizeM;
+  const stride = Math.max(1, Math.floor(LATTICE_M / Math.max(cw, ch)));
   for (let r = radiusM; ; r = Math.min(2 * r, maxRadiusM)) {
     const c0 = Math.max(1, Math.floor((centre[0] - r - x0) / dx - 0.5));
     const c1 = Math.min(width - 2, Math.ceil((centre[0] + r - x0) / dx - 0.5));
@@ -49,8 +52,8 @@ export function proposeTakeoff(s: TakeoffSearch, centre: XY, radiusM: number, ma
     const r0 = Math.max(1, Math.min(rA, rB)), r1 = Math.min(height - 2, Math.max(rA, rB));
     let best: ProposedTakeoff | null = null;
     let bestKey = Infinity;
-    for (let row = r0; row <= r1; row++) {
-      for (let col = c0; col <= c1; col++) {
+    for (let row = r0; row <= r1; row += stride) {
+      for (let col = c0; col <= c1; col += stride) {
         const i = row * width + col;
         if (s.inSite[i] !== 1) continue;
         const xy: XY = [x0 + (col + 0.5) * dx, y0 + (row + 0.5) * dy];

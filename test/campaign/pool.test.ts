@@ -51,9 +51,11 @@ describe("the campaign's worker pool", () => {
       expect(stage).toBeGreaterThanOrEqual(0);
       expect(stage).toBeLessThan(messages.indexOf(byIndex.get(i)!));
     }
-    // Two threads at first, and one new thread for each that died: four in all (by the
-    // thread ids each job logged).
+    // Two threads at first, and one new thread for each that died (by the thread ids each job
+    // logged): three or four, since a thread started after the last job was taken logs nothing
+    // (which happens depends on the scheduler: seen under load).
     const threads = new Set(readFileSync(log, "utf8").trim().split("\n").map((l) => l.split(" ")[0]));
-    expect(threads.size).toBe(4);
+    expect(threads.size).toBeGreaterThanOrEqual(3);
+    expect(threads.size).toBeLessThanOrEqual(4);
   });
 });
