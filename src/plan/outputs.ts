@@ -8,6 +8,7 @@ import type { OutputFile } from "../export/atomicDir.js";
 import { waypointsCsv } from "../export/waypointsCsv.js";
 import { flightsCsv, type FlightRow } from "../export/flightsCsv.js";
 import { heightReferences } from "../export/rows.js";
+import { farthestWaypointM } from "../route/flights.js";
 import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
@@ -245,8 +246,7 @@ export function flightRows(run: PlanRun): FlightRow[] {
   return run.flights.flights.map((f) => {
     const t = f.takeoff?.xy ?? [run.takeoff.x, run.takeoff.y];
     const [lon, lat] = run.frame.toWgs84(t[0], t[1]);
-    let far = 0;
-    for (const l of f.legs) for (const w of l.waypoints) far = Math.max(far, Math.hypot(w.x - t[0], w.y - t[1]));
+    const far = farthestWaypointM(f.legs, t);
     return {
       flight: f.index,
       block: f.block ?? 1,

@@ -38,7 +38,7 @@ import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../sol
 import { assessPlan } from "../assess/assess.js";
 import type { AssessedLeg } from "../assess/exposures.js";
 import type { Assessment } from "../assess/types.js";
-import { splitFlights, type FlightSplit } from "../route/flights.js";
+import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
@@ -447,8 +447,7 @@ function rangeBreaches(flights: FlightSplit["flights"], rangeM: number): SolveWa
   for (const f of flights) {
     const t = f.takeoff?.xy ?? f.legs[0]?.from;
     if (!t) continue;
-    let far = 0;
-    for (const l of f.legs) for (const w of l.waypoints) far = Math.max(far, Math.hypot(w.x - t[0], w.y - t[1]));
+    const far = farthestWaypointM(f.legs, t);
     if (far > rangeM + 0.01) {
       out.push({ code: "range", message: `Flight ${f.index} reaches ${far.toFixed(0)} m from its take-off point, beyond the ${rangeM} m range (aircraft.maxRangeM).` });
     }

@@ -323,3 +323,14 @@ export function straightTransitLeg(from: XY, to: XY, strip: number, p: StraightT
     timeS: lengthM / p.speedMps,
   };
 }
+
+/**
+ * Farthest horizontal distance of a flight's path from a point, metres: legs are straight
+ * between waypoints, so the farthest point of a leg is one of its waypoints.
+ * @example farthestWaypointM(flight.legs, takeoff) // 289.1
+ */
+export function farthestWaypointM(legs: readonly SolvedLeg[], from: XY): number {
+  let far = 0;
+  for (const l of legs) for (const w of l.waypoints) far = Math.max(far, Math.hypot(w.x - from[0], w.y - from[1]));
+  return far;
+}
