@@ -207,7 +207,7 @@ async function child(planFile, outDir) {
       reliefOverBandWindow: (zMax - zMin) / bandWindowM,
       stations: run.solve.counts,
       ours: { gsdCm: a.gsdCm, withinBandPct: a.withinBandPct, flaggedAreaM2: a.flagged.areaM2, flaggedPct: (100 * a.flagged.cells) / a.siteCells, flaggedByKind: a.flagged.byKind, images: a.images, ceilingBreaches: run.baseline.planCeilingBreaches },
-      baseline: { altitudeAmslM: run.baseline.altitudeAmslM, gsdCm: b.gsdCm, withinBandPct: b.withinBandPct, flaggedAreaM2: b.flaggedAreaM2, flaggedPct: b.flaggedPct, flaggedByKind: run.baseline.assessment.stats.flagged.byKind, images: b.images, ceilingBreaches: b.ceilingBreaches },
+      baseline: { altitudeAmslM: run.baseline.altitudeAmslM, gsdCm: b.gsdCm, withinBandPct: b.withinBandPct, flaggedAreaM2: b.flaggedAreaM2, flaggedPct: b.flaggedPct, flaggedByKind: b.flaggedByKind, images: b.images, ceilingBreaches: b.ceilingBreaches },
       band: { lowGsdCm: run.requirement.lowGsdM * 100, highGsdCm: run.requirement.highGsdM * 100 },
     },
   };

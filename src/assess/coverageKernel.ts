@@ -61,11 +61,11 @@ export interface BlockMinima {
  * Lowest site ground per BLOCK x BLOCK cells, to bound each footprint by the
  * ground it can actually fall on rather than the lowest point of the whole
  * site: with 60 m of relief under a 100 m flight the site minimum alone would
- * more than double the cells visited per photo. Fills `siteGround` (heights
- * inside the site, NaN elsewhere) in the same pass.
+ * more than double the cells visited per photo. Fills `siteGround`, when given
+ * (heights inside the site, NaN elsewhere), in the same pass.
  * @example const blocks = siteGroundAndBlocks(grid.heights, inSite, grid.width, grid.height, siteGround);
  */
-export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, width: number, height: number, siteGround: Float32Array): BlockMinima {
+export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, width: number, height: number, siteGround?: Float32Array): BlockMinima {
   const bw = Math.ceil(width / BLOCK);
   const bh = Math.ceil(height / BLOCK);
   const mins = new Float64Array(bw * bh).fill(Infinity);
@@ -76,11 +76,11 @@ export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, w
     for (let c = 0; c < width; c++) {
       const i = base + c;
       if (inSite[i] === 0) {
-        siteGround[i] = NaN;
+        if (siteGround) siteGround[i] = NaN;
         continue;
       }
       const g = heights[i];
-      siteGround[i] = g;
+      if (siteGround) siteGround[i] = g;
       if (!(g === g)) continue;
       const b = brow + ((c / BLOCK) | 0);
       if (g < mins[b]) mins[b] = g;
@@ -90,7 +90,19 @@ export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, w
   return { mins, bw, bh, globalMin };
 }
 
-function minUnder(bl: BlockMinima, inp: SweepInput, px: number, py: number, ux: number, uy: number, halfAlongM: number, halfAcrossM: number): number {
+/** Grid origin and cell steps (the transform's figures). */
+export interface GridSteps {
+  x0: number;
+  y0: number;
+  dx: number;
+  dy: number;
+}
+
+/**
+ * Lowest ground of the blocks under the axis-aligned box of a rectangle centred on (px, py),
+ * turned to (ux, uy): an outer bound for the ground any footprint there can fall on.
+ */
+export function minUnder(bl: BlockMinima, inp: GridSteps, px: number, py: number, ux: number, uy: number, halfAlongM: number, halfAcrossM: number): number {
   const { x0, y0, dx, dy } = inp;
   const ex = Math.abs(ux) * halfAlongM + Math.abs(uy) * halfAcrossM;
   const ey = Math.abs(uy) * halfAlongM + Math.abs(ux) * halfAcrossM;

@@ -36,41 +36,70 @@ export interface ExposureOptions {
  * exposures[0]; // { x, y, altitudeAmslM, ux, uy, strip }
  */
 export function exposuresFromLegs(legs: readonly AssessedLeg[], triggerM: number, opts: ExposureOptions = {}): Exposure[] {
-  if (!(triggerM > 0) || !Number.isFinite(triggerM)) {
-    throw new InputError("triggerM", triggerM, "a finite number of metres > 0", "trigger distance must be positive");
-  }
-  const phase = opts.phase ?? "start";
+  checkTrigger(triggerM);
   const out: Exposure[] = [];
   for (const leg of legs) {
-    if (leg.kind !== "strip") continue;
-    const ddx = leg.to[0] - leg.from[0];
-    const ddy = leg.to[1] - leg.from[1];
-    const len = Math.hypot(ddx, ddy);
-    if (!(len > 0) || leg.waypoints.length === 0) continue;
-    const ux = ddx / len;
-    const uy = ddy / len;
-    // Half a millimetre of slack keeps a photo that lands on the leg end despite rounding.
-    const own = leg.photoPhaseM;
-    const n = Math.floor((len - (own ?? 0)) / triggerM + 1e-9);
-    const s0 = own !== undefined ? own : phase === "centred" ? (len - n * triggerM) / 2 : 0;
-    const gaps = leg.noPhotoIntervals ?? [];
+    const lat = photoLattice(leg, triggerM, opts);
+    if (!lat) continue;
     const wps = leg.waypoints;
     let seg = 0;
-    for (let k = 0; k <= n; k++) {
-      const s = s0 + k * triggerM;
-      if (inAnyInterval(s, gaps)) continue;
+    for (let k = 0; k <= lat.n; k++) {
+      if (lat.present[k] === 0) continue;
+      const s = lat.s0 + k * triggerM;
       while (seg + 1 < wps.length - 1 && wps[seg + 1].s < s) seg++;
       out.push({
-        x: leg.from[0] + s * ux,
-        y: leg.from[1] + s * uy,
+        x: leg.from[0] + s * lat.ux,
+        y: leg.from[1] + s * lat.uy,
         altitudeAmslM: altitudeOnSegment(wps, seg, s),
-        ux,
-        uy,
+        ux: lat.ux,
+        uy: lat.uy,
         strip: leg.strip,
       });
     }
   }
   return out;
+}
+
+/**
+ * Where a strip leg's photos fall: at s = s0 + k * triggerM from the leg start for
+ * k = 0..n, except where `present[k]` is 0 (inside a no-photo interval). Null for
+ * legs that take no photos (not a strip, zero length, no waypoints).
+ */
+export interface PhotoLattice {
+  ux: number;
+  uy: number;
+  lengthM: number;
+  s0: number;
+  n: number;
+  present: Uint8Array;
+}
+
+/**
+ * The photo positions of one leg, the rule exposuresFromLegs places photos by.
+ * @example const lat = photoLattice(leg, 8.8); lat && lat.s0 + lat.n * 8.8 <= lat.lengthM
+ */
+export function photoLattice(leg: AssessedLeg, triggerM: number, opts: ExposureOptions = {}): PhotoLattice | null {
+  checkTrigger(triggerM);
+  if (leg.kind !== "strip") return null;
+  const ddx = leg.to[0] - leg.from[0];
+  const ddy = leg.to[1] - leg.from[1];
+  const len = Math.hypot(ddx, ddy);
+  if (!(len > 0) || leg.waypoints.length === 0) return null;
+  const phase = opts.phase ?? "start";
+  // Half a millimetre of slack keeps a photo that lands on the leg end despite rounding.
+  const own = leg.photoPhaseM;
+  const n = Math.floor((len - (own ?? 0)) / triggerM + 1e-9);
+  const s0 = own !== undefined ? own : phase === "centred" ? (len - n * triggerM) / 2 : 0;
+  const gaps = leg.noPhotoIntervals ?? [];
+  const present = new Uint8Array(Math.max(0, n + 1));
+  for (let k = 0; k <= n; k++) present[k] = inAnyInterval(s0 + k * triggerM, gaps) ? 0 : 1;
+  return { ux: ddx / len, uy: ddy / len, lengthM: len, s0, n, present };
+}
+
+function checkTrigger(triggerM: number): void {
+  if (!(triggerM > 0) || !Number.isFinite(triggerM)) {
+    throw new InputError("triggerM", triggerM, "a finite number of metres > 0", "trigger distance must be positive");
+  }
 }
 
 function inAnyInterval(s: number, gaps: NoPhotoIntervals): boolean {

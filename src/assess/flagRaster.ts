@@ -27,7 +27,7 @@ import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
  * relative), so a cell flown exactly at a band edge must not flip out of band
  * by rounding.
  */
-const BAND_SLACK = 1e-6;
+export const BAND_SLACK = 1e-6;
 
 /**
  * Effect bits and the no-data bit for site cells; 0 outside the site.

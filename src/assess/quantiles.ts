@@ -97,13 +97,17 @@ function fromSortKey(k: number): number {
  */
 export function countStats(values: Uint16Array, include: Uint8Array): { min: number; median: number } {
   const hist = new Float64Array(65536);
+  for (let i = 0; i < values.length; i++) if (include[i] === 1) hist[values[i]]++;
+  return countStatsOfHistogram(hist);
+}
+
+/**
+ * countStats from the counts themselves: hist[v] = how many entries equal v.
+ * @example countStatsOfHistogram(Float64Array.of(0, 2, 1)) // { min: 1, median: 1 }
+ */
+export function countStatsOfHistogram(hist: Float64Array): { min: number; median: number } {
   let n = 0;
-  for (let i = 0; i < values.length; i++) {
-    if (include[i] === 1) {
-      hist[values[i]]++;
-      n++;
-    }
-  }
+  for (let v = 0; v < hist.length; v++) n += hist[v];
   if (n === 0) return { min: NaN, median: NaN };
   const at = (r: number): number => {
     let acc = 0;

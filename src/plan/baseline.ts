@@ -1,18 +1,26 @@
 /**
  * The naive plan a user would otherwise fly: the same strips at one constant
  * altitude, the height that gives the target GSD over the site's median
- * ground. Assessed by the same independent check, it shows what terrain
+ * ground. Measured by the assessment's own rules, it shows what terrain
  * following buys (GSD spread, share in the band, ceiling breaches).
+ *
+ * At one altitude A the nadir GSD of a seen cell depends on its own ground
+ * only, (A - g) * ifov, whichever photo sees it; the image counts come from
+ * the photo lattices strip by strip (latticeCoverage.ts), so no footprint
+ * sweep is needed. The figures are those the assessment would give for these
+ * photos (test/plan/baseline.test.ts compares the two).
  */
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
-import type { Layout, Site } from "../layout/types.js";
+import type { Layout } from "../layout/types.js";
 import type { CeilingReference } from "../solve/types.js";
-import { straightTransitLeg } from "../route/flights.js";
-import { assessPlan } from "../assess/assess.js";
-import type { AssessedLeg } from "../assess/exposures.js";
-import type { Assessment, AssessmentRasters, GsdStats } from "../assess/types.js";
-import { quantilesFloat32 } from "../assess/quantiles.js";
+import { footprintPixels } from "../assess/coverage.js";
+import { photoLattice, type AssessedLeg } from "../assess/exposures.js";
+import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage.js";
+import { BAND_SLACK } from "../assess/flagRaster.js";
+import { ASSESSMENT_FLAG_KINDS, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
+import type { AssessmentRasters, GsdStats } from "../assess/types.js";
+import { countStatsOfHistogram, quantilesFloat32 } from "../assess/quantiles.js";
 
 export interface CeilingBreaches {
   cells: number;
@@ -23,13 +31,16 @@ export interface Baseline {
   altitudeAmslM: number;
   heightAboveMedianGroundM: number;
   medianGroundM: number;
-  assessment: Assessment;
+  /** GSD in cm/px of every site cell some photo sees (no raster: only its distribution is shown). */
+  gsdValuesCm: Float32Array;
   stats: {
     gsdCm: GsdStats;
     withinBandPct: number;
     images: { min: number; median: number };
     flaggedAreaM2: number;
     flaggedPct: number;
+    /** Flagged site cells by flag key, as the assessment's stats.flagged.byKind. */
+    flaggedByKind: Record<string, { cells: number; areaM2: number; pct: number }>;
     ceilingBreaches: CeilingBreaches;
   };
   /** Our plan's site cells above the ceiling by the same measure (expected none). */
@@ -40,22 +51,18 @@ export interface BaselineOptions {
   targetHeightM: number;
   triggerM: number;
   minImages: number;
-  toWgs84: (x: number, y: number) => [number, number];
   ceiling: { heightM: number; reference: CeilingReference };
   takeoffGroundM: number;
   /** The terrain-following plan's rasters: its site mask and GSD give its own breaches. */
   planRasters: AssessmentRasters;
-  /** Threads for the coverage pass (see CoverageOptions); default the assessment's own choice. */
-  threads?: number;
 }
 
 /**
- * Assesses the constant-altitude plan over the layout's strips.
- * @example constantAltitudeBaseline(grid, site, layout, camera, req, { targetHeightM: 91, ... }).stats.withinBandPct
+ * Measures the constant-altitude plan over the layout's strips.
+ * @example constantAltitudeBaseline(grid, layout, camera, req, { targetHeightM: 91, ... }).stats.withinBandPct
  */
 export function constantAltitudeBaseline(
   grid: DemGrid,
-  site: Site,
   layout: Layout,
   camera: Camera,
   requirement: Requirement,
@@ -63,38 +70,88 @@ export function constantAltitudeBaseline(
 ): Baseline {
   const inSite = o.planRasters.inSite;
   const medianGroundM = medianSiteGround(grid, inSite);
-  const altitudeAmslM = medianGroundM + o.targetHeightM;
-  const legs: AssessedLeg[] = layout.legs
-    .filter((l) => l.kind === "strip")
-    // One straight leg per strip at the one altitude (the speed does not enter the assessment).
-    .map((l) => ({
-      ...straightTransitLeg(l.from, l.to, l.strip, { altitudeAmslM, speedMps: 1 }),
-      kind: "strip" as const,
+  const A = medianGroundM + o.targetHeightM;
+  const strips: LatticeStrip[] = [];
+  for (const l of layout.legs) {
+    if (l.kind !== "strip") continue;
+    // Photos every trigger distance from each strip's start (or on the line's own photo grid
+    // where a block seam cut it), as the assessment places them on the flown strips.
+    const leg = {
+      kind: "strip", from: l.from, to: l.to, waypoints: [{}],
       ...(l.noPhotoIntervals ? { noPhotoIntervals: l.noPhotoIntervals } : {}),
-    }));
-  const assessment = assessPlan(grid, site.local, legs, camera, requirement, {
-    triggerM: o.triggerM,
-    minImages: o.minImages,
-    zoneHalfAcrossM: layout.spacingM / 2,
-    toWgs84: o.toWgs84,
-    nadirBy: "distance",
-    // Only its figures are compared; its flags are not drawn.
-    polygons: false,
-    ...(o.threads !== undefined ? { threads: o.threads } : {}),
+      ...(l.photoGrid ? { photoPhaseM: ((l.photoGrid.firstM % l.photoGrid.everyM) + l.photoGrid.everyM) % l.photoGrid.everyM } : {}),
+    } as unknown as AssessedLeg;
+    const lattice = photoLattice(leg, o.triggerM);
+    if (lattice) strips.push({ from: l.from, lattice });
+  }
+  const { alongPx, acrossPx } = footprintPixels(camera);
+  const images = latticeImageCounts(grid, inSite, strips, A, o.triggerM, (camera.ifov * alongPx) / 2, (camera.ifov * acrossPx) / 2);
+
+  // One pass over the site: GSD, flags (the assessment's effect bits) and every count.
+  const n = inSite.length;
+  const gsdPerM = camera.ifov * 100;
+  const lo = requirement.lowGsdM * 100 * (1 - BAND_SLACK);
+  const hi = requirement.highGsdM * 100 * (1 + BAND_SLACK);
+  const { heights, valid } = grid;
+  let seen = 0;
+  for (let i = 0; i < n; i++) if (inSite[i] === 1 && images[i] > 0) seen++;
+  const gsdValuesCm = new Float32Array(seen);
+  const imageHist = new Float64Array(65536);
+  const gsd32 = new Float32Array(1);
+  const kindCells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
+  const flagHist = new Float64Array(FLAG_VALUES);
+  let siteCells = 0;
+  let flagged = 0;
+  let inBand = 0;
+  let breaches = 0;
+  let k = 0;
+  for (let i = 0; i < n; i++) {
+    if (inSite[i] === 0) continue;
+    siteCells++;
+    let f: number;
+    if (valid[i] === 0) f = FLAG_NODATA;
+    else {
+      const c = images[i];
+      imageHist[c]++;
+      f = c < o.minImages ? FLAG_FEW_IMAGES : 0;
+      if (c > 0) {
+        gsd32[0] = (A - heights[i]) * gsdPerM;
+        const g = gsd32[0];
+        gsdValuesCm[k++] = g;
+        if (g > hi) f |= FLAG_COARSE;
+        else if (g < lo) f |= FLAG_FINE;
+        else inBand++;
+        if (overCeiling(g, heights[i], camera, o)) breaches++;
+      }
+    }
+    flagHist[f]++;
+  }
+  // Kinds read off the histogram of flag values rather than bit by bit per cell.
+  for (let f = 1; f < FLAG_VALUES; f++) {
+    if (flagHist[f] === 0) continue;
+    flagged += flagHist[f];
+    for (let j = 0; j < ASSESSMENT_FLAG_KINDS.length; j++) if (f & ASSESSMENT_FLAG_KINDS[j].bit) kindCells[j] += flagHist[f];
+  }
+  const [min, p5, median, p95, max] = quantilesFloat32(gsdValuesCm, [0, 0.05, 0.5, 0.95, 1]);
+  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+  const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);
+  const flaggedByKind: Baseline["stats"]["flaggedByKind"] = {};
+  ASSESSMENT_FLAG_KINDS.forEach((kind, j) => {
+    flaggedByKind[kind.key] = { cells: kindCells[j], areaM2: kindCells[j] * cellAreaM2, pct: pct(kindCells[j]) };
   });
-  const s = assessment.stats;
   return {
-    altitudeAmslM,
+    altitudeAmslM: A,
     heightAboveMedianGroundM: o.targetHeightM,
     medianGroundM,
-    assessment,
+    gsdValuesCm,
     stats: {
-      gsdCm: s.gsdCm,
-      withinBandPct: s.withinBandPct,
-      images: s.images,
-      flaggedAreaM2: s.flagged.areaM2,
-      flaggedPct: s.siteCells > 0 ? (100 * s.flagged.cells) / s.siteCells : 0,
-      ceilingBreaches: ceilingBreaches(grid, assessment.rasters, camera, o),
+      gsdCm: { min, p5, median, p95, max },
+      withinBandPct: pct(inBand),
+      images: countStatsOfHistogram(imageHist),
+      flaggedAreaM2: flagged * cellAreaM2,
+      flaggedPct: pct(flagged),
+      flaggedByKind,
+      ceilingBreaches: { cells: breaches, areaM2: breaches * cellAreaM2 },
     },
     planCeilingBreaches: ceilingBreaches(grid, o.planRasters, camera, o),
   };
@@ -112,21 +169,19 @@ export function ceilingBreaches(
   camera: Camera,
   o: Pick<BaselineOptions, "ceiling" | "takeoffGroundM">,
 ): CeilingBreaches {
-  // 1 cm of slack: heights are rebuilt from Float32 GSD values.
-  const slackM = 0.01;
   let cells = 0;
   for (let i = 0; i < r.gsdCm.length; i++) {
     if (!r.inSite[i]) continue;
     const g = r.gsdCm[i];
-    if (!(g > 0)) continue;
-    const hM = g / 100 / camera.ifov;
-    const over =
-      o.ceiling.reference === "takeoff"
-        ? grid.heights[i] + hM > o.takeoffGroundM + o.ceiling.heightM + slackM
-        : hM > o.ceiling.heightM + slackM;
-    if (over) cells++;
+    if (g > 0 && overCeiling(g, grid.heights[i], camera, o)) cells++;
   }
   return { cells, areaM2: cells * grid.cellSizeM[0] * grid.cellSizeM[1] };
+}
+
+/** Whether a photo giving GSD g (cm/px) over ground z was above the ceiling (1 cm of slack: heights rebuilt from Float32 GSD). */
+function overCeiling(gsdCm: number, groundM: number, camera: Camera, o: Pick<BaselineOptions, "ceiling" | "takeoffGroundM">): boolean {
+  const hM = gsdCm / 100 / camera.ifov;
+  return o.ceiling.reference === "takeoff" ? groundM + hM > o.takeoffGroundM + o.ceiling.heightM + 0.01 : hM > o.ceiling.heightM + 0.01;
 }
 
 function medianSiteGround(grid: DemGrid, inSite: Uint8Array): number {

@@ -99,7 +99,6 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
   const datumName = DATUM_NAMES[run.verticalDatum];
   const g = summary.gsdCm;
   const planRasters = run.assessment.rasters;
-  const baseRasters = b.assessment.rasters;
   // Both histograms on the same bins, so the page can draw one over the other.
   const edges = gsdBinEdges(g.low, g.high, Math.min(g.min, b.stats.gsdCm.min), Math.max(g.max, b.stats.gsdCm.max), REPORT_GSD_BINS);
   const clearanceM = summary.clearance.floorM;
@@ -137,7 +136,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
     },
     planCeilingBreaches: b.planCeilingBreaches,
     gsdHistogram: histogram(planRasters.gsdCm, planRasters.inSite, edges),
-    baselineHistogram: histogram(baseRasters.gsdCm, baseRasters.inSite, edges),
+    baselineHistogram: histogram(b.gsdValuesCm, null, edges),
     files: {
       dem: (Array.isArray(run.options.dem) ? run.options.dem : [run.options.dem]).map((d) => path.basename(d)).join(", "),
       area: path.basename(run.options.area),

@@ -303,15 +303,13 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("assess");
 
   stage("baseline");
-  const baseline = constantAltitudeBaseline(grid, site, layout, camera, requirement, {
+  const baseline = constantAltitudeBaseline(grid, layout, camera, requirement, {
     targetHeightM,
     triggerM,
     minImages: options.minImages,
-    toWgs84: frame.toWgs84,
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
     planRasters: assessment.rasters,
-    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   });
   lap("baseline");
 

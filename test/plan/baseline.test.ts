@@ -1,0 +1,149 @@
+import { describe, it, expect } from "vitest";
+import { makeGrid } from "../../src/dem/sample.js";
+import { assessPlan } from "../../src/assess/assess.js";
+import { rasteriseSite } from "../../src/assess/siteMask.js";
+import { latticeImageCounts } from "../../src/assess/latticeCoverage.js";
+import { photoLattice, type AssessedLeg } from "../../src/assess/exposures.js";
+import { constantAltitudeBaseline } from "../../src/plan/baseline.js";
+import { straightTransitLeg } from "../../src/route/flights.js";
+import type { Layout, LayoutLeg, XY } from "../../src/layout/types.js";
+import type { Requirement } from "../../src/camera/types.js";
+import { genericCamera } from "../assess/helpers.js";
+
+/**
+ * The constant-altitude comparison is computed directly (GSD from each cell's own ground,
+ * image counts from the photo lattices strip by strip). Checked here against the footprint
+ * sweep of the assessment run on the same photos, cell by cell, and on flat ground
+ * against the pinhole relation GSD = H p / f (common practice).
+ */
+
+const camera = genericCamera(); // 20 MP, 1-inch sensor, 8.8 mm lens
+const cellM = 0.5;
+const W = 900; // 450 m x 400 m
+const H = 800;
+const x0 = 1000;
+const y0 = 5400;
+const hills = (x: number, y: number) => 300 + 22 * Math.sin(x / 61) * Math.cos(y / 47) + 9 * Math.sin((x + 2 * y) / 23);
+const site = {
+  type: "Polygon" as const,
+  coordinates: [[[1040, 5040], [1410, 5060], [1390, 5360], [1200, 5330], [1060, 5370], [1040, 5040]]],
+};
+const targetHeightM = 90;
+const gsdTargetCm = targetHeightM * camera.ifov * 100;
+const requirement = { lowGsdM: (gsdTargetCm * 0.9) / 100, highGsdM: (gsdTargetCm * 1.1) / 100 } as Requirement;
+const triggerM = 90 * camera.ifov * 3648 * 0.25;
+const spacingM = 90 * camera.ifov * 5472 * 0.35;
+
+/** Parallel strips at `headingDeg` over the site's box, with a hole (no photos) on one and a block seam's photo grid on another. */
+function layoutAt(headingDeg: number): Layout {
+  const h = (headingDeg * Math.PI) / 180;
+  const u: XY = [Math.sin(h), Math.cos(h)];
+  const v: XY = [u[1], -u[0]];
+  const c: XY = [1225, 5200];
+  const legs: LayoutLeg[] = [];
+  let strip = 0;
+  for (let off = -260; off <= 260; off += spacingM) {
+    strip++;
+    const sign = strip % 2 ? 1 : -1;
+    const from: XY = [c[0] + v[0] * off - sign * u[0] * 280, c[1] + v[1] * off - sign * u[1] * 280];
+    const to: XY = [c[0] + v[0] * off + sign * u[0] * 280, c[1] + v[1] * off + sign * u[1] * 280];
+    const leg: LayoutLeg = { kind: "strip", strip, from, to, lengthM: 560 };
+    if (strip === 3) leg.noPhotoIntervals = [[120, 210.5], [400, 430]];
+    if (strip === 5) leg.photoGrid = { firstM: 3.25, everyM: triggerM };
+    legs.push(leg);
+  }
+  return {
+    headingDeg, spacingM, triggerM, footprintAcrossM: 0, footprintAlongM: 0, legs, takeoff: legs[0].from,
+    headingCandidates: [], headingReason: "test",
+  };
+}
+
+/** The same photos as assessed legs: straight, at one altitude, as the assessment places them. */
+function assessedLegs(layout: Layout, altitudeAmslM: number): AssessedLeg[] {
+  return layout.legs.map((l) => ({
+    ...straightTransitLeg(l.from, l.to, l.strip, { altitudeAmslM, speedMps: 1 }),
+    kind: "strip" as const,
+    ...(l.noPhotoIntervals ? { noPhotoIntervals: l.noPhotoIntervals } : {}),
+    ...(l.photoGrid ? { photoPhaseM: l.photoGrid.firstM } : {}),
+  }));
+}
+
+describe("constant-altitude baseline computed directly", () => {
+  for (const headingDeg of [0, 33, 90]) {
+    it(`matches the footprint sweep cell by cell over hills (heading ${headingDeg})`, () => {
+      const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
+      const layout = layoutAt(headingDeg);
+      const inSite = rasteriseSite(site, W, H, grid.transform);
+      const plan = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
+      const b = constantAltitudeBaseline(grid, layout, camera, requirement, {
+        targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" }, takeoffGroundM: 0, planRasters: plan,
+      });
+      const swept = assessPlan(grid, site, assessedLegs(layout, b.altitudeAmslM), camera, requirement, {
+        triggerM, minImages: 3, zoneHalfAcrossM: spacingM / 2, toWgs84: (x, y) => [x, y], nadirBy: "distance", polygons: false, threads: 1,
+      });
+      // Image counts: the same for every cell.
+      const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
+      const images = latticeImageCounts(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
+      let differ = 0;
+      for (let i = 0; i < W * H; i++) if (inSite[i] && images[i] !== swept.rasters.images[i]) differ++;
+      expect(differ).toBe(0);
+      // Every figure the report and summary show.
+      const s = swept.stats;
+      expect(b.stats.gsdCm).toEqual(s.gsdCm);
+      expect(b.stats.withinBandPct).toBeCloseTo(s.withinBandPct, 10);
+      expect(b.stats.images).toEqual(s.images);
+      expect(b.stats.flaggedAreaM2).toBe(s.flagged.areaM2);
+      for (const [k, v] of Object.entries(s.flagged.byKind)) expect(b.stats.flaggedByKind[k].cells, k).toBe(v.cells);
+      const seen = swept.rasters.gsdCm.filter((g, i) => inSite[i] && g === g);
+      expect(b.gsdValuesCm.length).toBe(seen.length);
+      expect(Array.from(b.gsdValuesCm)).toEqual(Array.from(seen));
+      // The relief (about 60 m) under a 90 m flight puts some ground out of the band both ways.
+      expect(s.flagged.byKind.coarse.cells).toBeGreaterThan(1000);
+      expect(s.flagged.byKind.fine.cells).toBeGreaterThan(1000);
+      expect(b.stats.ceilingBreaches.cells).toBeGreaterThan(0);
+    });
+  }
+
+  it("gives GSD = H p / f on flat ground and the count of photos whose footprint reaches each cell", () => {
+    const ground = 250;
+    const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: () => ground });
+    const layout = layoutAt(0);
+    const inSite = rasteriseSite(site, W, H, grid.transform);
+    const plan = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
+    const b = constantAltitudeBaseline(grid, layout, camera, requirement, {
+      targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 120, reference: "ground" }, takeoffGroundM: 0, planRasters: plan,
+    });
+    expect(b.altitudeAmslM).toBe(ground + targetHeightM);
+    // Pinhole camera: GSD = H * pixel pitch / focal length = 90 m * (13.2 mm / 5472) / 8.8 mm.
+    const expected = (90 * (13.2 / 5472)) / 8.8 * 100;
+    expect(b.stats.gsdCm.min).toBeCloseTo(expected, 5);
+    expect(b.stats.gsdCm.max).toBeCloseTo(expected, 5);
+    expect(b.stats.withinBandPct).toBeCloseTo(100, 10);
+    // Along a north-going strip at 75 % front overlap every point is in 4 photos (footprint /
+    // trigger = 4), 3 or 5 at exact edges; across, 65 % side overlap puts it in 2 or 3 strips.
+    // The site's interior therefore sees 8 to 15 photos, never fewer than 8.
+    const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
+    const images = latticeImageCounts(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
+    // Brute force at a few cells: count photos whose footprint (half 90 m * ifov * px / 2) holds the cell centre.
+    const halfAlong = (90 * camera.ifov * 3648) / 2;
+    const halfAcross = (90 * camera.ifov * 5472) / 2;
+    for (const [col, row] of [[300, 300], [451, 402], [620, 555], [200, 700]]) {
+      const cx = x0 + (col + 0.5) * cellM;
+      const cy = y0 - (row + 0.5) * cellM;
+      let count = 0;
+      for (const l of layout.legs) {
+        const ux = (l.to[0] - l.from[0]) / l.lengthM, uy = (l.to[1] - l.from[1]) / l.lengthM;
+        const lat = photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)!;
+        for (let k = 0; k <= lat.n; k++) {
+          if (!lat.present[k]) continue;
+          const s = lat.s0 + k * triggerM;
+          const px = l.from[0] + s * ux, py = l.from[1] + s * uy;
+          const a = (cx - px) * ux + (cy - py) * uy, q = (cx - px) * uy - (cy - py) * ux;
+          if (Math.abs(a) <= halfAlong && Math.abs(q) <= halfAcross) count++;
+        }
+      }
+      expect(images[row * W + col], `cell ${col},${row}`).toBe(count);
+      if (inSite[row * W + col]) expect(count).toBeGreaterThanOrEqual(8);
+    }
+  });
+});
