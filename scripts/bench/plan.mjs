@@ -27,7 +27,7 @@ const REPORT_FILES = new Set(["report-data.json", "report.html"]);
  * centre of the 8000 x 8000 DEM) in a child process and returns its timings, peak memory, window size, quality figures and the GDAL reference.
  * @example const r = benchPlan({ areaKm2: 4 }); r.wallS, r.peakRssBytes, r.ratios.wallOverGdalRead
  */
-export function benchPlan({ areaKm2 = 4, dem = demSmall(), cx, cy, gdalRepeat = 2, label, timeoutS = 300, overrides } = {}) {
+export function benchPlan({ areaKm2 = 4, dem = demSmall(), cx, cy, gdalRepeat = 2, label, timeoutS = 300, overrides, aspect, rotateDeg } = {}) {
   const info = rasterInfo(dem);
   // Default: the middle of the 8000 x 8000 raster (which is also the middle of the large
   // raster's north-west copy, so both DEMs give the same ground).
@@ -37,7 +37,7 @@ export function benchPlan({ areaKm2 = 4, dem = demSmall(), cx, cy, gdalRepeat = 
   const dir = mkdtempSync(join(tmpdir(), "gsdplan-bench-plan-"));
   const base = { label: label ?? `${areaKm2} km2`, areaKm2, dem: { file: dem, size: info.size, bytes: fileBytes(dem) } };
   try {
-    const planFile = writeCase(dir, { dem, areaKm2, cx: x, cy: y, overrides });
+    const planFile = writeCase(dir, { dem, areaKm2, cx: x, cy: y, overrides, aspect, rotateDeg });
     const child = nodeJson(here, ["--child", planFile, join(dir, "out")], { timeoutS });
     if (!child.json) {
       // Timed out: say which stage it was in, from the child's progress lines.
@@ -198,6 +198,7 @@ async function child(planFile, outDir) {
     },
     plan: {
       strips: run.layout.legs.filter((l) => l.kind === "strip").length,
+      headingDeg: run.layout.headingDeg,
       stripKm,
       exposures: run.assessment.exposures.length,
       flights: run.flights.flights.length,

@@ -10,6 +10,9 @@
 //   5. assessment alone at its working size (assess.mjs)
 //   6. the DEM window from four tiles vs one file, and from a COG over loopback HTTP vs
 //      the same COG from disk, beside gdal_translate on the tiles' VRT (mosaic.mjs)
+//   7. the speed and scale targets: 4 km2 wall and peak RSS, a 3.2 km2 oblique site, a
+//      25 km2 site (generated, not committed), gsdplan demo, and the fit of CPU and
+//      memory against area (targets.mjs)
 //
 // Runs against the build in dist/ (built first with `npm run build` when missing, or when
 // --build is given). Every measured job runs in its own process (peak memory is its own).
@@ -35,6 +38,7 @@ import { runMosaicBench } from "./mosaic.mjs";
 import { benchPlan } from "./plan.mjs";
 import { benchScaling } from "./scaling.mjs";
 import { benchQuality } from "./baseline.mjs";
+import { benchTargets, targetRows } from "./targets.mjs";
 import { demSmall, demLarge } from "./lib/dems.mjs";
 import { nodeJson } from "./lib/proc.mjs";
 import { fmt, row, markdownTable } from "./lib/table.mjs";
@@ -49,7 +53,7 @@ const opt = (name, def) => {
   const i = args.indexOf(`--${name}`);
   return i >= 0 ? args[i + 1] : def;
 };
-const only = new Set(String(opt("only", "1,2,3,4,5,6")).split(",").map((s) => s.trim()));
+const only = new Set(String(opt("only", "1,2,3,4,5,6,7")).split(",").map((s) => s.trim()));
 const timeoutS = Number(opt("timeout", 300));
 const repeat = Number(opt("repeat", 3));
 const log = (m) => process.stderr.write(`[bench ${new Date().toISOString().slice(11, 19)} load ${loadavg()[0].toFixed(1)}] ${m}\n`);
@@ -170,6 +174,11 @@ if (only.has("3")) {
 }
 if (only.has("4")) {
   attempt("quality", () => benchQuality({ plan: usable({ p: plan4 }).p, sweep10: usable({ p: plan4 }).p, sweepKm2: 4, timeoutS, solverTimeoutS: timeoutS, log }));
+}
+
+if (only.has("7")) {
+  log("7: speed and scale targets (scripts/bench/targets.mjs)");
+  attempt("targets", () => benchTargets({ reuse: usable({ 1: plan1, 4: plan4 }), timeoutS: Math.max(timeoutS, 600), log }));
 }
 
 if (snapshot) rmSync(snapshot, { recursive: true, force: true });
@@ -312,5 +321,10 @@ function tableRows(s) {
     rows.push(row("6", "  the same, CPU of the reader", fmt.s(mo.cogHttp.readCpuS), `the COG from disk ${fmt.s(mo.cogDisk.readCpuS)}`, r.httpOverDiskCpu, "<= 2x", r.httpOverDiskCpu <= 2));
     rows.push(row("6", "  bytes fetched over HTTP per read", fmt.mb(mo.cogHttp.bytesFetchedPerRead), `window ${fmt.mb(4000 * 4000 * 4)} as Float32`, NaN));
   }
+
+  // 7. Speed and scale targets
+  const t = s.targets;
+  failed("7", "speed and scale targets", t);
+  if (t && !t.error) rows.push(...targetRows(t, row, fmt));
   return rows;
 }

@@ -2,10 +2,10 @@ import type { MultiPolygon, Polygon } from "geojson";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
-import { computeCoverage } from "./coverage.js";
+import { computeCoverage, type Coverage } from "./coverage.js";
 import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
-import { effectFlags, paintCauseZones, paintKeepOutCuts } from "./flagRaster.js";
+import { paintCauseZones, paintKeepOutCuts } from "./flagRaster.js";
 import { flagPolygons, type ToWgs84 } from "./flagPolygons.js";
 import { rasteriseSite } from "./siteMask.js";
 import { assessmentStats } from "./stats.js";
@@ -74,8 +74,12 @@ export function assessPlan(
 
   const inSite = rasteriseSite(site, width, height, transform);
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
-  const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera, { nadirBy: opts.nadirBy, threads: opts.threads });
-  const flags = effectFlags(grid, inSite, gsdCm, images, requirement.lowGsdM * 100, requirement.highGsdM * 100, minImages);
+  const { gsdCm, images, nadirStrip, flags } = computeCoverage(grid, inSite, exposures, camera, {
+    nadirBy: opts.nadirBy,
+    threads: opts.threads,
+    // The effect bits are set band by band as soon as a band's photos are all counted.
+    effects: { lowGsdCm: requirement.lowGsdM * 100, highGsdCm: requirement.highGsdM * 100, minImages },
+  }) as Required<Coverage>;
   paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
   if (opts.keepOut) paintKeepOutCuts(flags, grid, inSite, opts.keepOut.cuts, opts.keepOut.footprintAcrossM / 2, opts.keepOut.footprintAlongM / 2);
 

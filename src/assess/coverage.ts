@@ -5,7 +5,7 @@ import { existsSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import { siteGroundAndBlocks, sweepExposures, type NadirBy, type SweepInput } from "./coverageKernel.js";
+import { BLOCK, reachOfPhotos, siteGroundAndBlocks, sweepBand, sweepBands, type NadirBy, type SweepInput } from "./coverageKernel.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -19,10 +19,12 @@ import { siteGroundAndBlocks, sweepExposures, type NadirBy, type SweepInput } fr
  * the one with the smallest offset from the nadir point relative to the
  * footprint, (along / halfAlong)^2 + (across / halfAcross)^2.
  *
- * The work goes photo by photo over the footprint each one could have over
- * the lowest ground beneath it, row by row over the exact span of that
- * rectangle, with every per-cell result in typed arrays (coverageKernel.ts),
- * split by rows over worker threads when the grid is large.
+ * The work goes band by band of rows, and within a band photo by photo over
+ * the footprint each one could have over the lowest ground beneath it, row by
+ * row over the exact span of that rectangle, with every per-cell result in
+ * typed arrays (coverageKernel.ts); the bands are shared between worker
+ * threads when the grid is large. Only one band's scratch (the best offset so
+ * far) exists per thread.
  */
 
 export interface Coverage {
@@ -32,6 +34,8 @@ export interface Coverage {
   images: Uint16Array;
   /** Strip number of the most nadir photo, 0 where none. */
   nadirStrip: Uint16Array;
+  /** Effect flags (coarse, fine, too few images, no data; 0 outside the site), when `effects` was given. */
+  flags?: Uint16Array;
 }
 
 /** Pixels of the image along and across the track: width goes across unless the camera is portrait. */
@@ -45,15 +49,19 @@ export interface CoverageOptions {
   /** How "most nadir" is measured (see NadirBy); default `image`. */
   nadirBy?: NadirBy;
   /**
-   * Threads to share the rows between (the main thread counts as one). Default:
+   * Threads to share the bands of rows between (the main thread counts as one). Default:
    * the machine's available parallelism, at most 4; grids under a million cells
    * always run on the main thread. Worker threads are used only from the built
    * library (dist), where the compiled worker module sits next to this one.
    */
   threads?: number;
+  /** Also set the effect flags (coarse, fine, too few images, no data) in the same pass. */
+  effects?: { lowGsdCm: number; highGsdCm: number; minImages: number };
 }
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
+/** Rows per unit of work: a multiple of BLOCK; small enough to balance two to four threads on a site, large enough that the photos' row ranges are checked few times. */
+const BAND_ROWS = 8 * BLOCK;
 
 /**
  * GSD and image count per cell of `grid` where `inSite` is 1.
@@ -72,86 +80,74 @@ export function computeCoverage(
   const n = width * height;
   const workerUrl = new URL("./coverageWorker.js", import.meta.url);
   let threads = Math.max(1, Math.floor(opts.threads ?? Math.min(4, availableParallelism())));
+  const bands = Math.ceil(height / BAND_ROWS);
   if (n < MIN_CELLS_FOR_THREADS || !existsSync(fileURLToPath(workerUrl))) threads = 1;
-  // Shared memory only when other threads write into it.
+  threads = Math.min(threads, bands);
+  // Shared memory only when other threads read or write it.
   const buffer = (bytes: number): ArrayBufferLike => (threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
+  const shared = <T extends Uint8Array>(a: T): T => {
+    if (threads === 1 || a.buffer instanceof SharedArrayBuffer) return a;
+    const c = new Uint8Array(new SharedArrayBuffer(a.length));
+    c.set(a);
+    return c as T;
+  };
 
-  const images = new Uint16Array(buffer(2 * n));
-  // Offset of the best photo so far; starts above any covered value (<= 2).
-  const best = new Float32Array(buffer(4 * n)).fill(Infinity);
-  const bestIdx = new Int32Array(buffer(4 * n)).fill(-1);
   // Site ground: NaN outside the site and where the DEM has no data, so one test skips both.
   const siteGround = new Float32Array(buffer(4 * n));
   const blocks = siteGroundAndBlocks(heights, inSite, width, height, siteGround);
-
   const m = exposures.length;
-  const cols = { ex: new Float64Array(m), ey: new Float64Array(m), ez: new Float64Array(m), eux: new Float64Array(m), euy: new Float64Array(m) };
-  exposures.forEach((e, k) => {
-    cols.ex[k] = e.x;
-    cols.ey[k] = e.y;
-    cols.ez[k] = e.altitudeAmslM;
-    cols.eux[k] = e.ux;
-    cols.euy[k] = e.uy;
-  });
-  const { alongPx, acrossPx } = footprintPixels(camera);
-  const base: SweepInput = {
-    width, height, x0, y0, dx, dy, siteGround, images, best, bestIdx, ...cols,
-    kAlong: (camera.ifov * alongPx) / 2,
-    kAcross: (camera.ifov * acrossPx) / 2,
+  const input: SweepInput = {
+    width, height, x0, y0, dx, dy,
+    siteGround,
+    inSite: opts.effects ? shared(inSite) : new Uint8Array(0),
+    images: new Uint16Array(buffer(2 * n)),
+    gsdCm: new Float32Array(buffer(4 * n)),
+    nadirStrip: new Uint16Array(buffer(2 * n)),
+    ...(opts.effects ? { flags: new Uint16Array(buffer(2 * n)), effects: { lowCm: opts.effects.lowGsdCm, highCm: opts.effects.highGsdCm, minImages: opts.effects.minImages } } : {}),
+    ex: Float64Array.from(exposures, (e) => e.x),
+    ey: Float64Array.from(exposures, (e) => e.y),
+    ez: Float64Array.from(exposures, (e) => e.altitudeAmslM),
+    eux: Float64Array.from(exposures, (e) => e.ux),
+    euy: Float64Array.from(exposures, (e) => e.uy),
+    strip: Uint16Array.from(exposures, (e) => e.strip),
+    dMax: new Float64Array(m),
+    rowLo: new Int32Array(m),
+    rowHi: new Int32Array(m),
+    kAlong: 0,
+    kAcross: 0,
+    gsdPerM: camera.ifov * 100,
     blocks,
     nadirBy: opts.nadirBy ?? "image",
-    rowLo: 0,
-    rowHi: height - 1,
+    bandRows: BAND_ROWS,
   };
-  if (blocks.globalMin < Infinity) {
-    if (threads === 1) sweepExposures(base);
-    else sweepInThreads(base, inSite, threads, workerUrl);
-  }
-
-  // GSD and strip from each cell's most nadir photo.
-  const gsdCm = new Float32Array(n);
-  const nadirStrip = new Uint16Array(n);
-  const gsdPerM = camera.ifov * 100;
-  const strips = Uint16Array.from(exposures, (e) => e.strip);
-  const ez = cols.ez;
-  for (let i = 0; i < n; i++) {
-    const k = bestIdx[i];
-    if (k < 0) {
-      gsdCm[i] = NaN;
-      continue;
-    }
-    gsdCm[i] = (ez[k] - siteGround[i]) * gsdPerM;
-    nadirStrip[i] = strips[k];
-  }
-  return { gsdCm, images, nadirStrip };
+  const { alongPx, acrossPx } = footprintPixels(camera);
+  input.kAlong = (camera.ifov * alongPx) / 2;
+  input.kAcross = (camera.ifov * acrossPx) / 2;
+  if (blocks.globalMin === Infinity) {
+    // No site ground at all: no photo can see anything (every row range left empty).
+    input.rowLo.fill(1);
+  } else reachOfPhotos(input);
+  if (threads === 1) {
+    const best = new Float32Array(BAND_ROWS * width);
+    for (let b = 0; b < bands; b++) sweepBand(input, b, best);
+  } else sweepInThreads(input, bands, threads, workerUrl);
+  return { gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip, ...(input.flags ? { flags: input.flags } : {}) };
 }
 
 /**
- * Bands of rows with equal numbers of site cells, one per thread; the main
- * thread sweeps the first band while the workers do the others, then waits
- * on their flags (Atomics.wait is allowed on Node's main thread), which keeps
- * the assessment a plain synchronous function.
+ * The bands go to whichever thread asks next (a shared counter), so a thread
+ * whose bands hold fewer photos simply takes more of them; the main thread
+ * sweeps too, then waits on the workers' flags (Atomics.wait is allowed on
+ * Node's main thread), which keeps the assessment a plain synchronous function.
  */
-function sweepInThreads(base: SweepInput, inSite: Uint8Array, threads: number, workerUrl: URL): void {
-  const { width, height } = base;
-  let total = 0;
-  for (let i = 0; i < inSite.length; i++) total += inSite[i];
-  const bounds = [0];
-  let acc = 0;
-  for (let r = 0; r < height && bounds.length < threads; r++) {
-    for (let c = 0; c < width; c++) acc += inSite[r * width + c];
-    if (acc >= (total * bounds.length) / threads) bounds.push(r + 1);
-  }
-  bounds.push(height);
+function sweepInThreads(input: SweepInput, bands: number, threads: number, workerUrl: URL): void {
+  const next = new Int32Array(new SharedArrayBuffer(4));
   const done = new Int32Array(new SharedArrayBuffer(4 * threads));
   const workers: Worker[] = [];
-  for (let t = 1; t + 1 < bounds.length; t++) {
-    const input: SweepInput = { ...base, rowLo: bounds[t], rowHi: bounds[t + 1] - 1 };
-    workers.push(new Worker(workerUrl, { workerData: { input, done, slot: t } }));
-  }
-  sweepExposures({ ...base, rowLo: bounds[0], rowHi: bounds[1] - 1 });
+  for (let t = 1; t < threads; t++) workers.push(new Worker(workerUrl, { workerData: { input, next, bands, done, slot: t } }));
+  sweepBands(input, next, bands);
   let failed = false;
-  for (let t = 1; t + 1 < bounds.length; t++) {
+  for (let t = 1; t < threads; t++) {
     // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
     const deadline = Date.now() + 600_000;
     while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);

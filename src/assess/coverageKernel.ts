@@ -1,4 +1,5 @@
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
+import { BAND_SLACK, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "./flags.js";
 
 /**
  * The hot loop of the coverage pass, on plain typed arrays only, so the same
@@ -15,26 +16,36 @@ export interface SweepInput {
   dy: number;
   /** Ground height per cell, NaN outside the site and where the DEM has no data. */
   siteGround: Float32Array;
+  /** 1 inside the site (tells no-data ground in the site from ground outside it). */
+  inSite: Uint8Array;
+  /** Outputs, per cell: photos covering it, GSD (cm/px) and strip of its most nadir photo. */
   images: Uint16Array;
-  /** Normalised offset of the most nadir photo so far (Infinity: none yet). */
-  best: Float32Array;
-  /** Index of the most nadir photo so far (-1: none yet). */
-  bestIdx: Int32Array;
-  /** Photos as columns: position, altitude AMSL, along-track unit vector. */
+  gsdCm: Float32Array;
+  nadirStrip: Uint16Array;
+  /** Effect flags (coarse, fine, too few images, no data), written band by band when given. */
+  flags?: Uint16Array;
+  effects?: { lowCm: number; highCm: number; minImages: number };
+  /** Photos as columns: position, altitude AMSL, along-track unit vector, strip. */
   ex: Float64Array;
   ey: Float64Array;
   ez: Float64Array;
   eux: Float64Array;
   euy: Float64Array;
+  strip: Uint16Array;
+  /** Per photo: height above the lowest ground its footprint can fall on, and the rows it can reach. */
+  dMax: Float64Array;
+  rowLo: Int32Array;
+  rowHi: Int32Array;
   /** Half footprint per metre of height, along and across: ifov * px / 2. */
   kAlong: number;
   kAcross: number;
+  /** GSD in cm/px per metre of height: ifov * 100. */
+  gsdPerM: number;
   blocks: BlockMinima;
   /** Most nadir by offset relative to the footprint (`image`, the view angle) or by plain ground distance (`distance`). */
   nadirBy: NadirBy;
-  /** Rows this call may write, inclusive. */
-  rowLo: number;
-  rowHi: number;
+  /** Rows per band (a multiple of BLOCK): the unit of work, and the size of the scratch. */
+  bandRows: number;
 }
 
 /**
@@ -116,42 +127,76 @@ export function minUnder(bl: BlockMinima, inp: GridSteps, px: number, py: number
 }
 
 /**
- * Every photo over the rows [rowLo, rowHi]: count the cells each footprint
- * covers at the cell's own ground and keep the most nadir photo per cell.
- * @example sweepExposures({ ...arrays, rowLo: 0, rowHi: grid.height - 1 });
+ * Per photo, before any band is swept: the height above the lowest ground its
+ * footprint can fall on (start from the site minimum and tighten with the
+ * block minima under that footprint's box; each round stays an outer bound)
+ * and the rows that footprint can reach. Fills dMax, rowLo and rowHi.
+ * @example reachOfPhotos(input); // then sweepBand(input, b, scratch) for every band
  */
-export function sweepExposures(inp: SweepInput): void {
-  const { width, x0, y0, dx, dy, siteGround, images, best, bestIdx, kAlong, kAcross, blocks } = inp;
-  const byDistance = inp.nadirBy === "distance";
-  // In distance mode the weights are 1 and the division by d^2 is dropped (d2 = 1 below).
-  const invKA2 = byDistance ? 1 : 1 / (kAlong * kAlong);
-  const invKC2 = byDistance ? 1 : 1 / (kAcross * kAcross);
+export function reachOfPhotos(inp: SweepInput): void {
+  const { blocks, kAlong, kAcross } = inp;
   const rows = new Int32Array(2);
-  const span = new Int32Array(2);
-  const m = inp.ex.length;
-  for (let e = 0; e < m; e++) {
+  for (let e = 0; e < inp.ex.length; e++) {
     const ex = inp.ex[e];
     const ey = inp.ey[e];
     const ez = inp.ez[e];
     const ux = inp.eux[e];
     const uy = inp.euy[e];
-    // Footprint reach over the lowest ground it can fall on: start from the site minimum and
-    // tighten with the block minima under that footprint's box (each round stays an outer bound).
     let dMax = ez - blocks.globalMin;
     for (let round = 0; round < 3 && dMax > 0; round++) {
       const g = minUnder(blocks, inp, ex, ey, ux, uy, dMax * kAlong, dMax * kAcross);
       dMax = g < Infinity ? ez - g : 0;
     }
-    if (!(dMax > 0)) continue;
+    inp.dMax[e] = dMax;
+    if (!(dMax > 0)) {
+      inp.rowLo[e] = 1;
+      inp.rowHi[e] = 0;
+      continue;
+    }
+    orientedRectRowRange(ey, ux, uy, dMax * kAlong, dMax * kAcross, inp.y0, inp.dy, inp.height, rows);
+    inp.rowLo[e] = rows[0];
+    inp.rowHi[e] = rows[1];
+  }
+}
+
+/**
+ * Every photo over the rows of band `band` (rows band * bandRows up to the next
+ * band): count the cells each footprint covers at the cell's own ground and
+ * keep the most nadir photo per cell; then, the band's cells being final, its
+ * effect flags. `best` is scratch of bandRows * width cells. Photos are taken
+ * in index order, so ties go to the earlier photo whatever the banding.
+ * @example const best = new Float32Array(inp.bandRows * inp.width); sweepBand(inp, 0, best);
+ */
+export function sweepBand(inp: SweepInput, band: number, best: Float32Array): void {
+  const { width, x0, y0, dx, dy, siteGround, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
+  const r0 = band * inp.bandRows;
+  const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
+  if (r0 > r1) return;
+  const base0 = r0 * width;
+  gsdCm.fill(NaN, base0, (r1 + 1) * width);
+  best.fill(Infinity, 0, (r1 - r0 + 1) * width);
+  const byDistance = inp.nadirBy === "distance";
+  // In distance mode the weights are 1 and the division by d^2 is dropped (d2 = 1 below).
+  const invKA2 = byDistance ? 1 : 1 / (kAlong * kAlong);
+  const invKC2 = byDistance ? 1 : 1 / (kAcross * kAcross);
+  const span = new Int32Array(2);
+  const m = inp.ex.length;
+  for (let e = 0; e < m; e++) {
+    const rLo = Math.max(inp.rowLo[e], r0);
+    const rHi = Math.min(inp.rowHi[e], r1);
+    if (rLo > rHi) continue;
+    const ex = inp.ex[e];
+    const ey = inp.ey[e];
+    const ez = inp.ez[e];
+    const ux = inp.eux[e];
+    const uy = inp.euy[e];
+    const dMax = inp.dMax[e];
+    const st = inp.strip[e];
     // Across-track unit (vx, vy) = (uy, -ux); the footprint is symmetric, so its sign does not matter.
     const vx = uy;
     const vy = -ux;
     const hAlongMax = dMax * kAlong;
     const hAcrossMax = dMax * kAcross;
-    orientedRectRowRange(ey, ux, uy, hAlongMax, hAcrossMax, y0, dy, inp.height, rows);
-    const rLo = Math.max(rows[0], inp.rowLo);
-    const rHi = Math.min(rows[1], inp.rowHi);
-    if (rLo > rHi) continue;
     // Each band of BLOCK rows gets its own, tighter reach: the lowest ground of its blocks under the box.
     const ext = Math.abs(ux) * hAlongMax + Math.abs(uy) * hAcrossMax;
     const bc0 = Math.max(0, Math.floor((ex - ext - x0) / dx / BLOCK));
@@ -176,30 +221,33 @@ export function sweepExposures(inp: SweepInput): void {
       const ddy = cy - ey;
       const ddx0 = x0 + (span[0] + 0.5) * dx - ex;
       sweepRow(
-        siteGround, images, best, bestIdx,
-        r * width + span[0], r * width + span[1],
+        siteGround, images, best, gsdCm, nadirStrip,
+        r * width + span[0], r * width + span[1], base0,
         ez, ddx0 * ux + ddy * uy, ddx0 * vx + ddy * vy, dx * ux, dx * vx,
-        kAlong, kAcross, invKA2, invKC2, byDistance, e,
+        kAlong, kAcross, invKA2, invKC2, byDistance, inp.gsdPerM, st,
       );
     }
   }
+  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, base0, (r1 + 1) * width);
 }
 
 /**
- * One row of one footprint: cells i0..i1, along/across offsets of the first
- * cell a0/q0 stepping by da/dq per cell. Kept apart, with flat arguments, so
- * the engine compiles the hot loop once for fixed array types. The best photo
- * is remembered by index only (one store instead of three), and compared
- * without a division: num / d^2 < best  <=>  num < best * d^2 (d^2 = 1 when
- * measuring plain distance).
+ * One row of one footprint: cells i0..i1 (best[] indexed from `off`), along/across
+ * offsets of the first cell a0/q0 stepping by da/dq per cell. Kept apart, with flat
+ * arguments, so the engine compiles the hot loop once for fixed array types. A better
+ * photo writes the cell's GSD and strip at once (no index to resolve afterwards), and
+ * is compared without a division: num / d^2 < best  <=>  num < best * d^2 (d^2 = 1
+ * when measuring plain distance).
  */
 function sweepRow(
   siteGround: Float32Array,
   images: Uint16Array,
   best: Float32Array,
-  bestIdx: Int32Array,
+  gsdCm: Float32Array,
+  nadirStrip: Uint16Array,
   i0: number,
   i1: number,
+  off: number,
   ez: number,
   a0: number,
   q0: number,
@@ -210,7 +258,8 @@ function sweepRow(
   invKA2: number,
   invKC2: number,
   byDistance: boolean,
-  e: number,
+  gsdPerM: number,
+  strip: number,
 ): void {
   let a = a0;
   let q = q0;
@@ -222,9 +271,49 @@ function sweepRow(
     // (a / hA)^2 + (q / hC)^2 = num / d^2.
     const num = a * a * invKA2 + q * q * invKC2;
     const d2 = byDistance ? 1 : d * d;
-    if (num < best[i] * d2) {
-      best[i] = num / d2;
-      bestIdx[i] = e;
+    const j = i - off;
+    if (num < best[j] * d2) {
+      best[j] = num / d2;
+      gsdCm[i] = d * gsdPerM;
+      nadirStrip[i] = strip;
     }
   }
+}
+
+/**
+ * Effect bits and the no-data bit of the cells i0..i1-1, whose photos are all
+ * counted: coarse or fine outside the GSD band, too few images under
+ * minImages; no data where the site's ground is unknown; 0 outside the site.
+ */
+function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; highCm: number; minImages: number }, i0: number, i1: number): void {
+  const { inSite, siteGround, gsdCm, images } = inp;
+  const lo = fx.lowCm * (1 - BAND_SLACK);
+  const hi = fx.highCm * (1 + BAND_SLACK);
+  const minImages = fx.minImages;
+  for (let i = i0; i < i1; i++) {
+    if (inSite[i] === 0) {
+      flags[i] = 0;
+      continue;
+    }
+    const z = siteGround[i];
+    if (z !== z) {
+      flags[i] = FLAG_NODATA;
+      continue;
+    }
+    let f = 0;
+    const g = gsdCm[i];
+    if (g > hi) f |= FLAG_COARSE;
+    else if (g < lo) f |= FLAG_FINE;
+    if (images[i] < minImages) f |= FLAG_FEW_IMAGES;
+    flags[i] = f;
+  }
+}
+
+/**
+ * Sweeps bands until none is left, taking the next one from the shared counter.
+ * @example sweepBands(input, new Int32Array(new SharedArrayBuffer(4)), bands);
+ */
+export function sweepBands(inp: SweepInput, next: Int32Array, bands: number): void {
+  const best = new Float32Array(inp.bandRows * inp.width);
+  for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) sweepBand(inp, b, best);
 }

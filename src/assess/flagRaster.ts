@@ -8,7 +8,7 @@ import {
   STATUS_UNFLYABLE,
   type SolvedLeg,
 } from "../solve/types.js";
-import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_KEEP_OUT, FLAG_NODATA, FLAG_RELIEF, FLAG_UNFLYABLE } from "./flags.js";
+import { FLAG_CEILING, FLAG_CLEARANCE, FLAG_FEW_IMAGES, FLAG_KEEP_OUT, FLAG_NODATA, FLAG_RELIEF, FLAG_UNFLYABLE } from "./flags.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 
 /**
@@ -19,50 +19,10 @@ import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
  *   explanation, painted from its station statuses onto the zone each
  *   station images best. No-data comes from the DEM itself.
  * Keeping them apart lets a test check that the two agree: every cell the
- * measurement finds out of band should carry a cause the solver gave.
+ * measurement finds out of band should carry a cause the solver gave. The
+ * effect bits are set by the coverage pass itself (coverageKernel.ts), band by
+ * band; this module paints the causes and the keep-out effect.
  */
-
-/**
- * Relative slack on the band edges: GSD is stored as float32 (about 6e-8
- * relative), so a cell flown exactly at a band edge must not flip out of band
- * by rounding.
- */
-export const BAND_SLACK = 1e-6;
-
-/**
- * Effect bits and the no-data bit for site cells; 0 outside the site.
- * @example
- * const flags = effectFlags(grid, inSite, coverage.gsdCm, coverage.images, 2.7, 3.3, 2);
- */
-export function effectFlags(
-  grid: DemGrid,
-  inSite: Uint8Array,
-  gsdCm: Float32Array,
-  images: Uint16Array,
-  lowGsdCm: number,
-  highGsdCm: number,
-  minImages: number,
-): Uint16Array {
-  const n = grid.width * grid.height;
-  const flags = new Uint16Array(n);
-  const lo = lowGsdCm * (1 - BAND_SLACK);
-  const hi = highGsdCm * (1 + BAND_SLACK);
-  const valid = grid.valid;
-  for (let i = 0; i < n; i++) {
-    if (inSite[i] === 0) continue;
-    if (valid[i] === 0) {
-      flags[i] = FLAG_NODATA;
-      continue;
-    }
-    let f = 0;
-    const g = gsdCm[i];
-    if (g > hi) f |= FLAG_COARSE;
-    else if (g < lo) f |= FLAG_FINE;
-    if (images[i] < minImages) f |= FLAG_FEW_IMAGES;
-    flags[i] = f;
-  }
-  return flags;
-}
 
 /** Flag bits a station paints: the solver's cause bits mapped onto the assessment's. */
 export function stationFlagBits(status: number, cause: number): number {

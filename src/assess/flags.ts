@@ -19,6 +19,13 @@ export const FLAG_KEEP_OUT = 256;
 /** Distinct flag values: every combination of the nine bits. */
 export const FLAG_VALUES = 512;
 
+/**
+ * Relative slack on the GSD band's edges: GSD is stored as float32 (about 6e-8
+ * relative), so a cell flown exactly at a band edge must not flip out of band
+ * by rounding.
+ */
+export const BAND_SLACK = 1e-6;
+
 export interface FlagKind {
   bit: number;
   key: "coarse" | "fine" | "fewImages" | "ceiling" | "clearance" | "nodata" | "unflyable" | "relief" | "keepOut";

@@ -19,6 +19,8 @@
  * @example quantilesFloat32(gsd, [0, 0.05, 0.5, 0.95, 1]) // [min, p5, median, p95, max]
  */
 export function quantilesFloat32(values: Float32Array, ps: readonly number[]): number[] {
+  // Below this many values the radix table (65,536 bins) costs more than selecting on a copy.
+  if (values.length <= SELECT_BELOW) return quantilesBySelection(values, ps);
   const keys = new Uint32Array(values.buffer, values.byteOffset, values.length);
   const hist = new Uint32Array(65536);
   let n = 0;
@@ -29,11 +31,7 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
     n++;
   }
   if (n === 0) return ps.map(() => NaN);
-  const ranks: number[] = [];
-  for (const p of ps) {
-    const h = (n - 1) * p;
-    ranks.push(Math.floor(h), Math.min(n - 1, Math.floor(h) + 1));
-  }
+  const ranks = ranksOf(n, ps);
   // For each wanted rank: its high-16 bin and its rank within the bin, in one walk over the
   // bins with the ranks taken in ascending order.
   const order = ranks.map((_, j) => j).sort((a, b) => ranks[a] - ranks[b]);
@@ -48,30 +46,47 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
       within[j] = ranks[j] - acc;
     }
   }
+  // Second pass: gather the values of those bins only, then select within each bin (a bin
+  // holds 1/128 of an octave, a small share of a plan's GSD values).
   const bins = [...new Set(binOf)];
   const slot = new Int32Array(65536).fill(-1);
-  bins.forEach((b, k) => (slot[b] = k));
-  const low = new Uint32Array(bins.length * 65536);
+  const gathered = bins.map((b, k) => {
+    slot[b] = k;
+    return new Float32Array(hist[b]);
+  });
+  const fill = new Int32Array(bins.length);
   for (let i = 0; i < keys.length; i++) {
     const v = values[i];
     if (v !== v) continue;
-    const k = sortKey(keys[i]);
-    const s = slot[k >>> 16];
-    if (s >= 0) low[s * 65536 + (k & 0xffff)]++;
+    const k = slot[sortKey(keys[i]) >>> 16];
+    if (k >= 0) gathered[k][fill[k]++] = v;
   }
-  const f32 = new Float32Array(1);
-  const u32 = new Uint32Array(f32.buffer);
   const orderStat = new Array<number>(ranks.length);
-  bins.forEach((bin, s) => {
-    const mine = order.filter((j) => binOf[j] === bin).sort((a, b) => within[a] - within[b]);
-    let acc = 0;
-    let b = 0;
-    for (const j of mine) {
-      while (acc + low[s * 65536 + b] <= within[j]) acc += low[s * 65536 + b++];
-      u32[0] = fromSortKey(((bin << 16) | b) >>> 0);
-      orderStat[j] = f32[0];
+  bins.forEach((bin, k) => {
+    const a = gathered[k];
+    let from = 0;
+    for (const j of order.filter((j) => binOf[j] === bin).sort((x, y) => within[x] - within[y])) {
+      selectRank(a, within[j], from, a.length - 1);
+      orderStat[j] = a[within[j]];
+      from = within[j];
     }
   });
+  return interpolate(n, ps, orderStat);
+}
+
+const SELECT_BELOW = 1 << 16;
+
+/** The two order statistics (0-based ranks) each quantile interpolates between: floor(h) and the next, h = (n - 1) p. */
+function ranksOf(n: number, ps: readonly number[]): number[] {
+  const ranks: number[] = [];
+  for (const p of ps) {
+    const h = (n - 1) * p;
+    ranks.push(Math.floor(h), Math.min(n - 1, Math.floor(h) + 1));
+  }
+  return ranks;
+}
+
+function interpolate(n: number, ps: readonly number[], orderStat: readonly number[]): number[] {
   return ps.map((p, j) => {
     const h = (n - 1) * p;
     const lo = orderStat[2 * j];
@@ -80,15 +95,62 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
   });
 }
 
+/**
+ * quantilesFloat32 for small samples: the values without NaN are copied and the
+ * wanted ranks selected in ascending order (Hoare's partition with a median-of-three
+ * pivot; each selection leaves everything below its rank on its left, so the next
+ * one searches only to the right of it).
+ */
+function quantilesBySelection(values: Float32Array, ps: readonly number[]): number[] {
+  let n = 0;
+  for (let i = 0; i < values.length; i++) if (values[i] === values[i]) n++;
+  if (n === 0) return ps.map(() => NaN);
+  const a = new Float32Array(n);
+  for (let i = 0, k = 0; i < values.length; i++) if (values[i] === values[i]) a[k++] = values[i];
+  const ranks = ranksOf(n, ps);
+  const order = ranks.map((_, j) => j).sort((x, y) => ranks[x] - ranks[y]);
+  const orderStat = new Array<number>(ranks.length);
+  let from = 0;
+  for (const j of order) {
+    selectRank(a, ranks[j], from, n - 1);
+    orderStat[j] = a[ranks[j]];
+    from = ranks[j];
+  }
+  return interpolate(n, ps, orderStat);
+}
+
+/** Moves the k-th smallest of a[lo..hi] to a[k], smaller ones before it, larger after. */
+function selectRank(a: Float32Array, k: number, lo: number, hi: number): void {
+  while (hi > lo) {
+    const x = a[lo];
+    const y = a[(lo + hi) >>> 1];
+    const z = a[hi];
+    const pivot = x < y ? (y < z ? y : x < z ? z : x) : x < z ? x : y < z ? z : y;
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i] = a[j];
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return;
+  }
+}
+
 function sortKey(u: number): number {
   // Negative: invert all bits; positive: set the sign bit (branch-free: the arithmetic
   // shift spreads the sign bit over the whole mask).
   return (u ^ ((u >> 31) | 0x80000000)) >>> 0;
 }
 
-function fromSortKey(k: number): number {
-  return (k & 0x80000000 ? k & 0x7fffffff : ~k) >>> 0;
-}
 
 /**
  * Minimum and median (type 7, as above) of small non-negative integers, by counting.

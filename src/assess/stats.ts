@@ -1,6 +1,6 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
 import { FLAG_COARSE, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
-import { countStats, quantilesFloat32 } from "./quantiles.js";
+import { countStatsOfHistogram, quantilesFloat32 } from "./quantiles.js";
 
 /**
  * Summary figures of an assessment over the site's cells.
@@ -51,12 +51,13 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
 
   // One pass: a histogram of flag values per strip (strip 0: cells no photo sees) gives every
   // count; flag kinds are read off the 512 bins afterwards instead of testing 9 bits per cell.
+  // The same pass counts image counts of site cells with data (their min and median).
   const flagHist = new Float64Array((maxStrip + 1) * FLAG_VALUES);
   const seenCount = new Int32Array(maxStrip + 2);
-  const withData = new Uint8Array(n);
+  const imageHist = new Float64Array(65536);
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
-    withData[i] = valid[i];
+    if (valid[i] === 1) imageHist[images[i]]++;
     const s = nadirStrip[i];
     flagHist[s * FLAG_VALUES + flags[i]]++;
     if (gsdCm[i] === gsdCm[i]) seenCount[s + 1]++;
@@ -122,7 +123,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     cellAreaM2,
     gsdCm: gsdStats(grouped),
     withinBandPct: pct(inBand, site.all),
-    images: countStats(images, withData),
+    images: countStatsOfHistogram(imageHist),
     flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all) },
     perStrip,
   };

@@ -17,8 +17,7 @@ import type { CeilingReference } from "../solve/types.js";
 import { footprintPixels } from "../assess/coverage.js";
 import { photoLattice, type AssessedLeg } from "../assess/exposures.js";
 import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage.js";
-import { BAND_SLACK } from "../assess/flagRaster.js";
-import { ASSESSMENT_FLAG_KINDS, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
 import { countStatsOfHistogram, quantilesFloat32 } from "../assess/quantiles.js";
 
@@ -185,7 +184,9 @@ function overCeiling(gsdCm: number, groundM: number, camera: Camera, o: Pick<Bas
 }
 
 function medianSiteGround(grid: DemGrid, inSite: Uint8Array): number {
-  const z = new Float32Array(inSite.length);
-  for (let i = 0; i < inSite.length; i++) z[i] = inSite[i] ? grid.heights[i] : NaN;
+  let m = 0;
+  for (let i = 0; i < inSite.length; i++) m += inSite[i];
+  const z = new Float32Array(m);
+  for (let i = 0, k = 0; i < inSite.length; i++) if (inSite[i]) z[k++] = grid.heights[i];
   return quantilesFloat32(z, [0.5])[0];
 }

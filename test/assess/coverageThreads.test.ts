@@ -34,5 +34,13 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     expect(Buffer.from(three.images.buffer).equals(Buffer.from(one.images.buffer))).toBe(true);
     expect(Buffer.from(three.gsdCm.buffer).equals(Buffer.from(one.gsdCm.buffer))).toBe(true);
     expect(Buffer.from(three.nadirStrip.buffer).equals(Buffer.from(one.nadirStrip.buffer))).toBe(true);
+    // The plan's own choice (nearest by distance, run by run) and its effect flags, shared the same way.
+    const effects = { lowGsdCm: 2.0, highGsdCm: 2.6, minImages: 3 };
+    const oneD = computeCoverage(grid, inSite, ex, camera, { threads: 1, nadirBy: "distance", effects });
+    const twoD = computeCoverage(grid, inSite, ex, camera, { threads: 2, nadirBy: "distance", effects });
+    for (const k of ["images", "gsdCm", "nadirStrip", "flags"] as const) {
+      expect(Buffer.from(twoD[k]!.buffer).equals(Buffer.from(oneD[k]!.buffer)), k).toBe(true);
+    }
+    expect(oneD.flags!.some((f) => f !== 0)).toBe(true);
   });
 });

@@ -33,17 +33,21 @@ describe("exact quantiles by radix selection", () => {
     );
   });
 
-  it("agree with a sort on a large GSD-like sample with many ties", () => {
-    const n = 200_001;
-    const values = new Float32Array(n);
-    let seed = 12345;
-    for (let i = 0; i < n; i++) {
-      seed = (seed * 1103515245 + 12345) >>> 0;
-      values[i] = 2 + Math.round((seed / 2 ** 32) * 1000) / 1000;
-    }
-    const want = PS.map((p) => sortedQuantile(Array.from(values), p));
-    expect(quantilesFloat32(values, PS)).toEqual(want);
-  });
+  // Both methods: selection on a copy below 2^16 values, a radix pass then selection above.
+  for (const n of [50_001, 200_001]) {
+    it(`agree with a sort on a large GSD-like sample with many ties and NaN (${n} values)`, () => {
+      const values = new Float32Array(n);
+      let seed = 12345;
+      for (let i = 0; i < n; i++) {
+        seed = (seed * 1103515245 + 12345) >>> 0;
+        values[i] = i % 17 === 0 ? NaN : 2 + Math.round((seed / 2 ** 32) * 1000) / 1000;
+      }
+      const want = PS.map((p) => sortedQuantile(Array.from(values), p));
+      expect(quantilesFloat32(values, PS)).toEqual(want);
+      // The sample itself is left as it was.
+      expect(values[17]).toBeNaN();
+    });
+  }
 
   it("count stats: min and median of the included cells", () => {
     const v = Uint16Array.from([5, 1, 9, 7, 3, 100, 0]);

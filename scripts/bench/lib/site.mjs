@@ -8,13 +8,18 @@ import proj4 from "proj4";
 const UTM33N = "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs";
 
 /**
- * A square site of `areaKm2` centred on (cx, cy) in UTM 33N metres, as a GeoJSON
- * FeatureCollection in WGS84 (edges densified every 100 m so the square stays square).
+ * A square (or turned rectangle) site of `areaKm2` centred on (cx, cy) in UTM 33N metres,
+ * as a GeoJSON FeatureCollection in WGS84 (edges densified every 100 m so it stays straight).
  * @example squareSite(1, 502000, 5202000).features[0].geometry.type // "Polygon"
  */
-export function squareSite(areaKm2, cx, cy, name = `bench ${areaKm2} km2`) {
-  const half = (Math.sqrt(areaKm2) * 1000) / 2;
-  const corners = [[cx - half, cy - half], [cx + half, cy - half], [cx + half, cy + half], [cx - half, cy + half]];
+export function squareSite(areaKm2, cx, cy, name = `bench ${areaKm2} km2`, { aspect = 1, rotateDeg = 0 } = {}) {
+  // A rectangle aspect times as long (east-west before turning) as it is wide, turned
+  // rotateDeg anticlockwise about its centre: a square by default.
+  const halfW = (Math.sqrt(areaKm2 * aspect) * 1000) / 2;
+  const halfH = (Math.sqrt(areaKm2 / aspect) * 1000) / 2;
+  const t = (rotateDeg * Math.PI) / 180;
+  const turn = ([x, y]) => [cx + x * Math.cos(t) - y * Math.sin(t), cy + x * Math.sin(t) + y * Math.cos(t)];
+  const corners = [[-halfW, -halfH], [halfW, -halfH], [halfW, halfH], [-halfW, halfH]].map(turn);
   const ring = [];
   for (let i = 0; i < 4; i++) {
     const [ax, ay] = corners[i];
@@ -51,10 +56,10 @@ export function benchPlanFile(dem, area, overrides = {}) {
  * Writes the site and plan file of one benchmark case into `dir`; returns the plan file path.
  * @example writeCase("/tmp/case1", { dem, areaKm2: 4, cx: 502000, cy: 5202000 })
  */
-export function writeCase(dir, { dem, areaKm2, cx, cy, overrides }) {
+export function writeCase(dir, { dem, areaKm2, cx, cy, overrides, aspect, rotateDeg }) {
   mkdirSync(dir, { recursive: true });
   const area = join(dir, "site.geojson");
-  writeFileSync(area, JSON.stringify(squareSite(areaKm2, cx, cy)) + "\n");
+  writeFileSync(area, JSON.stringify(squareSite(areaKm2, cx, cy, undefined, { aspect, rotateDeg })) + "\n");
   const plan = join(dir, "plan.json");
   writeFileSync(plan, JSON.stringify(benchPlanFile(dem, area, overrides), null, 2) + "\n");
   return plan;

@@ -1,0 +1,121 @@
+// The speed and scale targets, each case in its own process: the 4 km2 plan (wall time and
+// peak RSS against its window), a 3.2 km2 site whose strips come out oblique with the
+// heading left to `auto`, a 25 km2 site (generated here from the 16000 x 16000 benchmark
+// DEM, not committed), and `gsdplan demo`; then CPU and peak RSS against area over the
+// 1, 4 and 25 km2 cases (least-squares lines and their largest residuals).
+//
+// Usage: npm run build && node scripts/bench/targets.mjs   (or section 7 of npm run bench)
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join, dirname } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import { benchPlan } from "./plan.mjs";
+import { linearFit } from "./scaling.mjs";
+import { demLarge } from "./lib/dems.mjs";
+import { timedRun } from "./lib/proc.mjs";
+
+const here = dirname(fileURLToPath(import.meta.url));
+const root = join(here, "..", "..");
+const MB = 2 ** 20;
+const GB = 2 ** 30;
+
+/** The targets, as the table prints them. */
+export const TARGETS = {
+  plan4WallS: 3,
+  plan4RssOverWindow: 5,
+  plan4RssFixedBytes: 150 * MB,
+  obliqueWallS: 4,
+  plan25WallS: 45,
+  plan25RssBytes: 3 * GB,
+  demoWallS: 2,
+};
+
+/**
+ * Runs every target case; `reuse` may hold earlier results for { 1, 4 } km2 (section 2/3).
+ * @example const t = benchTargets({ log: console.error }); t.plan25.wallS
+ */
+export function benchTargets({ reuse = {}, timeoutS = 600, log = () => {} } = {}) {
+  const plan1 = reuse[1] ?? (log("7: 1 km2 plan"), benchPlan({ areaKm2: 1, timeoutS }));
+  const plan4 = reuse[4] ?? (log("7: 4 km2 plan"), benchPlan({ areaKm2: 4, timeoutS }));
+  log("7: 3.2 km2 site, heading auto (oblique strips)");
+  const oblique = benchPlan({ areaKm2: 3.2, label: "3.2 km2 oblique", timeoutS, rotateDeg: 35, aspect: 2 });
+  log("7: 25 km2 site (5 km x 5 km at 0.5 m)");
+  const plan25 = benchPlan({ areaKm2: 25, dem: demLarge(), timeoutS });
+  log("7: gsdplan demo");
+  const demo = benchDemo(timeoutS);
+  const cases = [plan1, plan4, plan25].filter((c) => c && !c.error && !c.timedOut);
+  const fits = cases.length >= 3
+    ? {
+        cpu: linearFit(cases.map((c) => c.siteKm2), cases.map((c) => c.cpuS)),
+        wall: linearFit(cases.map((c) => c.siteKm2), cases.map((c) => c.wallS)),
+        solveCpu: linearFit(cases.map((c) => c.siteKm2), cases.map((c) => c.stagesCpuS.solve)),
+        rss: linearFit(cases.map((c) => c.window.bytes), cases.map((c) => c.peakRssBytes)),
+        areasKm2: cases.map((c) => c.siteKm2),
+      }
+    : undefined;
+  return { plan1, plan4, oblique, plan25, demo, fits, targets: TARGETS };
+}
+
+/** `gsdplan plan` on the bundled demo (what `gsdplan demo` runs), from the live build. */
+function benchDemo(timeoutS) {
+  const dir = mkdtempSync(join(tmpdir(), "gsdplan-bench-demo-"));
+  try {
+    const runs = [0, 1].map(() => timedRun(process.execPath, [join(root, "dist", "cli", "main.js"), "plan", join(root, "fixtures", "demo", "corrie-vane-plan.yaml"), "--out", join(dir, "out"), "--force", "--quiet"], { timeoutS }));
+    const best = runs.reduce((a, b) => (b.seconds < a.seconds ? b : a));
+    return { wallS: best.seconds, cpuS: best.cpuS, peakRssBytes: best.peakRssBytes };
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+/**
+ * Table rows for section 7 (row() and fmt from lib/table.mjs passed in).
+ * @example targetRows(results.sections.targets, row, fmt)
+ */
+export function targetRows(t, row, fmt) {
+  const rows = [];
+  const T = t.targets ?? TARGETS;
+  const bad = (name, c) => {
+    if (!c) return true;
+    if (c.error) rows.push(row("7", name, `FAILED: ${String(c.error).split("\n")[0].slice(0, 80)}`, "", NaN, "", false));
+    else if (c.timedOut) rows.push(row("7", name, `timed out after ${c.timeoutS} s (${fmt.s(c.cpuS)} CPU) in stage ${c.stuckIn}`, "", NaN, "", false));
+    else return false;
+    return true;
+  };
+  const stages = (label, c) => {
+    for (const k of Object.keys(c.stagesS)) rows.push(row("7", `  ${label} stage ${k}: wall / CPU`, `${fmt.s(c.stagesS[k])} / ${fmt.s(c.stagesCpuS[k])}`, "", NaN));
+  };
+  const p4 = t.plan4;
+  if (!bad("4 km2 plan", p4)) {
+    const rssTarget = T.plan4RssOverWindow * p4.window.bytes + T.plan4RssFixedBytes;
+    rows.push(row("7", `plan ${fmt.n(p4.siteKm2, 2)} km2, wall`, fmt.s(p4.wallS), `CPU ${fmt.s(p4.cpuS)}`, NaN, `<= ${T.plan4WallS} s`, p4.wallS <= T.plan4WallS));
+    rows.push(row("7", "  the same, peak RSS", fmt.mb(p4.peakRssBytes), `window ${fmt.mb(p4.window.bytes)}`, p4.peakRssBytes / p4.window.bytes, `<= ${T.plan4RssOverWindow}x window + 150 MB (${fmt.mb(rssTarget)})`, p4.peakRssBytes <= rssTarget));
+    stages("4 km2", p4);
+  }
+  const ob = t.oblique;
+  if (!bad("3.2 km2 oblique", ob)) {
+    rows.push(row("7", `plan ${fmt.n(ob.siteKm2, 2)} km2, heading auto (${fmt.n(ob.plan.headingDeg ?? NaN, 1)} deg), wall`, fmt.s(ob.wallS), `CPU ${fmt.s(ob.cpuS)}, peak RSS ${fmt.mb(ob.peakRssBytes)}`, NaN, `<= ${T.obliqueWallS} s`, ob.wallS <= T.obliqueWallS));
+  }
+  const p25 = t.plan25;
+  if (!bad("25 km2 plan", p25)) {
+    rows.push(row("7", `plan ${fmt.n(p25.siteKm2, 2)} km2 (site in the DEM), ${fmt.n(p25.plan.flights)} flights, wall`, fmt.s(p25.wallS), `CPU ${fmt.s(p25.cpuS)}`, NaN, `<= ${T.plan25WallS} s`, p25.wallS <= T.plan25WallS));
+    rows.push(row("7", "  the same, peak RSS", fmt.mb(p25.peakRssBytes), `window ${fmt.mb(p25.window.bytes)}`, p25.peakRssBytes / p25.window.bytes, `<= ${fmt.n(T.plan25RssBytes / GB)} GB`, p25.peakRssBytes <= T.plan25RssBytes));
+    stages("25 km2", p25);
+  }
+  const d = t.demo;
+  if (!bad("gsdplan demo", d)) rows.push(row("7", "gsdplan demo (plan of the bundled site), wall", fmt.s(d.wallS), `CPU ${fmt.s(d.cpuS)}, peak RSS ${fmt.mb(d.peakRssBytes)}`, NaN, `<= ${T.demoWallS} s`, d.wallS <= T.demoWallS));
+  const f = t.fits;
+  if (f) {
+    const areas = f.areasKm2.map((a) => fmt.n(a, 1)).join(", ");
+    rows.push(row("7", `CPU = fixed + slope x area over ${areas} km2`, `${fmt.s(f.cpu.b)} per km2 + ${fmt.s(f.cpu.a)}`, `largest residual ${fmt.pct(100 * f.cpu.maxRelResidual)}`, NaN, "linear: residual < 10 %", f.cpu.maxRelResidual < 0.1));
+    rows.push(row("7", "  solve stage CPU = fixed + slope x area", `${fmt.s(f.solveCpu.b)} per km2 + ${fmt.s(f.solveCpu.a)}`, `largest residual ${fmt.pct(100 * f.solveCpu.maxRelResidual)}`, NaN, "linear: residual < 10 %", f.solveCpu.maxRelResidual < 0.1));
+    rows.push(row("7", "peak RSS = fixed + slope x window bytes", `${fmt.n(f.rss.b, 2)} B per window byte + ${fmt.mb(f.rss.a)}`, `largest residual ${fmt.pct(100 * f.rss.maxRelResidual)}`, NaN, "linear: residual < 10 %", f.rss.maxRelResidual < 0.1));
+  }
+  return rows;
+}
+
+if (process.argv[1] && pathToFileURL(process.argv[1]).href === import.meta.url) {
+  const r = benchTargets({ log: (m) => process.stderr.write(m + "\n") });
+  const { row, fmt, markdownTable } = await import("./lib/table.mjs");
+  process.stdout.write(markdownTable(targetRows(r, row, fmt)) + "\n");
+}
