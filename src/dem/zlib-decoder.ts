@@ -4,7 +4,8 @@
  * a Zstandard guard (a damaged block is an error, not a hang), and the
  * predictors undone in place.
  */
-import { inflateSync } from "node:zlib";
+import { inflate, inflateSync } from "node:zlib";
+import { promisify } from "node:util";
 import { BaseDecoder, addDecoder } from "geotiff";
 
 interface DecoderParameters {
@@ -65,13 +66,24 @@ export function undoPredictor(block: ArrayBuffer, p: DecoderParameters): ArrayBu
  */
 class NodeZlibDecoder extends BaseDecoder {
   override decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
-    const out = inflateSync(new Uint8Array(buffer));
-    if (out.byteOffset === 0 && out.byteLength === out.buffer.byteLength) return out.buffer;
-    return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
+    return ownBuffer(inflateSync(new Uint8Array(buffer)));
   }
+  /**
+   * Inflates on libuv's thread pool (zlib's asynchronous form), so the blocks in flight
+   * inflate on the other cores while this thread undoes predictors and places blocks.
+   */
   override async decode(buffer: ArrayBufferLike): Promise<ArrayBufferLike> {
-    return undoPredictor(this.decodeBlock(buffer) as ArrayBuffer, this.parameters as unknown as DecoderParameters);
+    const out = ownBuffer(await inflateAsync(new Uint8Array(buffer)));
+    return undoPredictor(out as ArrayBuffer, this.parameters as unknown as DecoderParameters);
   }
+}
+
+const inflateAsync = promisify(inflate);
+
+/** The bytes of a zlib result as an ArrayBuffer of their own (Node may hand back a view into a larger one). */
+function ownBuffer(out: Buffer): ArrayBufferLike {
+  if (out.byteOffset === 0 && out.byteLength === out.buffer.byteLength) return out.buffer;
+  return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
 }
 
 let registered = false;
