@@ -22,17 +22,22 @@
  * (no TileWidth/TileOffsets), no overview IFDs (NewSubfileType), no compression, and no
  * room for a 65536-entry colour map. libtiff (through GDAL) is not a Node dependency here.
  */
-import { deflateTiles, forEachTile, tileCount, type Predictor, type TileSamples } from "./cogTiles.js";
+import { LITTLE_ENDIAN_HOST, deflateTiles, swapBytes, tileBand, tileCount, type Predictor, type RowImage, type TileSamples } from "./cogTiles.js";
 import { TAG, ifdByteSize, writeIfd, type TiffField } from "./tiffTags.js";
 
-export interface CogImage {
-  width: number;
-  height: number;
-  /** Row-major samples, nodata already in place. */
-  values: TileSamples;
-}
+/**
+ * One image of the file, read band by band (cogTiles.ts, RowImage). The writer reads the
+ * images in order, full resolution first, each band once, top to bottom: so an overview can
+ * be reduced from the bands of the image before it while they are read.
+ */
+export type CogImage = RowImage;
+
+/** The typed array of the samples, which fixes their TIFF type. */
+export type SampleArrayType = Float32ArrayConstructor | Uint16ArrayConstructor | Uint8ArrayConstructor;
 
 export interface CogOptions {
+  /** Sample type of every image (Float32Array -> Float32, Uint16Array -> UInt16, Uint8Array -> Byte). */
+  samples: SampleArrayType;
   /** Tile width and height in pixels (TIFF 6.0 wants a multiple of 16). */
   tileSize: number;
   /**
@@ -74,25 +79,36 @@ const MAX_CLASSIC_TIFF_BYTES = 2 ** 32 - 1;
  * The COG file for a full-resolution image and its overviews (largest first, each smaller
  * than the one before).
  * @example
- *   const tif = writeCog([{ width: 2, height: 2, values: new Uint16Array(4) }], { tileSize: 256, compression: "deflate", predictor: 2, fill: 0, mainFields: [], commonFields: [] });
+ *   const tif = writeCog([arrayImage(new Uint16Array(4), 2, 2)], { samples: Uint16Array, tileSize: 256, compression: "deflate", predictor: 2, fill: 0, mainFields: [], commonFields: [] });
  */
 export function writeCog(images: CogImage[], o: CogOptions): ArrayBuffer {
+  check(images, o);
+  // Compressed tiles are made first (their sizes fix the layout); raw tiles go straight into the file.
+  return assemble(images, o, o.compression === "deflate" ? images.map((im) => deflateTiles(checked(im, o.samples), o.tileSize, o.predictor, o.fill)) : undefined);
+}
+
+function check(images: CogImage[], o: CogOptions): void {
   if (images.length === 0) throw new Error("a COG needs its full-resolution image");
   if (o.tileSize % 16 !== 0 || o.tileSize <= 0) throw new Error(`tile size ${o.tileSize} is not a positive multiple of 16 (TIFF 6.0)`);
-  const bits = 8 * images[0].values.BYTES_PER_ELEMENT;
+  const bytesPerSample = o.samples.BYTES_PER_ELEMENT;
+  const bits = 8 * bytesPerSample;
   if (o.colorMap && o.colorMap.length !== 3 * 2 ** bits) throw new Error(`a ${bits}-bit palette needs ${3 * 2 ** bits} colour map entries, got ${o.colorMap.length}`);
   if (o.compression === "none" && o.predictor !== 1) throw new Error("a predictor needs compression");
+  if (o.predictor === 3 && o.samples !== Float32Array) throw new Error("predictor 3 is for floating-point samples");
+}
+
+/** The file, from its images and, when compressed, their tiles (row-major per image). */
+function assemble(images: CogImage[], o: CogOptions, packed: Uint8Array[][] | undefined): ArrayBuffer {
   const T = o.tileSize;
-  // Compressed tiles are made first (their sizes fix the layout); raw tiles go straight into the file.
-  const packed = o.compression === "deflate" ? images.map((im) => deflateTiles(im.values, im.width, im.height, T, o.predictor, o.fill)) : undefined;
-  const rawBytes = T * T * images[0].values.BYTES_PER_ELEMENT;
+  const bytesPerSample = o.samples.BYTES_PER_ELEMENT;
+  const rawBytes = T * T * bytesPerSample;
   const sizes = images.map((im, k) => packed?.[k].map((t) => t.length) ?? new Array<number>(tileCount(im.width, im.height, T)).fill(rawBytes));
 
   // Layout: header, ghost header, IFDs (full resolution first), shared data, tiles (smallest image first).
   const ghost = cogGhostHeader();
   let pos = 8 + ghost.length;
   pos += pos & 1;
-  const fields = images.map((im, k) => imageFields(im, k, sizes[k].length, o, images[0].values));
+  const fields = images.map((im, k) => imageFields(im, k, sizes[k].length, o));
   const ifdAt: number[] = [];
   for (const f of fields) {
     ifdAt.push(pos);
@@ -124,27 +140,84 @@ export function writeCog(images: CogImage[], o: CogOptions): ArrayBuffer {
     writeIfd(view, ifdAt[k], f, k + 1 < fields.length ? ifdAt[k + 1] : 0);
   });
   if (o.colorMap) for (let i = 0; i < o.colorMap.length; i++) view.setUint16(colorMapAt + 2 * i, o.colorMap[i], true);
-  const put = (k: number) => (t: Uint8Array, i: number) => {
-    const at = tileAt[k][i];
-    view.setUint32(at - 4, t.length, true);
-    out.set(t, at);
-    // Trailer: the tile's last 4 bytes again (GDAL's validator compares the two).
-    out.copyWithin(at + t.length, at + t.length - 4, at + t.length);
-  };
   images.forEach((im, k) => {
-    if (packed) packed[k].forEach(put(k));
-    else forEachTile(im.values, im.width, im.height, T, 1, o.fill, put(k));
+    if (packed) {
+      packed[k].forEach((t, i) => {
+        out.set(t, tileAt[k][i]);
+        frameTile(out, view, tileAt[k][i], t.length);
+      });
+    } else {
+      writeRawTiles(checked(im, o.samples), T, o.fill, out, tileAt[k]);
+      for (const at of tileAt[k]) frameTile(out, view, at, rawBytes);
+    }
   });
   return out.buffer;
 }
 
+/** The image, its bands checked to be of the file's sample type as they are read. */
+function checked(im: CogImage, samples: SampleArrayType): CogImage {
+  return {
+    width: im.width,
+    height: im.height,
+    rows: (y0, count) => {
+      const band = im.rows(y0, count);
+      if (band.constructor !== samples) throw new Error(`image samples are ${band.constructor.name}, the file's ${samples.name}`);
+      return band;
+    },
+  };
+}
+
+/** The tile's leader (its byte count) and trailer (its last 4 bytes again, which GDAL's validator compares). */
+function frameTile(out: Uint8Array, view: DataView, at: number, length: number): void {
+  view.setUint32(at - 4, length, true);
+  out.copyWithin(at + length, at + length - 4, at + length);
+}
+
+/**
+ * Uncompressed tiles, copied row by row from each band straight to their place in the file
+ * (`tileAt`, row-major), parts beyond the raster filled with `fill`.
+ */
+function writeRawTiles(im: CogImage, T: number, fill: number, out: Uint8Array, tileAt: number[]): void {
+  const across = Math.ceil(im.width / T);
+  const down = Math.ceil(im.height / T);
+  const w = im.width;
+  let fillRow: Uint8Array | undefined;
+  for (let ty = 0; ty < down; ty++) {
+    let band = tileBand(im, ty, T);
+    const size = band.BYTES_PER_ELEMENT;
+    if (!LITTLE_ENDIAN_HOST) {
+      band = band.slice();
+      swapBytes(band);
+    }
+    if (!fillRow) {
+      const f = new (band.constructor as new (n: number) => TileSamples)(T).fill(fill);
+      if (!LITTLE_ENDIAN_HOST) swapBytes(f);
+      fillRow = new Uint8Array(f.buffer);
+    }
+    const bytes = new Uint8Array(band.buffer, band.byteOffset, band.byteLength);
+    const rows = band.length / w;
+    const rowBytes = T * size;
+    for (let tx = 0; tx < across; tx++) {
+      const at = tileAt[ty * across + tx];
+      const x0 = tx * T;
+      const cols = Math.min(T, w - x0);
+      for (let r = 0; r < rows; r++) {
+        const src = (r * w + x0) * size;
+        out.set(bytes.subarray(src, src + cols * size), at + r * rowBytes);
+        if (cols < T) out.set(fillRow.subarray(0, (T - cols) * size), at + r * rowBytes + cols * size);
+      }
+      for (let r = rows; r < T; r++) out.set(fillRow, at + r * rowBytes);
+    }
+  }
+}
+
 /** The fields of image `k` (0: full resolution), tile offsets and byte counts still zero. */
-function imageFields(im: CogImage, k: number, tileCount: number, o: CogOptions, first: TileSamples): TiffField[] {
+function imageFields(im: CogImage, k: number, tileCount: number, o: CogOptions): TiffField[] {
   const f: TiffField[] = [
     ...(k > 0 ? [{ tag: TAG.NewSubfileType, type: "LONG" as const, values: [1] }] : []),
     { tag: TAG.ImageWidth, type: "LONG", values: [im.width] },
     { tag: TAG.ImageLength, type: "LONG", values: [im.height] },
-    { tag: TAG.BitsPerSample, type: "SHORT", values: [8 * first.BYTES_PER_ELEMENT] },
+    { tag: TAG.BitsPerSample, type: "SHORT", values: [8 * o.samples.BYTES_PER_ELEMENT] },
     // 8: Adobe Deflate (TIFF Technical Note 2; the code libtiff and GDAL write for DEFLATE); 1: none.
     { tag: TAG.Compression, type: "SHORT", values: [o.compression === "deflate" ? 8 : 1] },
     // 1: BlackIsZero, 3: Palette (TIFF 6.0 section 3 and 5).
@@ -156,7 +229,7 @@ function imageFields(im: CogImage, k: number, tileCount: number, o: CogOptions, 
     { tag: TAG.TileOffsets, type: "LONG", values: new Array<number>(tileCount).fill(0) },
     { tag: TAG.TileByteCounts, type: "LONG", values: new Array<number>(tileCount).fill(0) },
     // 1: unsigned integer, 3: IEEE floating point (TIFF 6.0 section 19).
-    { tag: TAG.SampleFormat, type: "SHORT", values: [first instanceof Float32Array ? 3 : 1] },
+    { tag: TAG.SampleFormat, type: "SHORT", values: [o.samples === Float32Array ? 3 : 1] },
     ...o.commonFields,
     ...(k === 0 ? o.mainFields : []),
   ];

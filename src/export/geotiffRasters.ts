@@ -30,10 +30,10 @@
 import type { CrsInfo, GeoTransform } from "../dem/grid.js";
 import type { AssessmentRasters } from "../assess/types.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_FINE } from "../assess/flags.js";
-import { writeCog, type CogImage } from "./cog.js";
-import type { Predictor } from "./cogTiles.js";
+import { writeCog, type CogImage, type CogOptions, type SampleArrayType } from "./cog.js";
+import { arrayImage, type Predictor } from "./cogTiles.js";
 import { flagColorMap } from "./flagPalette.js";
-import { meanOverviews, nearestOverview, orOverview, overviewSizes } from "./overviews.js";
+import { blockMeans, blockSums, coarserSums, coarserSumsInto, nearestOverview, newBlockSums, orOverview, overviewSizes, type BlockSums } from "./overviews.js";
 import { TAG, type TiffField } from "./tiffTags.js";
 import { escapeXml } from "./xml.js";
 
@@ -71,17 +71,35 @@ export interface BandMetadata {
 }
 
 /**
- * The three assessment rasters as GeoTIFF bytes, nodata outside the site.
+ * The three assessment rasters as GeoTIFF bytes, nodata outside the site. Each file is
+ * made when it is read, so a writer taking them one at a time never holds two at once (a
+ * 25 km2 site's gsd.tif is half a gigabyte); the object keeps only a weak reference to
+ * each, so a file is made again only if it is read again after its bytes were dropped.
  *
  * @example
  *   const tiffs = assessmentGeoTiffs(assessment.rasters, dem.crs);
  *   await writeOutputSet(out, Object.entries(tiffs).map(([name, data]) => ({ name, data })));
  */
 export function assessmentGeoTiffs(r: AssessmentRasters, crs: RasterCrs): AssessmentTiffs {
+  const made = new Map<keyof AssessmentTiffs, WeakRef<ArrayBuffer>>();
+  const get = (which: keyof AssessmentTiffs) => {
+    let tif = made.get(which)?.deref();
+    if (!tif) {
+      tif = assessmentGeoTiff(r, crs, which);
+      made.set(which, new WeakRef(tif));
+    }
+    return tif;
+  };
   return {
-    "gsd.tif": assessmentGeoTiff(r, crs, "gsd.tif"),
-    "images.tif": assessmentGeoTiff(r, crs, "images.tif"),
-    "flags.tif": assessmentGeoTiff(r, crs, "flags.tif"),
+    get "gsd.tif"() {
+      return get("gsd.tif");
+    },
+    get "images.tif"() {
+      return get("images.tif");
+    },
+    get "flags.tif"() {
+      return get("flags.tif");
+    },
   };
 }
 
@@ -91,42 +109,65 @@ export function assessmentGeoTiffs(r: AssessmentRasters, crs: RasterCrs): Assess
  * @example assessmentGeoTiff(assessment.rasters, dem.crs, "gsd.tif")
  */
 export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): ArrayBuffer {
+  const c = assessmentCog(r, crs, which);
+  return writeCog(c.images, c.options);
+}
+
+/** A COG's images and the writer's options. */
+interface CogFile {
+  images: CogImage[];
+  options: CogOptions;
+}
+
+/**
+ * The images of one assessment raster and how to write them. The full-resolution image is
+ * masked (nodata outside the site) band by band as the COG writer reads it, and the first
+ * overview is reduced from each band right then: no full-size copy of the raster is made;
+ * each further overview comes from the one before.
+ */
+function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): CogFile {
   const { width, height, inSite } = r;
-  const n = width * height;
   const grid = { width, height, transform: r.transform };
-  const levels = overviewSizes(width, height, COG_TILE_SIZE).length;
+  const sizes = overviewSizes(width, height, COG_TILE_SIZE);
   if (which === "gsd.tif") {
-    const gsd = new Float32Array(n);
     const g = r.gsdCm;
-    for (let i = 0; i < n; i++) gsd[i] = inSite[i] === 1 ? g[i] : NaN;
-    const overviews = meanOverviews(gsd, width, height, levels);
-    return cogGeoTiff([{ width, height, values: gsd }, ...overviews], grid, crs, {
+    const levels = meanPyramid(width, height, sizes, (base, band) => {
+      for (let j = 0; j < band.length; j++) band[j] = inSite[base + j] === 1 ? g[base + j] : NaN;
+    });
+    return cogFile(levels, Float32Array, grid, crs, {
       nodata: NaN,
       ...GSD_COMPRESSION,
       band: { description: "nadir GSD from the most nadir image, cm per image pixel", unit: "cm" },
     });
   }
   if (which === "images.tif") {
-    const images = new Uint16Array(n);
     const v = r.images;
-    // Counts saturate just below nodata.
-    for (let i = 0; i < n; i++) images[i] = inSite[i] === 1 ? Math.min(v[i], IMAGES_NODATA - 1) : IMAGES_NODATA;
-    const levelsOut = halvings({ width, height, values: images }, levels, (l) => nearestOverview(l.values, l.width, l.height, IMAGES_NODATA));
-    return cogGeoTiff(levelsOut, grid, crs, {
+    const cap = IMAGES_NODATA - 1;
+    const levels = uint16Pyramid(width, height, sizes, (base, band) => {
+      // Counts saturate just below nodata.
+      for (let j = 0; j < band.length; j++) {
+        const c = v[base + j];
+        band[j] = inSite[base + j] === 1 ? (c < cap ? c : cap) : IMAGES_NODATA;
+      }
+    }, (values, w, h, out) => nearestOverview(values, w, h, IMAGES_NODATA, out));
+    return cogFile(levels, Uint16Array, grid, crs, {
       nodata: IMAGES_NODATA,
       compression: "deflate",
       predictor: 1,
       band: { description: "number of images covering the cell" },
     });
   }
-  const flags = new Uint16Array(n);
   const f = r.flags;
-  // No cell can be both coarser and finer, so no cell is 255; should one be, it keeps its other bits.
-  for (let i = 0; i < n; i++) flags[i] = inSite[i] !== 1 ? FLAGS_NODATA : f[i] === FLAGS_NODATA ? f[i] & ~FLAG_FINE : f[i];
-  const levelsOut = halvings({ width, height, values: flags }, levels, (l) => orOverview(l.values, l.width, l.height, FLAGS_NODATA, FLAG_FINE));
+  const levels = uint16Pyramid(width, height, sizes, (base, band) => {
+    // No cell can be both coarser and finer, so no cell is 255; should one be, it keeps its other bits.
+    for (let j = 0; j < band.length; j++) {
+      const x = f[base + j];
+      band[j] = inSite[base + j] !== 1 ? FLAGS_NODATA : x === FLAGS_NODATA ? x & ~FLAG_FINE : x;
+    }
+  }, (values, w, h, out) => orOverview(values, w, h, FLAGS_NODATA, FLAG_FINE, out));
   const items: Record<string, string> = {};
   for (const k of ASSESSMENT_FLAG_KINDS) items[`FLAG_${k.bit}`] = k.label;
-  return cogGeoTiff(levelsOut, grid, crs, {
+  return cogFile(levels, Uint16Array, grid, crs, {
     nodata: FLAGS_NODATA,
     compression: "deflate",
     predictor: 1,
@@ -135,14 +176,139 @@ export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: k
   });
 }
 
-/** The image and `count` overviews, each made from the one before by `reduce`. */
-function halvings(first: { width: number; height: number; values: Uint16Array }, count: number, reduce: (l: { width: number; height: number; values: Uint16Array }) => Uint16Array): CogImage[] {
-  const out = [first];
-  for (let k = 0; k < count; k++) {
-    const prev = out[out.length - 1];
-    out.push({ width: (prev.width + 1) >> 1, height: (prev.height + 1) >> 1, values: reduce(prev) });
-  }
-  return out;
+/** Fills `band` with the full-resolution cells from index `base` on (row-major), nodata in place. */
+type FillBand<T> = (base: number, band: T) => void;
+
+/** Rows made and reduced at a time (a multiple of 4, so a chunk's 2 x 2 blocks, and theirs, are the raster's). */
+const CHUNK_ROWS = 8;
+
+/**
+ * The full-resolution image, made band by band into one reused band buffer by `fill`, as the COG
+ * writer reads it (cog.ts: images in order, bands top to bottom, each once).
+ */
+function bandImage<T extends Float32Array | Uint16Array>(width: number, height: number, band: T, fill: FillBand<T>, reduce: (band: T, y0: number, rows: number) => void): CogImage {
+  let next = 0;
+  return {
+    width,
+    height,
+    rows(y0, count) {
+      // The writer reads whole tile rows (a multiple of 16 rows), so every chunk but the last is whole.
+      if (y0 !== next) throw new Error(`rows from ${y0} asked for, expected ${next}`);
+      if (count % CHUNK_ROWS !== 0 && y0 + count !== height) throw new Error(`a band of ${count} rows is not whole chunks of ${CHUNK_ROWS}`);
+      next = y0 + count;
+      // Made and reduced a few rows at a time, so the reduction reads rows still in the CPU cache.
+      for (let r = 0; r < count; r += CHUNK_ROWS) {
+        const rows = Math.min(CHUNK_ROWS, count - r);
+        const chunk = band.subarray(r * width, (r + rows) * width) as T;
+        fill((y0 + r) * width, chunk);
+        reduce(chunk, y0 + r, rows);
+      }
+      return band.subarray(0, count * width) as T;
+    },
+  };
+}
+
+/** The rows asked of one overview once the image before it has been read to the end. */
+function overviewImage(width: number, height: number, ready: () => boolean, rows: (y0: number, count: number) => Float32Array | Uint16Array): CogImage {
+  return {
+    width,
+    height,
+    rows(y0, count) {
+      if (!ready()) throw new Error("an overview is read before the image it is reduced from");
+      return rows(y0, count);
+    },
+  };
+}
+
+/**
+ * gsd.tif's images: the full resolution (`fill`) and mean overviews of the `sizes` given, from
+ * block sums and counts carried from level to level (overviews.ts). Each chunk of full-resolution
+ * rows is reduced while it is in the CPU cache: its first-level sums, kept only for the chunk,
+ * give the first overview's means and the second level's sums; further levels are made from
+ * the one before when first read, and only the current level's sums are kept.
+ */
+function meanPyramid(width: number, height: number, sizes: [number, number][], fill: FillBand<Float32Array>): CogImage[] {
+  const T = COG_TILE_SIZE;
+  const band = new Float32Array(Math.min(T, height) * width);
+  if (sizes.length === 0) return [bandImage(width, height, band, fill, () => undefined)];
+  const [w1, h1] = sizes[0];
+  const chunkSums = newBlockSums(w1, CHUNK_ROWS >> 1, 1);
+  const means1 = new Float32Array(w1 * h1);
+  let sums: BlockSums | undefined = sizes.length > 1 ? newBlockSums(sizes[1][0], sizes[1][1], 2) : undefined;
+  let level = 2;
+  let reducedRows = 0;
+  const full = bandImage(width, height, band, fill, (chunk, y0, rows) => {
+    // y0 is a multiple of CHUNK_ROWS (4 or more), so the chunk's blocks start a row of both levels.
+    const rows1 = (rows + 1) >> 1;
+    const s1 = chunkSums.sum.subarray(0, rows1 * w1);
+    const c1 = chunkSums.count.subarray(0, rows1 * w1);
+    blockSums(chunk, width, rows, s1, c1);
+    blockMeans(s1, c1, means1.subarray((y0 >> 1) * w1, ((y0 >> 1) + rows1) * w1));
+    if (sums) {
+      const at = (y0 >> 2) * sums.width;
+      coarserSumsInto(s1, c1, w1, rows1, sums.sum.subarray(at), sums.count.subarray(at));
+    }
+    reducedRows = y0 + rows;
+  });
+  const images = [full];
+  const ready = () => reducedRows === height;
+  images.push(overviewImage(w1, h1, ready, (y0, count) => means1.subarray(y0 * w1, (y0 + count) * w1)));
+  const means = new Float32Array(sizes.length > 1 ? Math.min(T, sizes[1][1]) * sizes[1][0] : 0);
+  sizes.slice(1).forEach(([w, h], i) => {
+    const k = i + 2;
+    images.push(
+      overviewImage(w, h, ready, (y0, count) => {
+        if (!sums) throw new Error("no block sums");
+        if (level < k) {
+          if (level !== k - 1 || y0 !== 0) throw new Error(`overview ${k} read before overview ${k - 1}`);
+          sums = coarserSums(sums, k);
+          level = k;
+        }
+        if (level !== k) throw new Error(`overview ${k} read after overview ${level}`);
+        const at = y0 * w;
+        return blockMeans(sums.sum.subarray(at), sums.count.subarray(at), means.subarray(0, count * w));
+      }),
+    );
+  });
+  return images;
+}
+
+/**
+ * images.tif's or flags.tif's images: the full resolution (`fill`) and overviews of the `sizes`
+ * given, each reduced by `reduce` from the one before (the first from the bands as they are read).
+ */
+function uint16Pyramid(
+  width: number,
+  height: number,
+  sizes: [number, number][],
+  fill: FillBand<Uint16Array>,
+  reduce: (values: Uint16Array, width: number, height: number, out: Uint16Array) => Uint16Array,
+): CogImage[] {
+  const T = COG_TILE_SIZE;
+  const band = new Uint16Array(Math.min(T, height) * width);
+  if (sizes.length === 0) return [bandImage(width, height, band, fill, () => undefined)];
+  const first = new Uint16Array(sizes[0][0] * sizes[0][1]);
+  let reducedRows = 0;
+  const full = bandImage(width, height, band, fill, (b, y0, rows) => {
+    reduce(b, width, rows, first.subarray((y0 >> 1) * sizes[0][0]));
+    reducedRows = y0 + rows;
+  });
+  // Further levels are small (a sixteenth of the raster and less): made whole when first read.
+  const levels: (Uint16Array | undefined)[] = [first];
+  const images = [full];
+  sizes.forEach(([w, h], i) => {
+    images.push(
+      overviewImage(w, h, () => reducedRows === height, (y0, count) => {
+        if (levels[i] === undefined) {
+          const [pw, ph] = sizes[i - 1];
+          levels[i] = reduce(levels[i - 1]!, pw, ph, new Uint16Array(w * h));
+          levels[i - 1] = undefined;
+        }
+        return levels[i]!.subarray(y0 * w, (y0 + count) * w);
+      }),
+    );
+  });
+  return images;
 }
 
 /**
@@ -160,25 +326,28 @@ export function rasterGeoTiff(
 ): ArrayBuffer {
   if (values.length !== grid.width * grid.height) throw new Error("raster size does not match its grid");
   const nd = nodata === undefined ? undefined : Number(nodata);
-  return cogGeoTiff([{ width: grid.width, height: grid.height, values }], grid, crs, {
+  const c = cogFile([arrayImage(values, grid.width, grid.height)], values.constructor as SampleArrayType, grid, crs, {
     nodata: nd,
     compression: "deflate",
     predictor: values instanceof Float32Array ? 3 : 2,
   });
+  return writeCog(c.images, c.options);
 }
 
 /** A COG of `images` (full resolution first) with georeferencing, nodata and band metadata. */
-function cogGeoTiff(
+function cogFile(
   images: CogImage[],
+  samples: SampleArrayType,
   grid: Grid,
   crs: RasterCrs,
   o: { nodata?: number; compression: "deflate" | "none"; predictor: Predictor; colorMap?: Uint16Array; band?: BandMetadata },
-): ArrayBuffer {
+): CogFile {
   const common: TiffField[] = o.nodata === undefined ? [] : [{ tag: TAG.GdalNodata, type: "ASCII", values: gdalNodataText(o.nodata) }];
   const main = [...georeferenceFields(grid, crs)];
   const xml = o.band ? gdalMetadataXml(o.band) : undefined;
   if (xml) main.push({ tag: TAG.GdalMetadata, type: "ASCII", values: xml });
-  return writeCog(images, {
+  const options: CogOptions = {
+    samples,
     tileSize: COG_TILE_SIZE,
     compression: o.compression,
     predictor: o.predictor,
@@ -186,7 +355,8 @@ function cogGeoTiff(
     mainFields: main,
     commonFields: common,
     colorMap: o.colorMap,
-  });
+  };
+  return { images, options };
 }
 
 /**

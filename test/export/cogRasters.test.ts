@@ -475,6 +475,87 @@ describe.skipIf(!HAS_GDAL)("COGs read by GDAL (Debian gdal-bin 3.6)", () => {
     expect([...readFileSync(raw)]).toEqual([...u8]);
   });
 
+  it("odd sizes, three overviews (2105 x 1029): each level GDAL reads of images.tif and flags.tif is its 2 x 2 rule applied to the level before; gsd.tif's level k is the mean of each 2^k x 2^k block", () => {
+    // Odd width and height at full resolution and in the overviews, and a last band of tiles
+    // 5 rows high: the edges where a block misses its right or bottom cells.
+    const w0 = 2105;
+    const h0 = 1029;
+    const odd = rasters(w0, h0, { x0: 500_000, y0: 5_216_000, dx: 2, dy: -2 });
+    // Values along the right and bottom edges too (the ellipse stops short of them), a few unseen.
+    for (let y = 0; y < h0; y++) {
+      for (let x = 0; x < w0; x++) {
+        if (x < w0 - 40 && y < h0 - 40) continue;
+        const i = y * w0 + x;
+        // Some outside the site, so an edge block's first cell is sometimes nodata.
+        odd.inSite[i] = (3 * x + y) % 5 === 0 ? 0 : 1;
+        odd.gsdCm[i] = (x + y) % 7 === 0 ? NaN : 2.5 + 0.0003 * x + 0.1 * Math.sin(y / 5);
+        odd.images[i] = (x * 5 + y) % 11;
+        odd.flags[i] = (x + 2 * y) % 13 === 0 ? FLAG_CEILING : (x * y) % 17 === 0 ? FLAG_FINE : 0;
+      }
+    }
+    const tiffs = assessmentGeoTiffs(odd, UTM33N);
+    for (const name of NAMES) {
+      writeFileSync(path.join(dir, `odd-${name}`), new Uint8Array(tiffs[name]));
+      expect(cogLayoutErrors(readFileSync(path.join(dir, `odd-${name}`)))).toEqual([]);
+    }
+    const sizes = overviewSizes(w0, h0, 512);
+    expect(sizes).toEqual([[1053, 515], [527, 258], [264, 129]]);
+    const want = expectedFull(odd);
+    let images: { width: number; height: number; values: ArrayLike<number> } = { width: w0, height: h0, values: want.images };
+    let flags: { width: number; height: number; values: ArrayLike<number> } = { width: w0, height: h0, values: want.flags };
+    for (const [k, [w, h]] of sizes.entries()) {
+      const gotImages = gdalCells(path.join(dir, "odd-images.tif"), "UInt16", k);
+      const gotFlags = gdalCells(path.join(dir, "odd-flags.tif"), "UInt16", k);
+      expect([gotImages.width, gotImages.height, gotFlags.width, gotFlags.height]).toEqual([w, h, w, h]);
+      let diff = 0;
+      for (let y = 0; y < h; y++) {
+        for (let x = 0; x < w; x++) {
+          // The block's cells inside the level before, top-left, top-right, bottom-left, bottom-right.
+          const cells = [[2 * x, 2 * y], [2 * x + 1, 2 * y], [2 * x, 2 * y + 1], [2 * x + 1, 2 * y + 1]].filter(([cx, cy]) => cx < images.width && cy < images.height);
+          const iv = cells.map(([cx, cy]) => images.values[cy * images.width + cx]).find((v) => v !== IMAGES_NODATA) ?? IMAGES_NODATA;
+          const fv = cells.map(([cx, cy]) => flags.values[cy * flags.width + cx]).filter((v) => v !== FLAGS_NODATA);
+          let or = fv.length === 0 ? FLAGS_NODATA : fv.reduce((a, b) => a | b, 0);
+          if (fv.length > 0 && or === FLAGS_NODATA) or &= ~FLAG_FINE;
+          if (gotImages.values[y * w + x] !== iv) diff++;
+          if (gotFlags.values[y * w + x] !== or) diff++;
+        }
+      }
+      expect(diff).toBe(0);
+      images = gotImages;
+      flags = gotFlags;
+
+      const f = 2 ** (k + 1);
+      const gsd = gdalCells(path.join(dir, "odd-gsd.tif"), "Float32", k);
+      expect([gsd.width, gsd.height]).toEqual([w, h]);
+      let nanMismatch = 0;
+      let beyondRounding = 0;
+      for (let y = 0; y < h; y++) {
+        for (let x = 0; x < w; x++) {
+          let s = 0;
+          let c = 0;
+          for (let cy = f * y; cy < Math.min(f * (y + 1), h0); cy++) {
+            for (let cx = f * x; cx < Math.min(f * (x + 1), w0); cx++) {
+              const v = want.gsd[cy * w0 + cx];
+              if (!Number.isNaN(v)) {
+                s += v;
+                c++;
+              }
+            }
+          }
+          const g = gsd.values[y * w + x];
+          if (c === 0 || Number.isNaN(g)) {
+            if ((c === 0) !== Number.isNaN(g)) nanMismatch++;
+            continue;
+          }
+          // IEEE 754 binary32: rounding to nearest is within half an ulp, at most 2^-24 of the value.
+          if (Math.abs(g - s / c) > (s / c) * 2 ** -24 * 1.001) beyondRounding++;
+        }
+      }
+      expect(nanMismatch).toBe(0);
+      expect(beyondRounding).toBe(0);
+    }
+  });
+
   it("overview sizes are gdaladdo's for factors 2, 4, 8... and stop once one fits a 512 tile, as GDAL's COG driver stops", () => {
     for (const [w, h] of [[1100, 701], [513, 40], [2049, 1000], [40, 1025]]) {
       const f = path.join(dir, `gdaladdo-${w}x${h}.tif`);
