@@ -42,6 +42,8 @@ export interface AssessOptions {
    * imaged: too-few-images cells under them get the keep-out bit.
    */
   keepOut?: { cuts: readonly { from: XY; to: XY }[]; footprintAcrossM: number; footprintAlongM: number };
+  /** Keep the raster of each cell's nadir strip in the result (default false: only the statistics use it, and it is dropped). */
+  keepNadirStrip?: boolean;
 }
 
 /**
@@ -87,7 +89,7 @@ export function assessPlan(
   const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
-    rasters: { width, height, transform, gsdCm, images, flags, inSite, nadirStrip },
+    rasters: { width, height, transform, gsdCm, images, flags, inSite, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },
     stats,
     polygons,
     exposures,

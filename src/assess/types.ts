@@ -25,7 +25,7 @@ export interface AssessmentRasters {
   flags: Uint16Array;
   /** 1 for cells whose centre lies inside the site. */
   inSite: Uint8Array;
-  /** Strip number of the most nadir exposure seeing the cell; 0 where none (added by the assessment). */
+  /** Strip number of the most nadir exposure seeing the cell; 0 where none (kept only with the assessment option keepNadirStrip). */
   nadirStrip?: Uint16Array;
 }
 

@@ -30,8 +30,12 @@ export interface Baseline {
   altitudeAmslM: number;
   heightAboveMedianGroundM: number;
   medianGroundM: number;
-  /** GSD in cm/px of every site cell some photo sees (no raster: only its distribution is shown). */
-  gsdValuesCm: Float32Array;
+  /**
+   * GSD in cm/px of every site cell some photo sees, in cell order (only its distribution
+   * is shown). Made again from the ground heights on each call (a bit per cell is kept,
+   * not the values), so the figures do not hold memory through the outputs.
+   */
+  gsdValuesCm: () => Float32Array;
   stats: {
     gsdCm: GsdStats;
     withinBandPct: number;
@@ -93,7 +97,13 @@ export function constantAltitudeBaseline(
   const hi = requirement.highGsdM * 100 * (1 + BAND_SLACK);
   const { heights, valid } = grid;
   let seen = 0;
-  for (let i = 0; i < n; i++) if (inSite[i] === 1 && images[i] > 0) seen++;
+  const seenBits = new Uint8Array((n + 7) >> 3);
+  for (let i = 0; i < n; i++) {
+    if (inSite[i] === 1 && images[i] > 0) {
+      seen++;
+      seenBits[i >> 3] |= 1 << (i & 7);
+    }
+  }
   const gsdValuesCm = new Float32Array(seen);
   const imageHist = new Float64Array(65536);
   const gsd32 = new Float32Array(1);
@@ -142,7 +152,11 @@ export function constantAltitudeBaseline(
     altitudeAmslM: A,
     heightAboveMedianGroundM: o.targetHeightM,
     medianGroundM,
-    gsdValuesCm,
+    gsdValuesCm: () => {
+      const out = new Float32Array(seen);
+      for (let i = 0, j = 0; i < n; i++) if (seenBits[i >> 3] & (1 << (i & 7))) out[j++] = (A - heights[i]) * gsdPerM;
+      return out;
+    },
     stats: {
       gsdCm: { min, p5, median, p95, max },
       withinBandPct: pct(inBand),

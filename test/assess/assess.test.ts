@@ -165,7 +165,7 @@ describe("assessPlan on flat ground", () => {
     // Tilted ground: GSD varies across the site.
     const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: (x, y) => H0 + 0.1 * x + 0.05 * y });
     const band = { lowGsdM: (gsdCm / 100) * 0.9, highGsdM: (gsdCm / 100) * 1.1 };
-    const a = assessPlan(grid, site, plan(H0 + AGL + 10), camera, band, { triggerM, zoneHalfAcrossM: spacingM / 2, toWgs84: identity });
+    const a = assessPlan(grid, site, plan(H0 + AGL + 10), camera, band, { triggerM, zoneHalfAcrossM: spacingM / 2, toWgs84: identity, keepNadirStrip: true });
     const vals: number[] = [];
     let inBand = 0;
     for (let i = 0; i < a.rasters.gsdCm.length; i++) {

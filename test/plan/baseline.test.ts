@@ -95,8 +95,8 @@ describe("constant-altitude baseline computed directly", () => {
       expect(b.stats.flaggedAreaM2).toBe(s.flagged.areaM2);
       for (const [k, v] of Object.entries(s.flagged.byKind)) expect(b.stats.flaggedByKind[k].cells, k).toBe(v.cells);
       const seen = swept.rasters.gsdCm.filter((g, i) => inSite[i] && g === g);
-      expect(b.gsdValuesCm.length).toBe(seen.length);
-      expect(Array.from(b.gsdValuesCm)).toEqual(Array.from(seen));
+      expect(b.gsdValuesCm().length).toBe(seen.length);
+      expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(seen));
       // The relief (about 60 m) under a 90 m flight puts some ground out of the band both ways.
       expect(s.flagged.byKind.coarse.cells).toBeGreaterThan(1000);
       expect(s.flagged.byKind.fine.cells).toBeGreaterThan(1000);
