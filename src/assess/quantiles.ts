@@ -14,24 +14,39 @@
  */
 
 /**
- * Quantiles `ps` (each in [0, 1]) of `values`; NaN entries are ignored. All NaN
- * (or empty) gives NaN for every p. `values` is not modified.
+ * Quantiles `ps` (each in [0, 1]) of `values`; NaN entries are ignored, and so are
+ * entries where `mask` (when given) is 0. None left gives NaN for every p. `values`
+ * is not modified.
  * @example quantilesFloat32(gsd, [0, 0.05, 0.5, 0.95, 1]) // [min, p5, median, p95, max]
  */
-export function quantilesFloat32(values: Float32Array, ps: readonly number[]): number[] {
+export function quantilesFloat32(values: Float32Array, ps: readonly number[], mask?: CellMask): number[] {
+  const { n, stats } = orderStatistics(values, (count) => ranksOf(count, ps), mask);
+  if (n === 0) return ps.map(() => NaN);
+  return interpolate(n, ps, stats);
+}
+
+/** Cells to include: non-zero entries (a site mask, or counts where > 0 means seen). */
+export type CellMask = Uint8Array | Uint16Array;
+
+/**
+ * Order statistics (0-based ranks, smallest first) of the included values: `ranksFor`
+ * gets their number and gives the ranks wanted. Ranks must lie in [0, n).
+ * @example orderStatistics(heights, (n) => [n >> 1], inSite).stats[0] // a median
+ */
+export function orderStatistics(values: Float32Array, ranksFor: (n: number) => number[], mask?: CellMask): { n: number; stats: number[] } {
   // Below this many values the radix table (65,536 bins) costs more than selecting on a copy.
-  if (values.length <= SELECT_BELOW) return quantilesBySelection(values, ps);
+  if (values.length <= SELECT_BELOW) return statsBySelection(values, ranksFor, mask);
   const keys = new Uint32Array(values.buffer, values.byteOffset, values.length);
   const hist = new Uint32Array(65536);
   let n = 0;
   for (let i = 0; i < keys.length; i++) {
     const v = values[i];
-    if (v !== v) continue;
+    if (v !== v || (mask !== undefined && mask[i] === 0)) continue;
     hist[sortKey(keys[i]) >>> 16]++;
     n++;
   }
-  if (n === 0) return ps.map(() => NaN);
-  const ranks = ranksOf(n, ps);
+  if (n === 0) return { n, stats: [] };
+  const ranks = ranksFor(n);
   // For each wanted rank: its high-16 bin and its rank within the bin, in one walk over the
   // bins with the ranks taken in ascending order.
   const order = ranks.map((_, j) => j).sort((a, b) => ranks[a] - ranks[b]);
@@ -57,27 +72,27 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[]): n
   const fill = new Int32Array(bins.length);
   for (let i = 0; i < keys.length; i++) {
     const v = values[i];
-    if (v !== v) continue;
+    if (v !== v || (mask !== undefined && mask[i] === 0)) continue;
     const k = slot[sortKey(keys[i]) >>> 16];
     if (k >= 0) gathered[k][fill[k]++] = v;
   }
-  const orderStat = new Array<number>(ranks.length);
+  const stats = new Array<number>(ranks.length);
   bins.forEach((bin, k) => {
     const a = gathered[k];
     let from = 0;
     for (const j of order.filter((j) => binOf[j] === bin).sort((x, y) => within[x] - within[y])) {
       selectRank(a, within[j], from, a.length - 1);
-      orderStat[j] = a[within[j]];
+      stats[j] = a[within[j]];
       from = within[j];
     }
   });
-  return interpolate(n, ps, orderStat);
+  return { n, stats };
 }
 
 const SELECT_BELOW = 1 << 16;
 
 /** The two order statistics (0-based ranks) each quantile interpolates between: floor(h) and the next, h = (n - 1) p. */
-function ranksOf(n: number, ps: readonly number[]): number[] {
+export function ranksOf(n: number, ps: readonly number[]): number[] {
   const ranks: number[] = [];
   for (const p of ps) {
     const h = (n - 1) * p;
@@ -86,7 +101,11 @@ function ranksOf(n: number, ps: readonly number[]): number[] {
   return ranks;
 }
 
-function interpolate(n: number, ps: readonly number[], orderStat: readonly number[]): number[] {
+/**
+ * Type-7 quantiles from the order statistics at ranksOf(n, ps).
+ * @example interpolate(n, ps, orderStatistics(v, (m) => ranksOf(m, ps)).stats)
+ */
+export function interpolate(n: number, ps: readonly number[], orderStat: readonly number[]): number[] {
   return ps.map((p, j) => {
     const h = (n - 1) * p;
     const lo = orderStat[2 * j];
@@ -96,27 +115,28 @@ function interpolate(n: number, ps: readonly number[], orderStat: readonly numbe
 }
 
 /**
- * quantilesFloat32 for small samples: the values without NaN are copied and the
- * wanted ranks selected in ascending order (Hoare's partition with a median-of-three
- * pivot; each selection leaves everything below its rank on its left, so the next
- * one searches only to the right of it).
+ * orderStatistics for small samples: the included values are copied and the wanted
+ * ranks selected in ascending order (Hoare's partition with a median-of-three pivot;
+ * each selection leaves everything below its rank on its left, so the next one
+ * searches only to the right of it).
  */
-function quantilesBySelection(values: Float32Array, ps: readonly number[]): number[] {
+function statsBySelection(values: Float32Array, ranksFor: (n: number) => number[], mask?: CellMask): { n: number; stats: number[] } {
+  const keep = (i: number) => values[i] === values[i] && (mask === undefined || mask[i] !== 0);
   let n = 0;
-  for (let i = 0; i < values.length; i++) if (values[i] === values[i]) n++;
-  if (n === 0) return ps.map(() => NaN);
+  for (let i = 0; i < values.length; i++) if (keep(i)) n++;
+  if (n === 0) return { n, stats: [] };
   const a = new Float32Array(n);
-  for (let i = 0, k = 0; i < values.length; i++) if (values[i] === values[i]) a[k++] = values[i];
-  const ranks = ranksOf(n, ps);
+  for (let i = 0, k = 0; i < values.length; i++) if (keep(i)) a[k++] = values[i];
+  const ranks = ranksFor(n);
   const order = ranks.map((_, j) => j).sort((x, y) => ranks[x] - ranks[y]);
-  const orderStat = new Array<number>(ranks.length);
+  const stats = new Array<number>(ranks.length);
   let from = 0;
   for (const j of order) {
     selectRank(a, ranks[j], from, n - 1);
-    orderStat[j] = a[ranks[j]];
+    stats[j] = a[ranks[j]];
     from = ranks[j];
   }
-  return interpolate(n, ps, orderStat);
+  return { n, stats };
 }
 
 /** Moves the k-th smallest of a[lo..hi] to a[k], smaller ones before it, larger after. */

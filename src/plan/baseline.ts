@@ -19,7 +19,7 @@ import { photoLattice, type AssessedLeg } from "../assess/exposures.js";
 import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage.js";
 import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
-import { countStatsOfHistogram, quantilesFloat32 } from "../assess/quantiles.js";
+import { countStatsOfHistogram, interpolate, orderStatistics, quantilesFloat32, ranksOf } from "../assess/quantiles.js";
 
 export interface CeilingBreaches {
   cells: number;
@@ -104,16 +104,13 @@ export function constantAltitudeBaseline(
       seenBits[i >> 3] |= 1 << (i & 7);
     }
   }
-  const gsdValuesCm = new Float32Array(seen);
   const imageHist = new Float64Array(65536);
-  const gsd32 = new Float32Array(1);
   const kindCells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
   const flagHist = new Float64Array(FLAG_VALUES);
   let siteCells = 0;
   let flagged = 0;
   let inBand = 0;
   let breaches = 0;
-  let k = 0;
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     siteCells++;
@@ -124,9 +121,7 @@ export function constantAltitudeBaseline(
       imageHist[c]++;
       f = c < o.minImages ? FLAG_FEW_IMAGES : 0;
       if (c > 0) {
-        gsd32[0] = (A - heights[i]) * gsdPerM;
-        const g = gsd32[0];
-        gsdValuesCm[k++] = g;
+        const g = Math.fround((A - heights[i]) * gsdPerM);
         if (g > hi) f |= FLAG_COARSE;
         else if (g < lo) f |= FLAG_FINE;
         else inBand++;
@@ -141,7 +136,11 @@ export function constantAltitudeBaseline(
     flagged += flagHist[f];
     for (let j = 0; j < ASSESSMENT_FLAG_KINDS.length; j++) if (f & ASSESSMENT_FLAG_KINDS[j].bit) kindCells[j] += flagHist[f];
   }
-  const [min, p5, median, p95, max] = quantilesFloat32(gsdValuesCm, [0, 0.05, 0.5, 0.95, 1]);
+  // GSD falls as the ground rises (and its float32 rounding keeps that order), so the r-th
+  // smallest GSD is that of the (m - 1 - r)-th lowest seen ground: no array of GSD values.
+  const QS = [0, 0.05, 0.5, 0.95, 1];
+  const z = orderStatistics(heights, (m) => ranksOf(m, QS).map((r) => m - 1 - r), images);
+  const [min, p5, median, p95, max] = z.n === 0 ? QS.map(() => NaN) : interpolate(z.n, QS, z.stats.map((g) => Math.fround((A - g) * gsdPerM)));
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
   const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);
   const flaggedByKind: Baseline["stats"]["flaggedByKind"] = {};
@@ -198,9 +197,5 @@ function overCeiling(gsdCm: number, groundM: number, camera: Camera, o: Pick<Bas
 }
 
 function medianSiteGround(grid: DemGrid, inSite: Uint8Array): number {
-  let m = 0;
-  for (let i = 0; i < inSite.length; i++) m += inSite[i];
-  const z = new Float32Array(m);
-  for (let i = 0, k = 0; i < inSite.length; i++) if (inSite[i]) z[k++] = grid.heights[i];
-  return quantilesFloat32(z, [0.5])[0];
+  return quantilesFloat32(grid.heights, [0.5], inSite)[0];
 }

@@ -49,6 +49,21 @@ describe("exact quantiles by radix selection", () => {
     });
   }
 
+  it("leave out masked entries (a site mask, or counts where 0 means unseen), by both methods", () => {
+    for (const n of [5_001, 300_001]) {
+      const values = new Float32Array(n);
+      const mask = new Uint16Array(n);
+      let seed = 777;
+      for (let i = 0; i < n; i++) {
+        seed = (seed * 1103515245 + 12345) >>> 0;
+        values[i] = 100 + (seed % 10007) / 7;
+        mask[i] = i % 3 === 0 ? 0 : 1 + (i % 5);
+      }
+      const kept = Array.from(values).filter((_, i) => mask[i] !== 0);
+      expect(quantilesFloat32(values, PS, mask)).toEqual(PS.map((p) => sortedQuantile(kept, p)));
+    }
+  });
+
   it("count stats: min and median of the included cells", () => {
     const v = Uint16Array.from([5, 1, 9, 7, 3, 100, 0]);
     const inc = Uint8Array.from([1, 1, 1, 1, 1, 1, 0]);
