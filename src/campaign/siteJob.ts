@@ -30,7 +30,9 @@ function hashed(f: OutputFile, hash: string): OutputFile {
   const data = f.data;
   const text = async () => {
     const d = typeof data === "function" ? await data() : data;
-    return typeof d === "string" ? d : new TextDecoder().decode(d);
+    if (typeof d === "string") return d;
+    if (d instanceof ArrayBuffer || d instanceof Uint8Array) return new TextDecoder().decode(d);
+    return Buffer.concat([...d]).toString("utf8");
   };
   return { name: f.name, data: async () => withInputsHash(await text(), hash) };
 }

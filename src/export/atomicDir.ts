@@ -10,7 +10,8 @@ import { constants } from "node:fs";
 import path from "node:path";
 import { InputError } from "../errors.js";
 
-export type OutputData = string | Uint8Array | ArrayBuffer;
+/** A file's content: text, bytes, or byte chunks in order (written as they come, never joined in memory). */
+export type OutputData = string | Uint8Array | ArrayBuffer | Iterable<Uint8Array>;
 
 export interface OutputFile {
   /** File name inside the out folder (no folders). */

@@ -97,16 +97,63 @@ function check(images: CogImage[], o: CogOptions): void {
   if (o.predictor === 3 && o.samples !== Float32Array) throw new Error("predictor 3 is for floating-point samples");
 }
 
-/** The file, from its images and, when compressed, their tiles (row-major per image). */
-function assemble(images: CogImage[], o: CogOptions, packed: Uint8Array[][] | undefined): ArrayBuffer {
+/**
+ * The file as chunks in file order, for a writer that streams it to disk: an uncompressed
+ * file never exists whole in memory (a 25 km2 site's gsd.tif is half a gigabyte). The
+ * header, IFDs and overview tiles come first, then the full-resolution tiles a tile row at
+ * a time. Overviews are reduced from the full-resolution bands as they are read, so those
+ * are read once before the first chunk and again for their own tiles; an image whose
+ * bands come from a reduction (geotiffRasters.ts) must allow that second reading.
+ * A compressed file comes as one chunk (its tiles must all be known to lay it out).
+ * @example for (const chunk of cogChunks(images, options)) await file.write(chunk);
+ */
+export function* cogChunks(images: CogImage[], o: CogOptions): Generator<Uint8Array, void, undefined> {
+  if (o.compression === "deflate") {
+    yield new Uint8Array(writeCog(images, o));
+    return;
+  }
+  check(images, o);
   const T = o.tileSize;
-  const bytesPerSample = o.samples.BYTES_PER_ELEMENT;
-  const rawBytes = T * T * bytesPerSample;
-  const sizes = images.map((im, k) => packed?.[k].map((t) => t.length) ?? new Array<number>(tileCount(im.width, im.height, T)).fill(rawBytes));
+  const full = checked(images[0], o.samples);
+  const down = Math.ceil(full.height / T);
+  const across = Math.ceil(full.width / T);
+  if (images.length > 1) for (let ty = 0; ty < down; ty++) tileBand(full, ty, T);
+  const L = layout(images, o, undefined);
+  const rawBytes = T * T * o.samples.BYTES_PER_ELEMENT;
+  // Everything before the full-resolution image's first tile leader.
+  const head = new Uint8Array(L.tileAt[0][0] - 4);
+  writeHead(head, L, o);
+  for (let k = 1; k < images.length; k++) writeRawImage(checked(images[k], o.samples), o, head, L.tileAt[k]);
+  yield head;
+  const span = 4 + rawBytes + 4;
+  const base = head.length;
+  for (let ty = 0; ty < down; ty++) {
+    const chunk = new Uint8Array(across * span);
+    const view = new DataView(chunk.buffer);
+    const at = L.tileAt[0].slice(ty * across, (ty + 1) * across).map((p) => p - base - ty * across * span);
+    writeRawTileRow(full, ty, T, o.fill, chunk, at);
+    for (const p of at) frameTile(chunk, view, p, rawBytes);
+    yield chunk;
+  }
+}
 
-  // Layout: header, ghost header, IFDs (full resolution first), shared data, tiles (smallest image first).
-  const ghost = cogGhostHeader();
-  let pos = 8 + ghost.length;
+/** Where everything goes in the file: IFD offsets and fields, the colour map, every tile. */
+interface Layout {
+  fields: TiffField[][];
+  ifdAt: number[];
+  colorMapAt: number;
+  /** Per image, the offset of each tile's data (row-major; its 4-byte leader just before). */
+  tileAt: number[][];
+  sizes: number[][];
+  bytes: number;
+}
+
+function layout(images: CogImage[], o: CogOptions, packed: Uint8Array[][] | undefined): Layout {
+  const T = o.tileSize;
+  const rawBytes = T * T * o.samples.BYTES_PER_ELEMENT;
+  const sizes = images.map((im, k) => packed?.[k].map((t) => t.length) ?? new Array<number>(tileCount(im.width, im.height, T)).fill(rawBytes));
+  // Header, ghost header, IFDs (full resolution first), shared data, tiles (smallest image first).
+  let pos = 8 + cogGhostHeader().length;
   pos += pos & 1;
   const fields = images.map((im, k) => imageFields(im, k, sizes[k].length, o));
   const ifdAt: number[] = [];
@@ -124,34 +171,54 @@ function assemble(images: CogImage[], o: CogOptions, packed: Uint8Array[][] | un
     }
   }
   if (pos > MAX_CLASSIC_TIFF_BYTES) throw new Error(`raster of ${images[0].width} x ${images[0].height} cells needs ${pos} bytes, beyond the 4 GiB of a classic TIFF`);
+  return { fields, ifdAt, colorMapAt, tileAt, sizes, bytes: pos };
+}
 
-  const out = new Uint8Array(pos);
-  const view = new DataView(out.buffer);
+/** The TIFF header, ghost header, IFDs (with tile offsets and sizes) and colour map, into `out` from byte 0. */
+function writeHead(out: Uint8Array, L: Layout, o: CogOptions): void {
+  const view = new DataView(out.buffer, out.byteOffset, out.byteLength);
+  const ghost = cogGhostHeader();
   out[0] = 0x49;
   out[1] = 0x49;
   view.setUint16(2, 42, true);
-  view.setUint32(4, ifdAt[0], true);
+  view.setUint32(4, L.ifdAt[0], true);
   for (let i = 0; i < ghost.length; i++) out[8 + i] = ghost.charCodeAt(i);
-  fields.forEach((f, k) => {
-    setValues(f, TAG.TileOffsets, tileAt[k]);
-    setValues(f, TAG.TileByteCounts, sizes[k]);
+  L.fields.forEach((f, k) => {
+    setValues(f, TAG.TileOffsets, L.tileAt[k]);
+    setValues(f, TAG.TileByteCounts, L.sizes[k]);
     const cm = f.find((x) => x.tag === TAG.ColorMap);
-    if (cm) cm.at = colorMapAt;
-    writeIfd(view, ifdAt[k], f, k + 1 < fields.length ? ifdAt[k + 1] : 0);
+    if (cm) cm.at = L.colorMapAt;
+    writeIfd(view, L.ifdAt[k], f, k + 1 < L.fields.length ? L.ifdAt[k + 1] : 0);
   });
-  if (o.colorMap) for (let i = 0; i < o.colorMap.length; i++) view.setUint16(colorMapAt + 2 * i, o.colorMap[i], true);
+  if (o.colorMap) for (let i = 0; i < o.colorMap.length; i++) view.setUint16(L.colorMapAt + 2 * i, o.colorMap[i], true);
+}
+
+/** The file, from its images and, when compressed, their tiles (row-major per image). */
+function assemble(images: CogImage[], o: CogOptions, packed: Uint8Array[][] | undefined): ArrayBuffer {
+  const L = layout(images, o, packed);
+  const out = new Uint8Array(L.bytes);
+  const view = new DataView(out.buffer);
+  writeHead(out, L, o);
   images.forEach((im, k) => {
     if (packed) {
       packed[k].forEach((t, i) => {
-        out.set(t, tileAt[k][i]);
-        frameTile(out, view, tileAt[k][i], t.length);
+        out.set(t, L.tileAt[k][i]);
+        frameTile(out, view, L.tileAt[k][i], t.length);
       });
-    } else {
-      writeRawTiles(checked(im, o.samples), T, o.fill, out, tileAt[k]);
-      for (const at of tileAt[k]) frameTile(out, view, at, rawBytes);
-    }
+    } else writeRawImage(checked(im, o.samples), o, out, L.tileAt[k]);
   });
   return out.buffer;
+}
+
+/** An uncompressed image's tiles, framed, at `tileAt` in `out`. */
+function writeRawImage(im: CogImage, o: CogOptions, out: Uint8Array, tileAt: number[]): void {
+  const T = o.tileSize;
+  const rawBytes = T * T * o.samples.BYTES_PER_ELEMENT;
+  const view = new DataView(out.buffer, out.byteOffset, out.byteLength);
+  const across = Math.ceil(im.width / T);
+  const down = Math.ceil(im.height / T);
+  for (let ty = 0; ty < down; ty++) writeRawTileRow(im, ty, T, o.fill, out, tileAt.slice(ty * across, (ty + 1) * across));
+  for (const at of tileAt) frameTile(out, view, at, rawBytes);
 }
 
 /** The image, its bands checked to be of the file's sample type as they are read. */
@@ -174,41 +241,33 @@ function frameTile(out: Uint8Array, view: DataView, at: number, length: number):
 }
 
 /**
- * Uncompressed tiles, copied row by row from each band straight to their place in the file
- * (`tileAt`, row-major), parts beyond the raster filled with `fill`.
+ * The uncompressed tiles of tile row `ty`, copied row by row from its band straight to their
+ * place in `out` (`tileAt`, left to right), parts beyond the raster filled with `fill`.
  */
-function writeRawTiles(im: CogImage, T: number, fill: number, out: Uint8Array, tileAt: number[]): void {
-  const across = Math.ceil(im.width / T);
-  const down = Math.ceil(im.height / T);
+function writeRawTileRow(im: CogImage, ty: number, T: number, fill: number, out: Uint8Array, tileAt: number[]): void {
   const w = im.width;
-  let fillRow: Uint8Array | undefined;
-  for (let ty = 0; ty < down; ty++) {
-    let band = tileBand(im, ty, T);
-    const size = band.BYTES_PER_ELEMENT;
-    if (!LITTLE_ENDIAN_HOST) {
-      band = band.slice();
-      swapBytes(band);
-    }
-    if (!fillRow) {
-      const f = new (band.constructor as new (n: number) => TileSamples)(T).fill(fill);
-      if (!LITTLE_ENDIAN_HOST) swapBytes(f);
-      fillRow = new Uint8Array(f.buffer);
-    }
-    const bytes = new Uint8Array(band.buffer, band.byteOffset, band.byteLength);
-    const rows = band.length / w;
-    const rowBytes = T * size;
-    for (let tx = 0; tx < across; tx++) {
-      const at = tileAt[ty * across + tx];
-      const x0 = tx * T;
-      const cols = Math.min(T, w - x0);
-      for (let r = 0; r < rows; r++) {
-        const src = (r * w + x0) * size;
-        out.set(bytes.subarray(src, src + cols * size), at + r * rowBytes);
-        if (cols < T) out.set(fillRow.subarray(0, (T - cols) * size), at + r * rowBytes + cols * size);
-      }
-      for (let r = rows; r < T; r++) out.set(fillRow, at + r * rowBytes);
-    }
+  let band = tileBand(im, ty, T);
+  const size = band.BYTES_PER_ELEMENT;
+  if (!LITTLE_ENDIAN_HOST) {
+    band = band.slice();
+    swapBytes(band);
   }
+  const f = new (band.constructor as new (n: number) => TileSamples)(T).fill(fill);
+  if (!LITTLE_ENDIAN_HOST) swapBytes(f);
+  const fillRow = new Uint8Array(f.buffer);
+  const bytes = new Uint8Array(band.buffer, band.byteOffset, band.byteLength);
+  const rows = band.length / w;
+  const rowBytes = T * size;
+  tileAt.forEach((at, tx) => {
+    const x0 = tx * T;
+    const cols = Math.min(T, w - x0);
+    for (let r = 0; r < rows; r++) {
+      const src = (r * w + x0) * size;
+      out.set(bytes.subarray(src, src + cols * size), at + r * rowBytes);
+      if (cols < T) out.set(fillRow.subarray(0, (T - cols) * size), at + r * rowBytes + cols * size);
+    }
+    for (let r = rows; r < T; r++) out.set(fillRow, at + r * rowBytes);
+  });
 }
 
 /** The fields of image `k` (0: full resolution), tile offsets and byte counts still zero. */

@@ -30,7 +30,7 @@
 import type { CrsInfo, GeoTransform } from "../dem/grid.js";
 import type { AssessmentRasters } from "../assess/types.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_FINE } from "../assess/flags.js";
-import { writeCog, type CogImage, type CogOptions, type SampleArrayType } from "./cog.js";
+import { cogChunks, writeCog, type CogImage, type CogOptions, type SampleArrayType } from "./cog.js";
 import { arrayImage, type Predictor } from "./cogTiles.js";
 import { flagColorMap } from "./flagPalette.js";
 import { blockMeans, blockSums, coarserSums, coarserSumsInto, nearestOverview, newBlockSums, orOverview, overviewSizes, type BlockSums } from "./overviews.js";
@@ -113,6 +113,20 @@ export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: k
   return writeCog(c.images, c.options);
 }
 
+/**
+ * The same file as chunks in file order (cog.ts, cogChunks), for writing straight to disk:
+ * the uncompressed gsd.tif is never held whole in memory. The same bytes as assessmentGeoTiff.
+ * @example await writeFile("gsd.tif", assessmentGeoTiffChunks(assessment.rasters, dem.crs, "gsd.tif"))
+ */
+export function assessmentGeoTiffChunks(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): Iterable<Uint8Array> {
+  return {
+    [Symbol.iterator]: () => {
+      const c = assessmentCog(r, crs, which);
+      return cogChunks(c.images, c.options);
+    },
+  };
+}
+
 /** A COG's images and the writer's options. */
 interface CogFile {
   images: CogImage[];
@@ -184,14 +198,21 @@ const CHUNK_ROWS = 8;
 
 /**
  * The full-resolution image, made band by band into one reused band buffer by `fill`, as the COG
- * writer reads it (cog.ts: images in order, bands top to bottom, each once).
+ * writer reads it (cog.ts: images in order, bands top to bottom). Reduced the first time it is
+ * read through; it may be read through again (the streaming writer, cogChunks, writes the
+ * overviews first), then only made.
  */
 function bandImage<T extends Float32Array | Uint16Array>(width: number, height: number, band: T, fill: FillBand<T>, reduce: (band: T, y0: number, rows: number) => void): CogImage {
   let next = 0;
+  let reduced = false;
   return {
     width,
     height,
     rows(y0, count) {
+      if (y0 === 0 && next === height) {
+        next = 0;
+        reduced = true;
+      }
       // The writer reads whole tile rows (a multiple of 16 rows), so every chunk but the last is whole.
       if (y0 !== next) throw new Error(`rows from ${y0} asked for, expected ${next}`);
       if (count % CHUNK_ROWS !== 0 && y0 + count !== height) throw new Error(`a band of ${count} rows is not whole chunks of ${CHUNK_ROWS}`);
@@ -201,7 +222,7 @@ function bandImage<T extends Float32Array | Uint16Array>(width: number, height: 
         const rows = Math.min(CHUNK_ROWS, count - r);
         const chunk = band.subarray(r * width, (r + rows) * width) as T;
         fill((y0 + r) * width, chunk);
-        reduce(chunk, y0 + r, rows);
+        if (!reduced) reduce(chunk, y0 + r, rows);
       }
       return band.subarray(0, count * width) as T;
     },

@@ -13,7 +13,7 @@ import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
-import { assessmentGeoTiffs } from "../export/geotiffRasters.js";
+import { assessmentGeoTiffChunks, type AssessmentTiffs } from "../export/geotiffRasters.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { renderReport } from "../report/render.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
@@ -65,11 +65,8 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     ? { epsg: native.crs.epsg, proj4: native.crs.proj4, geographic: native.crs.geographic, name: native.crs.name }
     : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
   const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
-  let tiffs: ReturnType<typeof assessmentGeoTiffs> | undefined;
-  const tiff = (name: keyof ReturnType<typeof assessmentGeoTiffs>) => () => {
-    tiffs ??= assessmentGeoTiffs(rasters, crs);
-    return tiffs[name];
-  };
+  // Streamed to disk chunk by chunk: the uncompressed gsd.tif is never whole in memory.
+  const tiff = (name: keyof AssessmentTiffs) => () => assessmentGeoTiffChunks(rasters, crs, name);
   const report = reportInput(run, summary, meta);
   // Both report files block-reduce the same rasters: do it once.
   let compact: ReportInput | undefined;

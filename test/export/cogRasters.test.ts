@@ -13,7 +13,7 @@ import { fromArrayBuffer } from "geotiff";
 import { HAS_GDAL } from "../helpers/tools.js";
 import type { AssessmentRasters } from "../../src/assess/types.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_CEILING, FLAG_CLEARANCE, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_KEEP_OUT, FLAG_UNFLYABLE } from "../../src/assess/flags.js";
-import { COG_TILE_SIZE, FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff, type AssessmentTiffs, type RasterCrs } from "../../src/export/geotiffRasters.js";
+import { COG_TILE_SIZE, FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffChunks, assessmentGeoTiffs, rasterGeoTiff, type AssessmentTiffs, type RasterCrs } from "../../src/export/geotiffRasters.js";
 import { FLAG_PRIORITY, NO_FLAG_RGB, flagColour } from "../../src/export/flagPalette.js";
 import { overviewSizes } from "../../src/export/overviews.js";
 
@@ -497,6 +497,11 @@ describe.skipIf(!HAS_GDAL)("COGs read by GDAL (Debian gdal-bin 3.6)", () => {
     for (const name of NAMES) {
       writeFileSync(path.join(dir, `odd-${name}`), new Uint8Array(tiffs[name]));
       expect(cogLayoutErrors(readFileSync(path.join(dir, `odd-${name}`)))).toEqual([]);
+      // Streamed in chunks (how plans write them): the same bytes; gsd.tif (uncompressed) as its
+      // head then one chunk per tile row (1029 rows: 3 rows of 512-pixel tiles).
+      const chunks = [...assessmentGeoTiffChunks(odd, UTM33N, name)];
+      expect(Buffer.concat(chunks).equals(Buffer.from(tiffs[name])), name).toBe(true);
+      if (name === "gsd.tif") expect(chunks.length).toBe(1 + 3);
     }
     const sizes = overviewSizes(w0, h0, 512);
     expect(sizes).toEqual([[1053, 515], [527, 258], [264, 129]]);
