@@ -5,7 +5,7 @@ import { existsSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import { BLOCK, reachOfPhotos, siteGroundAndBlocks, sweepBand, sweepBands, type NadirBy, type SweepInput } from "./coverageKernel.js";
+import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBand, sweepBands, type NadirBy, type SweepInput } from "./coverageKernel.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -92,14 +92,19 @@ export function computeCoverage(
     return c as T;
   };
 
-  // Site ground: NaN outside the site and where the DEM has no data, so one test skips both.
-  const siteGround = new Float32Array(buffer(4 * n));
-  const blocks = siteGroundAndBlocks(heights, inSite, width, height, siteGround);
+  // Worker threads read the heights in place when they are already in shared memory (the
+  // DEM window is read into it); otherwise from a shared copy.
+  let ground = heights;
+  if (threads > 1 && !(heights.buffer instanceof SharedArrayBuffer)) {
+    ground = new Float32Array(new SharedArrayBuffer(4 * n));
+    ground.set(heights);
+  }
+  const blocks = siteGroundBlocks(heights, inSite, width, height);
   const m = exposures.length;
   const input: SweepInput = {
     width, height, x0, y0, dx, dy,
-    siteGround,
-    inSite: opts.effects ? shared(inSite) : new Uint8Array(0),
+    ground,
+    inSite: shared(inSite),
     images: new Uint16Array(buffer(2 * n)),
     gsdCm: new Float32Array(buffer(4 * n)),
     nadirStrip: new Uint16Array(buffer(2 * n)),

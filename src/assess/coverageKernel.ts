@@ -14,9 +14,9 @@ export interface SweepInput {
   y0: number;
   dx: number;
   dy: number;
-  /** Ground height per cell, NaN outside the site and where the DEM has no data. */
-  siteGround: Float32Array;
-  /** 1 inside the site (tells no-data ground in the site from ground outside it). */
+  /** Ground height per cell, NaN where the DEM has no data (the DEM's own heights, or a shared copy). */
+  ground: Float32Array;
+  /** 1 inside the site. */
   inSite: Uint8Array;
   /** Outputs, per cell: photos covering it, GSD (cm/px) and strip of its most nadir photo. */
   images: Uint16Array;
@@ -72,11 +72,10 @@ export interface BlockMinima {
  * Lowest site ground per BLOCK x BLOCK cells, to bound each footprint by the
  * ground it can actually fall on rather than the lowest point of the whole
  * site: with 60 m of relief under a 100 m flight the site minimum alone would
- * more than double the cells visited per photo. Fills `siteGround`, when given
- * (heights inside the site, NaN elsewhere), in the same pass.
- * @example const blocks = siteGroundAndBlocks(grid.heights, inSite, grid.width, grid.height, siteGround);
+ * more than double the cells visited per photo.
+ * @example const blocks = siteGroundBlocks(grid.heights, inSite, grid.width, grid.height);
  */
-export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, width: number, height: number, siteGround?: Float32Array): BlockMinima {
+export function siteGroundBlocks(heights: Float32Array, inSite: Uint8Array, width: number, height: number): BlockMinima {
   const bw = Math.ceil(width / BLOCK);
   const bh = Math.ceil(height / BLOCK);
   const mins = new Float64Array(bw * bh).fill(Infinity);
@@ -86,12 +85,8 @@ export function siteGroundAndBlocks(heights: Float32Array, inSite: Uint8Array, w
     const base = r * width;
     for (let c = 0; c < width; c++) {
       const i = base + c;
-      if (inSite[i] === 0) {
-        if (siteGround) siteGround[i] = NaN;
-        continue;
-      }
+      if (inSite[i] === 0) continue;
       const g = heights[i];
-      if (siteGround) siteGround[i] = g;
       if (!(g === g)) continue;
       const b = brow + ((c / BLOCK) | 0);
       if (g < mins[b]) mins[b] = g;
@@ -168,7 +163,7 @@ export function reachOfPhotos(inp: SweepInput): void {
  * @example const best = new Float32Array(inp.bandRows * inp.width); sweepBand(inp, 0, best);
  */
 export function sweepBand(inp: SweepInput, band: number, best: Float32Array): void {
-  const { width, x0, y0, dx, dy, siteGround, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
+  const { width, x0, y0, dx, dy, ground, inSite, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
   if (r0 > r1) return;
@@ -221,7 +216,7 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
       const ddy = cy - ey;
       const ddx0 = x0 + (span[0] + 0.5) * dx - ex;
       sweepRow(
-        siteGround, images, best, gsdCm, nadirStrip,
+        ground, inSite, images, best, gsdCm, nadirStrip,
         r * width + span[0], r * width + span[1], base0,
         ez, ddx0 * ux + ddy * uy, ddx0 * vx + ddy * vy, dx * ux, dx * vx,
         kAlong, kAcross, invKA2, invKC2, byDistance, inp.gsdPerM, st,
@@ -240,7 +235,8 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
  * when measuring plain distance).
  */
 function sweepRow(
-  siteGround: Float32Array,
+  ground: Float32Array,
+  inSite: Uint8Array,
   images: Uint16Array,
   best: Float32Array,
   gsdCm: Float32Array,
@@ -264,9 +260,9 @@ function sweepRow(
   let a = a0;
   let q = q0;
   for (let i = i0; i <= i1; i++, a += da, q += dq) {
-    const d = ez - siteGround[i];
-    // Written so that NaN ground (outside the site, nodata) fails too.
-    if (!(Math.abs(a) <= d * kAlong && Math.abs(q) <= d * kAcross && d > 0)) continue;
+    const d = ez - ground[i];
+    // Written so that NaN ground (no data) fails too.
+    if (!(Math.abs(a) <= d * kAlong && Math.abs(q) <= d * kAcross && d > 0) || inSite[i] === 0) continue;
     if (images[i] < 65535) images[i]++;
     // (a / hA)^2 + (q / hC)^2 = num / d^2.
     const num = a * a * invKA2 + q * q * invKC2;
@@ -286,7 +282,7 @@ function sweepRow(
  * minImages; no data where the site's ground is unknown; 0 outside the site.
  */
 function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; highCm: number; minImages: number }, i0: number, i1: number): void {
-  const { inSite, siteGround, gsdCm, images } = inp;
+  const { inSite, ground, gsdCm, images } = inp;
   const lo = fx.lowCm * (1 - BAND_SLACK);
   const hi = fx.highCm * (1 + BAND_SLACK);
   const minImages = fx.minImages;
@@ -295,7 +291,7 @@ function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; h
       flags[i] = 0;
       continue;
     }
-    const z = siteGround[i];
+    const z = ground[i];
     if (z !== z) {
       flags[i] = FLAG_NODATA;
       continue;

@@ -2,7 +2,7 @@ import { contours } from "d3-contour";
 import type { Position } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { FlagPolygons } from "./types.js";
-import { ASSESSMENT_FLAG_KINDS } from "./flags.js";
+import { ASSESSMENT_FLAG_KINDS, FLAG_VALUES } from "./flags.js";
 
 /**
  * Flagged cells as polygons, one MultiPolygon layer per flag kind, for the
@@ -39,7 +39,7 @@ export function flagPolygons(
   const { x0, y0, dx, dy } = transform;
   // One pass for all kinds: flag-byte histogram (cell counts) and the OR of each row and
   // column (bounding boxes), instead of one scan of the grid per kind.
-  const hist = new Float64Array(256);
+  const hist = new Float64Array(FLAG_VALUES);
   const rowOr = new Uint16Array(height);
   const colOr = new Uint16Array(width);
   for (let r = 0; r < height; r++) {
@@ -57,7 +57,7 @@ export function flagPolygons(
   for (const kind of ASSESSMENT_FLAG_KINDS) {
     const bit = kind.bit;
     let cells = 0;
-    for (let f = 1; f < 256; f++) if (f & bit) cells += hist[f];
+    for (let f = 1; f < FLAG_VALUES; f++) if (f & bit) cells += hist[f];
     if (cells === 0) continue;
     let c0 = 0;
     while (!(colOr[c0] & bit)) c0++;

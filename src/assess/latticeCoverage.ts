@@ -1,5 +1,5 @@
 import type { DemGrid } from "../dem/grid.js";
-import { minUnder, siteGroundAndBlocks, BLOCK } from "./coverageKernel.js";
+import { minUnder, siteGroundBlocks, BLOCK } from "./coverageKernel.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
 
@@ -43,7 +43,7 @@ export function latticeImageCounts(
   const { x0, y0, dx, dy } = grid.transform;
   const steps = { x0, y0, dx, dy };
   const images = new Uint16Array(width * height);
-  const blocks = siteGroundAndBlocks(heights, inSite, width, height);
+  const blocks = siteGroundBlocks(heights, inSite, width, height);
   if (!(blocks.globalMin < Infinity)) return images;
   const rows = new Int32Array(2);
   const span = new Int32Array(2);

@@ -93,7 +93,8 @@ export async function readCells(source: DemSource, win: CellWindow): Promise<Dem
     ({ heights, valid } = await custom(win));
   } else {
     const { image } = demHandles(source);
-    heights = new Float32Array(width * height);
+    // Shared memory: the assessment's worker threads read the heights in place (no copy).
+    heights = new Float32Array(new SharedArrayBuffer(4 * width * height));
     valid = new Uint8Array(width * height);
     if (!(await decodeWindowDirect(source, image, win, heights, valid))) {
       // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).

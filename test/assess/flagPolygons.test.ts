@@ -3,7 +3,7 @@ import { area as turfArea, booleanValid, booleanClockwise, kinks, polygon } from
 import proj4 from "proj4";
 import type { Position } from "geojson";
 import { flagPolygons } from "../../src/assess/flagPolygons.js";
-import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_KINDS } from "../../src/assess/flags.js";
+import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_KEEP_OUT, FLAG_KINDS } from "../../src/assess/flags.js";
 
 // UTM zone 33N (EPSG:32633) by proj4, the reference library for the WGS84 step.
 const utm33 = "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs";
@@ -88,5 +88,17 @@ describe("flag polygons by d3-contour", () => {
     // Ring: 30 x 50 cells minus a 10 x 20 hole = 1300 cells of 4 m2. The hole's 4 corners are
     // concave for the shape (cut adds 1/8 cell each), the outer 4 convex (cut removes 1/8 each).
     expect(a).toBeCloseTo(1300 * 4, 6);
+  });
+
+  it("draws the keep-out bit (256, beyond the byte) like the others", () => {
+    // A 10 x 6 cell block with too few images under a cut stretch: bits 4 and 256.
+    const f = new Uint16Array(w * h);
+    for (let r = 20; r < 26; r++) for (let c = 30; c < 40; c++) f[r * w + c] = FLAG_FEW_IMAGES | FLAG_KEEP_OUT;
+    const layers = flagPolygons(f, w, h, transform, toWgs84, cellM * cellM);
+    expect(layers.keepOut?.properties.areaM2).toBe(60 * cellM * cellM);
+    expect(layers.keepOut?.properties.bit).toBe(256);
+    // The traced ring (corners cut by half a cell diagonally) encloses nearly the 240 m2 block (turf's geodesic area).
+    expect(turfArea(layers.keepOut!)).toBeGreaterThan(230);
+    expect(turfArea(layers.keepOut!)).toBeLessThan(241);
   });
 });
