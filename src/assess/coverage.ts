@@ -1,11 +1,8 @@
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera } from "../camera/types.js";
 import type { Exposure } from "./types.js";
-import { existsSync } from "node:fs";
-import { availableParallelism } from "node:os";
-import { fileURLToPath } from "node:url";
-import { Worker } from "node:worker_threads";
-import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBand, sweepBands, type NadirBy, type SweepInput } from "./coverageKernel.js";
+import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBands, type NadirBy, type SweepInput } from "./coverageKernel.js";
+import { bandThreads, runBands, shareable } from "./bandThreads.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -59,7 +56,6 @@ export interface CoverageOptions {
   effects?: { lowGsdCm: number; highGsdCm: number; minImages: number };
 }
 
-const MIN_CELLS_FOR_THREADS = 1_000_000;
 /** Rows per unit of work: a multiple of BLOCK; small enough to balance two to four threads on a site, large enough that the photos' row ranges are checked few times. */
 const BAND_ROWS = 8 * BLOCK;
 
@@ -78,33 +74,20 @@ export function computeCoverage(
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const n = width * height;
-  const workerUrl = new URL("./coverageWorker.js", import.meta.url);
-  let threads = Math.max(1, Math.floor(opts.threads ?? Math.min(4, availableParallelism())));
   const bands = Math.ceil(height / BAND_ROWS);
-  if (n < MIN_CELLS_FOR_THREADS || !existsSync(fileURLToPath(workerUrl))) threads = 1;
-  threads = Math.min(threads, bands);
+  const threads = bandThreads(n, bands, opts.threads);
   // Shared memory only when other threads read or write it.
   const buffer = (bytes: number): ArrayBufferLike => (threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
-  const shared = <T extends Uint8Array>(a: T): T => {
-    if (threads === 1 || a.buffer instanceof SharedArrayBuffer) return a;
-    const c = new Uint8Array(new SharedArrayBuffer(a.length));
-    c.set(a);
-    return c as T;
-  };
 
   // Worker threads read the heights in place when they are already in shared memory (the
   // DEM window is read into it); otherwise from a shared copy.
-  let ground = heights;
-  if (threads > 1 && !(heights.buffer instanceof SharedArrayBuffer)) {
-    ground = new Float32Array(new SharedArrayBuffer(4 * n));
-    ground.set(heights);
-  }
+  const ground = shareable(heights, threads);
   const blocks = siteGroundBlocks(heights, inSite, width, height);
   const m = exposures.length;
   const input: SweepInput = {
     width, height, x0, y0, dx, dy,
     ground,
-    inSite: shared(inSite),
+    inSite: shareable(inSite, threads),
     images: new Uint16Array(buffer(2 * n)),
     gsdCm: new Float32Array(buffer(4 * n)),
     nadirStrip: new Uint16Array(buffer(2 * n)),
@@ -132,32 +115,6 @@ export function computeCoverage(
     // No site ground at all: no photo can see anything (every row range left empty).
     input.rowLo.fill(1);
   } else reachOfPhotos(input);
-  if (threads === 1) {
-    const best = new Float32Array(BAND_ROWS * width);
-    for (let b = 0; b < bands; b++) sweepBand(input, b, best);
-  } else sweepInThreads(input, bands, threads, workerUrl);
+  runBands("sweep", input, bands, threads, sweepBands);
   return { gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip, ...(input.flags ? { flags: input.flags } : {}) };
-}
-
-/**
- * The bands go to whichever thread asks next (a shared counter), so a thread
- * whose bands hold fewer photos simply takes more of them; the main thread
- * sweeps too, then waits on the workers' flags (Atomics.wait is allowed on
- * Node's main thread), which keeps the assessment a plain synchronous function.
- */
-function sweepInThreads(input: SweepInput, bands: number, threads: number, workerUrl: URL): void {
-  const next = new Int32Array(new SharedArrayBuffer(4));
-  const done = new Int32Array(new SharedArrayBuffer(4 * threads));
-  const workers: Worker[] = [];
-  for (let t = 1; t < threads; t++) workers.push(new Worker(workerUrl, { workerData: { input, next, bands, done, slot: t } }));
-  sweepBands(input, next, bands);
-  let failed = false;
-  for (let t = 1; t < threads; t++) {
-    // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
-    const deadline = Date.now() + 600_000;
-    while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
-    if (Atomics.load(done, t) !== 1) failed = true;
-  }
-  for (const w of workers) void w.terminate();
-  if (failed) throw new Error("coverage: a worker thread failed");
 }

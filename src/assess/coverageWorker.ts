@@ -1,14 +1,17 @@
 import { workerData } from "node:worker_threads";
+import type { BandKind } from "./bandThreads.js";
 import { sweepBands, type SweepInput } from "./coverageKernel.js";
+import { latticeBands, type LatticeInput } from "./latticeCoverage.js";
 
 /**
- * Worker thread of the coverage pass: sweeps bands of rows over shared memory
- * while any are left, then raises its flag in `done` (1 finished, 2 failed)
- * and wakes the waiting main thread.
+ * Worker thread of a banded pass (bandThreads.ts): runs the band loop of its
+ * kind over shared memory while bands are left, then raises its flag in
+ * `done` (1 finished, 2 failed) and wakes the waiting main thread.
  */
-const { input, next, bands, done, slot } = workerData as { input: SweepInput; next: Int32Array; bands: number; done: Int32Array; slot: number };
+const { kind, input, next, bands, done, slot } = workerData as { kind: BandKind; input: unknown; next: Int32Array; bands: number; done: Int32Array; slot: number };
 try {
-  sweepBands(input, next, bands);
+  if (kind === "sweep") sweepBands(input as SweepInput, next, bands);
+  else latticeBands(input as LatticeInput, next, bands);
   Atomics.store(done, slot, 1);
 } catch {
   Atomics.store(done, slot, 2);

@@ -1,5 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
-import { minUnder, siteGroundBlocks, BLOCK } from "./coverageKernel.js";
+import { minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
+import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
 
@@ -23,11 +24,50 @@ export interface LatticeStrip {
   lattice: PhotoLattice;
 }
 
+/** Everything a band of rows needs, as plain typed arrays (shared with worker threads). */
+export interface LatticeInput {
+  width: number;
+  height: number;
+  x0: number;
+  y0: number;
+  dx: number;
+  dy: number;
+  heights: Float32Array;
+  inSite: Uint8Array;
+  images: Uint16Array;
+  blocks: BlockMinima;
+  A: number;
+  triggerM: number;
+  kAlong: number;
+  kAcross: number;
+  /** Per strip: origin, along-track unit vector, first lattice position, last index, photo-run centre and half length, reach, rows. */
+  fx: Float64Array;
+  fy: Float64Array;
+  ux: Float64Array;
+  uy: Float64Array;
+  s0: Float64Array;
+  n: Int32Array;
+  px: Float64Array;
+  py: Float64Array;
+  halfRun: Float64Array;
+  dMax: Float64Array;
+  rowLo: Int32Array;
+  rowHi: Int32Array;
+  /** Prefix counts of photos taken per strip, strip k's from preAt[k] (n[k] + 2 entries). */
+  pre: Int32Array;
+  preAt: Int32Array;
+  bandRows: number;
+}
+
+/** Rows per band of work (a multiple of BLOCK). */
+const LATTICE_BAND_ROWS = 8 * BLOCK;
+
 /**
  * Number of photos whose footprint (projected to the cell's own ground) covers
  * each site cell's centre, for photos at `altitudeAmslM` on the lattices of
  * `strips`, every `triggerM`. Half footprints per metre of height: kAlong and
  * kAcross (ifov * pixels / 2). Cells outside the site or without ground get 0.
+ * Bands of rows are shared between `threads` (see runBands) on large grids.
  * @example const images = latticeImageCounts(grid, inSite, strips, 412.5, 8.8, 0.36, 0.54);
  */
 export function latticeImageCounts(
@@ -38,29 +78,60 @@ export function latticeImageCounts(
   triggerM: number,
   kAlong: number,
   kAcross: number,
+  threads?: number,
 ): Uint16Array {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
-  const steps = { x0, y0, dx, dy };
-  const images = new Uint16Array(width * height);
-  const blocks = siteGroundBlocks(heights, inSite, width, height);
-  if (!(blocks.globalMin < Infinity)) return images;
+  const bands = Math.ceil(height / LATTICE_BAND_ROWS);
+  const t = bandThreads(width * height, bands, threads);
+  const input = prepareLattice({ width, height, x0, y0, dx, dy }, shareable(heights, t), shareable(inSite, t), strips, altitudeAmslM, triggerM, kAlong, kAcross, t);
+  runBands("lattice", input, bands, t, latticeBands);
+  return input.images;
+}
+
+function prepareLattice(
+  g: Pick<LatticeInput, "width" | "height" | "x0" | "y0" | "dx" | "dy">,
+  heights: Float32Array,
+  inSite: Uint8Array,
+  strips: readonly LatticeStrip[],
+  A: number,
+  triggerM: number,
+  kAlong: number,
+  kAcross: number,
+  threads: number,
+): LatticeInput {
+  const m = strips.length;
+  const col = () => new Float64Array(m);
+  let preCells = 0;
+  for (const s of strips) preCells += s.lattice.n + 2;
+  const n = g.width * g.height;
+  const input: LatticeInput = {
+    ...g, heights, inSite,
+    images: new Uint16Array(threads > 1 ? new SharedArrayBuffer(2 * n) : new ArrayBuffer(2 * n)),
+    blocks: siteGroundBlocks(heights, inSite, g.width, g.height),
+    A, triggerM, kAlong, kAcross,
+    fx: col(), fy: col(), ux: col(), uy: col(), s0: col(), n: new Int32Array(m), px: col(), py: col(), halfRun: col(), dMax: col(),
+    rowLo: new Int32Array(m).fill(1), rowHi: new Int32Array(m),
+    pre: new Int32Array(preCells), preAt: new Int32Array(m),
+    bandRows: LATTICE_BAND_ROWS,
+  };
+  const { blocks } = input;
   const rows = new Int32Array(2);
-  const span = new Int32Array(2);
-  const A = altitudeAmslM;
-  for (const { from, lattice: lat } of strips) {
+  let at = 0;
+  strips.forEach(({ from, lattice: lat }, j) => {
     // Photos taken, as a prefix count over the lattice: count(k0..k1) = pre[k1 + 1] - pre[k0].
-    const pre = new Int32Array(lat.n + 2);
+    input.preAt[j] = at;
     let first = -1;
     let last = -1;
     for (let k = 0; k <= lat.n; k++) {
-      pre[k + 1] = pre[k] + lat.present[k];
+      input.pre[at + k + 1] = input.pre[at + k] + lat.present[k];
       if (lat.present[k]) {
         if (first < 0) first = k;
         last = k;
       }
     }
-    if (first < 0) continue;
+    at += lat.n + 2;
+    if (first < 0 || !(blocks.globalMin < Infinity)) return;
     const { ux, uy, s0 } = lat;
     const sFirst = s0 + first * triggerM;
     const sLast = s0 + last * triggerM;
@@ -71,18 +142,62 @@ export function latticeImageCounts(
     const halfRun = (sLast - sFirst) / 2;
     let dMax = A - blocks.globalMin;
     for (let round = 0; round < 3 && dMax > 0; round++) {
-      const g = minUnder(blocks, steps, px, py, ux, uy, halfRun + dMax * kAlong, dMax * kAcross);
-      dMax = g < Infinity ? A - g : 0;
+      const gMin = minUnder(blocks, g, px, py, ux, uy, halfRun + dMax * kAlong, dMax * kAcross);
+      dMax = gMin < Infinity ? A - gMin : 0;
     }
-    if (!(dMax > 0)) continue;
-    orientedRectRowRange(py, ux, uy, halfRun + dMax * kAlong, dMax * kAcross, y0, dy, height, rows);
+    if (!(dMax > 0)) return;
+    orientedRectRowRange(py, ux, uy, halfRun + dMax * kAlong, dMax * kAcross, g.y0, g.dy, g.height, rows);
+    input.fx[j] = from[0];
+    input.fy[j] = from[1];
+    input.ux[j] = ux;
+    input.uy[j] = uy;
+    input.s0[j] = s0;
+    input.n[j] = lat.n;
+    input.px[j] = px;
+    input.py[j] = py;
+    input.halfRun[j] = halfRun;
+    input.dMax[j] = dMax;
+    input.rowLo[j] = rows[0];
+    input.rowHi[j] = rows[1];
+  });
+  return input;
+}
+
+/**
+ * Bands taken from the shared counter until none is left (this thread's share).
+ * @example latticeBands(input, new Int32Array(new SharedArrayBuffer(4)), bands);
+ */
+export function latticeBands(inp: LatticeInput, next: Int32Array, bands: number): void {
+  for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) latticeBand(inp, b);
+}
+
+/**
+ * Every strip over the rows of band `band`.
+ * @example for (let b = 0; b < bands; b++) latticeBand(input, b);
+ */
+export function latticeBand(inp: LatticeInput, band: number): void {
+  const { width, x0, y0, dx, dy, heights, inSite, images, blocks, A, triggerM, kAlong, kAcross } = inp;
+  const r0 = band * inp.bandRows;
+  const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
+  const span = new Int32Array(2);
+  for (let j = 0; j < inp.fx.length; j++) {
+    const rLo = Math.max(inp.rowLo[j], r0);
+    const rHi = Math.min(inp.rowHi[j], r1);
+    if (rLo > rHi) continue;
+    const ux = inp.ux[j];
+    const uy = inp.uy[j];
+    const px = inp.px[j];
+    const py = inp.py[j];
+    const halfRun = inp.halfRun[j];
+    const dMax = inp.dMax[j];
+    const pre = inp.pre.subarray(inp.preAt[j], inp.preAt[j] + inp.n[j] + 2);
     const ext = Math.abs(ux) * (halfRun + dMax * kAlong) + Math.abs(uy) * dMax * kAcross;
     const bc0 = Math.max(0, Math.floor((px - ext - x0) / dx / BLOCK));
     const bc1 = Math.min(blocks.bw - 1, Math.floor((px + ext - x0) / dx / BLOCK));
     let bandRow = -1;
     let hA = -1;
     let hC = -1;
-    for (let r = rows[0]; r <= rows[1]; r++) {
+    for (let r = rLo; r <= rHi; r++) {
       const br = (r / BLOCK) | 0;
       if (br !== bandRow) {
         // Each band of BLOCK rows: the reach over the lowest ground of its blocks under the box.
@@ -98,17 +213,16 @@ export function latticeImageCounts(
       orientedRectColSpan(cy, px, py, ux, uy, hA, hC, x0, dx, width, span);
       if (span[0] > span[1]) continue;
       // Along from the strip's start and across from its line, of the first cell; steps per column.
-      const ddx = x0 + (span[0] + 0.5) * dx - from[0];
-      const ddy = cy - from[1];
+      const ddx = x0 + (span[0] + 0.5) * dx - inp.fx[j];
+      const ddy = cy - inp.fy[j];
       countRow(
         heights, inSite, images, pre,
         r * width + span[0], r * width + span[1],
         A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
-        s0, triggerM, lat.n, kAlong, kAcross,
+        inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
       );
     }
   }
-  return images;
 }
 
 /**

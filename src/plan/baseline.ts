@@ -58,6 +58,8 @@ export interface BaselineOptions {
   takeoffGroundM: number;
   /** The terrain-following plan's rasters: its site mask and GSD give its own breaches. */
   planRasters: AssessmentRasters;
+  /** Threads for the image counts (see bandThreads); default the machine's choice. */
+  threads?: number;
 }
 
 /**
@@ -88,7 +90,7 @@ export function constantAltitudeBaseline(
     if (lattice) strips.push({ from: l.from, lattice });
   }
   const { alongPx, acrossPx } = footprintPixels(camera);
-  const images = latticeImageCounts(grid, inSite, strips, A, o.triggerM, (camera.ifov * alongPx) / 2, (camera.ifov * acrossPx) / 2);
+  const images = latticeImageCounts(grid, inSite, strips, A, o.triggerM, (camera.ifov * alongPx) / 2, (camera.ifov * acrossPx) / 2, o.threads);
 
   // One pass over the site: GSD, flags (the assessment's effect bits) and every count.
   const n = inSite.length;

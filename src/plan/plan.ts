@@ -310,6 +310,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
     planRasters: assessment.rasters,
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   });
   lap("baseline");
 

@@ -1,0 +1,70 @@
+import { existsSync } from "node:fs";
+import { availableParallelism } from "node:os";
+import { fileURLToPath } from "node:url";
+import { Worker } from "node:worker_threads";
+
+/**
+ * Bands of grid rows shared between threads: the per-cell passes of the
+ * assessment (the footprint sweep, coverageKernel.ts) and of the
+ * constant-altitude comparison (the lattice counts, latticeCoverage.ts) write
+ * each cell from one band only, so threads taking whole bands never write the
+ * same cell. The bands go to whichever thread asks next (a shared counter);
+ * the main thread works too, then waits on the workers' flags (Atomics.wait
+ * is allowed on Node's main thread), which keeps the callers plain
+ * synchronous functions.
+ */
+
+/** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
+export type BandKind = "sweep" | "lattice";
+
+const MIN_CELLS_FOR_THREADS = 1_000_000;
+const workerUrl = new URL("./coverageWorker.js", import.meta.url);
+
+/**
+ * Threads to use for a grid of `cells` in `bands` bands: the request (default the
+ * machine's available parallelism, at most 4), one for grids under a million cells
+ * and when the compiled worker module is not there (worker threads run only from the
+ * built library, dist/, where it sits next to this one).
+ * @example bandThreads(grid.width * grid.height, bands, opts.threads)
+ */
+export function bandThreads(cells: number, bands: number, requested?: number): number {
+  let t = Math.max(1, Math.floor(requested ?? Math.min(4, availableParallelism())));
+  if (cells < MIN_CELLS_FOR_THREADS || !existsSync(fileURLToPath(workerUrl))) t = 1;
+  return Math.max(1, Math.min(t, bands));
+}
+
+/**
+ * `a` itself when one thread reads it or it is already in shared memory, else a shared copy.
+ * @example const heights = shareable(grid.heights, threads);
+ */
+export function shareable<T extends Float32Array | Uint8Array>(a: T, threads: number): T {
+  if (threads === 1 || a.buffer instanceof SharedArrayBuffer) return a;
+  const c = new (a.constructor as new (b: SharedArrayBuffer) => T)(new SharedArrayBuffer(a.byteLength));
+  c.set(a);
+  return c;
+}
+
+/**
+ * Runs `loop` (which takes bands from the counter until none is left) on this thread and,
+ * with more than one thread, the same loop (`kind`) in workers over `input`, whose arrays
+ * the workers write must be in shared memory. The workers are ended afterwards: a worker
+ * kept idle would hold on to the last job's shared arrays until its own heap is collected,
+ * which an idle thread never does.
+ * @example runBands("lattice", input, bands, threads, latticeBands);
+ */
+export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number) => void): void {
+  const next = new Int32Array(new SharedArrayBuffer(4));
+  const done = new Int32Array(new SharedArrayBuffer(4 * threads));
+  const workers: Worker[] = [];
+  for (let t = 1; t < threads; t++) workers.push(new Worker(workerUrl, { workerData: { kind, input, next, bands, done, slot: t } }));
+  loop(input, next, bands);
+  let failed = false;
+  for (let t = 1; t < threads; t++) {
+    // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
+    const deadline = Date.now() + 600_000;
+    while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
+    if (Atomics.load(done, t) !== 1) failed = true;
+  }
+  for (const w of workers) void w.terminate();
+  if (failed) throw new Error(`${kind}: a worker thread failed`);
+}
