@@ -123,6 +123,11 @@ export function extremaInRadius(
     let mx = -Infinity;
     let mn = Infinity;
     let bad = pc < 0 || pr < 0 || pc >= w || pr >= h;
+    // A disc that may leave the grid: find out from its row chords alone before reading
+    // any cell (the answer is NaN either way; stations past the DEM's edge are many).
+    if (!bad && (rLo < 0 || rHi >= h || (px - radiusM - x0) / dx - 1.5 < 0 || (px + radiusM - x0) / dx + 0.5 > w - 1)) {
+      bad = discLeavesGrid(w, h, x0, y0, dx, dy, px, py, r2, rLo, rHi, pc, pr);
+    }
     for (let r = rLo; r <= rHi && !bad; r++) {
       const ddy = y0 + (r + 0.5) * dy - py;
       const rem = r2 - ddy * ddy;
@@ -150,6 +155,49 @@ export function extremaInRadius(
     outMax[i] = bad || mx === -Infinity ? NaN : mx;
     if (outMin) outMin[i] = bad || mn === Infinity ? NaN : mn;
   }
+}
+
+/**
+ * Whether the disc of extremaInRadius (same rows, chords and rounding) leaves the grid
+ * at (px, py), which makes its answer NaN whatever the cells hold.
+ * @example discOffGrid(grid, x, y, 15) // true past the window's edge
+ */
+export function discOffGrid(grid: DemGrid, px: number, py: number, radiusM: number): boolean {
+  const { width: w, height: h } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const pc = Math.floor((px - x0) / dx);
+  const pr = Math.floor((py - y0) / dy);
+  if (pc < 0 || pr < 0 || pc >= w || pr >= h) return true;
+  const rLo = Math.min(Math.ceil((py + radiusM - y0) / dy - 0.5), pr);
+  const rHi = Math.max(Math.floor((py - radiusM - y0) / dy - 0.5), pr);
+  return discLeavesGrid(w, h, x0, y0, dx, dy, px, py, radiusM * radiusM, rLo, rHi, pc, pr);
+}
+
+/**
+ * Whether any of extremaInRadius's row chords (same rounding) leaves the grid, which
+ * makes its answer NaN.
+ */
+function discLeavesGrid(
+  w: number, h: number, x0: number, y0: number, dx: number, dy: number, px: number, py: number, r2: number, rLo: number, rHi: number, pc: number, pr: number,
+): boolean {
+  for (let r = rLo; r <= rHi; r++) {
+    const ddy = y0 + (r + 0.5) * dy - py;
+    const rem = r2 - ddy * ddy;
+    let ca = Infinity;
+    let cb = -Infinity;
+    if (rem >= 0) {
+      const half = Math.sqrt(rem);
+      ca = Math.ceil((px - half - x0) / dx - 0.5);
+      cb = Math.floor((px + half - x0) / dx - 0.5);
+    }
+    if (r === pr) {
+      ca = Math.min(ca, pc);
+      cb = Math.max(cb, pc);
+    }
+    if (ca > cb) continue;
+    if (r < 0 || r >= h || ca < 0 || cb >= w) return true;
+  }
+  return false;
 }
 
 /**

@@ -160,14 +160,40 @@ export function blocksOf(pieces: readonly StripPiece[], grid: BlockGrid, trigger
 
 /** Farthest distance from p to any end of the block's pieces (the farthest point of a straight piece is an end). */
 export function farthestFromM(block: Block, frame: StripFrame, p: XY): number {
+  const e = pieceEnds(block, frame);
+  const { xs, ys } = e;
+  // Math.hypot is slow: find the farthest by squared distance, then take hypot of every
+  // end within rounding of it (the same maximum the hypot of every end would give).
+  let m2 = 0;
+  for (let i = 0; i < xs.length; i++) {
+    const ex = xs[i] - p[0], ey = ys[i] - p[1];
+    const d2 = ex * ex + ey * ey;
+    if (d2 > m2) m2 = d2;
+  }
+  const near = m2 * (1 - 1e-9);
   let m = 0;
-  for (const q of block.pieces) {
-    for (const a of [q.a0, q.a1]) {
-      const [x, y] = frame.toXY(a, q.c);
-      m = Math.max(m, Math.hypot(x - p[0], y - p[1]));
-    }
+  for (let i = 0; i < xs.length; i++) {
+    const ex = xs[i] - p[0], ey = ys[i] - p[1];
+    if (ex * ex + ey * ey >= near) m = Math.max(m, Math.hypot(ex, ey));
   }
   return m;
+}
+
+/** The ends of a block's pieces in the local frame, in piece order (a0 then a1), kept per block and frame: a take-off search asks for them at every cell it tries. */
+const endsOf = new WeakMap<Block, { frame: StripFrame; pieces: readonly StripPiece[]; n: number; xs: Float64Array; ys: Float64Array }>();
+
+function pieceEnds(block: Block, frame: StripFrame): { xs: Float64Array; ys: Float64Array } {
+  const hit = endsOf.get(block);
+  if (hit && hit.frame === frame && hit.pieces === block.pieces && hit.n === block.pieces.length) return hit;
+  const n = block.pieces.length;
+  const xs = new Float64Array(2 * n), ys = new Float64Array(2 * n);
+  block.pieces.forEach((q, i) => {
+    [xs[2 * i], ys[2 * i]] = frame.toXY(q.a0, q.c);
+    [xs[2 * i + 1], ys[2 * i + 1]] = frame.toXY(q.a1, q.c);
+  });
+  const ends = { frame, pieces: block.pieces, n, xs, ys };
+  endsOf.set(block, ends);
+  return ends;
 }
 
 /**

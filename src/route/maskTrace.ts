@@ -38,6 +38,26 @@ export function knownBlocks(mask: Uint8Array, width: number, height: number, k: 
   const bw = qw > 0 ? Math.ceil(qw / k) : 0;
   const bh = qh > 0 ? Math.ceil(qh / k) : 0;
   const known = new Uint8Array(bw * bh);
+  if (k === 1) {
+    // One quad per block: known where the quad's four centres have data (one pass, no
+    // per-block loops; the general case below gives the same). A row of blocks between
+    // mask rows equal to the two before is the row before again (a DEM's edge or a
+    // wide hole runs across many rows): copied.
+    for (let bj = 0; bj < bh; bj++) {
+      const a = bj * width, b = a + width, o = bj * bw;
+      if (bj > 0 && sameRows(mask, a - width, a, width) && sameRows(mask, a, b, width)) {
+        known.copyWithin(o, o - bw, o);
+        continue;
+      }
+      let left = mask[a] !== 0 && mask[b] !== 0 ? 1 : 0;
+      for (let bi = 0; bi < bw; bi++) {
+        const right = mask[a + bi + 1] !== 0 && mask[b + bi + 1] !== 0 ? 1 : 0;
+        known[o + bi] = left & right;
+        left = right;
+      }
+    }
+    return { known, bw, bh, k };
+  }
   const colOk = new Uint8Array(width);
   for (let bj = 0; bj < bh; bj++) {
     const r0 = bj * k;
@@ -68,53 +88,115 @@ export function knownBlocks(mask: Uint8Array, width: number, height: number, k: 
 export function traceKnown(b: BlockGrid): LatticeRing[] {
   const { known, bw, bh } = b;
   const vw = bw + 1;
-  const isKnown = (i: number, j: number) => i >= 0 && j >= 0 && i < bw && j < bh && known[j * bw + i] === 1;
-  // Up to two sides leave a corner; out[2v], out[2v + 1] hold their ends + 1.
-  const out = new Int32Array(2 * vw * (bh + 1));
-  const add = (i0: number, j0: number, i1: number, j1: number) => {
-    const v = j0 * vw + i0;
-    out[out[2 * v] === 0 ? 2 * v : 2 * v + 1] = j1 * vw + i1 + 1;
+  // The sides with known ground on their left, in scan order: [from corner, to corner].
+  // Kept sparse (a few per boundary block): a table of two slots per lattice corner
+  // would hold mostly zeros on a large window and cost a pass over all of them.
+  let from = new Int32Array(1024), to = new Int32Array(1024);
+  let n = 0;
+  const add = (v0: number, v1: number) => {
+    if (n === from.length) {
+      const f = new Int32Array(2 * n), t = new Int32Array(2 * n);
+      f.set(from); t.set(to);
+      from = f; to = t;
+    }
+    from[n] = v0;
+    to[n++] = v1;
   };
+  // Runs [start, end) of known blocks of the last row scanned block by block.
+  let runs: number[] = [];
   for (let j = 0; j < bh; j++) {
+    const row = j * bw;
+    if (j > 0 && j + 1 < bh && sameRows(known, row - bw, row, bw) && sameRows(known, row, row + bw, bw)) {
+      // Between two equal rows a row has sides only at its runs' ends (the rows above
+      // and below it are known where it is), and the runs of the row before.
+      for (let q = 0; q < runs.length; q += 2) {
+        const a = j * vw + runs[q], b = j * vw + runs[q + 1] - 1;
+        if (a !== b) add(a + vw, a);
+        add(b + 1, b + 1 + vw);
+        if (a === b) add(a + vw, a);
+      }
+      continue;
+    }
+    runs = [];
     for (let i = 0; i < bw; i++) {
-      if (!isKnown(i, j)) continue;
-      if (!isKnown(i, j - 1)) add(i, j, i + 1, j);
-      if (!isKnown(i + 1, j)) add(i + 1, j, i + 1, j + 1);
-      if (!isKnown(i, j + 1)) add(i + 1, j + 1, i, j + 1);
-      if (!isKnown(i - 1, j)) add(i, j + 1, i, j);
+      if (known[row + i] === 1 && (i === 0 || known[row + i - 1] !== 1)) runs.push(i);
+      if (known[row + i] === 1 && (i + 1 === bw || known[row + i + 1] !== 1)) runs.push(i + 1);
+    }
+    for (let i = 0; i < bw; i++) {
+      if (known[row + i] !== 1) continue;
+      const up = j > 0 && known[row - bw + i] === 1;
+      const right = i + 1 < bw && known[row + i + 1] === 1;
+      const down = j + 1 < bh && known[row + bw + i] === 1;
+      const left = i > 0 && known[row + i - 1] === 1;
+      if (up && right && down && left) continue;
+      const v = j * vw + i;
+      if (!up) add(v, v + 1);
+      if (!right) add(v + 1, v + 1 + vw);
+      if (!down) add(v + 1 + vw, v + vw);
+      if (!left) add(v + vw, v);
     }
   }
+  // Sides by their start corner, in the order found (up to two leave a corner): the
+  // order a table indexed by corner would visit them in.
+  const SHIFT = 2 ** 26;
+  if (n >= SHIFT || bh * vw + vw >= 2 ** 27) throw new Error("traceKnown: outline too long");
+  const keys = new Float64Array(n);
+  for (let e = 0; e < n; e++) keys[e] = from[e] * SHIFT + e;
+  keys.sort();
+  const sv = new Int32Array(n), st = new Int32Array(n);
+  for (let e = 0; e < n; e++) {
+    const v = Math.floor(keys[e] / SHIFT);
+    sv[e] = v;
+    st[e] = to[keys[e] - v * SHIFT];
+  }
+  const used = new Uint8Array(n);
+  /** First side leaving corner v (sv is sorted). */
+  const firstOf = (v: number): number => {
+    let lo = 0, hi = n;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (sv[mid] < v) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo;
+  };
   const rings: LatticeRing[] = [];
   const xy = (v: number): [number, number] => [v % vw, Math.floor(v / vw)];
-  for (let s = 0; s < out.length; s++) {
-    if (out[s] === 0) continue;
-    const start = s >> 1;
+  for (let s = 0; s < n; s++) {
+    if (used[s]) continue;
+    const start = sv[s];
     const ring: [number, number][] = [];
     let v = start;
     let slot = s;
     let prev = -1;
     for (;;) {
-      const next = out[slot] - 1;
-      out[slot] = 0;
+      const next = st[slot];
+      used[slot] = 1;
       ring.push(xy(v));
       prev = v;
       v = next;
       if (v === start) break;
-      slot = pickSide(out, v, prev, vw);
+      slot = pickSide(sv, st, used, firstOf(v), v, prev, vw);
     }
     rings.push(dropStraight(ring));
   }
   return rings;
 }
 
-/** The unused side leaving corner v; of two, the left turn coming from prev. */
-function pickSide(out: Int32Array, v: number, prev: number, vw: number): number {
-  const a = 2 * v;
-  if (out[a + 1] === 0) return a;
-  if (out[a] === 0) return a + 1;
+/** Whether a[i..i+n) equals a[j..j+n) (a native compare: rows are long). */
+function sameRows(a: Uint8Array, i: number, j: number, n: number): boolean {
+  const buf = Buffer.from(a.buffer, a.byteOffset, a.byteLength);
+  return buf.compare(buf, j, j + n, i, i + n) === 0;
+}
+
+/** The unused side leaving corner v (its sides from index a on); of two, the left turn coming from prev. */
+function pickSide(sv: Int32Array, st: Int32Array, used: Uint8Array, a: number, v: number, prev: number, vw: number): number {
+  const second = a + 1 < sv.length && sv[a + 1] === v;
+  if (!second || used[a + 1]) return a;
+  if (used[a]) return a + 1;
   const dx = (v % vw) - (prev % vw);
   const dy = Math.floor(v / vw) - Math.floor(prev / vw);
-  const n0 = out[a] - 1;
+  const n0 = st[a];
   const ex = (n0 % vw) - (v % vw);
   const ey = Math.floor(n0 / vw) - Math.floor(v / vw);
   return dx * ey - dy * ex > 0 ? a : a + 1;

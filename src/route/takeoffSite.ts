@@ -56,19 +56,22 @@ export function proposeTakeoff(s: TakeoffSearch, centre: XY, radiusM: number, ma
       for (let col = c0; col <= c1; col += stride) {
         const i = row * width + col;
         if (s.inSite[i] !== 1) continue;
-        const xy: XY = [x0 + (col + 0.5) * dx, y0 + (row + 0.5) * dy];
-        const offsetM = Math.hypot(xy[0] - centre[0], xy[1] - centre[1]);
+        const px = x0 + (col + 0.5) * dx, py = y0 + (row + 0.5) * dy;
+        const offsetM = Math.hypot(px - centre[0], py - centre[1]);
         if (offsetM > r) continue;
+        // The key below is at least the offset (slope >= 0): a cell this far cannot win.
+        if (offsetM >= bestKey) continue;
         let ok = true;
         for (let a = -1; a <= 1 && ok; a++) for (let b = -1; b <= 1 && ok; b++) ok = valid[i + a * width + b] === 1;
         if (!ok) continue;
-        const z = (a: number, b: number) => heights[i + a * width + b];
+        const n = i - width, so = i + width;
         // Horn: dz/dx and dz/dy from the weighted 3 x 3 differences (rows run with dy).
-        const gx = (z(-1, 1) + 2 * z(0, 1) + z(1, 1) - z(-1, -1) - 2 * z(0, -1) - z(1, -1)) / (8 * cw);
-        const gy = (z(1, -1) + 2 * z(1, 0) + z(1, 1) - z(-1, -1) - 2 * z(-1, 0) - z(-1, 1)) / (8 * ch);
+        const gx = (heights[n + 1] + 2 * heights[i + 1] + heights[so + 1] - heights[n - 1] - 2 * heights[i - 1] - heights[so - 1]) / (8 * cw);
+        const gy = (heights[so - 1] + 2 * heights[so] + heights[so + 1] - heights[n - 1] - 2 * heights[n] - heights[n + 1]) / (8 * ch);
         const slopeDeg = (Math.atan(Math.hypot(gx, gy)) * 180) / Math.PI;
         const key = Math.round(slopeDeg / SLOPE_STEP_DEG) * 1e7 + offsetM;
         if (key >= bestKey) continue;
+        const xy: XY = [px, py];
         if (s.blocked?.(xy) || !s.reaches(xy)) continue;
         best = { xy, slopeDeg, offsetM };
         bestKey = key;

@@ -1,5 +1,5 @@
 import type { DemGrid } from "../dem/grid.js";
-import { extremaInRadius } from "../dem/sample.js";
+import { discOffGrid, extremaInRadius } from "../dem/sample.js";
 import type { SolverOptions } from "./types.js";
 
 /**
@@ -22,10 +22,12 @@ export function clearanceFloorM(c: SolverOptions["clearance"]): number {
  * centre lies inside the radius (1e-6 m of margin for rounding) count by
  * their pooled maximum; blocks the circle crosses are scanned cell by cell,
  * with extremaInRadius's own row chords, only when their pooled maximum can
- * beat the best value so far (branch and bound: a block's maximum bounds
- * every cell in it, so skipping it cannot change the result). Stations whose
- * disc nears the grid edge or meets a block holding nodata are handed to
- * extremaInRadius itself.
+ * beat the best value so far, highest first (branch and bound: a block's
+ * maximum bounds every cell in it, so skipping it cannot change the result).
+ * NaN comes without a scan where it can: a station whose disc leaves the grid
+ * (decided from extremaInRadius's own chords, see discOffGrid; many stations lie
+ * past the DEM's edge), or a block wholly inside the disc that holds nodata;
+ * a crossed block holding nodata is scanned for it.
  * @example maxGroundInRadius(grid, xs, ys, 15, out)
  */
 export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: ArrayLike<number>, radiusM: number, out: Float64Array): void {
@@ -35,8 +37,8 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
     extremaInRadius(grid, xs, ys, radiusM, out);
     return;
   }
-  const pooled = pooledMax(grid, k);
-  const pw = pooled.width;
+  const { k: kb, pooled } = poolFor(grid, k);
+  const pw = pooled.width, ph = pooled.height;
   const pmax = pooled.heights;
   const { width: w, height: h, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
@@ -44,7 +46,6 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
   const r2 = radiusM * radiusM;
   const rIn = Math.max(0, radiusM - 1e-6), rOut = radiusM + 1e-6;
   const rIn2 = rIn * rIn, rOut2 = rOut * rOut;
-  const one = new Float64Array(1);
   // Boundary blocks of the current station, scanned after the interior ones.
   let edge = new Int32Array(256);
   for (let i = 0; i < xs.length; i++) {
@@ -53,9 +54,11 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
     const pcx = (px - x0) / dx - 0.5;
     const pcy = (py - y0) / dy - 0.5;
     const ext = 2 + radiusM / Math.min(adx, ady);
-    if (!(pcx - ext >= 0 && pcy - ext >= 0 && pcx + ext <= w - 1 && pcy + ext <= h - 1)) {
-      extremaInRadius(grid, [px], [py], radiusM, one);
-      out[i] = one[0];
+    // Near the grid's edge: NaN when extremaInRadius's disc leaves the grid; else the
+    // disc is on the grid and the blocks are clipped to it below (they hold no disc cell
+    // past the edge).
+    if (!(pcx - ext >= 0 && pcy - ext >= 0 && pcx + ext <= w - 1 && pcy + ext <= h - 1) && discOffGrid(grid, px, py, radiusM)) {
+      out[i] = NaN;
       continue;
     }
     const pc = Math.floor((px - x0) / dx);
@@ -63,20 +66,20 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
     let best = heights[pr * w + pc];
     let bad = best !== best;
     let nEdge = 0;
-    const rowA = Math.floor((pcy - radiusM / ady) / k), rowB = Math.floor((pcy + radiusM / ady) / k);
+    const rowA = Math.max(0, Math.floor((pcy - radiusM / ady) / kb)), rowB = Math.min(ph - 1, Math.floor((pcy + radiusM / ady) / kb));
     for (let br = rowA; br <= rowB && !bad; br++) {
-      const r0 = br * k, r1 = Math.min(h - 1, r0 + k - 1);
+      const r0 = br * kb, r1 = Math.min(h - 1, r0 + kb - 1);
       const dyNear = (pcy < r0 ? r0 - pcy : pcy > r1 ? pcy - r1 : 0) * ady;
       const dyFar = Math.max(Math.abs(r0 - pcy), Math.abs(r1 - pcy)) * ady;
       if (dyNear * dyNear > rOut2) continue;
       const hOut = Math.sqrt(rOut2 - dyNear * dyNear) / adx;
-      const bcA = Math.floor((pcx - hOut) / k), bcB = Math.floor((pcx + hOut) / k);
+      const bcA = Math.max(0, Math.floor((pcx - hOut) / kb)), bcB = Math.min(pw - 1, Math.floor((pcx + hOut) / kb));
       // Interior blocks: whole column extent within the chord at the farthest row.
       let iA = bcB + 1, iB = bcB;
       if (dyFar * dyFar <= rIn2) {
         const hIn = Math.sqrt(rIn2 - dyFar * dyFar) / adx;
-        iA = Math.ceil((pcx - hIn) / k);
-        iB = Math.floor((pcx + hIn + 1) / k) - 1;
+        iA = Math.ceil((pcx - hIn) / kb);
+        iB = Math.floor((pcx + hIn + 1) / kb) - 1;
         if (iA < bcA) iA = bcA;
         if (iB > bcB) iB = bcB;
         if (iA > iB) { iA = bcB + 1; iB = bcB; }
@@ -90,14 +93,32 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
       if (nEdge + (bcB - bcA + 1) > edge.length) { const e = new Int32Array(2 * edge.length + bcB - bcA + 1); e.set(edge); edge = e; }
       for (let bc = bcA; bc <= bcB; bc++) if (bc < iA || bc > iB) edge[nEdge++] = base + bc;
     }
-    for (let e = 0; e < nEdge && !bad; e++) {
+    if (bad) {
+      // A block wholly inside the disc holds nodata: so does the disc (extremaInRadius's NaN).
+      out[i] = NaN;
+      continue;
+    }
+    // Boundary blocks that can still matter: those holding nodata (the disc may reach
+    // it) and those whose maximum beats the interior's, highest first, so the scan
+    // stops at the first block that cannot beat the best value found so far.
+    let nKeep = 0;
+    for (let e = 0; e < nEdge; e++) {
       const b = edge[e];
       const m = pmax[b];
-      if (m !== m) { bad = true; break; }
-      if (m <= best) continue;
+      if (m !== m || m > best) {
+        // Insertion by maximum, descending, NaN first (few blocks: the disc's uphill rim).
+        let j = nKeep++;
+        while (j > 0 && before(m, pmax[edge[j - 1]])) { edge[j] = edge[j - 1]; j--; }
+        edge[j] = b;
+      }
+    }
+    for (let e = 0; e < nKeep && !bad; e++) {
+      const b = edge[e];
+      const m = pmax[b];
+      if (m === m && m <= best) break;
       const br = Math.floor(b / pw), bc = b - br * pw;
-      const cA = bc * k, cB = Math.min(w - 1, cA + k - 1);
-      for (let r = br * k; r <= Math.min(h - 1, br * k + k - 1); r++) {
+      const cA = bc * kb, cB = Math.min(w - 1, cA + kb - 1);
+      for (let r = br * kb; r <= Math.min(h - 1, br * kb + kb - 1) && !bad; r++) {
         // extremaInRadius's chord for this row, to the same rounding.
         const ddy = y0 + (r + 0.5) * dy - py;
         const rem = r2 - ddy * ddy;
@@ -109,17 +130,33 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
         for (let c = ca; c <= cb; c++) {
           const z = heights[rb + c];
           if (z > best) best = z;
+          else if (z !== z) { bad = true; break; }
         }
       }
     }
-    if (bad) {
-      extremaInRadius(grid, [px], [py], radiusM, one);
-      out[i] = one[0];
-    } else out[i] = best;
+    out[i] = bad ? NaN : best;
   }
 }
 
+/** Sort order of boundary blocks: NaN (nodata) first, then by maximum, descending. */
+function before(m: number, other: number): boolean {
+  if (other !== other) return false;
+  return m !== m || m > other;
+}
+
 const cache = new WeakMap<DemGrid, Map<number, DemGrid>>();
+
+/**
+ * The pooled grid for blocks of about k cells: radii differ a little from leg to leg
+ * (the reach between stations), and a pooled grid already made for a neighbouring k
+ * serves as well (a branch and bound over any k gives the same answer).
+ * @example poolFor(grid, 5).pooled.width // ceil(grid.width / 5)
+ */
+export function poolFor(grid: DemGrid, k: number): { k: number; pooled: DemGrid } {
+  const made = cache.get(grid);
+  const kk = made && !made.has(k) ? (made.has(k + 1) ? k + 1 : made.has(k - 1) && k - 1 > 1 ? k - 1 : k) : k;
+  return { k: kk, pooled: pooledMax(grid, kk) };
+}
 
 /** k x k max pooling (NaN if any cell of the block is nodata); cached per grid. */
 export function pooledMax(grid: DemGrid, k: number): DemGrid {
@@ -131,15 +168,21 @@ export function pooledMax(grid: DemGrid, k: number): DemGrid {
   const h = Math.ceil(grid.height / k);
   const heights = new Float32Array(w * h).fill(-Infinity);
   const src = grid.heights;
+  const W = grid.width;
   for (let r = 0; r < grid.height; r++) {
-    const base = (Math.floor(r / k)) * w;
-    for (let c = 0; c < grid.width; c++) {
-      const z = src[r * grid.width + c];
-      const bi = base + Math.floor(c / k);
-      const cur = heights[bi];
+    const base = Math.floor(r / k) * w;
+    const rb = r * W;
+    for (let bc = 0; bc < w; bc++) {
+      let cur = heights[base + bc];
       // NaN anywhere in the block poisons it (unknown ground is never assumed low).
-      if (z !== z || cur !== cur) heights[bi] = NaN;
-      else if (z > cur) heights[bi] = z;
+      if (cur !== cur) continue;
+      const cEnd = Math.min(W, bc * k + k);
+      for (let c = bc * k; c < cEnd; c++) {
+        const z = src[rb + c];
+        if (z !== z) { cur = NaN; break; }
+        if (z > cur) cur = z;
+      }
+      heights[base + bc] = cur;
     }
   }
   const valid = new Uint8Array(w * h);

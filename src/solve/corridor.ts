@@ -2,7 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect, extremaInRadius, sampleBilinear } from "../dem/sample.js";
 import { discExtremaExact, rimExtend } from "../dem/discExact.js";
 import type { Stations } from "../layout/types.js";
-import { clearanceFloorM, maxGroundInRadius } from "./clearance.js";
+import { clearanceFloorM, maxGroundInRadius, poolFor } from "./clearance.js";
 import { surfaceCeiling } from "./surfaceCeiling.js";
 import { zoneExtremaAlongLine } from "./zoneExtrema.js";
 import {
@@ -188,21 +188,112 @@ function terrainOf(opts: SolverOptions): DemGrid | undefined {
   return filled;
 }
 
-/** Highest cell centre with data within `radiusM` of a point (nodata skipped), or NaN when none has data. */
-function maxKnownInRadius(grid: DemGrid, px: number, py: number, radiusM: number): number {
+/**
+ * Highest cell centre with data within `radiusM` of a point (nodata skipped), or NaN when none has data.
+ * On fine DEMs (the disc spans many cells) the same branch and bound as maxGroundInRadius: cells
+ * max-pooled over their data into k x k blocks; a block wholly inside the disc counts by its pooled
+ * maximum, a block the circle crosses is scanned cell by cell only when its maximum can beat the
+ * best so far (highest first), with the same per-cell test as the plain scan.
+ * @example maxKnownInRadius(grid, 120, 340, 16.2) // NaN where no centre within 16.2 m has data
+ */
+export function maxKnownInRadius(grid: DemGrid, px: number, py: number, radiusM: number): number {
   const { width: w, height: h, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const c0 = Math.max(0, Math.floor((px - radiusM - x0) / dx - 0.5)), c1 = Math.min(w - 1, Math.ceil((px + radiusM - x0) / dx - 0.5));
   const r0 = Math.max(0, Math.floor((py + radiusM - y0) / dy - 0.5)), r1 = Math.min(h - 1, Math.ceil((py - radiusM - y0) / dy - 0.5));
-  let best = NaN;
+  const r2 = radiusM * radiusM;
+  const cellM = Math.max(grid.cellSizeM[0], grid.cellSizeM[1]);
+  let k = radiusM / cellM > 16 ? Math.ceil(radiusM / cellM / 8) : 1;
+  if (k === 1 || c0 > c1 || r0 > r1) return maxKnownIn(grid, px, py, r2, c0, c1, r0, r1, NaN);
+  const pool = poolFor(grid, k);
+  k = pool.k;
+  const pooled = pooledKnownMax(grid, pool.pooled, k);
+  const pw = pool.pooled.width;
+  const rIn = Math.max(0, radiusM - 1e-6), rOut = radiusM + 1e-6;
+  const rIn2 = rIn * rIn, rOut2 = rOut * rOut;
+  let best = -Infinity;
+  let nEdge = 0;
+  const edge = edgeScratch(((Math.floor(r1 / k) - Math.floor(r0 / k) + 1) * (Math.floor(c1 / k) - Math.floor(c0 / k) + 1)));
+  for (let br = Math.floor(r0 / k); br <= Math.floor(r1 / k); br++) {
+    const ra = Math.max(r0, br * k), rb = Math.min(r1, br * k + k - 1);
+    const fullRows = ra === br * k && rb === Math.min(h - 1, br * k + k - 1);
+    const ya = y0 + (ra + 0.5) * dy - py, yb = y0 + (rb + 0.5) * dy - py;
+    const nearY = (ya <= 0) !== (yb <= 0) || ya === 0 || yb === 0 ? 0 : Math.min(Math.abs(ya), Math.abs(yb));
+    const farY = Math.max(Math.abs(ya), Math.abs(yb));
+    for (let bc = Math.floor(c0 / k); bc <= Math.floor(c1 / k); bc++) {
+      const m = pooled.at(br * pw + bc);
+      if (m === -Infinity || m <= best) continue;
+      const ca = Math.max(c0, bc * k), cb = Math.min(c1, bc * k + k - 1);
+      const xa = x0 + (ca + 0.5) * dx - px, xb = x0 + (cb + 0.5) * dx - px;
+      const nearX = (xa <= 0) !== (xb <= 0) || xa === 0 || xb === 0 ? 0 : Math.min(Math.abs(xa), Math.abs(xb));
+      if (nearX * nearX + nearY * nearY > rOut2) continue;
+      const farX = Math.max(Math.abs(xa), Math.abs(xb));
+      if (fullRows && ca === bc * k && cb === Math.min(w - 1, bc * k + k - 1) && farX * farX + farY * farY <= rIn2) best = m;
+      else edge[nEdge++] = br * pw + bc;
+    }
+  }
+  // Boundary blocks, highest maximum first: the scan stops at the first that cannot beat the best.
+  const order = edge.subarray(0, nEdge).sort((a, b) => pooled.at(b) - pooled.at(a));
+  for (let e = 0; e < nEdge; e++) {
+    const b = order[e];
+    if (pooled.at(b) <= best) break;
+    const br = Math.floor(b / pw), bc = b - br * pw;
+    best = maxKnownIn(grid, px, py, r2, Math.max(c0, bc * k), Math.min(c1, bc * k + k - 1), Math.max(r0, br * k), Math.min(r1, br * k + k - 1), best);
+  }
+  return best === -Infinity ? NaN : best;
+}
+
+/** The plain scan: highest cell with data in columns c0..c1, rows r0..r1 whose centre lies within sqrt(r2) of the point, starting from `best` (NaN: none yet). */
+function maxKnownIn(grid: DemGrid, px: number, py: number, r2: number, c0: number, c1: number, r0: number, r1: number, best: number): number {
+  const { width: w, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
   for (let r = r0; r <= r1; r++) {
     const ddy = y0 + (r + 0.5) * dy - py;
     for (let c = c0; c <= c1; c++) {
       const ddx = x0 + (c + 0.5) * dx - px;
-      if (ddx * ddx + ddy * ddy > radiusM * radiusM) continue;
+      if (ddx * ddx + ddy * ddy > r2) continue;
       const z = heights[r * w + c];
       if (z === z && !(z <= best)) best = z;
     }
   }
   return best;
+}
+
+let edgeBuf = new Int32Array(256);
+function edgeScratch(n: number): Int32Array {
+  if (edgeBuf.length < n) edgeBuf = new Int32Array(Math.max(n, 2 * edgeBuf.length));
+  return edgeBuf;
+}
+
+const knownPools = new WeakMap<DemGrid, Float32Array>();
+
+/**
+ * Max over the cells with data of each k x k block of `pooled` (pooledMax of the grid),
+ * -Infinity for a block without any: the pooled maximum itself where the block has no
+ * nodata, else scanned the first time it is asked for (NaN in the cache: not yet).
+ */
+function pooledKnownMax(grid: DemGrid, pooled: DemGrid, k: number): { at(b: number): number } {
+  let known = knownPools.get(pooled);
+  if (!known) knownPools.set(pooled, (known = new Float32Array(pooled.heights.length).fill(NaN)));
+  const cache = known;
+  const pmax = pooled.heights, pw = pooled.width;
+  const { width: W, height: H, heights: src } = grid;
+  return {
+    at(b: number): number {
+      const m = pmax[b];
+      if (m === m) return m;
+      const hit = cache[b];
+      if (hit === hit) return hit;
+      const br = Math.floor(b / pw), bc = b - br * pw;
+      let cur = -Infinity;
+      for (let r = br * k; r < Math.min(H, br * k + k); r++) {
+        for (let c = bc * k; c < Math.min(W, bc * k + k); c++) {
+          const z = src[r * W + c];
+          if (z > cur) cur = z;
+        }
+      }
+      cache[b] = cur;
+      return cur;
+    },
+  };
 }

@@ -74,9 +74,15 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   const stripProfiles: StationProfile[] = [];
   const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
 
+  // Transits' corridors wait until trimEndBridges has settled which transits are flown
+  // (it remakes those beside a bridge at a strip's end): until then they carry only
+  // their stations' ends.
+  const pending = new Map<Piece, LayoutLeg>();
   for (const leg of legs) {
     if (leg.kind === "transit") {
-      pieces.push({ kind: "transit", strip: leg.strip, conflictGap: false, ...transitCorridor(work, leg, opts) });
+      const piece: Piece = { kind: "transit", strip: leg.strip, conflictGap: false, profile: stationEnds(leg, opts) };
+      pending.set(piece, leg);
+      pieces.push(piece);
       continue;
     }
     const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
@@ -89,6 +95,10 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
     for (let i = first + 1; i < pieces.length - 1; i++) if (pieces[i].conflictGap) routeBridge(work, pieces[i], opts);
   }
   if (opts.routeAround) trimEndBridges(work, pieces, opts);
+  for (const piece of pieces) {
+    const leg = pending.get(piece);
+    if (leg) Object.assign(piece, transitCorridor(work, leg, opts));
+  }
   checkTargetReachable(stripProfiles, opts);
 
   const paths: (Float64Array | null)[] = pieces.map(() => null);
@@ -184,6 +194,21 @@ function transitCorridor(work: DemGrid, leg: LayoutLeg, opts: SolverOptions): { 
   const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, halfAlong);
   const straight = corridorAlong(work, st, opts, { band: false });
   return aroundUnknown(work, straight, opts) ?? { profile: straight };
+}
+
+/**
+ * A stand-in profile for a transit whose corridor is not made yet: the first and last
+ * of its stations (all trimEndBridges reads of it), as transitCorridor's profile has them.
+ */
+function stationEnds(leg: LayoutLeg, opts: SolverOptions): StationProfile {
+  const st = stationsAlongLeg(leg, opts.stationStepM, opts.zoneHalfAcrossM, opts.zoneHalfAlongM ?? opts.stationStepM / 2);
+  const n = st.s.length;
+  const two = (a: Float64Array) => Float64Array.of(a[0], a[n - 1]);
+  const nan = new Float64Array(2).fill(NaN);
+  return {
+    s: two(st.s), x: two(st.x), y: two(st.y), groundM: nan, hardLowM: nan, hardHighM: nan, bandLowM: nan, bandHighM: nan, altitudeM: nan,
+    status: new Uint8Array(2), cause: new Uint8Array(2),
+  };
 }
 
 /**

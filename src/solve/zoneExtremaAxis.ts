@@ -88,21 +88,48 @@ export function zoneExtremaOnAxis(
   const ga = new Float64Array(m), gMax = new Float64Array(m), gMin = new Float64Array(m);
   const nanBefore = new Int32Array(m + 1);
   for (let j = 0; j < m; j++) {
-    const g = groups[j];
-    ga[j] = alongOf(g);
+    ga[j] = alongOf(groups[j]);
     if (j > 0 && ga[j] < ga[j - 1]) return false;
-    let mx = -Infinity, mn = Infinity, nan = 0;
-    for (let l = l0; l <= l1; l++) {
-      if (laneEdge[l]) continue;
-      const z = heights[g * gStride + l * lStride];
-      if (z !== z) { nan++; continue; }
-      if (z > mx) mx = z;
-      if (z < mn) mn = z;
-    }
-    gMax[j] = mx;
-    gMin[j] = mn;
-    nanBefore[j + 1] = nanBefore[j] + nan;
   }
+  // Core lanes: one run in the middle of the band (the edge lanes lie at its sides).
+  let cA = l0;
+  while (cA <= l1 && laneEdge[cA]) cA++;
+  let cB = l1;
+  while (cB >= cA && laneEdge[cB]) cB--;
+  let oneRun = true;
+  for (let l = cA; l <= cB; l++) if (laneEdge[l]) oneRun = false;
+  if (!oneRun) return false;
+  // Fold each group's core cells, in memory order: along the rows of the grid (a row is a
+  // group of a north-south leg, a lane of an east-west one).
+  const nanOf = new Int32Array(m);
+  gMax.fill(-Infinity);
+  gMin.fill(Infinity);
+  if (lStride === 1) {
+    for (let j = 0; j < m; j++) {
+      const base = groups[j] * gStride;
+      let mx = -Infinity, mn = Infinity, nan = 0;
+      for (let i = base + cA; i <= base + cB; i++) {
+        const z = heights[i];
+        if (z !== z) { nan++; continue; }
+        if (z > mx) mx = z;
+        if (z < mn) mn = z;
+      }
+      gMax[j] = mx;
+      gMin[j] = mn;
+      nanOf[j] = nan;
+    }
+  } else {
+    for (let l = cA; l <= cB; l++) {
+      const base = l * lStride;
+      for (let j = 0; j < m; j++) {
+        const z = heights[base + groups[j] * gStride];
+        if (z !== z) { nanOf[j]++; continue; }
+        if (z > gMax[j]) gMax[j] = z;
+        if (z < gMin[j]) gMin[j] = z;
+      }
+    }
+  }
+  for (let j = 0; j < m; j++) nanBefore[j + 1] = nanBefore[j] + nanOf[j];
   const edgeLanes: number[] = [];
   for (let l = l0; l <= l1; l++) if (laneEdge[l]) edgeLanes.push(l);
   const window = new SlidingExtrema(gMax, gMin);

@@ -40,9 +40,16 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
   let bw = Math.max(1, Math.ceil(quadsW / BLOCK0));
   let bh = Math.max(1, Math.ceil(quadsH / BLOCK0));
   const l0 = newLevel(BLOCK0, bw, bh);
-  for (let bj = 0; bj < bh; bj++) {
-    const r0 = bj * BLOCK0;
-    const r1 = Math.min(r0 + BLOCK0, height - 1);
+  l0.max.fill(-Infinity);
+  l0.min.fill(Infinity);
+  // Row by row (the heights are read in memory order): each row's run of centres in a
+  // block (c0..c1, neighbouring blocks sharing the edge column) folds into the block
+  // rows holding that row: bj = floor(r / 8), and the one above at a shared edge row.
+  for (let r = 0; r < height; r++) {
+    const base = r * width;
+    const bjA = Math.floor(r / BLOCK0);
+    const below = bjA < bh && r <= Math.min(bjA * BLOCK0 + BLOCK0, height - 1) ? bjA : -1;
+    const above = r % BLOCK0 === 0 && r > 0 && bjA - 1 < bh ? bjA - 1 : -1;
     for (let bi = 0; bi < bw; bi++) {
       const c0 = bi * BLOCK0;
       const c1 = Math.min(c0 + BLOCK0, width - 1);
@@ -50,23 +57,17 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
       let mn = Infinity;
       let bad = 0;
       let unk = 0;
-      for (let r = r0; r <= r1; r++) {
-        const base = r * width;
-        for (let c = c0; c <= c1; c++) {
-          const v = z[base + c];
-          if (v !== v) bad = 1;
-          else {
-            if (v > mx) mx = v;
-            if (v < mn) mn = v;
-          }
-          if (!known[base + c]) unk = 1;
+      for (let c = c0; c <= c1; c++) {
+        const v = z[base + c];
+        if (v !== v) bad = 1;
+        else {
+          if (v > mx) mx = v;
+          if (v < mn) mn = v;
         }
+        if (!known[base + c]) unk = 1;
       }
-      const b = bj * bw + bi;
-      l0.max[b] = mx;
-      l0.min[b] = mn;
-      l0.unusable[b] = bad;
-      l0.unknown[b] = unk;
+      if (below >= 0) fold(l0, below * bw + bi, mx, mn, bad, unk);
+      if (above >= 0) fold(l0, above * bw + bi, mx, mn, bad, unk);
     }
   }
   levels.push(l0);
@@ -101,6 +102,13 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
     levels.push(lv);
   }
   return { quadsW, quadsH, levels };
+}
+
+function fold(lv: PyramidLevel, b: number, mx: number, mn: number, bad: number, unk: number): void {
+  if (mx > lv.max[b]) lv.max[b] = mx;
+  if (mn < lv.min[b]) lv.min[b] = mn;
+  lv.unusable[b] |= bad;
+  lv.unknown[b] |= unk;
 }
 
 function newLevel(size: number, bw: number, bh: number): PyramidLevel {
