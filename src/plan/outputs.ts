@@ -219,12 +219,15 @@ function siteCentre(site: PlanRun["site"]["local"]): [number, number] {
 function clearanceShortfall(grid: DemGrid, inSite: Uint8Array, w: number, h: number, altitudeM: number, clearanceM: number) {
   if (grid.width !== w || grid.height !== h) return undefined;
   const z = grid.heights;
+  const n = z.length;
   let cells = 0;
   let maxGroundM = -Infinity;
-  for (let i = 0; i < z.length; i++) {
-    if (!inSite[i] || !(z[i] === z[i])) continue;
-    if (z[i] > maxGroundM) maxGroundM = z[i];
-    if (altitudeM - z[i] < clearanceM) cells++;
+  for (let i = 0; i < n; i++) {
+    if (inSite[i] === 0) continue;
+    const zi = z[i];
+    // NaN (nodata) fails both comparisons.
+    if (zi > maxGroundM) maxGroundM = zi;
+    if (altitudeM - zi < clearanceM) cells++;
   }
   if (!Number.isFinite(maxGroundM)) return undefined;
   const cellM2 = grid.cellSizeM[0] * grid.cellSizeM[1];

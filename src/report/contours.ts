@@ -1,13 +1,19 @@
 /**
- * Contour lines and mask outlines from d3-contour's marching squares.
+ * Contour lines and mask outlines by marching squares.
  *
- * d3-contour returns filled MultiPolygons whose rings also run along the grid's frame and
- * around nodata holes (it treats invalid values as -Infinity). For lines we cut those
- * rings into polylines and drop the stretches that run along the frame or hug nodata, so
- * only true isolines remain. Coordinates come back in the grid's column/row space
- * (0..width, 0..height; cell centres at +0.5), which the map converts to its own units.
+ * The tracing (isoRings below) is d3-contour's algorithm (v4: the same case table, scan
+ * order, fragment stitching, linear smoothing and hole assignment) re-written for typed
+ * arrays: d3-contour reads the grid through generic per-cell callbacks and keeps its
+ * fragments in sparse arrays, which made the report's contours one of the slower parts of
+ * the page on a thousand-pixel map. The rings come out the same, point for point and in
+ * the same order, as d3-contour's (test/report/contours.test.ts checks it against d3-contour).
+ *
+ * Filled rings also run along the grid's frame and around nodata holes (invalid values
+ * count as -Infinity). For lines we cut those rings into polylines and drop the stretches
+ * that run along the frame or hug nodata, so only true isolines remain. Coordinates come
+ * back in the grid's column/row space (0..width, 0..height; cell centres at +0.5), which
+ * the map converts to its own units.
  */
-import { contours } from "d3-contour";
 import type { ReportGrid } from "./model.js";
 
 export type Polyline = number[]; // flat [c0, r0, c1, r1, ...]
@@ -59,14 +65,13 @@ export function contourLines(grid: Pick<ReportGrid, "width" | "height" | "height
   if (!(hi > lo)) return [];
   const levels: number[] = [];
   for (let v = Math.ceil(lo / intervalM) * intervalM; v <= hi; v += intervalM) levels.push(+v.toPrecision(12));
-  // Cells whose 2x2 neighbourhood holds nodata: a ring vertex there is an artefact.
-  const gen = contours().size([w, h]).thresholds(levels);
-  const values = Array.from(heights);
+  levels.sort((a, b) => a - b);
   const out: ContourLine[] = [];
-  for (const mp of gen(values)) {
+  const ranges = rowRanges(heights, w, h);
+  for (const value of levels) {
     const lines: Polyline[] = [];
-    for (const poly of mp.coordinates) for (const ring of poly) splitRing(ring as [number, number][], w, h, heights, lines);
-    if (lines.length) out.push({ valueM: mp.value, lines });
+    for (const poly of isoPolygons(heights, w, h, value, true, ranges)) for (const ring of poly) splitRing(ring, w, h, heights, lines);
+    if (lines.length) out.push({ valueM: value, lines });
   }
   return out;
 }
@@ -78,50 +83,369 @@ export function contourLines(grid: Pick<ReportGrid, "width" | "height" | "height
  * @example const rings = maskOutline(flags.map((f) => f & 8), w, h);
  */
 export function maskOutline(mask: ArrayLike<number>, w: number, h: number): Polyline[] {
-  const values = new Array<number>(w * h);
-  let any = false;
-  for (let i = 0; i < w * h; i++) {
-    values[i] = mask[i] ? 1 : 0;
-    if (mask[i]) any = true;
+  // A byte mask is traced as it is (non-zero is at least 1, above the 0.5 level); any
+  // other is copied to 0/1 first.
+  let values: Uint8Array;
+  if (mask instanceof Uint8Array && mask.length === w * h) values = mask;
+  else {
+    values = new Uint8Array(w * h);
+    for (let i = 0; i < w * h; i++) values[i] = mask[i] ? 1 : 0;
   }
+  let any = false;
+  for (let i = 0; i < w * h; i++)
+    if (values[i] !== 0) {
+      any = true;
+      break;
+    }
   if (!any) return [];
   // Unsmoothed: vertices sit half-way between a 1 and a 0 cell centre, i.e. on the cell
   // boundary, with corners cut diagonally (a staircase with chamfers).
-  const mp = contours().size([w, h]).smooth(false).contour(values, 0.5);
   const rings: Polyline[] = [];
-  for (const poly of mp.coordinates)
-    for (const ring of poly) {
-      const flat: number[] = [];
-      for (const [c, r] of ring as [number, number][]) flat.push(c, r);
-      rings.push(flat);
-    }
+  for (const poly of isoPolygons(values, w, h, 0.5, false)) for (const ring of poly) rings.push(ring);
   return rings;
 }
 
-function splitRing(ring: [number, number][], w: number, h: number, heights: Float32Array, out: Polyline[]): void {
+/**
+ * Marching-squares segments per cell case (bit 0 lower left, 1 lower right, 2 upper right,
+ * 3 upper left at or above the level), each [x0, y0, x1, y1] in the cell's own half-cell
+ * offsets, oriented so that the filled side is on a fixed hand (d3-contour's table).
+ */
+const CASES: number[][] = [
+  [],
+  [1.0, 1.5, 0.5, 1.0],
+  [1.5, 1.0, 1.0, 1.5],
+  [1.5, 1.0, 0.5, 1.0],
+  [1.0, 0.5, 1.5, 1.0],
+  [1.0, 1.5, 0.5, 1.0, 1.0, 0.5, 1.5, 1.0],
+  [1.0, 0.5, 1.0, 1.5],
+  [1.0, 0.5, 0.5, 1.0],
+  [0.5, 1.0, 1.0, 0.5],
+  [1.0, 1.5, 1.0, 0.5],
+  [0.5, 1.0, 1.0, 0.5, 1.5, 1.0, 1.0, 1.5],
+  [1.5, 1.0, 1.0, 0.5],
+  [0.5, 1.0, 1.5, 1.0],
+  [1.0, 1.5, 1.5, 1.0],
+  [0.5, 1.0, 1.0, 1.5],
+  [],
+];
+
+/**
+ * A run of points of a fragment: `pts` flat [x, y, ...], in order, or in reverse order when
+ * `reversed` (the points put in front of the fragment one by one).
+ */
+interface Piece {
+  pts: number[];
+  reversed: boolean;
+  next: Piece | null;
+}
+
+/**
+ * A ring being stitched: its points as a chain of pieces, so putting a point in front or
+ * joining two fragments costs the same however long they are (d3-contour copies the whole
+ * ring each time, which is quadratic on long outlines).
+ */
+interface Fragment {
+  start: number;
+  end: number;
+  first: Piece;
+  last: Piece;
+}
+
+function pushPoint(f: Fragment, x: number, y: number): void {
+  if (!f.last.reversed) f.last.pts.push(x, y);
+  else f.last = f.last.next = { pts: [x, y], reversed: false, next: null };
+}
+
+function unshiftPoint(f: Fragment, x: number, y: number): void {
+  if (f.first.reversed) f.first.pts.push(x, y);
+  else f.first = { pts: [x, y], reversed: true, next: f.first };
+}
+
+/** The fragment's points in order, flat. */
+function ringPoints(f: Fragment): number[] {
+  const out: number[] = [];
+  for (let p: Piece | null = f.first; p; p = p.next) {
+    const a = p.pts;
+    if (!p.reversed) for (let i = 0; i < a.length; i++) out.push(a[i]);
+    else for (let i = a.length - 2; i >= 0; i -= 2) out.push(a[i], a[i + 1]);
+  }
+  return out;
+}
+
+/**
+ * The filled region at or above `value` as polygons (outer ring, then its holes), each ring
+ * flat [x, y, ...] and closed (last point repeats the first): d3-contour's `contour`
+ * (values outside the grid and NaN count as below).
+ */
+export function isoPolygons(values: Float32Array | Uint8Array, dx: number, dy: number, value: number, smooth: boolean, ranges = rowRanges(values, dx, dy)): number[][][] {
+  const polygons: number[][][] = [];
+  const boxes: number[] = [];
+  const holes: number[][] = [];
+  isoRings(values, dx, dy, value, ranges, (ring) => {
+    if (smooth) smoothRing(ring, values, dx, dy, value);
+    if (ringArea(ring) > 0) {
+      polygons.push([ring]);
+      boxes.push(...ringBox(ring));
+    } else holes.push(ring);
+  });
+  // Each hole goes to the first polygon whose outer ring does not leave it outside. A ring
+  // whose bounding box (widened by far more than rounding) misses the hole's first vertex
+  // leaves it outside for certain (d3-contour's test answers -1 there too), so only the
+  // rings around that vertex are tested.
+  for (const hole of holes) {
+    const hx = hole[0], hy = hole[1];
+    for (let i = 0; i < polygons.length; i++) {
+      if (hx < boxes[4 * i] || hy < boxes[4 * i + 1] || hx > boxes[4 * i + 2] || hy > boxes[4 * i + 3]) continue;
+      if (contains(polygons[i][0], hole) !== -1) {
+        polygons[i].push(hole);
+        break;
+      }
+    }
+  }
+  return polygons;
+}
+
+/** Per grid row the least and the greatest value, NaN counting as -Infinity (below every level). */
+interface RowRanges {
+  min: Float64Array;
+  max: Float64Array;
+}
+
+function rowRanges(values: Float32Array | Uint8Array, dx: number, dy: number): RowRanges {
+  const min = new Float64Array(dy);
+  const max = new Float64Array(dy);
+  for (let y = 0; y < dy; y++) {
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (let i = y * dx, end = i + dx; i < end; i++) {
+      const v = values[i];
+      if (v !== v) lo = -Infinity;
+      else {
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
+      }
+    }
+    min[y] = lo;
+    max[y] = hi;
+  }
+  return { min, max };
+}
+
+/** A flat ring's bounding box [xMin, yMin, xMax, yMax], widened by 1e-6 grid cells. */
+function ringBox(r: number[]): [number, number, number, number] {
+  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
+  for (let i = 0; i < r.length; i += 2) {
+    const x = r[i], y = r[i + 1];
+    if (x < x0) x0 = x;
+    if (x > x1) x1 = x;
+    if (y < y0) y0 = y;
+    if (y > y1) y1 = y;
+  }
+  const e = 1e-6;
+  return [x0 - e, y0 - e, x1 + e, y1 + e];
+}
+
+/**
+ * Marching squares with the segments stitched into rings, each handed to `callback` as it
+ * closes. A pair of rows wholly below the level has no segment, one wholly at or above it
+ * only its two frame segments: those rows are passed over without reading their cells
+ * (they add nothing, so the rings and their order stay d3-contour's).
+ */
+function isoRings(values: Float32Array | Uint8Array, dx: number, dy: number, value: number, ranges: RowRanges, callback: (ring: number[]) => void): void {
+  const byStart = new Map<number, Fragment>();
+  const byEnd = new Map<number, Fragment>();
+  const rowStep = (dx + 1) * 4;
+  const stitch = (c: number, x: number, y: number) => {
+    const seg = CASES[c];
+    for (let k = 0; k < seg.length; k += 4) {
+      const sx = seg[k] + x, sy = seg[k + 1] + y, ex = seg[k + 2] + x, ey = seg[k + 3] + y;
+      const startIndex = sx * 2 + sy * rowStep;
+      const endIndex = ex * 2 + ey * rowStep;
+      let f: Fragment | undefined, g: Fragment | undefined;
+      if ((f = byEnd.get(startIndex))) {
+        if ((g = byStart.get(endIndex))) {
+          byEnd.delete(f.end);
+          byStart.delete(g.start);
+          if (f === g) {
+            pushPoint(f, ex, ey);
+            callback(ringPoints(f));
+          } else {
+            // f's points, then g's: f and g are dropped, so their pieces are linked in place.
+            f.last.next = g.first;
+            const m: Fragment = { start: f.start, end: g.end, first: f.first, last: g.last };
+            byStart.set(f.start, m);
+            byEnd.set(g.end, m);
+          }
+        } else {
+          byEnd.delete(f.end);
+          pushPoint(f, ex, ey);
+          byEnd.set((f.end = endIndex), f);
+        }
+      } else if ((f = byStart.get(endIndex))) {
+        if ((g = byEnd.get(startIndex))) {
+          byStart.delete(f.start);
+          byEnd.delete(g.end);
+          if (f === g) {
+            pushPoint(f, ex, ey);
+            callback(ringPoints(f));
+          } else {
+            g.last.next = f.first;
+            const m: Fragment = { start: g.start, end: f.end, first: g.first, last: f.last };
+            byStart.set(g.start, m);
+            byEnd.set(f.end, m);
+          }
+        } else {
+          byStart.delete(f.start);
+          unshiftPoint(f, sx, sy);
+          byStart.set((f.start = startIndex), f);
+        }
+      } else {
+        const piece: Piece = { pts: [sx, sy, ex, ey], reversed: false, next: null };
+        const m: Fragment = { start: startIndex, end: endIndex, first: piece, last: piece };
+        byStart.set(startIndex, m);
+        byEnd.set(endIndex, m);
+      }
+    }
+  };
+  const at = (i: number) => (values[i] >= value ? 1 : 0);
+  let x: number, y: number, t0: number, t1: number, t2: number, t3: number, c: number;
+
+  // The first row (y = -1: the row above the grid counts as below).
+  x = y = -1;
+  t1 = at(0);
+  if ((c = t1 << 1)) stitch(c, x, y);
+  while (++x < dx - 1) {
+    t0 = t1;
+    t1 = at(x + 1);
+    if ((c = t0 | (t1 << 1))) stitch(c, x, y);
+  }
+  if ((c = t1)) stitch(c, x, y);
+
+  // The rows between.
+  const rowMin = ranges.min;
+  const rowMax = ranges.max;
+  while (++y < dy - 1) {
+    const up = y * dx;
+    const down = up + dx;
+    if (rowMax[y] < value && rowMax[y + 1] < value) continue;
+    if (rowMin[y] >= value && rowMin[y + 1] >= value) {
+      // Cases 6 and 9 at the frame (x = -1 and x = dx - 1), 15 (nothing) between.
+      stitch(6, -1, y);
+      stitch(9, dx - 1, y);
+      continue;
+    }
+    x = -1;
+    t1 = values[down] >= value ? 1 : 0;
+    t2 = values[up] >= value ? 1 : 0;
+    if ((c = (t1 << 1) | (t2 << 2))) stitch(c, x, y);
+    // The hot loop: the corner tests written out, a stitch only where the level crosses.
+    for (x = 0; x < dx - 1; x++) {
+      t0 = t1;
+      t1 = values[down + x + 1] >= value ? 1 : 0;
+      t3 = t2;
+      t2 = values[up + x + 1] >= value ? 1 : 0;
+      c = t0 | (t1 << 1) | (t2 << 2) | (t3 << 3);
+      if (c !== 0 && c !== 15) stitch(c, x, y);
+    }
+    if ((c = t1 | (t2 << 3))) stitch(c, x, y);
+  }
+
+  // The last row (the row below the grid counts as below).
+  x = -1;
+  t2 = at(y * dx);
+  if ((c = t2 << 2)) stitch(c, x, y);
+  while (++x < dx - 1) {
+    t3 = t2;
+    t2 = at(y * dx + x + 1);
+    if ((c = (t2 << 2) | (t3 << 3))) stitch(c, x, y);
+  }
+  if ((c = t2 << 3)) stitch(c, x, y);
+}
+
+/** A value for smoothing: NaN (and a read past the grid's end) counts as -Infinity. */
+function valid(v: number | undefined): number {
+  return v === undefined || v !== v ? -Infinity : v;
+}
+
+/** Move each ring vertex along its cell edge to where the values cross `value` (linear). */
+function smoothRing(ring: number[], values: Float32Array | Uint8Array, dx: number, dy: number, value: number): void {
+  for (let k = 0; k < ring.length; k += 2) {
+    const x = ring[k];
+    const y = ring[k + 1];
+    const xt = x | 0;
+    const yt = y | 0;
+    const v1 = valid(values[yt * dx + xt]);
+    if (x > 0 && x < dx && xt === x) ring[k] = smooth1(x, valid(values[yt * dx + xt - 1]), v1, value);
+    if (y > 0 && y < dy && yt === y) ring[k + 1] = smooth1(y, valid(values[(yt - 1) * dx + xt]), v1, value);
+  }
+}
+
+function smooth1(x: number, v0: number, v1: number, value: number): number {
+  const a = value - v0;
+  const b = v1 - v0;
+  const d = isFinite(a) || isFinite(b) ? a / b : Math.sign(a) / Math.sign(b);
+  return isNaN(d) ? x : x + d - 0.5;
+}
+
+/** Twice the signed area of a flat ring, summed in d3-contour's order (its sign picks outer rings). */
+function ringArea(r: number[]): number {
+  const n = r.length;
+  let area = r[n - 1] * r[0] - r[n - 2] * r[1];
+  for (let i = 2; i < n; i += 2) area += r[i - 1] * r[i] - r[i - 2] * r[i + 1];
+  return area;
+}
+
+/** 1 when the hole's first vertex off the ring's boundary is inside it, -1 outside, 0 when all lie on it. */
+function contains(ring: number[], hole: number[]): number {
+  for (let i = 0; i < hole.length; i += 2) {
+    const c = ringContains(ring, hole[i], hole[i + 1]);
+    if (c) return c;
+  }
+  return 0;
+}
+
+function ringContains(ring: number[], x: number, y: number): number {
+  let inside = -1;
   const n = ring.length;
+  for (let i = 0, j = n - 2; i < n; j = i, i += 2) {
+    const xi = ring[i], yi = ring[i + 1], xj = ring[j], yj = ring[j + 1];
+    if (segmentContains(xi, yi, xj, yj, x, y)) return 0;
+    if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) inside = -inside;
+  }
+  return inside;
+}
+
+/** Point (cx, cy) on the segment a-b. */
+function segmentContains(ax: number, ay: number, bx: number, by: number, cx: number, cy: number): boolean {
+  if ((bx - ax) * (cy - ay) !== (cx - ax) * (by - ay)) return false;
+  // Compare along y when the segment is vertical, else along x.
+  if (ax === bx) return (ay <= cy && cy <= by) || (by <= cy && cy <= ay);
+  return (ax <= cx && cx <= bx) || (bx <= cx && cx <= ax);
+}
+
+function splitRing(ring: number[], w: number, h: number, heights: Float32Array, out: Polyline[]): void {
+  const n = ring.length / 2;
   let cur: number[] = [];
   const flush = () => {
     if (cur.length >= 4) out.push(cur);
     cur = [];
   };
   for (let i = 0; i + 1 < n; i++) {
-    const a = ring[i];
-    const b = ring[i + 1];
-    const bad = artefact(a, w, h, heights) && artefact(b, w, h, heights);
+    const ax = ring[2 * i], ay = ring[2 * i + 1];
+    const bx = ring[2 * i + 2], by = ring[2 * i + 3];
+    const bad = artefact(ax, ay, w, h, heights) && artefact(bx, by, w, h, heights);
     if (bad) {
       flush();
       continue;
     }
-    if (cur.length === 0) cur.push(a[0], a[1]);
-    cur.push(b[0], b[1]);
+    if (cur.length === 0) cur.push(ax, ay);
+    cur.push(bx, by);
   }
   flush();
 }
 
 /** On the frame, or next to a nodata cell. */
-function artefact(p: [number, number], w: number, h: number, heights: Float32Array): boolean {
-  const [x, y] = p;
+function artefact(x: number, y: number, w: number, h: number, heights: Float32Array): boolean {
   if (x <= 0 || y <= 0 || x >= w || y >= h) return true;
   // The sample cells nearest the vertex (cell centres at +0.5).
   const c0 = Math.max(0, Math.min(w - 1, Math.floor(x - 0.5)));

@@ -19,12 +19,14 @@ export function blockFactor(width: number, height: number, maxPx: number): numbe
  */
 export function downsampleGrid(grid: ReportGrid, k: number): ReportGrid {
   if (k <= 1) return grid;
-  const w = Math.ceil(grid.width / k);
-  const h = Math.ceil(grid.height / k);
-  const heights = meanBlocks(grid.heights, grid.width, grid.height, k, null);
+  return reducedGrid(grid, k, meanBlocks(grid.heights, grid.width, grid.height, k));
+}
+
+/** The reduced grid's record around its block means. */
+function reducedGrid(grid: ReportGrid, k: number, heights: Float32Array): ReportGrid {
   return {
-    width: w,
-    height: h,
+    width: Math.ceil(grid.width / k),
+    height: Math.ceil(grid.height / k),
     transform: { ...grid.transform, dx: grid.transform.dx * k, dy: grid.transform.dy * k },
     cellSizeM: [grid.cellSizeM[0] * k, grid.cellSizeM[1] * k],
     heights,
@@ -36,6 +38,24 @@ export function downsampleGrid(grid: ReportGrid, k: number): ReportGrid {
  */
 export function downsampleRasters(r: ReportRasters, k: number): ReportRasters {
   if (k <= 1) return r;
+  return reduceRasters(r, k, null).rasters;
+}
+
+/**
+ * The DEM and the rasters by the same factor, as downsampleGrid and downsampleRasters give
+ * them; on one grid (the plan's usual case) in a single pass over both.
+ *
+ * @example const { dem, rasters } = downsampleGridAndRasters(run.grid, assessment.rasters, 5);
+ */
+export function downsampleGridAndRasters(grid: ReportGrid, r: ReportRasters, k: number): { dem: ReportGrid; rasters: ReportRasters } {
+  if (k <= 1) return { dem: grid, rasters: r };
+  if (grid.width !== r.width || grid.height !== r.height) return { dem: downsampleGrid(grid, k), rasters: downsampleRasters(r, k) };
+  const { rasters, heights } = reduceRasters(r, k, grid.heights);
+  return { dem: reducedGrid(grid, k, heights!), rasters };
+}
+
+/** The block reduction of the rasters and, when given, of heights on the same grid. */
+function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null): { rasters: ReportRasters; heights: Float32Array | null } {
   const W = r.width;
   const H = r.height;
   const w = Math.ceil(W / k);
@@ -43,54 +63,139 @@ export function downsampleRasters(r: ReportRasters, k: number): ReportRasters {
   const images = new Uint16Array(w * h);
   const flags = new Uint16Array(w * h);
   const inSite = new Uint8Array(w * h);
-  for (let br = 0; br < h; br++)
+  const gsdCm = new Float32Array(w * h);
+  const heights = z ? new Float32Array(w * h) : null;
+  const src = { gsd: r.gsdCm, images: r.images, flags: r.flags, inSite: r.inSite, z };
+  // One row of blocks at a time, read row by row (see meanBlocks): per block column the
+  // flag OR, whether any cell is in the site, the least in-site image count and the GSD
+  // (and height) sums.
+  const acc = {
+    flags: new Int32Array(w),
+    any: new Uint8Array(w),
+    minImages: new Int32Array(w),
+    sum: new Float64Array(w),
+    cnt: new Int32Array(w),
+    zSum: new Float64Array(w),
+    zCnt: new Int32Array(w),
+  };
+  for (let br = 0; br < h; br++) {
+    acc.flags.fill(0);
+    acc.any.fill(0);
+    acc.minImages.fill(65535);
+    acc.sum.fill(0);
+    acc.cnt.fill(0);
+    acc.zSum.fill(0);
+    acc.zCnt.fill(0);
+    const rEnd = Math.min(H, br * k + k);
+    for (let r0 = br * k; r0 < rEnd; r0++) reduceRasterRow(src, r0 * W, W, k, w, acc);
+    const o = br * w;
     for (let bc = 0; bc < w; bc++) {
-      let minImg = 65535;
-      let anyIn = 0;
-      let f = 0;
-      for (let r0 = br * k; r0 < Math.min(H, br * k + k); r0++)
-        for (let c0 = bc * k; c0 < Math.min(W, bc * k + k); c0++) {
-          const i = r0 * W + c0;
-          f |= r.flags[i];
-          if (r.inSite[i]) {
-            anyIn = 1;
-            if (r.images[i] < minImg) minImg = r.images[i];
-          }
-        }
-      const o = br * w + bc;
-      flags[o] = f;
-      inSite[o] = anyIn;
-      images[o] = anyIn ? minImg : 0;
+      flags[o + bc] = acc.flags[bc];
+      inSite[o + bc] = acc.any[bc];
+      images[o + bc] = acc.any[bc] ? acc.minImages[bc] : 0;
+      gsdCm[o + bc] = acc.cnt[bc] ? acc.sum[bc] / acc.cnt[bc] : NaN;
+      if (heights) heights[o + bc] = acc.zCnt[bc] ? acc.zSum[bc] / acc.zCnt[bc] : NaN;
     }
-  return {
+  }
+  const rasters = {
     width: w,
     height: h,
     transform: { ...r.transform, dx: r.transform.dx * k, dy: r.transform.dy * k },
-    gsdCm: meanBlocks(r.gsdCm, W, H, k, null),
+    gsdCm,
     images,
     flags,
     inSite,
   };
+  return { rasters, heights };
 }
 
-function meanBlocks(src: Float32Array, W: number, H: number, k: number, mask: Uint8Array | null): Float32Array {
+/** One input row of reduceRasters into its block columns' accumulators. */
+function reduceRasterRow(
+  src: { gsd: Float32Array; images: Uint16Array; flags: Uint8Array | Uint16Array; inSite: Uint8Array; z: Float32Array | null },
+  base: number,
+  W: number,
+  k: number,
+  w: number,
+  acc: { flags: Int32Array; any: Uint8Array; minImages: Int32Array; sum: Float64Array; cnt: Int32Array; zSum: Float64Array; zCnt: Int32Array },
+): void {
+  const { gsd, images, flags, inSite, z } = src;
+  let c = 0;
+  for (let bc = 0; bc < w; bc++) {
+    const end = Math.min(W, c + k);
+    let f = acc.flags[bc];
+    let any = acc.any[bc];
+    let minImg = acc.minImages[bc];
+    let s = acc.sum[bc];
+    let m = acc.cnt[bc];
+    let zs = acc.zSum[bc];
+    let zm = acc.zCnt[bc];
+    for (; c < end; c++) {
+      const i = base + c;
+      f |= flags[i];
+      if (inSite[i] !== 0) {
+        any = 1;
+        const im = images[i];
+        if (im < minImg) minImg = im;
+      }
+      const v = gsd[i];
+      if (v === v) {
+        s += v;
+        m++;
+      }
+      if (z !== null) {
+        const zv = z[i];
+        if (zv === zv) {
+          zs += zv;
+          zm++;
+        }
+      }
+    }
+    acc.flags[bc] = f;
+    acc.any[bc] = any;
+    acc.minImages[bc] = minImg;
+    acc.sum[bc] = s;
+    acc.cnt[bc] = m;
+    acc.zSum[bc] = zs;
+    acc.zCnt[bc] = zm;
+  }
+}
+
+/**
+ * Mean of the finite values of each k x k block. The input is read row by row into one
+ * row of block sums (not block by block, which strides across rows and misses the cache on
+ * a large raster); each block still adds its values in the same order, row by row, so the
+ * means come out the same to the last bit.
+ */
+function meanBlocks(src: Float32Array, W: number, H: number, k: number): Float32Array {
   const w = Math.ceil(W / k);
   const h = Math.ceil(H / k);
   const out = new Float32Array(w * h);
-  for (let br = 0; br < h; br++)
-    for (let bc = 0; bc < w; bc++) {
-      let sum = 0;
-      let n = 0;
-      for (let r0 = br * k; r0 < Math.min(H, br * k + k); r0++)
-        for (let c0 = bc * k; c0 < Math.min(W, bc * k + k); c0++) {
-          const i = r0 * W + c0;
-          const v = src[i];
-          if (v === v && (!mask || mask[i])) {
-            sum += v;
-            n++;
+  const sum = new Float64Array(w);
+  const cnt = new Int32Array(w);
+  for (let br = 0; br < h; br++) {
+    sum.fill(0);
+    cnt.fill(0);
+    const rEnd = Math.min(H, br * k + k);
+    for (let r0 = br * k; r0 < rEnd; r0++) {
+      const base = r0 * W;
+      let c = 0;
+      for (let bc = 0; bc < w; bc++) {
+        const end = Math.min(W, c + k);
+        let s = sum[bc];
+        let m = cnt[bc];
+        for (; c < end; c++) {
+          const v = src[base + c];
+          if (v === v) {
+            s += v;
+            m++;
           }
         }
-      out[br * w + bc] = n ? sum / n : NaN;
+        sum[bc] = s;
+        cnt[bc] = m;
+      }
     }
+    const o = br * w;
+    for (let bc = 0; bc < w; bc++) out[o + bc] = cnt[bc] ? sum[bc] / cnt[bc] : NaN;
+  }
   return out;
 }

@@ -39,44 +39,48 @@ export interface HeightGrid {
  * const { p, q } = hornGradient(grid); // p[i] = 0.1 on a plane z = 0.1 x
  */
 export function hornGradient(grid: HeightGrid): { p: Float32Array; q: Float32Array } {
-  const { width: w, height: h, heights: z } = grid;
-  const [dx, dy] = grid.cellSizeM;
+  const { width: w, height: h } = grid;
   const p = new Float32Array(w * h);
   const q = new Float32Array(w * h);
+  for (let r = 0; r < h; r++) hornRow(grid, r, p.subarray(r * w, (r + 1) * w), q.subarray(r * w, (r + 1) * w));
+  return { p, q };
+}
+
+/** Horn's gradient along row `r` into `p` and `q` (one row long each): see hornGradient. */
+function hornRow(grid: HeightGrid, r: number, p: Float32Array, q: Float32Array): void {
+  const { width: w, height: h, heights: z } = grid;
+  const [dx, dy] = grid.cellSizeM;
   const ex = 1 / (8 * dx);
   const ny = 1 / (8 * dy);
-  for (let r = 0; r < h; r++) {
-    const rn = r > 0 ? r - 1 : r;
-    const rs = r < h - 1 ? r + 1 : r;
-    for (let c = 0; c < w; c++) {
-      const i = r * w + c;
-      const z5 = z[i];
-      if (z5 !== z5) {
-        p[i] = NaN;
-        q[i] = NaN;
-        continue;
-      }
-      const cw = c > 0 ? c - 1 : c;
-      const ce = c < w - 1 ? c + 1 : c;
-      // Inline reads with nodata fallback to the centre: no per-cell allocation.
-      let v: number;
-      const z1 = (v = z[rn * w + cw]) === v ? v : z5;
-      const z2 = (v = z[rn * w + c]) === v ? v : z5;
-      const z3 = (v = z[rn * w + ce]) === v ? v : z5;
-      const z4 = (v = z[r * w + cw]) === v ? v : z5;
-      const z6 = (v = z[r * w + ce]) === v ? v : z5;
-      const z7 = (v = z[rs * w + cw]) === v ? v : z5;
-      const z8 = (v = z[rs * w + c]) === v ? v : z5;
-      const z9 = (v = z[rs * w + ce]) === v ? v : z5;
-      // At an edge the clamped neighbour equals the centre, so the difference spans one
-      // cell, not two: scale it back up to keep the gradient unbiased.
-      const spanX = (ce - cw) / 2;
-      const spanY = (rs - rn) / 2;
-      p[i] = spanX > 0 ? ((z3 + 2 * z6 + z9 - (z1 + 2 * z4 + z7)) * ex) / spanX : 0;
-      q[i] = spanY > 0 ? ((z1 + 2 * z2 + z3 - (z7 + 2 * z8 + z9)) * ny) / spanY : 0;
+  const rn = r > 0 ? r - 1 : r;
+  const rs = r < h - 1 ? r + 1 : r;
+  // At an edge the clamped neighbour equals the centre, so the difference spans one
+  // cell, not two: scale it back up to keep the gradient unbiased.
+  const spanY = (rs - rn) / 2;
+  for (let c = 0; c < w; c++) {
+    const i = r * w + c;
+    const z5 = z[i];
+    if (z5 !== z5) {
+      p[c] = NaN;
+      q[c] = NaN;
+      continue;
     }
+    const cw = c > 0 ? c - 1 : c;
+    const ce = c < w - 1 ? c + 1 : c;
+    // Inline reads with nodata fallback to the centre: no per-cell allocation.
+    let v: number;
+    const z1 = (v = z[rn * w + cw]) === v ? v : z5;
+    const z2 = (v = z[rn * w + c]) === v ? v : z5;
+    const z3 = (v = z[rn * w + ce]) === v ? v : z5;
+    const z4 = (v = z[r * w + cw]) === v ? v : z5;
+    const z6 = (v = z[r * w + ce]) === v ? v : z5;
+    const z7 = (v = z[rs * w + cw]) === v ? v : z5;
+    const z8 = (v = z[rs * w + c]) === v ? v : z5;
+    const z9 = (v = z[rs * w + ce]) === v ? v : z5;
+    const spanX = (ce - cw) / 2;
+    p[c] = spanX > 0 ? ((z3 + 2 * z6 + z9 - (z1 + 2 * z4 + z7)) * ex) / spanX : 0;
+    q[c] = spanY > 0 ? ((z1 + 2 * z2 + z3 - (z7 + 2 * z8 + z9)) * ny) / spanY : 0;
   }
-  return { p, q };
 }
 
 /**
@@ -130,7 +134,11 @@ export function hillshade(): Hillshade {
   let zf = 1;
 
   const run = (grid: HeightGrid): Float32Array => {
-    const { p, q } = hornGradient(grid);
+    const w = grid.width;
+    // The gradient one row at a time (the same Float32 values hornGradient gives), so no
+    // grid-sized gradient arrays are made.
+    const p = new Float32Array(w);
+    const q = new Float32Array(w);
     const zen = ((90 - altitudeDeg) * Math.PI) / 180;
     const az = (azimuthDeg * Math.PI) / 180;
     // Sun direction (east, north, up) and the unnormalised normal (-p, -q, 1): the dot
@@ -139,16 +147,19 @@ export function hillshade(): Hillshade {
     const sx = Math.sin(zen) * Math.sin(az);
     const sy = Math.sin(zen) * Math.cos(az);
     const sz = Math.cos(zen);
-    const out = new Float32Array(p.length);
-    for (let i = 0; i < p.length; i++) {
-      const pi = p[i] * zf;
-      const qi = q[i] * zf;
-      if (pi !== pi) {
-        out[i] = NaN;
-        continue;
+    const out = new Float32Array(w * grid.height);
+    for (let r = 0; r < grid.height; r++) {
+      hornRow(grid, r, p, q);
+      for (let c = 0, i = r * w; c < w; c++, i++) {
+        const pi = p[c] * zf;
+        const qi = q[c] * zf;
+        if (pi !== pi) {
+          out[i] = NaN;
+          continue;
+        }
+        const s = (sz - pi * sx - qi * sy) / Math.sqrt(1 + pi * pi + qi * qi);
+        out[i] = s > 0 ? s : 0;
       }
-      const s = (sz - pi * sx - qi * sy) / Math.sqrt(1 + pi * pi + qi * qi);
-      out[i] = s > 0 ? s : 0;
     }
     return out;
   };

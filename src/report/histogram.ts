@@ -28,9 +28,14 @@ export function gsdBinEdges(lowCm: number, highCm: number, minCm: number, maxCm:
 /**
  * Count the in-site, finite values per bin.
  *
+ * Float32 values with a Uint8 mask (or none), the rasters' own types, take a typed loop
+ * of their own: a loop over ArrayLike sees several array kinds and runs far slower on the
+ * 20-80 M cells of a full-resolution raster. Both loops count alike.
+ *
  * @example histogram(gsdCm, inSite, [2, 2.5, 3]) // { counts: [..], under, over }
  */
 export function histogram(values: ArrayLike<number>, mask: ArrayLike<number> | null, edgesCm: number[]): Histogram {
+  if (values instanceof Float32Array && (mask === null || mask instanceof Uint8Array)) return histogramFloat32(values, mask, edgesCm);
   const n = edgesCm.length - 1;
   const counts = new Array<number>(Math.max(n, 0)).fill(0);
   let under = 0;
@@ -52,5 +57,41 @@ export function histogram(values: ArrayLike<number>, mask: ArrayLike<number> | n
       counts[b]++;
     }
   }
+  return { edgesCm, counts, under, over };
+}
+
+/** The typed loop of `histogram`: same bins, same counts. */
+function histogramFloat32(values: Float32Array, mask: Uint8Array | null, edgesCm: number[]): Histogram {
+  const n = edgesCm.length - 1;
+  const nb = Math.max(n, 0);
+  const edges = Float64Array.from(edgesCm);
+  // One spare slot either end: a bin index slipped by one at the axis ends lands there
+  // before the correction moves it back.
+  const bins = new Float64Array(nb + 2);
+  const lo = edges[0];
+  const hi = edges[n];
+  // Multiplying by the inverse step may slip a bin where dividing would not: the edge
+  // check below corrects either, so the counts are the same.
+  const inv = n / (hi - lo);
+  const last = n - 1;
+  let under = 0;
+  let over = 0;
+  const len = values.length;
+  for (let i = 0; i < len; i++) {
+    if (mask !== null && mask[i] === 0) continue;
+    const v = values[i];
+    // NaN fails every comparison below and is skipped, as are the infinities.
+    if (v < lo) {
+      if (v > -Infinity) under++;
+    } else if (v < hi) {
+      let b = ((v - lo) * inv) | 0;
+      if (b > last) b = last;
+      if (v < edges[b]) b--;
+      else if (v >= edges[b + 1]) b++;
+      bins[b + 1]++;
+    } else if (v < Infinity) over++;
+  }
+  const counts = new Array<number>(nb);
+  for (let b = 0; b < nb; b++) counts[b] = bins[b + 1];
   return { edgesCm, counts, under, over };
 }

@@ -5,7 +5,7 @@
  */
 import type { ReportLeg } from "./model.js";
 import { esc } from "./escape.js";
-import { fmt } from "./format.js";
+import { fixed1, fmt } from "./format.js";
 import { niceStep, ticks } from "./nice.js";
 
 // Drawn about 500 units wide so that two side by side on a printed A4 or Letter page
@@ -154,9 +154,11 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
   const lo = scale.lo - pad;
   const hi = scale.hi + pad;
   const sAxis = scale.sMax || 1;
-  const sx = (s: number) => (ML + (s / sAxis) * (W - ML - MR)).toFixed(1);
-  const sy = (z: number) => (MT + ((hi - Math.max(lo, Math.min(hi, z))) / (hi - lo)) * (H - MT - MB)).toFixed(1);
+  const sx = (s: number) => fixed1(ML + (s / sAxis) * (W - ML - MR));
+  const sy = (z: number) => fixed1(MT + ((hi - Math.max(lo, Math.min(hi, z))) / (hi - lo)) * (H - MT - MB));
 
+  // Every path of the strip runs over the same bins: their x texts are made once.
+  const xs = ser.s.map(sx);
   const area = (upper: number[], lower: number[]): string => {
     let d = "";
     let i = 0;
@@ -166,27 +168,28 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
       let j = i;
       while (j < n && Number.isFinite(upper[j]) && Number.isFinite(lower[j])) j++;
       if (j - i >= 1) {
-        let seg = "";
-        for (let k = i; k < j; k++) seg += (k === i ? "M" : "L") + sx(ser.s[k]) + "," + sy(upper[k]);
-        for (let k = j - 1; k >= i; k--) seg += "L" + sx(ser.s[k]) + "," + sy(lower[k]);
-        d += seg + "Z";
+        // Pieces joined once: far less garbage than growing a string point by point.
+        const parts: string[] = [];
+        for (let k = i; k < j; k++) parts.push(k === i ? "M" : "L", xs[k], ",", sy(upper[k]));
+        for (let k = j - 1; k >= i; k--) parts.push("L", xs[k], ",", sy(lower[k]));
+        d += parts.join("") + "Z";
       }
       i = j;
     }
     return d;
   };
   const line = (vals: number[]): string => {
-    let d = "";
+    const parts: string[] = [];
     let pen = false;
     for (let k = 0; k < ser.s.length; k++) {
       if (!Number.isFinite(vals[k]) || vals[k] > hi || vals[k] < lo) {
         pen = false;
         continue;
       }
-      d += (pen ? "L" : "M") + sx(ser.s[k]) + "," + sy(vals[k]);
+      parts.push(pen ? "L" : "M", xs[k], ",", sy(vals[k]));
       pen = true;
     }
-    return d;
+    return parts.join("");
   };
   const floor = ser.ground.map(() => lo);
   const clippedHigh = ser.hardHigh.map((v) => (Number.isFinite(v) ? Math.min(v, hi) : hi));
@@ -197,14 +200,14 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
     const x1 = +sx(Math.min(sMax, f.s1));
     const fill = f.status === 2 ? "#d62728" : "#ff9f1c";
     flagsSvg +=
-      `<rect class="flagged status-${f.status}" x="${x0}" y="${MT}" width="${Math.max(1, x1 - x0).toFixed(1)}" height="${H - MT - MB}" fill="${fill}" fill-opacity="0.16"/>` +
-      `<rect x="${x0}" y="${MT - 7}" width="${Math.max(1, x1 - x0).toFixed(1)}" height="5" fill="${fill}"/>`;
+      `<rect class="flagged status-${f.status}" x="${x0}" y="${MT}" width="${fixed1(Math.max(1, x1 - x0))}" height="${H - MT - MB}" fill="${fill}" fill-opacity="0.16"/>` +
+      `<rect x="${x0}" y="${MT - 7}" width="${fixed1(Math.max(1, x1 - x0))}" height="5" fill="${fill}"/>`;
   }
   const zStep = niceStep(hi - lo, 5);
   const sStep = niceStep(sAxis, 8);
   let axes = "";
   for (const z of ticks(lo, hi, zStep))
-    axes += `<line x1="${ML}" x2="${sx(sMax)}" y1="${sy(z)}" y2="${sy(z)}" stroke="#000" stroke-opacity="0.08"/><text x="${ML - 6}" y="${(+sy(z) + 4).toFixed(1)}" text-anchor="end">${fmt(z)}</text>`;
+    axes += `<line x1="${ML}" x2="${sx(sMax)}" y1="${sy(z)}" y2="${sy(z)}" stroke="#000" stroke-opacity="0.08"/><text x="${ML - 6}" y="${fixed1(+sy(z) + 4)}" text-anchor="end">${fmt(z)}</text>`;
   for (const s of ticks(0, sMax, sStep))
     axes += `<line x1="${sx(s)}" x2="${sx(s)}" y1="${H - MB}" y2="${H - MB + 4}" stroke="#333"/><text x="${sx(s)}" y="${H - MB + 16}" text-anchor="middle">${fmt(s)}</text>`;
   const flightD = flight.map((f, i) => (i ? "L" : "M") + sx(f[0]) + "," + sy(f[1])).join("");

@@ -253,11 +253,15 @@ export function renderReport(input: ReportInput): string {
   // 3. Flags
   let flagLayers = "";
   let flagDefs = "";
+  // The bits present anywhere first, so a mask is made only for a kind the map shows.
+  const flags = r.flags;
+  let bitsPresent = 0;
+  for (let i = 0; i < flags.length; i++) bitsPresent |= flags[i];
   for (const k of ASSESSMENT_FLAG_KINDS) {
+    if (!(bitsPresent & k.bit)) continue;
     const mask = new Uint8Array(r.width * r.height);
-    let any = false;
-    for (let i = 0; i < mask.length; i++) if (r.flags[i] & k.bit) (mask[i] = 1), (any = true);
-    if (!any) continue;
+    const bit = k.bit;
+    for (let i = 0; i < mask.length; i++) if (flags[i] & bit) mask[i] = 1;
     const st = FLAG_STYLE[k.key];
     flagDefs += hatchPattern(`hatch-flag-${k.key}`, st.colour, st.angle, 7);
     flagLayers += `<g class="flag-layer" data-kind="${esc(k.key)}">${outlinePath(small, r.transform, maskOutline(mask, r.width, r.height), `fill="url(#hatch-flag-${k.key})" stroke="${st.colour}" stroke-width="1.2"`)}</g>`;

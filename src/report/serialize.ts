@@ -11,7 +11,7 @@
 import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
 import type { ReportInput } from "./model.js";
-import { blockFactor, downsampleGrid, downsampleRasters } from "./downsample.js";
+import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
 export const REPORT_DATA_FORMAT = "gsdplan-report-data";
@@ -51,11 +51,13 @@ export function compactReportInput(input: ReportInput, maxPx = 1000): ReportInpu
   }
   const kd = blockFactor(input.dem.width, input.dem.height, maxPx);
   const kr = blockFactor(input.rasters.width, input.rasters.height, maxPx);
+  // On one grid (the plan's usual case) the DEM and the rasters are reduced in one pass.
+  const { dem, rasters } = kd === kr ? downsampleGridAndRasters(input.dem, input.rasters, kd) : { dem: downsampleGrid(input.dem, kd), rasters: downsampleRasters(input.rasters, kr) };
   return {
     ...input,
     gsdHistogram,
-    dem: downsampleGrid(input.dem, kd),
-    rasters: downsampleRasters(input.rasters, kr),
+    dem,
+    rasters,
   };
 }
 
