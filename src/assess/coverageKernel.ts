@@ -96,6 +96,13 @@ export function siteGroundBlocks(heights: Float32Array, inSite: Uint8Array, widt
   return { mins, bw, bh, globalMin };
 }
 
+/** Lowest ground of block row `br` over block columns bc0..bc1 (Infinity: no site ground there). */
+export function blockRowMin(bl: BlockMinima, br: number, bc0: number, bc1: number): number {
+  let g = Infinity;
+  for (let bc = bc0; bc <= bc1; bc++) if (bl.mins[br * bl.bw + bc] < g) g = bl.mins[br * bl.bw + bc];
+  return g;
+}
+
 /** Grid origin and cell steps (the transform's figures). */
 export interface GridSteps {
   x0: number;
@@ -203,8 +210,7 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
       const br = (r / BLOCK) | 0;
       if (br !== bandRow) {
         bandRow = br;
-        let g = Infinity;
-        for (let bc = bc0; bc <= bc1; bc++) if (blocks.mins[br * blocks.bw + bc] < g) g = blocks.mins[br * blocks.bw + bc];
+        const g = blockRowMin(blocks, br, bc0, bc1);
         const dRow = g < Infinity ? Math.min(ez - g, dMax) : 0;
         hA = dRow > 0 ? dRow * kAlong : -1;
         hC = dRow > 0 ? dRow * kAcross : -1;

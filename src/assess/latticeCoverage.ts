@@ -1,5 +1,5 @@
 import type { DemGrid } from "../dem/grid.js";
-import { minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
+import { blockRowMin, minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
@@ -202,8 +202,7 @@ export function latticeBand(inp: LatticeInput, band: number): void {
       if (br !== bandRow) {
         // Each band of BLOCK rows: the reach over the lowest ground of its blocks under the box.
         bandRow = br;
-        let g = Infinity;
-        for (let bc = bc0; bc <= bc1; bc++) if (blocks.mins[br * blocks.bw + bc] < g) g = blocks.mins[br * blocks.bw + bc];
+        const g = blockRowMin(blocks, br, bc0, bc1);
         const dRow = g < Infinity ? Math.min(A - g, dMax) : 0;
         hA = dRow > 0 ? halfRun + dRow * kAlong : -1;
         hC = dRow > 0 ? dRow * kAcross : -1;

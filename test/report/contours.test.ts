@@ -1,18 +1,10 @@
 import { describe, it, expect } from "vitest";
 import { contours } from "d3-contour";
 import { isoPolygons, maskOutline } from "../../src/report/contours.js";
+import { seededRandom } from "../geo/projCli.js";
 
-/** A small deterministic generator (mulberry32), so a failure can be replayed. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A seeded generator (mulberry32), so a failure can be replayed. */
+const rng = seededRandom;
 
 /** Rolling ground with nodata holes: a few sines plus noise, NaN at random spots and in a block. */
 function ground(w: number, h: number, seed: number, nodata: boolean): Float32Array {

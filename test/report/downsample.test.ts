@@ -1,17 +1,10 @@
 import { describe, it, expect } from "vitest";
 import { downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "../../src/report/downsample.js";
 import type { ReportRasters } from "../../src/report/model.js";
+import { seededRandom } from "../geo/projCli.js";
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A seeded generator (mulberry32), so a failure can be replayed. */
+const rng = seededRandom;
 
 const transform = { x0: 500000, y0: 4600000, dx: 2, dy: -2 };
 

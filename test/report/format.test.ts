@@ -1,16 +1,9 @@
 import { describe, it, expect } from "vitest";
 import { fixed1, fmt } from "../../src/report/format.js";
+import { seededRandom } from "../geo/projCli.js";
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A seeded generator (mulberry32), so a failure can be replayed. */
+const rng = seededRandom;
 
 // ECMA-262 Number.prototype.toFixed is the reference: fixed1 must give its text exactly.
 describe("fixed1 against Number.prototype.toFixed(1)", () => {

@@ -1,16 +1,9 @@
 import { describe, it, expect } from "vitest";
 import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
+import { seededRandom } from "../geo/projCli.js";
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A seeded generator (mulberry32), so a failure can be replayed. */
+const rng = seededRandom;
 
 /**
  * The definition itself: a value counts in bin i when edges[i] <= v < edges[i + 1], under
