@@ -83,7 +83,8 @@ export function targetRows(t, row, fmt) {
     return true;
   };
   const stages = (label, c) => {
-    for (const k of Object.keys(c.stagesS)) rows.push(row("7", `  ${label} stage ${k}: wall / CPU`, `${fmt.s(c.stagesS[k])} / ${fmt.s(c.stagesCpuS[k])}`, "", NaN));
+    // The progress callback marks stage starts only, so verify's CPU is counted in route's.
+    for (const k of Object.keys(c.stagesS)) rows.push(row("7", `  ${label} stage ${k}: wall / CPU`, `${fmt.s(c.stagesS[k])} / ${k in c.stagesCpuS ? fmt.s(c.stagesCpuS[k]) : "in route"}`, "", NaN));
   };
   const p4 = t.plan4;
   if (!bad("4 km2 plan", p4)) {
