@@ -3,6 +3,7 @@ import type { Camera, Requirement } from "../camera/types.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import { computeCoverage, type Coverage } from "./coverage.js";
+import { bandThreads, shareable } from "./bandThreads.js";
 import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
 import { paintCauseZones, paintKeepOutCuts } from "./flagRaster.js";
@@ -74,7 +75,8 @@ export function assessPlan(
   const { width, height, transform } = grid;
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
 
-  const inSite = rasteriseSite(site, width, height, transform);
+  // In shared memory from the start, so the banded passes' threads read it without a copy each.
+  const inSite = shareable(rasteriseSite(site, width, height, transform), bandThreads(width * height, 2, opts.threads));
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
   const { gsdCm, images, nadirStrip, flags } = computeCoverage(grid, inSite, exposures, camera, {
     nadirBy: opts.nadirBy,
