@@ -15,8 +15,8 @@ import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
 import { assessmentGeoTiffChunks, type AssessmentTiffs } from "../export/geotiffRasters.js";
 import type { PlanExportInput } from "../export/layers.js";
-import { renderReport } from "../report/render.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
+import { reportHtmlInBackground } from "../report/background.js";
 import type { ReportInput } from "../report/model.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "../report/histogram.js";
 import type { LocalFrame } from "../geo/frame.js";
@@ -65,12 +65,19 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     ? { epsg: native.crs.epsg, proj4: native.crs.proj4, geographic: native.crs.geographic, name: native.crs.name }
     : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
   const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
-  // Streamed to disk chunk by chunk: the uncompressed gsd.tif is never whole in memory.
-  const tiff = (name: keyof AssessmentTiffs) => () => assessmentGeoTiffChunks(rasters, crs, name);
   const report = reportInput(run, summary, meta);
-  // Both report files block-reduce the same rasters: do it once.
+  // Both report files come from one compacted input. The page is rendered in a worker thread
+  // started when the rasters start, so it is made on the other core while they and
+  // report-data.json are written here.
   let compact: ReportInput | undefined;
   const compactReport = () => (compact ??= compactReportInput(report));
+  let page: ReturnType<typeof reportHtmlInBackground> | undefined;
+  const reportPage = () => (page ??= reportHtmlInBackground(compactReport()));
+  // Streamed to disk chunk by chunk: the uncompressed gsd.tif is never whole in memory.
+  const tiff = (name: keyof AssessmentTiffs) => () => {
+    reportPage();
+    return assessmentGeoTiffChunks(rasters, crs, name);
+  };
   const files: OutputFile[] = [
     { name: "waypoints.csv", data: waypointsCsv(rows) },
     { name: "flights.csv", data: () => flightsCsv(flightRows(run)) },
@@ -82,7 +89,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     { name: "flags.tif", data: tiff("flags.tif") },
     { name: "summary.json", data: JSON.stringify(summary, null, 2) + "\n" },
     { name: "report-data.json", data: () => serializeReportInput(compactReport()) },
-    { name: "report.html", data: () => renderReport(compactReport()) },
+    { name: "report.html", data: () => reportPage().html() },
   ];
   return { files, summary };
 }

@@ -1,0 +1,28 @@
+import { existsSync } from "node:fs";
+import { fileURLToPath } from "node:url";
+import { Worker } from "node:worker_threads";
+import type { ReportInput } from "./model.js";
+import { renderReport } from "./render.js";
+
+const workerUrl = new URL("./renderWorker.js", import.meta.url);
+
+/**
+ * Starts rendering report.html from `input` in a worker thread (when the compiled worker is
+ * there: the built library, dist/), so the caller can write other files meanwhile; otherwise,
+ * or if the worker fails, the page is rendered on this thread when awaited. The input is
+ * copied to the worker (a compacted input is a few megabytes). Never rejects before it is
+ * awaited: a failure surfaces from `html()`.
+ * @example const page = reportHtmlInBackground(compact); ...; await writeFile("report.html", await page.html());
+ */
+export function reportHtmlInBackground(input: ReportInput): { html: () => Promise<string> } {
+  const here = (): string => renderReport(input);
+  if (!existsSync(fileURLToPath(workerUrl))) return { html: async () => here() };
+  const settled = new Promise<string | undefined>((resolve) => {
+    const w = new Worker(workerUrl, { workerData: input });
+    w.once("message", (m: string) => resolve(m));
+    // A failed worker leaves the work to this thread.
+    w.once("error", () => resolve(undefined));
+    w.once("exit", () => resolve(undefined));
+  });
+  return { html: async () => (await settled) ?? here() };
+}
