@@ -6,7 +6,7 @@
  * Every feature has a `layer` property: site, leg, waypoint, flag, takeoff,
  * keepOut (a zone as drawn) and keepOutBuffer (a zone grown by its buffer).
  */
-import { rewind } from "@turf/turf";
+import { rewind } from "@turf/rewind";
 import type { Feature, FeatureCollection, Geometry, MultiPolygon, Polygon, Position } from "geojson";
 import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
 import { legLines, roundDeg, roundM, wgs84Polygons, type PlanExportInput } from "./layers.js";

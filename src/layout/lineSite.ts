@@ -17,7 +17,8 @@
  * with turf's `union`, which is planar polygon clipping and works on metres.
  */
 import type { MultiPolygon, Polygon, Position } from "geojson";
-import { featureCollection, polygon as turfPolygon, union } from "@turf/turf";
+import { featureCollection, polygon as turfPolygon } from "@turf/helpers";
+import { union } from "@turf/union";
 import { InputError } from "../errors.js";
 import type { LocalFrame } from "../geo/frame.js";
 import type { Site, XY } from "./types.js";

@@ -8,7 +8,8 @@
  * in the local frame, the area kept to 0.1 %.
  */
 import type { MultiPolygon, Polygon, Position } from "geojson";
-import { featureCollection, intersect, polygon as turfPolygon } from "@turf/turf";
+import { featureCollection, polygon as turfPolygon } from "@turf/helpers";
+import { intersect } from "@turf/intersect";
 import { InputError } from "../errors.js";
 import type { LocalFrame } from "../geo/frame.js";
 import { normaliseLonDeg } from "../geo/longitude.js";

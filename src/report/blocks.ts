@@ -1,5 +1,6 @@
 /** The plan's blocks as the report map draws them: each block's extent and take-off point. */
-import { featureCollection, polygon as turfPolygon, union } from "@turf/turf";
+import { featureCollection, polygon as turfPolygon } from "@turf/helpers";
+import { union } from "@turf/union";
 import type { XY } from "../layout/types.js";
 import type { ReportBlock, ReportLeg, TakeoffFrom } from "./model.js";
 import { convexHull } from "./hull.js";

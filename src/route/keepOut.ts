@@ -1,4 +1,4 @@
-import { intersect } from "@turf/turf";
+import { intersect } from "@turf/intersect";
 import type { MultiPolygon, Polygon } from "geojson";
 import { InputError } from "../errors.js";
 import type { XY } from "../layout/types.js";
