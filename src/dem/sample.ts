@@ -112,6 +112,7 @@ export function extremaInRadius(
   const { width: w, height: h, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const r2 = radiusM * radiusM;
+  const chord = new Float64Array(2);
   for (let i = 0; i < xs.length; i++) {
     const px = xs[i];
     const py = ys[i];
@@ -129,19 +130,9 @@ export function extremaInRadius(
       bad = discLeavesGrid(w, h, x0, y0, dx, dy, px, py, r2, rLo, rHi, pc, pr);
     }
     for (let r = rLo; r <= rHi && !bad; r++) {
-      const ddy = y0 + (r + 0.5) * dy - py;
-      const rem = r2 - ddy * ddy;
-      let ca = Infinity;
-      let cb = -Infinity;
-      if (rem >= 0) {
-        const half = Math.sqrt(rem);
-        ca = Math.ceil((px - half - x0) / dx - 0.5);
-        cb = Math.floor((px + half - x0) / dx - 0.5);
-      }
-      if (r === pr) {
-        ca = Math.min(ca, pc);
-        cb = Math.max(cb, pc);
-      }
+      rowChord(x0, y0, dx, dy, px, py, r2, r, pc, pr, chord);
+      const ca = chord[0];
+      const cb = chord[1];
       if (ca > cb) continue;
       acc[0] = mx;
       acc[1] = mn;
@@ -180,24 +171,36 @@ export function discOffGrid(grid: DemGrid, px: number, py: number, radiusM: numb
 function discLeavesGrid(
   w: number, h: number, x0: number, y0: number, dx: number, dy: number, px: number, py: number, r2: number, rLo: number, rHi: number, pc: number, pr: number,
 ): boolean {
+  const chord = new Float64Array(2);
   for (let r = rLo; r <= rHi; r++) {
-    const ddy = y0 + (r + 0.5) * dy - py;
-    const rem = r2 - ddy * ddy;
-    let ca = Infinity;
-    let cb = -Infinity;
-    if (rem >= 0) {
-      const half = Math.sqrt(rem);
-      ca = Math.ceil((px - half - x0) / dx - 0.5);
-      cb = Math.floor((px + half - x0) / dx - 0.5);
-    }
-    if (r === pr) {
-      ca = Math.min(ca, pc);
-      cb = Math.max(cb, pc);
-    }
-    if (ca > cb) continue;
-    if (r < 0 || r >= h || ca < 0 || cb >= w) return true;
+    rowChord(x0, y0, dx, dy, px, py, r2, r, pc, pr, chord);
+    if (chord[0] > chord[1]) continue;
+    if (r < 0 || r >= h || chord[0] < 0 || chord[1] >= w) return true;
   }
   return false;
+}
+
+/**
+ * The columns [out[0], out[1]] of row r whose centres lie within the disc of squared
+ * radius r2 around (px, py), the centre's own cell (pc, pr) always included; empty
+ * (out[0] > out[1]) when none. One rounding for extremaInRadius and discLeavesGrid.
+ */
+function rowChord(x0: number, y0: number, dx: number, dy: number, px: number, py: number, r2: number, r: number, pc: number, pr: number, out: Float64Array): void {
+  const ddy = y0 + (r + 0.5) * dy - py;
+  const rem = r2 - ddy * ddy;
+  let ca = Infinity;
+  let cb = -Infinity;
+  if (rem >= 0) {
+    const half = Math.sqrt(rem);
+    ca = Math.ceil((px - half - x0) / dx - 0.5);
+    cb = Math.floor((px + half - x0) / dx - 0.5);
+  }
+  if (r === pr) {
+    ca = Math.min(ca, pc);
+    cb = Math.max(cb, pc);
+  }
+  out[0] = ca;
+  out[1] = cb;
 }
 
 /**

@@ -2,11 +2,8 @@ import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect } from "../dem/sample.js";
 import { zoneExtremaOnAxis } from "./zoneExtremaAxis.js";
 import { SlidingExtrema } from "./slidingExtrema.js";
+import { EDGE_M, testCell } from "./zoneCell.js";
 
-/** Rounding margin, metres: cells this close to a zone edge are settled by extremaInOrientedRect's own test. */
-const EDGE_M = 1e-6;
-/** extremaInOrientedRect's own slack on its edges. */
-const RECT_EPS = 1e-9;
 
 /**
  * Max and min ground over each station's zone, exactly as extremaInOrientedRect
@@ -158,29 +155,6 @@ export function zoneExtremaAlongLine(
     outMax[i] = bad ? NaN : acc[0];
     outMin[i] = bad ? NaN : acc[1];
   }
-}
-
-/**
- * extremaInOrientedRect's own test for cell k and the zone of the point (px, py): false when
- * the cell is inside and nodata, else true, with its height folded into acc (max, min) if inside.
- */
-function testCell(
-  grid: DemGrid, k: number, px: number, py: number, ax: number, ay: number, bx: number, by: number,
-  HA: number, HC: number, acc: Float64Array,
-): boolean {
-  const { width: w, heights } = grid;
-  const { x0, y0, dx, dy } = grid.transform;
-  const r = Math.floor(k / w), c = k - r * w;
-  const rx = x0 + (c + 0.5) * dx - px;
-  const ry = y0 + (r + 0.5) * dy - py;
-  const along = rx * ax + ry * ay;
-  const across = rx * bx + ry * by;
-  if (Math.abs(along) > HA + RECT_EPS || Math.abs(across) > HC + RECT_EPS) return true;
-  const z = heights[k];
-  if (z !== z) return false;
-  if (z > acc[0]) acc[0] = z;
-  if (z < acc[1]) acc[1] = z;
-  return true;
 }
 
 /**

@@ -1,11 +1,8 @@
 import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect } from "../dem/sample.js";
 import { SlidingExtrema } from "./slidingExtrema.js";
+import { EDGE_M, testCell } from "./zoneCell.js";
 
-/** Rounding margin, metres (as zoneExtremaAlongLine): cells this close to a zone edge get the rectangle test itself. */
-const EDGE_M = 1e-6;
-/** extremaInOrientedRect's own slack on its edges. */
-const RECT_EPS = 1e-9;
 
 /**
  * zoneExtremaAlongLine for a leg along a grid axis (east-west: uy = 0, or
@@ -133,6 +130,7 @@ export function zoneExtremaOnAxis(
   const edgeLanes: number[] = [];
   for (let l = l0; l <= l1; l++) if (laneEdge[l]) edgeLanes.push(l);
   const window = new SlidingExtrema(gMax, gMin);
+  const acc = new Float64Array(2);
   let lo = 0, hi = 0, eLo = 0, eHi = 0;
   const extX = Math.abs(ax) * HA + Math.abs(bx) * HC;
   const extY = Math.abs(ay) * HA + Math.abs(by) * HC;
@@ -153,26 +151,15 @@ export function zoneExtremaOnAxis(
     while (eHi < m && ga[eHi] <= t[i] + HA + 2 * EDGE_M) eHi++;
     if (!inside) { one(i); continue; }
     let bad = nanBefore[hi] - nanBefore[lo] > 0;
-    let mx = lo < hi ? window.max() : -Infinity;
-    let mn = lo < hi ? window.min() : Infinity;
+    // acc: the zone's max and min so far.
+    acc[0] = lo < hi ? window.max() : -Infinity;
+    acc[1] = lo < hi ? window.min() : Infinity;
     const pc = Math.floor((px - x0) / dx), pr = Math.floor((py - y0) / dy);
     const z0 = heights[pr * w + pc];
     if (z0 !== z0) bad = true;
-    else { if (z0 > mx) mx = z0; if (z0 < mn) mn = z0; }
+    else { if (z0 > acc[0]) acc[0] = z0; if (z0 < acc[1]) acc[1] = z0; }
     // The rectangle test itself, for one cell (false: a nodata cell inside the zone).
-    const test = (k: number): boolean => {
-      const r = Math.floor(k / w), c = k - r * w;
-      const rx = x0 + (c + 0.5) * dx - px;
-      const ry = y0 + (r + 0.5) * dy - py;
-      const along = rx * ax + ry * ay;
-      const across = rx * bx + ry * by;
-      if (Math.abs(along) > HA + RECT_EPS || Math.abs(across) > HC + RECT_EPS) return true;
-      const z = heights[k];
-      if (z !== z) return false;
-      if (z > mx) mx = z;
-      if (z < mn) mn = z;
-      return true;
-    };
+    const test = (k: number): boolean => testCell(grid, k, px, py, ax, ay, bx, by, HA, HC, acc);
     // Groups near the window's ends: every band cell of them.
     const testGroup = (j: number): boolean => {
       const base = groups[j] * gStride;
@@ -186,8 +173,8 @@ export function zoneExtremaOnAxis(
       const off = edgeLanes[q] * lStride;
       for (let j = eLo; j < eHi && !bad; j++) if (!test(groups[j] * gStride + off)) bad = true;
     }
-    outMax[i] = bad ? NaN : mx;
-    outMin[i] = bad ? NaN : mn;
+    outMax[i] = bad ? NaN : acc[0];
+    outMin[i] = bad ? NaN : acc[1];
   }
   return true;
 }
