@@ -39,6 +39,8 @@ export function exposuresFromLegs(legs: readonly AssessedLeg[], triggerM: number
   checkTrigger(triggerM);
   const out: Exposure[] = [];
   for (const leg of legs) {
+    // Photos need the waypoints' altitudes.
+    if (leg.waypoints.length === 0) continue;
     const lat = photoLattice(leg, triggerM, opts);
     if (!lat) continue;
     const wps = leg.waypoints;
@@ -63,7 +65,7 @@ export function exposuresFromLegs(legs: readonly AssessedLeg[], triggerM: number
 /**
  * Where a strip leg's photos fall: at s = s0 + k * triggerM from the leg start for
  * k = 0..n, except where `present[k]` is 0 (inside a no-photo interval). Null for
- * legs that take no photos (not a strip, zero length, no waypoints).
+ * legs that take no photos (not a strip, zero length).
  */
 export interface PhotoLattice {
   ux: number;
@@ -78,13 +80,17 @@ export interface PhotoLattice {
  * The photo positions of one leg, the rule exposuresFromLegs places photos by.
  * @example const lat = photoLattice(leg, 8.8); lat && lat.s0 + lat.n * 8.8 <= lat.lengthM
  */
-export function photoLattice(leg: AssessedLeg, triggerM: number, opts: ExposureOptions = {}): PhotoLattice | null {
+export function photoLattice(
+  leg: Pick<AssessedLeg, "kind" | "from" | "to" | "photoPhaseM" | "noPhotoIntervals">,
+  triggerM: number,
+  opts: ExposureOptions = {},
+): PhotoLattice | null {
   checkTrigger(triggerM);
   if (leg.kind !== "strip") return null;
   const ddx = leg.to[0] - leg.from[0];
   const ddy = leg.to[1] - leg.from[1];
   const len = Math.hypot(ddx, ddy);
-  if (!(len > 0) || leg.waypoints.length === 0) return null;
+  if (!(len > 0)) return null;
   const phase = opts.phase ?? "start";
   // Half a millimetre of slack keeps a photo that lands on the leg end despite rounding.
   const own = leg.photoPhaseM;
@@ -94,6 +100,16 @@ export function photoLattice(leg: AssessedLeg, triggerM: number, opts: ExposureO
   const present = new Uint8Array(Math.max(0, n + 1));
   for (let k = 0; k <= n; k++) present[k] = inAnyInterval(s0 + k * triggerM, gaps) ? 0 : 1;
   return { ux: ddx / len, uy: ddy / len, lengthM: len, s0, n, present };
+}
+
+/**
+ * Along-track distance of the first photo on a piece of a line starting `s0` metres along it,
+ * when the line's photos fall at firstM + k x everyM (a line cut at a block seam keeps them).
+ * @example photoPhaseOn({ firstM: 3, everyM: 10 }, 25) // 8: photos at 33, 43, ... along the line
+ */
+export function photoPhaseOn(grid: { firstM: number; everyM: number }, s0: number): number {
+  const { firstM, everyM } = grid;
+  return (((firstM - s0) % everyM) + everyM) % everyM;
 }
 
 function checkTrigger(triggerM: number): void {

@@ -171,20 +171,9 @@ function sortKey(u: number): number {
   return (u ^ ((u >> 31) | 0x80000000)) >>> 0;
 }
 
-
 /**
- * Minimum and median (type 7, as above) of small non-negative integers, by counting.
- * Only entries with `include[i] === 1` count. Empty gives NaN.
- * @example countStats(images, inSiteWithData) // { min: 4, median: 9 }
- */
-export function countStats(values: Uint16Array, include: Uint8Array): { min: number; median: number } {
-  const hist = new Float64Array(65536);
-  for (let i = 0; i < values.length; i++) if (include[i] === 1) hist[values[i]]++;
-  return countStatsOfHistogram(hist);
-}
-
-/**
- * countStats from the counts themselves: hist[v] = how many entries equal v.
+ * Minimum and median (type 7, as above) of small non-negative integers from their counts:
+ * hist[v] = how many entries equal v. No entries gives NaN.
  * @example countStatsOfHistogram(Float64Array.of(0, 2, 1)) // { min: 1, median: 1 }
  */
 export function countStatsOfHistogram(hist: Float64Array): { min: number; median: number } {

@@ -6,7 +6,7 @@
 import type { AssessmentRasters } from "../assess/types.js";
 import type { OutputFile } from "./atomicDir.js";
 import { planGeoJson } from "./geojson.js";
-import { assessmentGeoTiff, type RasterCrs } from "./geotiffRasters.js";
+import { assessmentGeoTiffChunks, type RasterCrs } from "./geotiffRasters.js";
 import { planGpx } from "./gpx.js";
 import { planKml } from "./kml.js";
 import type { PlanExportInput } from "./layers.js";
@@ -33,7 +33,7 @@ export function planOutputFiles(i: PlanOutputsInput): OutputFile[] {
   const r = i.rasters;
   if (r) {
     for (const name of ["gsd.tif", "images.tif", "flags.tif"] as const) {
-      files.push({ name, data: () => assessmentGeoTiff(r.grid, r.crs, name) });
+      files.push({ name, data: () => assessmentGeoTiffChunks(r.grid, r.crs, name) });
     }
   }
   files.push({ name: "summary.json", data: () => summaryJson(i.summary) });

@@ -15,7 +15,7 @@ import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout } from "../layout/types.js";
 import type { CeilingReference } from "../solve/types.js";
 import { footprintPixels } from "../assess/coverage.js";
-import { photoLattice, type AssessedLeg } from "../assess/exposures.js";
+import { photoLattice, photoPhaseOn } from "../assess/exposures.js";
 import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage.js";
 import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
@@ -82,10 +82,10 @@ export function constantAltitudeBaseline(
     // Photos every trigger distance from each strip's start (or on the line's own photo grid
     // where a block seam cut it), as the assessment places them on the flown strips.
     const leg = {
-      kind: "strip", from: l.from, to: l.to, waypoints: [{}],
+      kind: l.kind, from: l.from, to: l.to,
       ...(l.noPhotoIntervals ? { noPhotoIntervals: l.noPhotoIntervals } : {}),
-      ...(l.photoGrid ? { photoPhaseM: ((l.photoGrid.firstM % l.photoGrid.everyM) + l.photoGrid.everyM) % l.photoGrid.everyM } : {}),
-    } as unknown as AssessedLeg;
+      ...(l.photoGrid ? { photoPhaseM: photoPhaseOn(l.photoGrid, 0) } : {}),
+    };
     const lattice = photoLattice(leg, o.triggerM);
     if (lattice) strips.push({ from: l.from, lattice });
   }

@@ -36,7 +36,7 @@ import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan } from "../assess/assess.js";
-import type { AssessedLeg } from "../assess/exposures.js";
+import { photoPhaseOn, type AssessedLeg } from "../assess/exposures.js";
 import type { Assessment } from "../assess/types.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
@@ -834,8 +834,7 @@ function carryNoPhotoIntervals(solved: SolvedLeg[], layoutLegs: LayoutLeg[]): vo
       if (off > 0.01 || s0 < -0.01 || s1 > src.lengthM + 0.01) continue;
       if (src.photoGrid) {
         // A piece of a line cut at a block seam keeps the line's photo positions.
-        const { firstM, everyM } = src.photoGrid;
-        leg.photoPhaseM = (((firstM - s0) % everyM) + everyM) % everyM;
+        leg.photoPhaseM = photoPhaseOn(src.photoGrid, s0);
       }
       const shifted = (src.noPhotoIntervals ?? [])
         .map(([a, b]) => [Math.max(0, a - s0), Math.min(leg.lengthM, b - s0)] as [number, number])
