@@ -36,16 +36,50 @@ export type CellMask = Uint8Array | Uint16Array;
 export function orderStatistics(values: Float32Array, ranksFor: (n: number) => number[], mask?: CellMask): { n: number; stats: number[] } {
   // Below this many values the radix table (65,536 bins) costs more than selecting on a copy.
   if (values.length <= SELECT_BELOW) return statsBySelection(values, ranksFor, mask);
-  const keys = new Uint32Array(values.buffer, values.byteOffset, values.length);
-  const hist = new Uint32Array(65536);
+  const keys = float32Keys(values);
+  const hist = new Uint32Array(RADIX_BINS);
   let n = 0;
   for (let i = 0; i < keys.length; i++) {
     const v = values[i];
     if (v !== v || (mask !== undefined && mask[i] === 0)) continue;
-    hist[sortKey(keys[i]) >>> 16]++;
+    hist[radixBin(keys[i])]++;
     n++;
   }
+  return orderStatisticsOfRadix(values, { hist, n }, ranksFor, mask);
+}
+
+/** Bins of the first radix pass (the 16 high bits of a float32's sort key). */
+export const RADIX_BINS = 65536;
+
+/**
+ * The first radix pass made elsewhere, in a loop over the cells that had other work to do:
+ * hist[radixBin(key)] counted for each of the n included values.
+ */
+export interface RadixHistogram {
+  hist: Uint32Array;
+  n: number;
+}
+
+/** The raw bits of each float32 (no copy), for radixBin. */
+export function float32Keys(values: Float32Array): Uint32Array {
+  return new Uint32Array(values.buffer, values.byteOffset, values.length);
+}
+
+/** The first-pass bin of a float32's raw bits: bins order like the values (NaN excluded by the caller). */
+export function radixBin(bits: number): number {
+  return sortKey(bits) >>> 16;
+}
+
+/**
+ * orderStatistics from its first pass made by the caller (`radix`: counts of exactly the
+ * values `mask` and NaN leave in): the second pass gathers the wanted bins' values and
+ * selects within them. The same statistics as orderStatistics.
+ * @example orderStatisticsOfRadix(v, { hist, n }, (m) => [m >> 1])
+ */
+export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogram, ranksFor: (n: number) => number[], mask?: CellMask): { n: number; stats: number[] } {
+  const { hist, n } = radix;
   if (n === 0) return { n, stats: [] };
+  const keys = float32Keys(values);
   const ranks = ranksFor(n);
   // For each wanted rank: its high-16 bin and its rank within the bin, in one walk over the
   // bins with the ranks taken in ascending order.
@@ -64,7 +98,7 @@ export function orderStatistics(values: Float32Array, ranksFor: (n: number) => n
   // Second pass: gather the values of those bins only, then select within each bin (a bin
   // holds 1/128 of an octave, a small share of a plan's GSD values).
   const bins = [...new Set(binOf)];
-  const slot = new Int32Array(65536).fill(-1);
+  const slot = new Int32Array(RADIX_BINS).fill(-1);
   const gathered = bins.map((b, k) => {
     slot[b] = k;
     return new Float32Array(hist[b]);
@@ -76,6 +110,10 @@ export function orderStatistics(values: Float32Array, ranksFor: (n: number) => n
     const k = slot[sortKey(keys[i]) >>> 16];
     if (k >= 0) gathered[k][fill[k]++] = v;
   }
+  // A first pass counted on other cells than `mask` selects would select wrongly: refuse it.
+  bins.forEach((b, k) => {
+    if (fill[k] !== hist[b]) throw new Error(`radix histogram does not match the values: bin ${b} counted ${hist[b]}, found ${fill[k]}`);
+  });
   const stats = new Array<number>(ranks.length);
   bins.forEach((bin, k) => {
     const a = gathered[k];

@@ -1,6 +1,6 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
 import { FLAG_COARSE, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
-import { countStatsOfHistogram, quantilesFloat32 } from "./quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf, type RadixHistogram } from "./quantiles.js";
 
 /**
  * Summary figures of an assessment over the site's cells.
@@ -28,9 +28,14 @@ export interface StatsInput {
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
 
-function gsdStats(values: Float32Array): GsdStats {
-  const [min, p5, median, p95, max] = quantilesFloat32(values, QUANTILES);
+function gsdStats(values: Float32Array, radix?: RadixHistogram): GsdStats {
+  const [min, p5, median, p95, max] = radix ? quantilesOfRadix(values, radix) : quantilesFloat32(values, QUANTILES);
   return { min, p5, median, p95, max };
+}
+
+function quantilesOfRadix(values: Float32Array, radix: RadixHistogram): number[] {
+  const { n, stats } = orderStatisticsOfRadix(values, radix, (m) => ranksOf(m, QUANTILES));
+  return n === 0 ? QUANTILES.map(() => NaN) : interpolate(n, QUANTILES, stats);
 }
 
 function pct(part: number, whole: number): number {
@@ -68,12 +73,16 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   const fill = start.slice();
   // Seen cells in band, per strip: no coarse/fine bit and a GSD.
   const inBandSeen = new Float64Array(maxStrip + 1);
+  // The same pass makes the first radix pass of the site's GSD quantiles (quantiles.ts).
+  const gsdBits = float32Keys(gsdCm);
+  const radixHist = new Uint32Array(RADIX_BINS);
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     const g = gsdCm[i];
     if (g !== g) continue;
     const s = nadirStrip[i];
     grouped[fill[s]++] = g;
+    radixHist[radixBin(gsdBits[i])]++;
     if ((flags[i] & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[s]++;
   }
 
@@ -121,7 +130,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   return {
     siteCells: site.all,
     cellAreaM2,
-    gsdCm: gsdStats(grouped),
+    gsdCm: gsdStats(grouped, { hist: radixHist, n: grouped.length }),
     withinBandPct: pct(inBand, site.all),
     images: countStatsOfHistogram(imageHist),
     flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all) },

@@ -19,7 +19,9 @@ import { photoLattice, photoPhaseOn } from "../assess/exposures.js";
 import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage.js";
 import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
-import { countStatsOfHistogram, interpolate, orderStatistics, quantilesFloat32, ranksOf } from "../assess/quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf } from "../assess/quantiles.js";
+import { histogramCounter } from "../report/histogram.js";
+import type { Histogram } from "../report/model.js";
 
 export interface CeilingBreaches {
   cells: number;
@@ -36,6 +38,8 @@ export interface Baseline {
    * not the values), so the figures do not hold memory through the outputs.
    */
   gsdValuesCm: () => Float32Array;
+  /** The report's histogram of those values on the given bin edges (report/histogram.ts), without the array. */
+  gsdHistogram: (edgesCm: number[]) => Histogram;
   stats: {
     gsdCm: GsdStats;
     withinBandPct: number;
@@ -46,7 +50,7 @@ export interface Baseline {
     flaggedByKind: Record<string, { cells: number; areaM2: number; pct: number }>;
     ceilingBreaches: CeilingBreaches;
   };
-  /** Our plan's site cells above the ceiling by the same measure (expected none). */
+  /** Our plan's site cells above the ceiling by the same measure (expected none; ceilingBreaches counts alike). */
   planCeilingBreaches: CeilingBreaches;
 }
 
@@ -92,42 +96,54 @@ export function constantAltitudeBaseline(
   const { alongPx, acrossPx } = footprintPixels(camera);
   const images = latticeImageCounts(grid, inSite, strips, A, o.triggerM, (camera.ifov * alongPx) / 2, (camera.ifov * acrossPx) / 2, o.threads);
 
-  // One pass over the site: GSD, flags (the assessment's effect bits) and every count.
+  // One pass over the site: GSD, flags (the assessment's effect bits), every count, the
+  // plan's own ceiling breaches and the first radix pass of the GSD quantiles (below).
   const n = inSite.length;
   const gsdPerM = camera.ifov * 100;
   const lo = requirement.lowGsdM * 100 * (1 - BAND_SLACK);
   const hi = requirement.highGsdM * 100 * (1 + BAND_SLACK);
   const { heights, valid } = grid;
+  const heightBits = float32Keys(heights);
+  const planGsd = o.planRasters.gsdCm;
   let seen = 0;
   const seenBits = new Uint8Array((n + 7) >> 3);
-  for (let i = 0; i < n; i++) {
-    if (inSite[i] === 1 && images[i] > 0) {
-      seen++;
-      seenBits[i >> 3] |= 1 << (i & 7);
-    }
-  }
   const imageHist = new Float64Array(65536);
   const kindCells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
   const flagHist = new Float64Array(FLAG_VALUES);
+  const seenGround = new Uint32Array(RADIX_BINS);
+  let seenWithGround = 0;
   let siteCells = 0;
   let flagged = 0;
   let inBand = 0;
   let breaches = 0;
+  let planBreaches = 0;
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     siteCells++;
+    const c = images[i];
+    const z = heights[i];
+    if (c > 0) {
+      seen++;
+      seenBits[i >> 3] |= 1 << (i & 7);
+      // NaN ground is left out, as orderStatistics leaves it out.
+      if (z === z) {
+        seenGround[radixBin(heightBits[i])]++;
+        seenWithGround++;
+      }
+    }
+    const pg = planGsd[i];
+    if (pg > 0 && overCeiling(pg, z, camera, o)) planBreaches++;
     let f: number;
     if (valid[i] === 0) f = FLAG_NODATA;
     else {
-      const c = images[i];
       imageHist[c]++;
       f = c < o.minImages ? FLAG_FEW_IMAGES : 0;
       if (c > 0) {
-        const g = Math.fround((A - heights[i]) * gsdPerM);
+        const g = Math.fround((A - z) * gsdPerM);
         if (g > hi) f |= FLAG_COARSE;
         else if (g < lo) f |= FLAG_FINE;
         else inBand++;
-        if (overCeiling(g, heights[i], camera, o)) breaches++;
+        if (overCeiling(g, z, camera, o)) breaches++;
       }
     }
     flagHist[f]++;
@@ -141,8 +157,22 @@ export function constantAltitudeBaseline(
   // GSD falls as the ground rises (and its float32 rounding keeps that order), so the r-th
   // smallest GSD is that of the (m - 1 - r)-th lowest seen ground: no array of GSD values.
   const QS = [0, 0.05, 0.5, 0.95, 1];
-  const z = orderStatistics(heights, (m) => ranksOf(m, QS).map((r) => m - 1 - r), images);
-  const [min, p5, median, p95, max] = z.n === 0 ? QS.map(() => NaN) : interpolate(z.n, QS, z.stats.map((g) => Math.fround((A - g) * gsdPerM)));
+  const zs = orderStatisticsOfRadix(heights, { hist: seenGround, n: seenWithGround }, (m) => ranksOf(m, QS).map((r) => m - 1 - r), images);
+  const [min, p5, median, p95, max] = zs.n === 0 ? QS.map(() => NaN) : interpolate(zs.n, QS, zs.stats.map((g) => Math.fround((A - g) * gsdPerM)));
+  /** The seen cells' GSD, made chunk by chunk into `each` (cell order). */
+  const seenGsdChunks = (each: (chunk: Float32Array) => void): void => {
+    const chunk = new Float32Array(Math.min(seen, 1 << 16));
+    let k = 0;
+    for (let i = 0; i < n; i++) {
+      if ((seenBits[i >> 3] & (1 << (i & 7))) === 0) continue;
+      chunk[k++] = (A - heights[i]) * gsdPerM;
+      if (k === chunk.length) {
+        each(chunk);
+        k = 0;
+      }
+    }
+    if (k > 0) each(chunk.subarray(0, k));
+  };
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
   const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);
   const flaggedByKind: Baseline["stats"]["flaggedByKind"] = {};
@@ -155,8 +185,17 @@ export function constantAltitudeBaseline(
     medianGroundM,
     gsdValuesCm: () => {
       const out = new Float32Array(seen);
-      for (let i = 0, j = 0; i < n; i++) if (seenBits[i >> 3] & (1 << (i & 7))) out[j++] = (A - heights[i]) * gsdPerM;
+      let j = 0;
+      seenGsdChunks((chunk) => {
+        out.set(chunk, j);
+        j += chunk.length;
+      });
       return out;
+    },
+    gsdHistogram: (edgesCm) => {
+      const counter = histogramCounter(edgesCm);
+      seenGsdChunks((chunk) => counter.add(chunk, null));
+      return counter.result();
     },
     stats: {
       gsdCm: { min, p5, median, p95, max },
@@ -167,7 +206,7 @@ export function constantAltitudeBaseline(
       flaggedByKind,
       ceilingBreaches: { cells: breaches, areaM2: breaches * cellAreaM2 },
     },
-    planCeilingBreaches: ceilingBreaches(grid, o.planRasters, camera, o),
+    planCeilingBreaches: { cells: planBreaches, areaM2: planBreaches * cellAreaM2 },
   };
 }
 

@@ -140,7 +140,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
     },
     planCeilingBreaches: b.planCeilingBreaches,
     gsdHistogram: histogram(planRasters.gsdCm, planRasters.inSite, edges),
-    baselineHistogram: histogram(b.gsdValuesCm(), null, edges),
+    baselineHistogram: b.gsdHistogram(edges),
     files: {
       dem: (Array.isArray(run.options.dem) ? run.options.dem : [run.options.dem]).map((d) => path.basename(d)).join(", "),
       area: path.basename(run.options.area),

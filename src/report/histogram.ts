@@ -62,6 +62,18 @@ export function histogram(values: ArrayLike<number>, mask: ArrayLike<number> | n
 
 /** The typed loop of `histogram`: same bins, same counts. */
 function histogramFloat32(values: Float32Array, mask: Uint8Array | null, edgesCm: number[]): Histogram {
+  const counter = histogramCounter(edgesCm);
+  counter.add(values, mask);
+  return counter.result();
+}
+
+/**
+ * `histogram` of float32 values that come in chunks (values made on the fly, never held
+ * all at once): add each chunk, then read the result. The same bins and counts as one
+ * `histogram` call over all the chunks end to end.
+ * @example const c = histogramCounter([2, 2.5, 3]); c.add(chunk, null); c.result().counts
+ */
+export function histogramCounter(edgesCm: number[]): { add: (values: Float32Array, mask: Uint8Array | null) => void; result: () => Histogram } {
   const n = edgesCm.length - 1;
   const nb = Math.max(n, 0);
   const edges = Float64Array.from(edgesCm);
@@ -76,22 +88,32 @@ function histogramFloat32(values: Float32Array, mask: Uint8Array | null, edgesCm
   const last = n - 1;
   let under = 0;
   let over = 0;
-  const len = values.length;
-  for (let i = 0; i < len; i++) {
-    if (mask !== null && mask[i] === 0) continue;
-    const v = values[i];
-    // NaN fails every comparison below and is skipped, as are the infinities.
-    if (v < lo) {
-      if (v > -Infinity) under++;
-    } else if (v < hi) {
-      let b = ((v - lo) * inv) | 0;
-      if (b > last) b = last;
-      if (v < edges[b]) b--;
-      else if (v >= edges[b + 1]) b++;
-      bins[b + 1]++;
-    } else if (v < Infinity) over++;
-  }
-  const counts = new Array<number>(nb);
-  for (let b = 0; b < nb; b++) counts[b] = bins[b + 1];
-  return { edgesCm, counts, under, over };
+  const add = (values: Float32Array, mask: Uint8Array | null): void => {
+    const len = values.length;
+    // Local tallies in the loop (closure variables would be written back every cell).
+    let u = 0;
+    let o = 0;
+    for (let i = 0; i < len; i++) {
+      if (mask !== null && mask[i] === 0) continue;
+      const v = values[i];
+      // NaN fails every comparison below and is skipped, as are the infinities.
+      if (v < lo) {
+        if (v > -Infinity) u++;
+      } else if (v < hi) {
+        let b = ((v - lo) * inv) | 0;
+        if (b > last) b = last;
+        if (v < edges[b]) b--;
+        else if (v >= edges[b + 1]) b++;
+        bins[b + 1]++;
+      } else if (v < Infinity) o++;
+    }
+    under += u;
+    over += o;
+  };
+  const result = (): Histogram => {
+    const counts = new Array<number>(nb);
+    for (let b = 0; b < nb; b++) counts[b] = bins[b + 1];
+    return { edgesCm, counts, under, over };
+  };
+  return { add, result };
 }

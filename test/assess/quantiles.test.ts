@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { countStatsOfHistogram, quantilesFloat32 } from "../../src/assess/quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, radixBin } from "../../src/assess/quantiles.js";
 
 /**
  * Straightforward reference: sort, then interpolate linearly at h = (n - 1) p
@@ -62,6 +62,33 @@ describe("exact quantiles by radix selection", () => {
       const kept = Array.from(values).filter((_, i) => mask[i] !== 0);
       expect(quantilesFloat32(values, PS, mask)).toEqual(PS.map((p) => sortedQuantile(kept, p)));
     }
+  });
+
+  it("take a first pass made by the caller (radixBin over the included cells) and refuse one that does not match", () => {
+    const n = 120_001;
+    const values = new Float32Array(n);
+    const mask = new Uint8Array(n);
+    let seed = 4242;
+    for (let i = 0; i < n; i++) {
+      seed = (seed * 1103515245 + 12345) >>> 0;
+      values[i] = i % 11 === 0 ? NaN : -50 + (seed % 100003) / 97;
+      mask[i] = i % 4 === 0 ? 0 : 1;
+    }
+    const bits = float32Keys(values);
+    const hist = new Uint32Array(RADIX_BINS);
+    let m = 0;
+    for (let i = 0; i < n; i++) {
+      if (mask[i] === 0 || values[i] !== values[i]) continue;
+      hist[radixBin(bits[i])]++;
+      m++;
+    }
+    const ranks = (k: number) => [0, k >> 2, k >> 1, k - 1];
+    const got = orderStatisticsOfRadix(values, { hist, n: m }, ranks, mask);
+    expect(got).toEqual(orderStatistics(values, ranks, mask));
+    const sorted = Array.from(values).filter((v, i) => mask[i] !== 0 && v === v).sort((a, b) => a - b);
+    expect(got.stats).toEqual(ranks(sorted.length).map((r) => sorted[r]));
+    // Counted without the mask: the gathered bins overflow, and the call says so.
+    expect(() => orderStatisticsOfRadix(values, { hist, n: m }, ranks)).toThrow(/does not match/);
   });
 
   it("count stats: min and median of the included cells", () => {

@@ -9,6 +9,8 @@ import { straightTransitLeg } from "../../src/route/flights.js";
 import type { Layout, LayoutLeg, XY } from "../../src/layout/types.js";
 import type { Requirement } from "../../src/camera/types.js";
 import { genericCamera } from "../assess/helpers.js";
+import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
+import { ceilingBreaches } from "../../src/plan/baseline.js";
 
 /**
  * The constant-altitude comparison is computed directly (GSD from each cell's own ground,
@@ -75,12 +77,17 @@ describe("constant-altitude baseline computed directly", () => {
       const layout = layoutAt(headingDeg);
       const inSite = rasteriseSite(site, W, H, grid.transform);
       const plan = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
-      const b = constantAltitudeBaseline(grid, layout, camera, requirement, {
-        targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" }, takeoffGroundM: 0, planRasters: plan,
-      });
+      const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0 };
+      const b = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters: plan });
       const swept = assessPlan(grid, site, assessedLegs(layout, b.altitudeAmslM), camera, requirement, {
         triggerM, minImages: 3, zoneHalfAcrossM: spacingM / 2, toWgs84: (x, y) => [x, y], nadirBy: "distance", polygons: false, threads: 1,
       });
+      // Given the swept constant-altitude plan as "the plan", its breaches (counted in the
+      // baseline's own pass) are ceilingBreaches' count of its rasters, and the baseline's own.
+      const again = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters: swept.rasters });
+      expect(again.planCeilingBreaches).toEqual(ceilingBreaches(grid, swept.rasters, camera, opts));
+      expect(again.planCeilingBreaches).toEqual(b.stats.ceilingBreaches);
+      expect(b.planCeilingBreaches.cells).toBe(0);
       // Image counts: the same for every cell.
       const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
       const images = latticeImageCounts(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
@@ -97,6 +104,9 @@ describe("constant-altitude baseline computed directly", () => {
       const seen = swept.rasters.gsdCm.filter((g, i) => inSite[i] && g === g);
       expect(b.gsdValuesCm().length).toBe(seen.length);
       expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(seen));
+      // The report's histogram of them, made without the array: the same counts as binning the values.
+      const edges = gsdBinEdges(requirement.lowGsdM * 100, requirement.highGsdM * 100, b.stats.gsdCm.min, b.stats.gsdCm.max, 60);
+      expect(b.gsdHistogram(edges)).toEqual(histogram(seen, null, edges));
       // The relief (about 60 m) under a 90 m flight puts some ground out of the band both ways.
       expect(s.flagged.byKind.coarse.cells).toBeGreaterThan(1000);
       expect(s.flagged.byKind.fine.cells).toBeGreaterThan(1000);

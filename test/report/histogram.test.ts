@@ -1,5 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
+import { gsdBinEdges, histogram, histogramCounter } from "../../src/report/histogram.js";
 import { seededRandom } from "../geo/projCli.js";
 
 /** A seeded generator (mulberry32), so a failure can be replayed. */
@@ -47,6 +47,12 @@ describe("histogram counts by the bin definition", () => {
     expect(b.under).toBeGreaterThan(0);
     expect(b.over).toBeGreaterThan(0);
     expect(b.counts.reduce((s, c) => s + c, 0) + b.under + b.over).toBe(n - 3);
+  });
+
+  it("values added in chunks (histogramCounter) count as one call over all of them", () => {
+    const c = histogramCounter(edges);
+    for (let at = 0; at < n; at += 777) c.add(values.subarray(at, at + 777), mask.subarray(at, at + 777));
+    expect(c.result()).toEqual(byDefinition(values, mask, edges));
   });
 
   it("plain arrays (the general loop) count the same", () => {
