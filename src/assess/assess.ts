@@ -45,6 +45,18 @@ export interface AssessOptions {
   keepOut?: { cuts: readonly { from: XY; to: XY }[]; footprintAcrossM: number; footprintAlongM: number };
   /** Keep the raster of each cell's nadir strip in the result (default false: only the statistics use it, and it is dropped). */
   keepNadirStrip?: boolean;
+  /** The site mask, when the caller has made it already (siteMaskFor with the same site and grid). */
+  inSite?: Uint8Array;
+}
+
+/**
+ * The site's cells on the grid (rasteriseSite), in shared memory where the banded passes
+ * will use threads, so they (and other workers) read it without a copy each.
+ * @example const inSite = siteMaskFor(grid, site.local); assessPlan(grid, site.local, legs, camera, req, { ...o, inSite })
+ */
+export function siteMaskFor(grid: Pick<DemGrid, "width" | "height" | "transform">, site: Polygon | MultiPolygon, threads?: number): Uint8Array {
+  const { width, height, transform } = grid;
+  return shareable(rasteriseSite(site, width, height, transform), bandThreads(width * height, 2, threads));
 }
 
 /**
@@ -75,8 +87,8 @@ export function assessPlan(
   const { width, height, transform } = grid;
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
 
-  // In shared memory from the start, so the banded passes' threads read it without a copy each.
-  const inSite = shareable(rasteriseSite(site, width, height, transform), bandThreads(width * height, 2, opts.threads));
+  const inSite = opts.inSite ?? siteMaskFor(grid, site, opts.threads);
+  if (inSite.length !== width * height) throw new Error(`site mask of ${inSite.length} cells for a ${width} x ${height} grid`);
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
   const { gsdCm, images, nadirStrip, flags } = computeCoverage(grid, inSite, exposures, camera, {
     nadirBy: opts.nadirBy,

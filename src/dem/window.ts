@@ -93,9 +93,9 @@ export async function readCells(source: DemSource, win: CellWindow): Promise<Dem
     ({ heights, valid } = await custom(win));
   } else {
     const { image } = demHandles(source);
-    // Shared memory: the assessment's worker threads read the heights in place (no copy).
+    // Shared memory: the assessment's and the comparison's worker threads read them in place (no copy).
     heights = new Float32Array(new SharedArrayBuffer(4 * width * height));
-    valid = new Uint8Array(width * height);
+    valid = new Uint8Array(new SharedArrayBuffer(width * height));
     if (!(await decodeWindowDirect(source, image, win, heights, valid))) {
       // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).
       let rasters: ArrayLike<number>[];

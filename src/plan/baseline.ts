@@ -77,9 +77,53 @@ export function constantAltitudeBaseline(
   requirement: Requirement,
   o: BaselineOptions,
 ): Baseline {
-  const inSite = o.planRasters.inSite;
-  const medianGroundM = medianSiteGround(grid, inSite);
-  const A = medianGroundM + o.targetHeightM;
+  const job = baselineJob(grid, layout, camera, requirement, o, o.planRasters.inSite);
+  return baselineOf(grid, camera, o, baselineFigures(job, o.threads), o.planRasters);
+}
+
+/**
+ * Everything the comparison's own figures need, as plain data and typed arrays, so a
+ * worker thread can make them (baselineBackground.ts) while the plan is still assessed.
+ */
+export interface BaselineJob {
+  grid: Pick<DemGrid, "width" | "height" | "heights" | "valid" | "transform" | "cellSizeM">;
+  inSite: Uint8Array;
+  strips: LatticeStrip[];
+  ifov: number;
+  /** Half footprint per metre of height, along and across the strip (ifov * pixels / 2). */
+  kAlong: number;
+  kAcross: number;
+  lowGsdM: number;
+  highGsdM: number;
+  targetHeightM: number;
+  triggerM: number;
+  minImages: number;
+  ceiling: BaselineOptions["ceiling"];
+  takeoffGroundM: number;
+}
+
+/** The comparison's figures, before the plan's own rasters are there to compare. */
+export interface BaselineFigures {
+  altitudeAmslM: number;
+  medianGroundM: number;
+  stats: Baseline["stats"];
+  /** A bit per cell: site cells some photo sees (cell order), and how many. */
+  seenBits: Uint8Array;
+  seen: number;
+}
+
+/**
+ * The job for a layout: the strips' photo lattices, as the assessment places photos.
+ * @example baselineFigures(baselineJob(grid, layout, camera, req, o, inSite))
+ */
+export function baselineJob(
+  grid: BaselineJob["grid"],
+  layout: Layout,
+  camera: Camera,
+  requirement: Pick<Requirement, "lowGsdM" | "highGsdM">,
+  o: Omit<BaselineOptions, "planRasters" | "threads">,
+  inSite: Uint8Array,
+): BaselineJob {
   const strips: LatticeStrip[] = [];
   for (const l of layout.legs) {
     if (l.kind !== "strip") continue;
@@ -94,17 +138,36 @@ export function constantAltitudeBaseline(
     if (lattice) strips.push({ from: l.from, lattice });
   }
   const { alongPx, acrossPx } = footprintPixels(camera);
-  const images = latticeImageCounts(grid, inSite, strips, A, o.triggerM, (camera.ifov * alongPx) / 2, (camera.ifov * acrossPx) / 2, o.threads);
+  const { width, height, heights, valid, transform, cellSizeM } = grid;
+  return {
+    grid: { width, height, heights, valid, transform, cellSizeM },
+    inSite, strips,
+    ifov: camera.ifov, kAlong: (camera.ifov * alongPx) / 2, kAcross: (camera.ifov * acrossPx) / 2,
+    lowGsdM: requirement.lowGsdM, highGsdM: requirement.highGsdM,
+    targetHeightM: o.targetHeightM, triggerM: o.triggerM, minImages: o.minImages, ceiling: o.ceiling, takeoffGroundM: o.takeoffGroundM,
+  };
+}
 
-  // One pass over the site: GSD, flags (the assessment's effect bits), every count, the
-  // plan's own ceiling breaches and the first radix pass of the GSD quantiles (below).
+/**
+ * The comparison's figures from its job: the altitude over the site's median ground, the
+ * image counts from the photo lattices (`threads` for them, see bandThreads) and one pass
+ * over the site for the rest.
+ * @example const f = baselineFigures(job); f.stats.withinBandPct
+ */
+export function baselineFigures(job: BaselineJob, threads?: number): BaselineFigures {
+  const { grid, inSite } = job;
+  const medianGroundM = medianSiteGround(grid.heights, inSite);
+  const A = medianGroundM + job.targetHeightM;
+  const images = latticeImageCounts(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, threads);
+
+  // One pass over the site: GSD, flags (the assessment's effect bits), every count and the
+  // first radix pass of the GSD quantiles (below).
   const n = inSite.length;
-  const gsdPerM = camera.ifov * 100;
-  const lo = requirement.lowGsdM * 100 * (1 - BAND_SLACK);
-  const hi = requirement.highGsdM * 100 * (1 + BAND_SLACK);
+  const gsdPerM = job.ifov * 100;
+  const lo = job.lowGsdM * 100 * (1 - BAND_SLACK);
+  const hi = job.highGsdM * 100 * (1 + BAND_SLACK);
   const { heights, valid } = grid;
   const heightBits = float32Keys(heights);
-  const planGsd = o.planRasters.gsdCm;
   let seen = 0;
   const seenBits = new Uint8Array((n + 7) >> 3);
   const imageHist = new Float64Array(65536);
@@ -116,7 +179,6 @@ export function constantAltitudeBaseline(
   let flagged = 0;
   let inBand = 0;
   let breaches = 0;
-  let planBreaches = 0;
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     siteCells++;
@@ -131,19 +193,17 @@ export function constantAltitudeBaseline(
         seenWithGround++;
       }
     }
-    const pg = planGsd[i];
-    if (pg > 0 && overCeiling(pg, z, camera, o)) planBreaches++;
     let f: number;
     if (valid[i] === 0) f = FLAG_NODATA;
     else {
       imageHist[c]++;
-      f = c < o.minImages ? FLAG_FEW_IMAGES : 0;
+      f = c < job.minImages ? FLAG_FEW_IMAGES : 0;
       if (c > 0) {
         const g = Math.fround((A - z) * gsdPerM);
         if (g > hi) f |= FLAG_COARSE;
         else if (g < lo) f |= FLAG_FINE;
         else inBand++;
-        if (overCeiling(g, z, camera, o)) breaches++;
+        if (overCeiling(g, z, job.ifov, job)) breaches++;
       }
     }
     flagHist[f]++;
@@ -159,6 +219,45 @@ export function constantAltitudeBaseline(
   const QS = [0, 0.05, 0.5, 0.95, 1];
   const zs = orderStatisticsOfRadix(heights, { hist: seenGround, n: seenWithGround }, (m) => ranksOf(m, QS).map((r) => m - 1 - r), images);
   const [min, p5, median, p95, max] = zs.n === 0 ? QS.map(() => NaN) : interpolate(zs.n, QS, zs.stats.map((g) => Math.fround((A - g) * gsdPerM)));
+  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+  const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);
+  const flaggedByKind: Baseline["stats"]["flaggedByKind"] = {};
+  ASSESSMENT_FLAG_KINDS.forEach((kind, j) => {
+    flaggedByKind[kind.key] = { cells: kindCells[j], areaM2: kindCells[j] * cellAreaM2, pct: pct(kindCells[j]) };
+  });
+  return {
+    altitudeAmslM: A,
+    medianGroundM,
+    seenBits,
+    seen,
+    stats: {
+      gsdCm: { min, p5, median, p95, max },
+      withinBandPct: pct(inBand),
+      images: countStatsOfHistogram(imageHist),
+      flaggedAreaM2: flagged * cellAreaM2,
+      flaggedPct: pct(flagged),
+      flaggedByKind,
+      ceilingBreaches: { cells: breaches, areaM2: breaches * cellAreaM2 },
+    },
+  };
+}
+
+/**
+ * The Baseline from its figures and the plan's rasters (the plan's own ceiling breaches).
+ * @example baselineOf(grid, camera, o, baselineFigures(job), assessment.rasters)
+ */
+export function baselineOf(
+  grid: DemGrid,
+  camera: Camera,
+  o: Pick<BaselineOptions, "targetHeightM" | "ceiling" | "takeoffGroundM">,
+  f: BaselineFigures,
+  planRasters: AssessmentRasters,
+): Baseline {
+  const A = f.altitudeAmslM;
+  const { heights } = grid;
+  const gsdPerM = camera.ifov * 100;
+  const { seenBits, seen } = f;
+  const n = heights.length;
   /** The seen cells' GSD, made chunk by chunk into `each` (cell order). */
   const seenGsdChunks = (each: (chunk: Float32Array) => void): void => {
     const chunk = new Float32Array(Math.min(seen, 1 << 16));
@@ -173,16 +272,10 @@ export function constantAltitudeBaseline(
     }
     if (k > 0) each(chunk.subarray(0, k));
   };
-  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
-  const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);
-  const flaggedByKind: Baseline["stats"]["flaggedByKind"] = {};
-  ASSESSMENT_FLAG_KINDS.forEach((kind, j) => {
-    flaggedByKind[kind.key] = { cells: kindCells[j], areaM2: kindCells[j] * cellAreaM2, pct: pct(kindCells[j]) };
-  });
   return {
     altitudeAmslM: A,
     heightAboveMedianGroundM: o.targetHeightM,
-    medianGroundM,
+    medianGroundM: f.medianGroundM,
     gsdValuesCm: () => {
       const out = new Float32Array(seen);
       let j = 0;
@@ -197,16 +290,8 @@ export function constantAltitudeBaseline(
       seenGsdChunks((chunk) => counter.add(chunk, null));
       return counter.result();
     },
-    stats: {
-      gsdCm: { min, p5, median, p95, max },
-      withinBandPct: pct(inBand),
-      images: countStatsOfHistogram(imageHist),
-      flaggedAreaM2: flagged * cellAreaM2,
-      flaggedPct: pct(flagged),
-      flaggedByKind,
-      ceilingBreaches: { cells: breaches, areaM2: breaches * cellAreaM2 },
-    },
-    planCeilingBreaches: { cells: planBreaches, areaM2: planBreaches * cellAreaM2 },
+    stats: f.stats,
+    planCeilingBreaches: ceilingBreaches(grid, planRasters, camera, o),
   };
 }
 
@@ -226,17 +311,17 @@ export function ceilingBreaches(
   for (let i = 0; i < r.gsdCm.length; i++) {
     if (!r.inSite[i]) continue;
     const g = r.gsdCm[i];
-    if (g > 0 && overCeiling(g, grid.heights[i], camera, o)) cells++;
+    if (g > 0 && overCeiling(g, grid.heights[i], camera.ifov, o)) cells++;
   }
   return { cells, areaM2: cells * grid.cellSizeM[0] * grid.cellSizeM[1] };
 }
 
 /** Whether a photo giving GSD g (cm/px) over ground z was above the ceiling (1 cm of slack: heights rebuilt from Float32 GSD). */
-function overCeiling(gsdCm: number, groundM: number, camera: Camera, o: Pick<BaselineOptions, "ceiling" | "takeoffGroundM">): boolean {
-  const hM = gsdCm / 100 / camera.ifov;
+function overCeiling(gsdCm: number, groundM: number, ifov: number, o: Pick<BaselineOptions, "ceiling" | "takeoffGroundM">): boolean {
+  const hM = gsdCm / 100 / ifov;
   return o.ceiling.reference === "takeoff" ? groundM + hM > o.takeoffGroundM + o.ceiling.heightM + 0.01 : hM > o.ceiling.heightM + 0.01;
 }
 
-function medianSiteGround(grid: DemGrid, inSite: Uint8Array): number {
-  return quantilesFloat32(grid.heights, [0.5], inSite)[0];
+function medianSiteGround(heights: Float32Array, inSite: Uint8Array): number {
+  return quantilesFloat32(heights, [0.5], inSite)[0];
 }

@@ -35,11 +35,12 @@ import { clearanceFloorM } from "../solve/clearance.js";
 import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
-import { assessPlan } from "../assess/assess.js";
+import { assessPlan, siteMaskFor } from "../assess/assess.js";
 import { photoPhaseOn, type AssessedLeg } from "../assess/exposures.js";
 import type { Assessment } from "../assess/types.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
-import { constantAltitudeBaseline, type Baseline } from "./baseline.js";
+import type { Baseline } from "./baseline.js";
+import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
 import { keepOutZonesFor, limitsFromPlanOptions } from "../verify/limits.js";
@@ -239,6 +240,17 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("solve");
 
   stage("route");
+  // The constant-altitude comparison needs only the final strips, the DEM and the site: it
+  // is made on the other core from here on, while this thread routes, checks and assesses.
+  const inSite = siteMaskFor(grid, site.local, hooks.threads);
+  const baselineRun = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, {
+    targetHeightM,
+    triggerM,
+    minImages: options.minImages,
+    ceiling: options.ceiling,
+    takeoffGroundM: solvedBlocks[0].groundM,
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
+  }, inSite);
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
   const splits = solvedBlocks.map((b) =>
     splitFlights(b.solve.legs, {
@@ -299,19 +311,12 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     nadirBy: "distance",
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
+    inSite,
   });
   lap("assess");
 
   stage("baseline");
-  const baseline = constantAltitudeBaseline(grid, layout, camera, requirement, {
-    targetHeightM,
-    triggerM,
-    minImages: options.minImages,
-    ceiling: options.ceiling,
-    takeoffGroundM: takeoffGround,
-    planRasters: assessment.rasters,
-    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
-  });
+  const baseline = await baselineRun.finish(assessment.rasters);
   lap("baseline");
 
   const [tLon, tLat] = frame.toWgs84(layout.takeoff[0], layout.takeoff[1]);

@@ -1,4 +1,6 @@
 import { describe, it, expect } from "vitest";
+import { existsSync } from "node:fs";
+import { fileURLToPath } from "node:url";
 import { makeGrid } from "../../src/dem/sample.js";
 import { assessPlan } from "../../src/assess/assess.js";
 import { rasteriseSite } from "../../src/assess/siteMask.js";
@@ -11,6 +13,7 @@ import type { Requirement } from "../../src/camera/types.js";
 import { genericCamera } from "../assess/helpers.js";
 import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
 import { ceilingBreaches } from "../../src/plan/baseline.js";
+import type { constantAltitudeBaselineInBackground as Background } from "../../src/plan/baselineBackground.js";
 
 /**
  * The constant-altitude comparison is computed directly (GSD from each cell's own ground,
@@ -155,5 +158,35 @@ describe("constant-altitude baseline computed directly", () => {
       expect(images[row * W + col], `cell ${col},${row}`).toBe(count);
       if (inSite[row * W + col]) expect(count).toBeGreaterThanOrEqual(8);
     }
+  });
+});
+
+// The worker thread runs only from the built library (`npm test` builds it first).
+const dist = new URL("../../dist/plan/baselineBackground.js", import.meta.url);
+const HAS_DIST = existsSync(fileURLToPath(dist)) && existsSync(fileURLToPath(new URL("baselineWorker.js", dist)));
+if (!HAS_DIST && process.env.CI === "true") throw new Error("dist/ is required under CI=true (npm test builds it first)");
+
+describe.skipIf(!HAS_DIST)("constant-altitude baseline made in a worker thread", () => {
+  it("gives the figures made on this thread, and the plan's breaches from the plan's rasters", async () => {
+    const { constantAltitudeBaselineInBackground } = (await import(dist.href)) as { constantAltitudeBaselineInBackground: typeof Background };
+    const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
+    const layout = layoutAt(33);
+    const inSite = rasteriseSite(site, W, H, grid.transform);
+    const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0 };
+    const here = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters: { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite }, threads: 1 });
+    // The plan given to finish: the swept constant-altitude plan, so its breaches are the baseline's own.
+    const swept = assessPlan(grid, site, assessedLegs(layout, here.altitudeAmslM), camera, requirement, {
+      triggerM, minImages: 3, zoneHalfAcrossM: spacingM / 2, toWgs84: (x, y) => [x, y], nadirBy: "distance", polygons: false, threads: 1,
+    });
+    const run = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, opts, inSite);
+    expect(run.madeIn()).toBe("pending");
+    const b = await run.finish(swept.rasters);
+    expect(run.madeIn()).toBe("worker");
+    expect(b.altitudeAmslM).toBe(here.altitudeAmslM);
+    expect(b.medianGroundM).toBe(here.medianGroundM);
+    expect(b.stats).toEqual(here.stats);
+    expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(here.gsdValuesCm()));
+    expect(b.planCeilingBreaches).toEqual(here.stats.ceilingBreaches);
+    expect(b.planCeilingBreaches.cells).toBeGreaterThan(0);
   });
 });
