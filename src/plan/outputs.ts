@@ -71,11 +71,11 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // report-data.json are written here.
   let compact: ReportInput | undefined;
   const compactReport = () => (compact ??= compactReportInput(report));
-  let page: ReturnType<typeof reportHtmlInBackground> | undefined;
-  const reportPage = () => (page ??= reportHtmlInBackground(compactReport()));
+  let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
+  const reportPage = () => (page ??= (async () => reportHtmlInBackground(compactReport(), await run.reportDemLayers?.()))());
   // Streamed to disk chunk by chunk: the uncompressed gsd.tif is never whole in memory.
-  const tiff = (name: keyof AssessmentTiffs) => () => {
-    reportPage();
+  const tiff = (name: keyof AssessmentTiffs) => async () => {
+    await reportPage();
     return assessmentGeoTiffChunks(rasters, crs, name);
   };
   const files: OutputFile[] = [
@@ -89,7 +89,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     { name: "flags.tif", data: tiff("flags.tif") },
     { name: "summary.json", data: JSON.stringify(summary, null, 2) + "\n" },
     { name: "report-data.json", data: () => serializeReportInput(compactReport()) },
-    { name: "report.html", data: () => reportPage().html() },
+    { name: "report.html", data: async () => (await reportPage()).html() },
   ];
   return { files, summary };
 }

@@ -41,6 +41,7 @@ import type { Assessment } from "../assess/types.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import type { Baseline } from "./baseline.js";
 import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
+import { demLayersInBackground, type DemLayers } from "../report/demLayers.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
 import { keepOutZonesFor, limitsFromPlanOptions } from "../verify/limits.js";
@@ -90,6 +91,11 @@ export interface PlanRun {
   warnings: SolveWarning[];
   /** Seconds spent per stage, for the benchmarks. */
   timings: Record<string, number>;
+  /**
+   * The report's DEM layers (hill shade, contours), started on a worker thread once the DEM
+   * was read (report/demLayers.ts); undefined when they were not (the report draws them itself).
+   */
+  reportDemLayers?: () => Promise<DemLayers | undefined>;
 }
 
 /** A block of the plan and its take-off point. */
@@ -140,6 +146,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const prepared = await prepareMission(options);
   const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings: loadWarnings } = prepared;
   warnings.push(...loadWarnings);
+  // The report's hill shade and contours need only the DEM: drawn on the other core while
+  // this thread lays out and solves.
+  const reportDemLayers = demLayersInBackground(grid, hooks.threads).layers;
   lap("load");
 
   stage("layout");
@@ -353,6 +362,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     rows,
     warnings,
     timings,
+    reportDemLayers,
   };
 }
 

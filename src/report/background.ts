@@ -3,6 +3,7 @@ import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { ReportInput } from "./model.js";
 import { renderReport } from "./render.js";
+import type { DemLayers } from "./demLayers.js";
 
 const workerUrl = new URL("./renderWorker.js", import.meta.url);
 
@@ -11,14 +12,14 @@ const workerUrl = new URL("./renderWorker.js", import.meta.url);
  * there: the built library, dist/), so the caller can write other files meanwhile; otherwise,
  * or if the worker fails, the page is rendered on this thread when awaited. The input is
  * copied to the worker (a compacted input is a few megabytes). Never rejects before it is
- * awaited: a failure surfaces from `html()`.
+ * awaited: a failure surfaces from `html()`. `layers`: the DEM's layers made beforehand (demLayers.ts), if any.
  * @example const page = reportHtmlInBackground(compact); ...; await writeFile("report.html", await page.html());
  */
-export function reportHtmlInBackground(input: ReportInput): { html: () => Promise<string> } {
-  const here = (): string => renderReport(input);
+export function reportHtmlInBackground(input: ReportInput, layers?: DemLayers): { html: () => Promise<string> } {
+  const here = (): string => renderReport(input, layers);
   if (!existsSync(fileURLToPath(workerUrl))) return { html: async () => here() };
   const settled = new Promise<string | undefined>((resolve) => {
-    const w = new Worker(workerUrl, { workerData: input });
+    const w = new Worker(workerUrl, { workerData: { input, layers } });
     w.once("message", (m: string) => resolve(m));
     // A failed worker leaves the work to this thread.
     w.once("error", () => resolve(undefined));

@@ -8,11 +8,11 @@ import { createHash } from "node:crypto";
 import { ASSESSMENT_FLAG_KINDS, type FlagKind } from "../assess/flags.js";
 import type { ReportInput, ReportSummary } from "./model.js";
 import { compactReportInput } from "./serialize.js";
-import { hillshade } from "./hillshade.js";
-import { gsdRgba, imagesRgba, pngDataUri, shadeRgba } from "./png.js";
+import { gsdRgba, imagesRgba, pngDataUri } from "./png.js";
+import { demLayers, demLayersKey, type DemLayers } from "./demLayers.js";
 import { maskOutline } from "./contours.js";
 import {
-  aglRange, blockOutlines, blockTakeoffMarkers, contourLayer, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
+  aglRange, blockOutlines, blockTakeoffMarkers, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
   rangeCircles, rasterImage, scaleBar, sitePath, takeoffMarker, takeoffTitle, type MapView,
 } from "./map.js";
 import { blocksLegend, gsdLegend, keepOutLegend, sequentialLegend } from "./legend.js";
@@ -160,13 +160,15 @@ function tableText(key: string, v: number): string {
  *
  * @example writeFileSync(tmp, renderReport(input)); renameSync(tmp, join(out, "report.html"));
  */
-export function renderReport(input: ReportInput): string {
+export function renderReport(input: ReportInput, layers?: DemLayers): string {
   const inp = compactReportInput(input, 1000);
   const s = inp.summary;
   const g = s.gsdCm;
   const view = mapView(inp.dem, 1000);
   const r = inp.rasters;
-  const shadeUri = pngDataUri(inp.dem.width, inp.dem.height, shadeRgba(hillshade().azimuth(315).altitude(45).zFactor(1)(inp.dem)));
+  // The DEM's own layers: made beforehand when given for this DEM (demLayers.ts), else here.
+  const dl = layers && layers.key === demLayersKey(inp.dem) ? layers : demLayers(inp.dem);
+  const shadeUri = dl.shadeUri;
   const shadeImg = (cls: string) => rasterImage(view, inp.dem.transform, inp.dem.width, inp.dem.height, shadeUri, cls);
   const site = (attrs: string) => sitePath(view, inp.site, attrs);
   const overlays = scaleBar(view) + northArrow(view, inp.gridConvergenceDeg);
@@ -182,7 +184,7 @@ export function renderReport(input: ReportInput): string {
   const zoneDefs = (map: string) => (zones.length ? keepOutHatch(`hatch-keep-out-${map}`) : "");
 
   // 1. Map
-  const contours = contourLayer(view, inp.dem);
+  const contours = dl.contours;
   const agl = aglRange(inp.legs);
   // Blocks: with one block the single take-off marker as before; with several, each take-off
   // point numbered and each block's extent outlined. The range circle about every take-off

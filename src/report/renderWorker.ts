@@ -1,5 +1,6 @@
 import { parentPort, workerData } from "node:worker_threads";
 import type { ReportInput } from "./model.js";
+import type { DemLayers } from "./demLayers.js";
 import { renderReport } from "./render.js";
 
 /**
@@ -7,4 +8,5 @@ import { renderReport } from "./render.js";
  * made on another core while the plan's rasters and report-data.json are written (see
  * reportHtmlInBackground).
  */
-parentPort?.postMessage(renderReport(workerData as ReportInput));
+const { input, layers } = workerData as { input: ReportInput; layers?: DemLayers };
+parentPort?.postMessage(renderReport(input, layers));
