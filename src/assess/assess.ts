@@ -47,6 +47,8 @@ export interface AssessOptions {
   keepNadirStrip?: boolean;
   /** The site mask, when the caller has made it already (siteMaskFor with the same site and grid). */
   inSite?: Uint8Array;
+  /** Called once the rasters are final, before the statistics and polygons are made from them (which must not change them). */
+  onRasters?: (rasters: Assessment["rasters"]) => void;
 }
 
 /**
@@ -99,11 +101,13 @@ export function assessPlan(
   paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
   if (opts.keepOut) paintKeepOutCuts(flags, grid, inSite, opts.keepOut.cuts, opts.keepOut.footprintAcrossM / 2, opts.keepOut.footprintAlongM / 2);
 
+  const rasters = { width, height, transform, gsdCm, images, flags, inSite };
+  opts.onRasters?.(rasters);
   const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
   const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
-    rasters: { width, height, transform, gsdCm, images, flags, inSite, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },
+    rasters: { ...rasters, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },
     stats,
     polygons,
     exposures,

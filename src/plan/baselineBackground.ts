@@ -1,6 +1,4 @@
-import { existsSync } from "node:fs";
-import { fileURLToPath } from "node:url";
-import { Worker } from "node:worker_threads";
+import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND } from "../background.js";
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout } from "../layout/types.js";
@@ -9,8 +7,6 @@ import { baselineFigures, baselineJob, baselineOf, type Baseline, type BaselineF
 
 const workerUrl = new URL("./baselineWorker.js", import.meta.url);
 
-/** Below this many cells the comparison takes a few tens of milliseconds: no thread is started for it. */
-const MIN_CELLS_FOR_WORKER = 250_000;
 
 /**
  * Starts the constant-altitude comparison as soon as the strips are final: its figures
@@ -33,32 +29,14 @@ export function constantAltitudeBaselineInBackground(
   inSite: Uint8Array,
 ): { finish: (planRasters: AssessmentRasters) => Promise<Baseline>; madeIn: () => "worker" | "this thread" | "pending" } {
   const job = baselineJob(grid, layout, camera, requirement, o, inSite);
-  const here = (): BaselineFigures => baselineFigures(job, o.threads);
-  const background = o.threads !== 1 && grid.width * grid.height >= MIN_CELLS_FOR_WORKER && existsSync(fileURLToPath(workerUrl));
-  let figures: Promise<BaselineFigures | undefined> = Promise.resolve(undefined);
-  let worker: Worker | undefined;
-  if (background) {
-    const w = new Worker(workerUrl, { workerData: job });
-    // Unreferenced until awaited: should the plan fail before then, the process need not wait for it.
-    w.unref();
-    worker = w;
-    figures = new Promise((resolve) => {
-      w.once("message", (m: BaselineFigures) => {
-        resolve(m);
-        void w.terminate();
-      });
-      // A failed worker leaves the work to this thread.
-      w.once("error", () => resolve(undefined));
-      w.once("exit", () => resolve(undefined));
-    });
-  }
+  const background = o.threads !== 1 && grid.width * grid.height >= BACKGROUND_MIN_CELLS;
+  const figures = background ? inBackground<BaselineFigures>(workerUrl, job) : NOT_IN_BACKGROUND;
   let madeIn: "worker" | "this thread" | "pending" = "pending";
   return {
     finish: async (planRasters) => {
-      worker?.ref();
-      const fromWorker = await figures;
+      const fromWorker = await figures.result();
       madeIn = fromWorker ? "worker" : "this thread";
-      return baselineOf(grid, camera, o, fromWorker ?? here(), planRasters);
+      return baselineOf(grid, camera, o, fromWorker ?? baselineFigures(job, o.threads), planRasters);
     },
     madeIn: () => madeIn,
   };

@@ -69,10 +69,10 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // Both report files come from one compacted input. The page is rendered in a worker thread
   // started when the rasters start, so it is made on the other core while they and
   // report-data.json are written here.
-  let compact: ReportInput | undefined;
-  const compactReport = () => (compact ??= compactReportInput(report));
+  let compact: Promise<ReportInput> | undefined;
+  const compactReport = () => (compact ??= (async () => compactReportInput(report, 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
-  const reportPage = () => (page ??= (async () => reportHtmlInBackground(compactReport(), await run.reportDemLayers?.()))());
+  const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), await run.reportDemLayers?.()))());
   // Streamed to disk chunk by chunk: the uncompressed gsd.tif is never whole in memory.
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     await reportPage();
@@ -88,7 +88,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     { name: "images.tif", data: tiff("images.tif") },
     { name: "flags.tif", data: tiff("flags.tif") },
     { name: "summary.json", data: JSON.stringify(summary, null, 2) + "\n" },
-    { name: "report-data.json", data: () => serializeReportInput(compactReport()) },
+    { name: "report-data.json", data: async () => serializeReportInput(await compactReport()) },
     { name: "report.html", data: async () => (await reportPage()).html() },
   ];
   return { files, summary };

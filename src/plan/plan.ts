@@ -42,6 +42,7 @@ import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flig
 import type { Baseline } from "./baseline.js";
 import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
 import { demLayersInBackground, type DemLayers } from "../report/demLayers.js";
+import { reportMapsInBackground, type ReportMaps } from "../report/serialize.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
 import { keepOutZonesFor, limitsFromPlanOptions } from "../verify/limits.js";
@@ -96,6 +97,8 @@ export interface PlanRun {
    * was read (report/demLayers.ts); undefined when they were not (the report draws them itself).
    */
   reportDemLayers?: () => Promise<DemLayers | undefined>;
+  /** The report's reduced DEM and rasters, made on a worker thread once the rasters were final (report/serialize.ts reportMaps). */
+  reportMaps?: () => Promise<ReportMaps | undefined>;
 }
 
 /** A block of the plan and its take-off point. */
@@ -148,7 +151,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   warnings.push(...loadWarnings);
   // The report's hill shade and contours need only the DEM: drawn on the other core while
   // this thread lays out and solves.
-  const reportDemLayers = demLayersInBackground(grid, hooks.threads).layers;
+  const reportDemLayers = demLayersInBackground(grid, hooks.threads).result;
   lap("load");
 
   stage("layout");
@@ -309,6 +312,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("verify");
 
   stage("assess");
+  let reportMaps: (() => Promise<ReportMaps | undefined>) | undefined;
   const flownLegs = flights.flights.flatMap((f) => f.legs);
   const assessment = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
     triggerM,
@@ -321,6 +325,10 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
     inSite,
+    // The report's maps are reduced on the other core while the statistics are made.
+    onRasters: (r) => {
+      reportMaps = reportMapsInBackground(grid, r, hooks.threads).result;
+    },
   });
   lap("assess");
 
@@ -363,6 +371,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     warnings,
     timings,
     reportDemLayers,
+    ...(reportMaps ? { reportMaps } : {}),
   };
 }
 

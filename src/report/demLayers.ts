@@ -1,6 +1,4 @@
-import { existsSync } from "node:fs";
-import { fileURLToPath } from "node:url";
-import { Worker } from "node:worker_threads";
+import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { ReportGrid } from "./model.js";
 import { blockFactor, downsampleGrid } from "./downsample.js";
 import { hillshade } from "./hillshade.js";
@@ -50,34 +48,16 @@ export function demLayersOfGrid(grid: ReportGrid, maxPx = 1000): DemLayers {
 
 const workerUrl = new URL("./demLayersWorker.js", import.meta.url);
 
-/** Below this many cells the layers take a few tens of milliseconds: no thread is started for them. */
-const MIN_CELLS_FOR_WORKER = 250_000;
 
 /**
  * Starts making the DEM layers on a worker thread (heights in shared memory are read in
- * place). `layers()` gives them, or undefined when no worker was started (one thread
- * requested, a small DEM, the compiled worker missing: it runs from the built library,
- * dist/) or it failed: the page then draws them itself. The worker does not keep the
- * process alive until `layers()` is called.
- * @example const pending = demLayersInBackground(grid); ...; renderReport(input, await pending.layers())
+ * place; background.ts). `result()` gives them, or undefined when no worker was started
+ * (one thread requested, a small DEM, no compiled worker) or it failed: the page then
+ * draws them itself.
+ * @example const pending = demLayersInBackground(grid); ...; renderReport(input, await pending.result())
  */
-export function demLayersInBackground(grid: ReportGrid, threads?: number): { layers: () => Promise<DemLayers | undefined> } {
-  if (threads === 1 || grid.width * grid.height < MIN_CELLS_FOR_WORKER || !existsSync(fileURLToPath(workerUrl))) return { layers: async () => undefined };
+export function demLayersInBackground(grid: ReportGrid, threads?: number): Background<DemLayers> {
+  if (threads === 1 || grid.width * grid.height < BACKGROUND_MIN_CELLS) return NOT_IN_BACKGROUND;
   const { width, height, transform, cellSizeM, heights } = grid;
-  const w = new Worker(workerUrl, { workerData: { width, height, transform, cellSizeM, heights } satisfies ReportGrid });
-  w.unref();
-  const made = new Promise<DemLayers | undefined>((resolve) => {
-    w.once("message", (m: DemLayers) => {
-      resolve(m);
-      void w.terminate();
-    });
-    w.once("error", () => resolve(undefined));
-    w.once("exit", () => resolve(undefined));
-  });
-  return {
-    layers: () => {
-      w.ref();
-      return made;
-    },
-  };
+  return inBackground<DemLayers>(workerUrl, { width, height, transform, cellSizeM, heights } satisfies ReportGrid);
 }

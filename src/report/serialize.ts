@@ -10,8 +10,9 @@
  */
 import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
-import type { ReportInput } from "./model.js";
+import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
 import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
+import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
 export const REPORT_DATA_FORMAT = "gsdplan-report-data";
@@ -38,27 +39,70 @@ const DEFLATE_LEVEL = 1;
 /**
  * Fill in what the report computes from full-resolution data (the GSD histogram), then
  * reduce the rasters to at most `maxPx` across. `renderReport` calls it too, so the HTML
- * is the same whether rendered directly or from report-data.json.
+ * is the same whether rendered directly or from report-data.json. `maps`: the DEM and
+ * rasters already reduced by reportMaps (reportMapsInBackground), used when their sizes
+ * are those reportMaps gives for this input.
  *
  * @example const compact = compactReportInput(input, 1000);
  */
-export function compactReportInput(input: ReportInput, maxPx = 1000): ReportInput {
+export function compactReportInput(input: ReportInput, maxPx = 1000, maps?: ReportMaps): ReportInput {
   const g = input.summary.gsdCm;
   let gsdHistogram = input.gsdHistogram;
   if (!gsdHistogram) {
     const edges = gsdBinEdges(g.low, g.high, g.min, g.max, REPORT_GSD_BINS);
     gsdHistogram = histogram(input.rasters.gsdCm, input.rasters.inSite, edges);
   }
-  const kd = blockFactor(input.dem.width, input.dem.height, maxPx);
-  const kr = blockFactor(input.rasters.width, input.rasters.height, maxPx);
-  // On one grid (the plan's usual case) the DEM and the rasters are reduced in one pass.
-  const { dem, rasters } = kd === kr ? downsampleGridAndRasters(input.dem, input.rasters, kd) : { dem: downsampleGrid(input.dem, kd), rasters: downsampleRasters(input.rasters, kr) };
+  const { dem, rasters } = maps && mapsFit(maps, input, maxPx) ? maps : reportMaps(input.dem, input.rasters, maxPx);
   return {
     ...input,
     gsdHistogram,
     dem,
     rasters,
   };
+}
+
+/** The report's DEM and rasters, reduced. */
+export interface ReportMaps {
+  dem: ReportGrid;
+  rasters: ReportRasters;
+}
+
+/**
+ * The DEM and the rasters reduced to at most `maxPx` across, as the report draws them.
+ * @example reportMaps(run.grid, run.assessment.rasters).dem.width // <= 1000
+ */
+export function reportMaps(dem: ReportGrid, rasters: ReportRasters, maxPx = 1000): ReportMaps {
+  const kd = blockFactor(dem.width, dem.height, maxPx);
+  const kr = blockFactor(rasters.width, rasters.height, maxPx);
+  // On one grid (the plan's usual case) the DEM and the rasters are reduced in one pass.
+  return kd === kr ? downsampleGridAndRasters(dem, rasters, kd) : { dem: downsampleGrid(dem, kd), rasters: downsampleRasters(rasters, kr) };
+}
+
+/** Whether reduced maps have the sizes reportMaps gives for this input. */
+function mapsFit(maps: ReportMaps, input: ReportInput, maxPx: number): boolean {
+  const fits = (full: { width: number; height: number }, small: { width: number; height: number }) => {
+    const k = blockFactor(full.width, full.height, maxPx);
+    return small.width === Math.ceil(full.width / k) && small.height === Math.ceil(full.height / k);
+  };
+  return fits(input.dem, maps.dem) && fits(input.rasters, maps.rasters) && maps.dem.transform.x0 === input.dem.transform.x0 && maps.dem.transform.y0 === input.dem.transform.y0;
+}
+
+const mapsWorkerUrl = new URL("./mapsWorker.js", import.meta.url);
+
+/**
+ * Starts reportMaps on a worker thread (background.ts) as soon as the plan's rasters are
+ * final, so they are reduced while this thread makes the plan's statistics. Only for a
+ * large grid on several threads (arrays in shared memory are read in place).
+ * @example const maps = reportMapsInBackground(grid, rasters); ...; compactReportInput(input, 1000, await maps.result())
+ */
+export function reportMapsInBackground(dem: ReportGrid, rasters: ReportRasters, threads?: number): Background<ReportMaps> {
+  if (threads === 1 || dem.width * dem.height < BACKGROUND_MIN_CELLS || blockFactor(dem.width, dem.height, 1000) <= 1) return NOT_IN_BACKGROUND;
+  const { width, height, transform, cellSizeM, heights } = dem;
+  const { gsdCm, images, flags, inSite } = rasters;
+  return inBackground<ReportMaps>(mapsWorkerUrl, {
+    dem: { width, height, transform, cellSizeM, heights },
+    rasters: { width: rasters.width, height: rasters.height, transform: rasters.transform, gsdCm, images, flags, inSite },
+  } satisfies ReportMaps);
 }
 
 /**

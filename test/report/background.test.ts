@@ -6,6 +6,8 @@ import { renderReport } from "../../src/report/render.js";
 import type { reportHtmlInBackground as Background } from "../../src/report/background.js";
 import { demLayersOfGrid, type demLayersInBackground as LayersInBackground } from "../../src/report/demLayers.js";
 import { makeGrid } from "../../src/dem/sample.js";
+import { compactReportInput, reportMaps, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
+import type { ReportRasters } from "../../src/report/model.js";
 
 // The worker thread runs only from the built library (`npm test` builds it first).
 const dist = new URL("../../dist/report/background.js", import.meta.url);
@@ -43,11 +45,50 @@ describe.skipIf(!HAS_DIST)("the report's DEM layers made in a worker thread", ()
     const { demLayersInBackground } = (await import(layersDist.href)) as { demLayersInBackground: typeof LayersInBackground };
     // 1200 x 900 cells of hills (over the worker's threshold), 2 m cells.
     const grid = makeGrid({ width: 1200, height: 900, x0: 500000, y0: 6000000, cellM: 2, heights: (x, y) => 200 + 40 * Math.sin(x / 300) * Math.cos(y / 250) });
-    const layers = await demLayersInBackground(grid).layers();
+    const layers = await demLayersInBackground(grid).result();
     expect(layers).toBeDefined();
     expect(layers).toEqual(demLayersOfGrid(grid));
     expect(layers!.contours.svg.length).toBeGreaterThan(1000);
     // One thread requested: none is started, and the page draws the layers itself.
-    expect(await demLayersInBackground(grid, 1).layers()).toBeUndefined();
+    expect(await demLayersInBackground(grid, 1).result()).toBeUndefined();
+  });
+});
+
+const serializeDist = new URL("../../dist/report/serialize.js", import.meta.url);
+describe.skipIf(!HAS_DIST)("the report's maps reduced in a worker thread", () => {
+  it("are the maps reduced on this thread, and the compacted input does not change with them", async () => {
+    const { reportMapsInBackground } = (await import(serializeDist.href)) as { reportMapsInBackground: typeof MapsInBackground };
+    const W = 1500, H = 1100;
+    const dem = makeGrid({ width: W, height: H, x0: 500000, y0: 6000000, cellM: 1, heights: (x, y) => 300 + 25 * Math.sin(x / 90) + 10 * Math.cos(y / 70) });
+    const n = W * H;
+    const rasters: ReportRasters = {
+      width: W, height: H, transform: dem.transform,
+      gsdCm: new Float32Array(n), images: new Uint16Array(n), flags: new Uint16Array(n), inSite: new Uint8Array(n),
+    };
+    for (let i = 0; i < n; i++) {
+      const c = i % W, r = Math.floor(i / W);
+      rasters.inSite[i] = (c - 700) ** 2 + (r - 550) ** 2 < 450 ** 2 ? 1 : 0;
+      rasters.gsdCm[i] = rasters.inSite[i] ? 2.5 + 0.3 * Math.sin(i / 977) : NaN;
+      rasters.images[i] = rasters.inSite[i] ? (i * 7) % 19 : 0;
+      rasters.flags[i] = rasters.inSite[i] ? (i * 13) % 7 === 0 ? 2 : 0 : 0;
+    }
+    const here = reportMaps(dem, rasters);
+    expect(here.dem.width).toBe(750);
+    const maps = await reportMapsInBackground(dem, rasters).result();
+    expect(maps).toBeDefined();
+    expect(maps!.dem).toEqual(here.dem);
+    expect(maps!.rasters).toEqual(here.rasters);
+    // One thread requested: no worker.
+    expect(await reportMapsInBackground(dem, rasters, 1).result()).toBeUndefined();
+  });
+
+  it("are used by compactReportInput only when they fit its input", () => {
+    const input = makeReportInput({ siteName: "Maps check" });
+    const own = compactReportInput(input, 100);
+    expect(compactReportInput(input, 100, reportMaps(input.dem, input.rasters, 100))).toEqual(own);
+    // Maps of another size (reduced for 50 px): ignored, the input's own are made.
+    const other = reportMaps(input.dem, input.rasters, 50);
+    expect(other.dem.width).not.toBe(own.dem.width);
+    expect(compactReportInput(input, 100, other)).toEqual(own);
   });
 });

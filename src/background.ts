@@ -1,0 +1,52 @@
+import { existsSync } from "node:fs";
+import { fileURLToPath } from "node:url";
+import { Worker } from "node:worker_threads";
+
+/**
+ * Work started on a worker thread now and awaited later, so one core does it while this
+ * thread goes on with the plan. The worker module posts one message, its result, and is
+ * ended. Used for the parts of a plan that need only what is known early (the DEM, the
+ * final strips, the final rasters): the constant-altitude comparison, the report's DEM
+ * layers and reduced rasters.
+ */
+export interface Background<T> {
+  /**
+   * The worker's result, or undefined when no worker ran (its compiled module is missing:
+   * worker threads run from the built library, dist/) or it failed: the caller then does
+   * the work on its own thread.
+   */
+  result: () => Promise<T | undefined>;
+}
+
+/** Below this many DEM cells such work takes a few tens of milliseconds: no thread is started for it. */
+export const BACKGROUND_MIN_CELLS = 250_000;
+
+/** No worker: result() gives undefined. */
+export const NOT_IN_BACKGROUND: Background<never> = { result: async () => undefined };
+
+/**
+ * Starts `workerUrl` with `data` (typed arrays over shared memory are read in place, the
+ * rest is copied). The worker does not keep the process alive until result() is called,
+ * so a plan that fails meanwhile exits without waiting for it.
+ * @example const b = inBackground<Figures>(new URL("./figuresWorker.js", import.meta.url), job); ...; (await b.result()) ?? figures(job)
+ */
+export function inBackground<T>(workerUrl: URL, data: unknown): Background<T> {
+  if (!existsSync(fileURLToPath(workerUrl))) return NOT_IN_BACKGROUND;
+  const w = new Worker(workerUrl, { workerData: data });
+  w.unref();
+  const made = new Promise<T | undefined>((resolve) => {
+    w.once("message", (m: T) => {
+      resolve(m);
+      void w.terminate();
+    });
+    // A failed worker leaves the work to the caller's thread.
+    w.once("error", () => resolve(undefined));
+    w.once("exit", () => resolve(undefined));
+  });
+  return {
+    result: () => {
+      w.ref();
+      return made;
+    },
+  };
+}
