@@ -13,7 +13,8 @@ import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
-import { assessmentGeoTiffChunks, type AssessmentTiffs } from "../export/geotiffRasters.js";
+import { assessmentGeoTiffChunks, assessmentGeoTiffsInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
+import { BACKGROUND_MIN_CELLS, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import { reportHtmlInBackground } from "../report/background.js";
@@ -73,9 +74,19 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const compactReport = () => (compact ??= (async () => compactReportInput(report, 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
   const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), await run.reportDemLayers?.()))());
-  // Streamed to disk chunk by chunk: the uncompressed gsd.tif is never whole in memory.
+  // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
+  // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
+  // thread (on large grids, threads allowed), or here after it when none ran.
+  const cells = rasters.width * rasters.height;
+  let small: Background<Partial<AssessmentTiffs>> | undefined;
+  const smallTiffs = () => (small ??= run.threads !== 1 && cells >= BACKGROUND_MIN_CELLS ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"]) : NOT_IN_BACKGROUND);
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     await reportPage();
+    smallTiffs();
+    if (name !== "gsd.tif") {
+      const made = (await smallTiffs().result())?.[name];
+      if (made) return made;
+    }
     return assessmentGeoTiffChunks(rasters, crs, name);
   };
   const files: OutputFile[] = [

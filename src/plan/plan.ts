@@ -99,6 +99,8 @@ export interface PlanRun {
   reportDemLayers?: () => Promise<DemLayers | undefined>;
   /** The report's reduced DEM and rasters, made on a worker thread once the rasters were final (report/serialize.ts reportMaps). */
   reportMaps?: () => Promise<ReportMaps | undefined>;
+  /** Threads the run was limited to (PlanHooks.threads), if it was: the outputs keep to it too. */
+  threads?: number;
 }
 
 /** A block of the plan and its take-off point. */
@@ -119,7 +121,11 @@ export interface PlanHooks {
   onStage?: (stage: PlanStage) => void;
   /** Clock for the timings (injected so the library reads no clock of its own by default). */
   now?: () => number;
-  /** Threads for the coverage passes (a campaign planning several sites at once passes 1); default the assessment's own choice. */
+  /**
+   * Threads for the coverage passes (a campaign planning several sites at once passes 1);
+   * default the assessment's own choice. 1 also keeps the background work (the comparison,
+   * the report's layers and maps, the small rasters: src/background.ts) on this thread.
+   */
   threads?: number;
 }
 
@@ -372,6 +378,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     timings,
     reportDemLayers,
     ...(reportMaps ? { reportMaps } : {}),
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   };
 }
 

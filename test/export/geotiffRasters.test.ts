@@ -1,13 +1,14 @@
 import { describe, it, expect } from "vitest";
 import { execFileSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
+import { existsSync, mkdtempSync, writeFileSync } from "node:fs";
+import { fileURLToPath } from "node:url";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { fromArrayBuffer } from "geotiff";
 import { HAS_GDAL } from "../helpers/tools.js";
 import type { AssessmentRasters } from "../../src/assess/types.js";
 import { FLAG_CEILING, FLAG_COARSE } from "../../src/assess/flags.js";
-import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff } from "../../src/export/geotiffRasters.js";
+import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff, type assessmentGeoTiffsInBackground as InBackground } from "../../src/export/geotiffRasters.js";
 
 // A 5 x 4 grid of 2 m cells in UTM 33N; the site is every cell but the first column.
 const W = 5;
@@ -107,5 +108,37 @@ describe.skipIf(!HAS_GDAL)("assessment GeoTIFFs read by GDAL (gdalinfo, gdalloca
     const p4u = /PROJ\.4 string is:\s*'([^']+)'/.exec(execFileSync("gdalinfo", ["-proj4", f]).toString())![1];
     // GDAL recognises the parameter set as UTM zone 33 south.
     expect(p4u).toMatch(/^\+proj=utm \+zone=33 \+south \+datum=WGS84/);
+  });
+});
+
+// The worker thread runs only from the built library (`npm test` builds it first).
+const dist = new URL("../../dist/export/geotiffRasters.js", import.meta.url);
+const HAS_DIST = existsSync(fileURLToPath(dist)) && existsSync(fileURLToPath(new URL("cogWorker.js", dist)));
+if (!HAS_DIST && process.env.CI === "true") throw new Error("dist/ is required under CI=true (npm test builds it first)");
+
+describe.skipIf(!HAS_DIST)("assessment GeoTIFFs encoded on a worker thread", () => {
+  it("are the bytes encoded on this thread, with overviews (a 1300 x 1100 grid)", async () => {
+    const { assessmentGeoTiffsInBackground } = (await import(dist.href)) as { assessmentGeoTiffsInBackground: typeof InBackground };
+    const w = 1300, h = 1100, n = w * h;
+    const r: AssessmentRasters = { width: w, height: h, transform, gsdCm: new Float32Array(n), images: new Uint16Array(n), flags: new Uint16Array(n), inSite: new Uint8Array(n) };
+    for (let i = 0; i < n; i++) {
+      const c = i % w, row = Math.floor(i / w);
+      r.inSite[i] = c > 40 && row > 30 && c + row < 2200 ? 1 : 0;
+      r.gsdCm[i] = r.inSite[i] ? 2.5 + 0.2 * Math.sin(c / 37) * Math.cos(row / 53) : NaN;
+      r.images[i] = r.inSite[i] ? 3 + ((c * 3 + row * 5) % 11) : 0;
+      r.flags[i] = r.inSite[i] && (c ^ row) % 17 === 0 ? FLAG_COARSE : 0;
+    }
+    const crs = { epsg: 32633, proj4: "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs", geographic: false, name: "WGS 84 / UTM zone 33N" };
+    const made = await assessmentGeoTiffsInBackground(r, crs, ["images.tif", "flags.tif"]).result();
+    expect(made).toBeDefined();
+    expect(Object.keys(made!).sort()).toEqual(["flags.tif", "images.tif"]);
+    const here = assessmentGeoTiffs(r, crs);
+    for (const name of ["images.tif", "flags.tif"] as const) {
+      expect(made![name]!.byteLength, name).toBe(here[name].byteLength);
+      expect(Buffer.from(made![name]!).equals(Buffer.from(here[name])), name).toBe(true);
+    }
+    // Read back: an overview level is there (the grid is over one 512-px tile).
+    const tif = await fromArrayBuffer(made!["images.tif"]!);
+    expect(await tif.getImageCount()).toBeGreaterThan(1);
   });
 });
