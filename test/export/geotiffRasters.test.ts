@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import { execFileSync } from "node:child_process";
-import { existsSync, mkdtempSync, writeFileSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { builtModule } from "../helpers/dist.js";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { fromArrayBuffer } from "geotiff";
@@ -111,14 +111,11 @@ describe.skipIf(!HAS_GDAL)("assessment GeoTIFFs read by GDAL (gdalinfo, gdalloca
   });
 });
 
-// The worker thread runs only from the built library (`npm test` builds it first).
-const dist = new URL("../../dist/export/geotiffRasters.js", import.meta.url);
-const HAS_DIST = existsSync(fileURLToPath(dist)) && existsSync(fileURLToPath(new URL("cogWorker.js", dist)));
-if (!HAS_DIST && process.env.CI === "true") throw new Error("dist/ is required under CI=true (npm test builds it first)");
+const built = builtModule("export/geotiffRasters.js", ["cogWorker.js"]);
 
-describe.skipIf(!HAS_DIST)("assessment GeoTIFFs encoded on a worker thread", () => {
+describe.skipIf(!built.available)("assessment GeoTIFFs encoded on a worker thread", () => {
   it("are the bytes encoded on this thread, with overviews (a 1300 x 1100 grid)", async () => {
-    const { assessmentGeoTiffsInBackground } = (await import(dist.href)) as { assessmentGeoTiffsInBackground: typeof InBackground };
+    const { assessmentGeoTiffsInBackground } = (await import(built.href)) as { assessmentGeoTiffsInBackground: typeof InBackground };
     const w = 1300, h = 1100, n = w * h;
     const r: AssessmentRasters = { width: w, height: h, transform, gsdCm: new Float32Array(n), images: new Uint16Array(n), flags: new Uint16Array(n), inSite: new Uint8Array(n) };
     for (let i = 0; i < n; i++) {

@@ -1,6 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { existsSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { builtModule } from "../helpers/dist.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { assessPlan } from "../../src/assess/assess.js";
 import { rasteriseSite } from "../../src/assess/siteMask.js";
@@ -161,14 +160,11 @@ describe("constant-altitude baseline computed directly", () => {
   });
 });
 
-// The worker thread runs only from the built library (`npm test` builds it first).
-const dist = new URL("../../dist/plan/baselineBackground.js", import.meta.url);
-const HAS_DIST = existsSync(fileURLToPath(dist)) && existsSync(fileURLToPath(new URL("baselineWorker.js", dist)));
-if (!HAS_DIST && process.env.CI === "true") throw new Error("dist/ is required under CI=true (npm test builds it first)");
+const built = builtModule("plan/baselineBackground.js", ["baselineWorker.js"]);
 
-describe.skipIf(!HAS_DIST)("constant-altitude baseline made in a worker thread", () => {
+describe.skipIf(!built.available)("constant-altitude baseline made in a worker thread", () => {
   it("gives the figures made on this thread, and the plan's breaches from the plan's rasters", async () => {
-    const { constantAltitudeBaselineInBackground } = (await import(dist.href)) as { constantAltitudeBaselineInBackground: typeof Background };
+    const { constantAltitudeBaselineInBackground } = (await import(built.href)) as { constantAltitudeBaselineInBackground: typeof Background };
     const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
     const layout = layoutAt(33);
     const inSite = rasteriseSite(site, W, H, grid.transform);

@@ -1,6 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { existsSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { builtModule } from "../helpers/dist.js";
 import { makeReportInput } from "./fixture.js";
 import { renderReport } from "../../src/report/render.js";
 import type { reportHtmlInBackground as Background } from "../../src/report/background.js";
@@ -9,14 +8,13 @@ import { makeGrid } from "../../src/dem/sample.js";
 import { compactReportInput, reportMaps, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
 import type { ReportRasters } from "../../src/report/model.js";
 
-// The worker thread runs only from the built library (`npm test` builds it first).
-const dist = new URL("../../dist/report/background.js", import.meta.url);
-const HAS_DIST = existsSync(fileURLToPath(dist)) && existsSync(fileURLToPath(new URL("renderWorker.js", dist)));
-if (!HAS_DIST && process.env.CI === "true") throw new Error("dist/ is required under CI=true (npm test builds it first)");
+const built = builtModule("report/background.js", ["renderWorker.js"]);
+const builtLayers = builtModule("report/demLayers.js", ["demLayersWorker.js"]);
+const builtMaps = builtModule("report/serialize.js", ["mapsWorker.js"]);
 
-describe.skipIf(!HAS_DIST)("report page rendered in a worker thread", () => {
+describe.skipIf(!built.available)("report page rendered in a worker thread", () => {
   it("is the page rendered on this thread, character for character", async () => {
-    const { reportHtmlInBackground } = (await import(dist.href)) as { reportHtmlInBackground: typeof Background };
+    const { reportHtmlInBackground } = (await import(built.href)) as { reportHtmlInBackground: typeof Background };
     const input = makeReportInput({ siteName: "Worker check" });
     const page = reportHtmlInBackground(input);
     const html = await page.html();
@@ -39,10 +37,9 @@ describe("the report's DEM layers made beforehand", () => {
   });
 });
 
-const layersDist = new URL("../../dist/report/demLayers.js", import.meta.url);
-describe.skipIf(!HAS_DIST)("the report's DEM layers made in a worker thread", () => {
+describe.skipIf(!builtLayers.available)("the report's DEM layers made in a worker thread", () => {
   it("are the layers made on this thread", async () => {
-    const { demLayersInBackground } = (await import(layersDist.href)) as { demLayersInBackground: typeof LayersInBackground };
+    const { demLayersInBackground } = (await import(builtLayers.href)) as { demLayersInBackground: typeof LayersInBackground };
     // 1200 x 900 cells of hills (over the worker's threshold), 2 m cells.
     const grid = makeGrid({ width: 1200, height: 900, x0: 500000, y0: 6000000, cellM: 2, heights: (x, y) => 200 + 40 * Math.sin(x / 300) * Math.cos(y / 250) });
     const layers = await demLayersInBackground(grid).result();
@@ -54,10 +51,9 @@ describe.skipIf(!HAS_DIST)("the report's DEM layers made in a worker thread", ()
   });
 });
 
-const serializeDist = new URL("../../dist/report/serialize.js", import.meta.url);
-describe.skipIf(!HAS_DIST)("the report's maps reduced in a worker thread", () => {
+describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thread", () => {
   it("are the maps reduced on this thread, and the compacted input does not change with them", async () => {
-    const { reportMapsInBackground } = (await import(serializeDist.href)) as { reportMapsInBackground: typeof MapsInBackground };
+    const { reportMapsInBackground } = (await import(builtMaps.href)) as { reportMapsInBackground: typeof MapsInBackground };
     const W = 1500, H = 1100;
     const dem = makeGrid({ width: W, height: H, x0: 500000, y0: 6000000, cellM: 1, heights: (x, y) => 300 + 25 * Math.sin(x / 90) + 10 * Math.cos(y / 70) });
     const n = W * H;
