@@ -7,7 +7,7 @@ import { Worker } from "node:worker_threads";
  * thread goes on with the plan. The worker module posts one message, its result, and is
  * ended. Used for the parts of a plan that need only what is known early (the DEM, the
  * final strips, the final rasters): the constant-altitude comparison, the report's DEM
- * layers and reduced rasters.
+ * layers and reduced maps, the small compressed rasters.
  */
 export interface Background<T> {
   /**

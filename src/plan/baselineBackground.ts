@@ -7,7 +7,6 @@ import { baselineFigures, baselineJob, baselineOf, type Baseline, type BaselineF
 
 const workerUrl = new URL("./baselineWorker.js", import.meta.url);
 
-
 /**
  * Starts the constant-altitude comparison as soon as the strips are final: its figures
  * depend on the layout, the DEM and the site only, so a worker thread makes them while
@@ -18,7 +17,7 @@ const workerUrl = new URL("./baselineWorker.js", import.meta.url);
  * when the worker fails. The figures are the same either way (test/plan/baseline.test.ts).
  * `inSite` is the site mask the assessment will use (in shared memory, so the worker
  * reads it in place; the DEM heights are shared already).
- * @example const b = startBaseline(grid, layout, camera, req, o, inSite); ...; await b.finish(assessment.rasters)
+ * @example const b = constantAltitudeBaselineInBackground(grid, layout, camera, req, o, inSite); ...; await b.finish(assessment.rasters)
  */
 export function constantAltitudeBaselineInBackground(
   grid: DemGrid,

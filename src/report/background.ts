@@ -1,6 +1,4 @@
-import { existsSync } from "node:fs";
-import { fileURLToPath } from "node:url";
-import { Worker } from "node:worker_threads";
+import { inBackground } from "../background.js";
 import type { ReportInput } from "./model.js";
 import { renderReport } from "./render.js";
 import type { DemLayers } from "./demLayers.js";
@@ -16,14 +14,6 @@ const workerUrl = new URL("./renderWorker.js", import.meta.url);
  * @example const page = reportHtmlInBackground(compact); ...; await writeFile("report.html", await page.html());
  */
 export function reportHtmlInBackground(input: ReportInput, layers?: DemLayers): { html: () => Promise<string> } {
-  const here = (): string => renderReport(input, layers);
-  if (!existsSync(fileURLToPath(workerUrl))) return { html: async () => here() };
-  const settled = new Promise<string | undefined>((resolve) => {
-    const w = new Worker(workerUrl, { workerData: { input, layers } });
-    w.once("message", (m: string) => resolve(m));
-    // A failed worker leaves the work to this thread.
-    w.once("error", () => resolve(undefined));
-    w.once("exit", () => resolve(undefined));
-  });
-  return { html: async () => (await settled) ?? here() };
+  const page = inBackground<string>(workerUrl, { input, layers });
+  return { html: async () => (await page.result()) ?? renderReport(input, layers) };
 }

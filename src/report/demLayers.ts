@@ -48,7 +48,6 @@ export function demLayersOfGrid(grid: ReportGrid, maxPx = 1000): DemLayers {
 
 const workerUrl = new URL("./demLayersWorker.js", import.meta.url);
 
-
 /**
  * Starts making the DEM layers on a worker thread (heights in shared memory are read in
  * place; background.ts). `result()` gives them, or undefined when no worker was started
