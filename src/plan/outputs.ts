@@ -73,7 +73,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   let compact: Promise<ReportInput> | undefined;
   const compactReport = () => (compact ??= (async () => compactReportInput(report, 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
-  const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), await run.reportDemLayers?.()))());
+  const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
   // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
   // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
   // thread (on large grids, threads allowed), or here after it when none ran.

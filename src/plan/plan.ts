@@ -41,8 +41,7 @@ import type { Assessment } from "../assess/types.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import type { Baseline } from "./baseline.js";
 import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
-import { demLayersInBackground, type DemLayers } from "../report/demLayers.js";
-import { reportMapsInBackground, type ReportMaps } from "../report/serialize.js";
+import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
 import { keepOutZonesFor, limitsFromPlanOptions } from "../verify/limits.js";
@@ -93,12 +92,11 @@ export interface PlanRun {
   /** Seconds spent per stage, for the benchmarks. */
   timings: Record<string, number>;
   /**
-   * The report's DEM layers (hill shade, contours), started on a worker thread once the DEM
-   * was read (report/demLayers.ts); undefined when they were not (the report draws them itself).
+   * The report's reduced DEM and rasters and the DEM's hill shade and contours, made on a
+   * worker thread once the rasters were final (report/serialize.ts reportMapsInBackground);
+   * undefined when they were not (the report makes them itself).
    */
-  reportDemLayers?: () => Promise<DemLayers | undefined>;
-  /** The report's reduced DEM and rasters, made on a worker thread once the rasters were final (report/serialize.ts reportMaps). */
-  reportMaps?: () => Promise<ReportMaps | undefined>;
+  reportMaps?: () => Promise<ReportMapsAndLayers | undefined>;
   /** Threads the run was limited to (PlanHooks.threads), if it was: the outputs keep to it too. */
   threads?: number;
 }
@@ -155,9 +153,6 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const prepared = await prepareMission(options);
   const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings: loadWarnings } = prepared;
   warnings.push(...loadWarnings);
-  // The report's hill shade and contours need only the DEM: drawn on the other core while
-  // this thread lays out and solves.
-  const reportDemLayers = demLayersInBackground(grid, hooks.threads).result;
   lap("load");
 
   stage("layout");
@@ -318,7 +313,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("verify");
 
   stage("assess");
-  let reportMaps: (() => Promise<ReportMaps | undefined>) | undefined;
+  let reportMaps: (() => Promise<ReportMapsAndLayers | undefined>) | undefined;
   const flownLegs = flights.flights.flatMap((f) => f.legs);
   const assessment = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
     triggerM,
@@ -331,7 +326,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
     inSite,
-    // The report's maps are reduced on the other core while the statistics are made.
+    // The report's maps and the DEM's layers are made on the other core while the statistics are made.
     onRasters: (r) => {
       reportMaps = reportMapsInBackground(grid, r, hooks.threads).result;
     },
@@ -376,7 +371,6 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     rows,
     warnings,
     timings,
-    reportDemLayers,
     ...(reportMaps ? { reportMaps } : {}),
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   };

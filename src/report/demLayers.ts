@@ -1,4 +1,3 @@
-import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { ReportGrid } from "./model.js";
 import { blockFactor, downsampleGrid } from "./downsample.js";
 import { hillshade } from "./hillshade.js";
@@ -7,10 +6,10 @@ import { contourLayer, mapView } from "./map.js";
 
 /**
  * The report's layers that come from the DEM alone: the hill shade (a PNG data URI) and the
- * main map's contours. They take a good share of the page's rendering, and the DEM is known
- * from the start of a plan, so a plan has them made on a worker thread while it lays out and
- * solves (demLayersInBackground); the page is the same whether they were made then or by
- * renderReport itself (test/report/background.test.ts).
+ * main map's contours. They take a good share of the page's rendering, so a plan has them
+ * drawn on a worker thread with the report's maps while it makes its statistics
+ * (serialize.ts reportMapsInBackground); the page is the same whether they were made then or
+ * by renderReport itself (test/report/background.test.ts).
  */
 export interface DemLayers {
   /** Which reduced DEM they were drawn from (size and geotransform; see demLayersKey). */
@@ -44,19 +43,4 @@ export function demLayersKey(dem: ReportGrid): string {
  */
 export function demLayersOfGrid(grid: ReportGrid, maxPx = 1000): DemLayers {
   return demLayers(downsampleGrid(grid, blockFactor(grid.width, grid.height, maxPx)));
-}
-
-const workerUrl = new URL("./demLayersWorker.js", import.meta.url);
-
-/**
- * Starts making the DEM layers on a worker thread (heights in shared memory are read in
- * place; background.ts). `result()` gives them, or undefined when no worker was started
- * (one thread requested, a small DEM, no compiled worker) or it failed: the page then
- * draws them itself.
- * @example const pending = demLayersInBackground(grid); ...; renderReport(input, await pending.result())
- */
-export function demLayersInBackground(grid: ReportGrid, threads?: number): Background<DemLayers> {
-  if (threads === 1 || grid.width * grid.height < BACKGROUND_MIN_CELLS) return NOT_IN_BACKGROUND;
-  const { width, height, transform, cellSizeM, heights } = grid;
-  return inBackground<DemLayers>(workerUrl, { width, height, transform, cellSizeM, heights } satisfies ReportGrid);
 }

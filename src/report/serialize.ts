@@ -13,6 +13,7 @@ import { InputFileError } from "../errors.js";
 import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
 import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
 import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import type { DemLayers } from "./demLayers.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
 export const REPORT_DATA_FORMAT = "gsdplan-report-data";
@@ -89,17 +90,23 @@ function mapsFit(maps: ReportMaps, input: ReportInput, maxPx: number): boolean {
 
 const mapsWorkerUrl = new URL("./mapsWorker.js", import.meta.url);
 
+/** The report's maps and the DEM's own layers drawn from the reduced DEM (demLayers.ts). */
+export interface ReportMapsAndLayers extends ReportMaps {
+  layers: DemLayers;
+}
+
 /**
- * Starts reportMaps on a worker thread (background.ts) as soon as the plan's rasters are
- * final, so they are reduced while this thread makes the plan's statistics. Only for a
- * large grid on several threads (arrays in shared memory are read in place).
+ * Starts reportMaps, and the hill shade and contours of the reduced DEM, on a worker thread
+ * (background.ts) as soon as the plan's rasters are final, so they are made while this
+ * thread makes the plan's statistics. Only for a large grid on several threads (arrays in
+ * shared memory are read in place).
  * @example const maps = reportMapsInBackground(grid, rasters); ...; compactReportInput(input, 1000, await maps.result())
  */
-export function reportMapsInBackground(dem: ReportGrid, rasters: ReportRasters, threads?: number): Background<ReportMaps> {
+export function reportMapsInBackground(dem: ReportGrid, rasters: ReportRasters, threads?: number): Background<ReportMapsAndLayers> {
   if (threads === 1 || dem.width * dem.height < BACKGROUND_MIN_CELLS || blockFactor(dem.width, dem.height, 1000) <= 1) return NOT_IN_BACKGROUND;
   const { width, height, transform, cellSizeM, heights } = dem;
   const { gsdCm, images, flags, inSite } = rasters;
-  return inBackground<ReportMaps>(mapsWorkerUrl, {
+  return inBackground<ReportMapsAndLayers>(mapsWorkerUrl, {
     dem: { width, height, transform, cellSizeM, heights },
     rasters: { width: rasters.width, height: rasters.height, transform: rasters.transform, gsdCm, images, flags, inSite },
   } satisfies ReportMaps);

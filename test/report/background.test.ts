@@ -3,13 +3,12 @@ import { builtModule } from "../helpers/dist.js";
 import { makeReportInput } from "./fixture.js";
 import { renderReport } from "../../src/report/render.js";
 import type { reportHtmlInBackground as Background } from "../../src/report/background.js";
-import { demLayersOfGrid, type demLayersInBackground as LayersInBackground } from "../../src/report/demLayers.js";
+import { demLayersOfGrid } from "../../src/report/demLayers.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { compactReportInput, reportMaps, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
 import type { ReportRasters } from "../../src/report/model.js";
 
 const built = builtModule("report/background.js", ["renderWorker.js"]);
-const builtLayers = builtModule("report/demLayers.js", ["demLayersWorker.js"]);
 const builtMaps = builtModule("report/serialize.js", ["mapsWorker.js"]);
 
 describe.skipIf(!built.available)("report page rendered in a worker thread", () => {
@@ -37,22 +36,8 @@ describe("the report's DEM layers made beforehand", () => {
   });
 });
 
-describe.skipIf(!builtLayers.available)("the report's DEM layers made in a worker thread", () => {
-  it("are the layers made on this thread", async () => {
-    const { demLayersInBackground } = (await import(builtLayers.href)) as { demLayersInBackground: typeof LayersInBackground };
-    // 1200 x 900 cells of hills (over the worker's threshold), 2 m cells.
-    const grid = makeGrid({ width: 1200, height: 900, x0: 500000, y0: 6000000, cellM: 2, heights: (x, y) => 200 + 40 * Math.sin(x / 300) * Math.cos(y / 250) });
-    const layers = await demLayersInBackground(grid).result();
-    expect(layers).toBeDefined();
-    expect(layers).toEqual(demLayersOfGrid(grid));
-    expect(layers!.contours.svg.length).toBeGreaterThan(1000);
-    // One thread requested: none is started, and the page draws the layers itself.
-    expect(await demLayersInBackground(grid, 1).result()).toBeUndefined();
-  });
-});
-
 describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thread", () => {
-  it("are the maps reduced on this thread, and the compacted input does not change with them", async () => {
+  it("are the maps reduced on this thread, with the DEM's layers", async () => {
     const { reportMapsInBackground } = (await import(builtMaps.href)) as { reportMapsInBackground: typeof MapsInBackground };
     const W = 1500, H = 1100;
     const dem = makeGrid({ width: W, height: H, x0: 500000, y0: 6000000, cellM: 1, heights: (x, y) => 300 + 25 * Math.sin(x / 90) + 10 * Math.cos(y / 70) });
@@ -74,6 +59,9 @@ describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thr
     expect(maps).toBeDefined();
     expect(maps!.dem).toEqual(here.dem);
     expect(maps!.rasters).toEqual(here.rasters);
+    // With the DEM's layers drawn from the reduced DEM, as the page draws them from the full one.
+    expect(maps!.layers).toEqual(demLayersOfGrid(dem));
+    expect(maps!.layers.contours.svg.length).toBeGreaterThan(1000);
     // One thread requested: no worker.
     expect(await reportMapsInBackground(dem, rasters, 1).result()).toBeUndefined();
   });
