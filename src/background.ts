@@ -21,6 +21,15 @@ export interface Background<T> {
 /** Below this many DEM cells such work takes a few tens of milliseconds: no thread is started for it. */
 export const BACKGROUND_MIN_CELLS = 250_000;
 
+/**
+ * Whether work over a grid of `cells` goes to a worker thread: not when one thread was
+ * requested (a campaign planning sites side by side), nor on grids where it is too small to pay.
+ * @example const b = backgroundAllowed(grid.width * grid.height, threads) ? inBackground(url, job) : NOT_IN_BACKGROUND;
+ */
+export function backgroundAllowed(cells: number, threads?: number): boolean {
+  return threads !== 1 && cells >= BACKGROUND_MIN_CELLS;
+}
+
 /** No worker: result() gives undefined. */
 export const NOT_IN_BACKGROUND: Background<never> = { result: async () => undefined };
 

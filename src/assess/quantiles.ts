@@ -107,7 +107,7 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
   for (let i = 0; i < keys.length; i++) {
     const v = values[i];
     if (v !== v || (mask !== undefined && mask[i] === 0)) continue;
-    const k = slot[sortKey(keys[i]) >>> 16];
+    const k = slot[radixBin(keys[i])];
     if (k >= 0) gathered[k][fill[k]++] = v;
   }
   // A first pass counted on other cells than `mask` selects would select wrongly: refuse it.

@@ -1,4 +1,4 @@
-import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND } from "../background.js";
+import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND } from "../background.js";
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout } from "../layout/types.js";
@@ -28,8 +28,7 @@ export function constantAltitudeBaselineInBackground(
   inSite: Uint8Array,
 ): { finish: (planRasters: AssessmentRasters) => Promise<Baseline>; madeIn: () => "worker" | "this thread" | "pending" } {
   const job = baselineJob(grid, layout, camera, requirement, o, inSite);
-  const background = o.threads !== 1 && grid.width * grid.height >= BACKGROUND_MIN_CELLS;
-  const figures = background ? inBackground<BaselineFigures>(workerUrl, job) : NOT_IN_BACKGROUND;
+  const figures = backgroundAllowed(grid.width * grid.height, o.threads) ? inBackground<BaselineFigures>(workerUrl, job) : NOT_IN_BACKGROUND;
   let madeIn: "worker" | "this thread" | "pending" = "pending";
   return {
     finish: async (planRasters) => {

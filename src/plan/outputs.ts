@@ -14,7 +14,7 @@ import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
 import { assessmentGeoTiffChunks, assessmentGeoTiffsInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
-import { BACKGROUND_MIN_CELLS, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { backgroundAllowed, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import { reportHtmlInBackground } from "../report/background.js";
@@ -77,9 +77,8 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
   // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
   // thread (on large grids, threads allowed), or here after it when none ran.
-  const cells = rasters.width * rasters.height;
   let small: Background<Partial<AssessmentTiffs>> | undefined;
-  const smallTiffs = () => (small ??= run.threads !== 1 && cells >= BACKGROUND_MIN_CELLS ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"]) : NOT_IN_BACKGROUND);
+  const smallTiffs = () => (small ??= backgroundAllowed(rasters.width * rasters.height, run.threads) ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"]) : NOT_IN_BACKGROUND);
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     await reportPage();
     smallTiffs();

@@ -256,12 +256,13 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   // The constant-altitude comparison needs only the final strips, the DEM and the site: it
   // is made on the other core from here on, while this thread routes, checks and assesses.
   const inSite = siteMaskFor(grid, site.local, hooks.threads);
+  const takeoffGround = solvedBlocks[0].groundM;
   const baselineRun = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, {
     targetHeightM,
     triggerM,
     minImages: options.minImages,
     ceiling: options.ceiling,
-    takeoffGroundM: solvedBlocks[0].groundM,
+    takeoffGroundM: takeoffGround,
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   }, inSite);
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
@@ -291,7 +292,6 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   warnings.push(...rangeBreaches(flights.flights, options.aircraft.maxRangeM));
   const budget = waypointBudgetCheck(grid, layout, flights, solverOptions, options.aircraft.maxWaypoints, options.target.tolerancePct);
   warnings.push(...budget.warnings);
-  const takeoffGround = solvedBlocks[0].groundM;
   lap("route");
 
   // The same independent check `gsdplan verify` makes, on the rows about to be written.

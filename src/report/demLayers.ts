@@ -1,5 +1,4 @@
 import type { ReportGrid } from "./model.js";
-import { blockFactor, downsampleGrid } from "./downsample.js";
 import { hillshade } from "./hillshade.js";
 import { pngDataUri, shadeRgba } from "./png.js";
 import { contourLayer, mapView } from "./map.js";
@@ -34,13 +33,4 @@ export function demLayers(dem: ReportGrid): DemLayers {
 export function demLayersKey(dem: ReportGrid): string {
   const t = dem.transform;
   return `${dem.width}x${dem.height} ${t.x0} ${t.y0} ${t.dx} ${t.dy}`;
-}
-
-/**
- * The layers of a full-resolution DEM, reduced to at most `maxPx` across as the report
- * input is (compactReportInput).
- * @example demLayersOfGrid(run.grid).contours.intervalM
- */
-export function demLayersOfGrid(grid: ReportGrid, maxPx = 1000): DemLayers {
-  return demLayers(downsampleGrid(grid, blockFactor(grid.width, grid.height, maxPx)));
 }

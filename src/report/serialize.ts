@@ -12,7 +12,7 @@ import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
 import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
 import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
-import { BACKGROUND_MIN_CELLS, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { DemLayers } from "./demLayers.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
@@ -103,7 +103,7 @@ export interface ReportMapsAndLayers extends ReportMaps {
  * @example const maps = reportMapsInBackground(grid, rasters); ...; compactReportInput(input, 1000, await maps.result())
  */
 export function reportMapsInBackground(dem: ReportGrid, rasters: ReportRasters, threads?: number): Background<ReportMapsAndLayers> {
-  if (threads === 1 || dem.width * dem.height < BACKGROUND_MIN_CELLS || blockFactor(dem.width, dem.height, 1000) <= 1) return NOT_IN_BACKGROUND;
+  if (!backgroundAllowed(dem.width * dem.height, threads) || blockFactor(dem.width, dem.height, 1000) <= 1) return NOT_IN_BACKGROUND;
   const { width, height, transform, cellSizeM, heights } = dem;
   const { gsdCm, images, flags, inSite } = rasters;
   return inBackground<ReportMapsAndLayers>(mapsWorkerUrl, {

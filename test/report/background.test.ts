@@ -3,7 +3,7 @@ import { builtModule } from "../helpers/dist.js";
 import { makeReportInput } from "./fixture.js";
 import { renderReport } from "../../src/report/render.js";
 import type { reportHtmlInBackground as Background } from "../../src/report/background.js";
-import { demLayersOfGrid } from "../../src/report/demLayers.js";
+import { demLayers } from "../../src/report/demLayers.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { compactReportInput, reportMaps, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
 import type { ReportRasters } from "../../src/report/model.js";
@@ -27,11 +27,12 @@ describe("the report's DEM layers made beforehand", () => {
   it("give the page the report draws itself, and layers of another DEM are not used", () => {
     const input = makeReportInput({ siteName: "Layers check" });
     const own = renderReport(input);
-    expect(renderReport(input, demLayersOfGrid(input.dem))).toBe(own);
+    const reduced = compactReportInput(input).dem;
+    expect(renderReport(input, demLayers(reduced))).toBe(own);
     // Layers of other ground (the heights raised 40 m): drawn from the wrong DEM, they must
     // not reach the page; a wrong key makes the page draw its own.
-    const other = demLayersOfGrid({ ...input.dem, heights: input.dem.heights.map((z) => z + 40) });
-    expect(other.contours.svg).not.toBe(demLayersOfGrid(input.dem).contours.svg);
+    const other = demLayers({ ...reduced, heights: reduced.heights.map((z) => z + 40) });
+    expect(other.contours.svg).not.toBe(demLayers(reduced).contours.svg);
     expect(renderReport(input, { ...other, key: "another DEM" })).toBe(own);
   });
 });
@@ -60,7 +61,7 @@ describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thr
     expect(maps!.dem).toEqual(here.dem);
     expect(maps!.rasters).toEqual(here.rasters);
     // With the DEM's layers drawn from the reduced DEM, as the page draws them from the full one.
-    expect(maps!.layers).toEqual(demLayersOfGrid(dem));
+    expect(maps!.layers).toEqual(demLayers(here.dem));
     expect(maps!.layers.contours.svg.length).toBeGreaterThan(1000);
     // One thread requested: no worker.
     expect(await reportMapsInBackground(dem, rasters, 1).result()).toBeUndefined();
