@@ -92,7 +92,7 @@ export function assessPlan(
   const inSite = opts.inSite ?? siteMaskFor(grid, site, opts.threads);
   if (inSite.length !== width * height) throw new Error(`site mask of ${inSite.length} cells for a ${width} x ${height} grid`);
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
-  const { gsdCm, images, nadirStrip, flags } = computeCoverage(grid, inSite, exposures, camera, {
+  const { gsdCm, images, nadirStrip, flags, seenByBand } = computeCoverage(grid, inSite, exposures, camera, {
     nadirBy: opts.nadirBy,
     threads: opts.threads,
     // The effect bits are set band by band as soon as a band's photos are all counted.
@@ -104,7 +104,7 @@ export function assessPlan(
   const rasters = { width, height, transform, gsdCm, images, flags, inSite };
   opts.onRasters?.(rasters);
   const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip });
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { ...rasters, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },

@@ -1,7 +1,7 @@
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera } from "../camera/types.js";
 import type { Exposure } from "./types.js";
-import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBands, type NadirBy, type SweepInput } from "./coverageKernel.js";
+import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBands, type NadirBy, type SeenByBand, type SweepInput } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable } from "./bandThreads.js";
 
 /**
@@ -33,6 +33,8 @@ export interface Coverage {
   nadirStrip: Uint16Array;
   /** Effect flags (coarse, fine, too few images, no data; 0 outside the site), when `effects` was given. */
   flags?: Uint16Array;
+  /** Seen site cells per band of rows and nadir strip, counted with the effects (see SeenByBand). */
+  seenByBand?: SeenByBand;
 }
 
 /** Pixels of the image along and across the track: width goes across unless the camera is portrait. */
@@ -84,6 +86,7 @@ export function computeCoverage(
   const ground = shareable(heights, threads);
   const blocks = siteGroundBlocks(heights, inSite, width, height);
   const m = exposures.length;
+  const strips = exposures.reduce((k, e) => Math.max(k, e.strip), 0) + 1;
   const input: SweepInput = {
     width, height, x0, y0, dx, dy,
     ground,
@@ -91,7 +94,13 @@ export function computeCoverage(
     images: new Uint16Array(buffer(2 * n)),
     gsdCm: new Float32Array(buffer(4 * n)),
     nadirStrip: new Uint16Array(buffer(2 * n)),
-    ...(opts.effects ? { flags: new Uint16Array(buffer(2 * n)), effects: { lowCm: opts.effects.lowGsdCm, highCm: opts.effects.highGsdCm, minImages: opts.effects.minImages } } : {}),
+    ...(opts.effects
+      ? {
+          flags: new Uint16Array(buffer(2 * n)),
+          effects: { lowCm: opts.effects.lowGsdCm, highCm: opts.effects.highGsdCm, minImages: opts.effects.minImages },
+          seenByBand: { counts: new Int32Array(buffer(4 * bands * strips)), strips, bandRows: BAND_ROWS },
+        }
+      : {}),
     ex: Float64Array.from(exposures, (e) => e.x),
     ey: Float64Array.from(exposures, (e) => e.y),
     ez: Float64Array.from(exposures, (e) => e.altitudeAmslM),
@@ -116,5 +125,9 @@ export function computeCoverage(
     input.rowLo.fill(1);
   } else reachOfPhotos(input);
   runBands("sweep", input, bands, threads, sweepBands);
-  return { gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip, ...(input.flags ? { flags: input.flags } : {}) };
+  return {
+    gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip,
+    ...(input.flags ? { flags: input.flags } : {}),
+    ...(input.seenByBand ? { seenByBand: input.seenByBand } : {}),
+  };
 }

@@ -25,6 +25,11 @@ export interface SweepInput {
   /** Effect flags (coarse, fine, too few images, no data), written band by band when given. */
   flags?: Uint16Array;
   effects?: { lowCm: number; highCm: number; minImages: number };
+  /**
+   * With the effects: seen site cells (a GSD exists) per band and nadir strip, counted as
+   * each band's cells become final, band b's counts at b * strips (see SeenByBand).
+   */
+  seenByBand?: SeenByBand;
   /** Photos as columns: position, altitude AMSL, along-track unit vector, strip. */
   ex: Float64Array;
   ey: Float64Array;
@@ -57,6 +62,18 @@ export interface SweepInput {
  * solver's zones (half the spacing each side) do.
  */
 export type NadirBy = "image" | "distance";
+
+/**
+ * Site cells some photo sees, counted per band of `bandRows` rows and per nadir strip
+ * (strip numbers 0 .. strips - 1): band b's count of strip s at counts[b * strips + s].
+ * Each band is counted by the one thread that sweeps it, so no two threads write the
+ * same count; the statistics take the strips' totals from it instead of a pass of their own.
+ */
+export interface SeenByBand {
+  counts: Int32Array;
+  strips: number;
+  bandRows: number;
+}
 
 /** Side of the square blocks whose lowest site ground bounds the footprints, in cells. */
 export const BLOCK = 32;
@@ -229,7 +246,7 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
       );
     }
   }
-  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, base0, (r1 + 1) * width);
+  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, base0, (r1 + 1) * width, inp.seenByBand, band);
 }
 
 /**
@@ -286,16 +303,33 @@ function sweepRow(
  * Effect bits and the no-data bit of the cells i0..i1-1, whose photos are all
  * counted: coarse or fine outside the GSD band, too few images under
  * minImages; no data where the site's ground is unknown; 0 outside the site.
+ * With `seen`, the same pass counts the band's seen site cells per nadir strip.
  */
-function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; highCm: number; minImages: number }, i0: number, i1: number): void {
-  const { inSite, ground, gsdCm, images } = inp;
+function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; highCm: number; minImages: number }, i0: number, i1: number, seen: SeenByBand | undefined, band: number): void {
+  const { inSite, ground, gsdCm, images, nadirStrip } = inp;
   const lo = fx.lowCm * (1 - BAND_SLACK);
   const hi = fx.highCm * (1 + BAND_SLACK);
   const minImages = fx.minImages;
+  // Neighbouring cells mostly share their strip: the count of a run of them is added at once.
+  // (Without a table to fill, the runs are counted and dropped.)
+  const counts = seen ? seen.counts : new Int32Array(65536);
+  const at = seen ? band * seen.strips : 0;
+  let runStrip = 0;
+  let run = 0;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) {
       flags[i] = 0;
       continue;
+    }
+    const g = gsdCm[i];
+    if (g === g) {
+      const s = nadirStrip[i];
+      if (s !== runStrip) {
+        counts[at + runStrip] += run;
+        runStrip = s;
+        run = 0;
+      }
+      run++;
     }
     const z = ground[i];
     if (z !== z) {
@@ -303,12 +337,12 @@ function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; h
       continue;
     }
     let f = 0;
-    const g = gsdCm[i];
     if (g > hi) f |= FLAG_COARSE;
     else if (g < lo) f |= FLAG_FINE;
     if (images[i] < minImages) f |= FLAG_FEW_IMAGES;
     flags[i] = f;
   }
+  counts[at + runStrip] += run;
 }
 
 /**

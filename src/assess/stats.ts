@@ -1,4 +1,5 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
+import type { SeenByBand } from "./coverageKernel.js";
 import { FLAG_COARSE, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf, type RadixHistogram } from "./quantiles.js";
 
@@ -24,6 +25,8 @@ export interface StatsInput {
   cellAreaM2: number;
   /** Highest strip number that can occur in nadirStrip (saves a pass over the grid when known). */
   maxStrip?: number;
+  /** Seen site cells per band and nadir strip, counted by the coverage pass (saves the pass that counts them here). */
+  seenByBand?: SeenByBand;
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -36,6 +39,21 @@ function gsdStats(values: Float32Array, radix?: RadixHistogram): GsdStats {
 function quantilesOfRadix(values: Float32Array, radix: RadixHistogram): number[] {
   const { n, stats } = orderStatisticsOfRadix(values, radix, (m) => ranksOf(m, QUANTILES));
   return n === 0 ? QUANTILES.map(() => NaN) : interpolate(n, QUANTILES, stats);
+}
+
+/** Seen site cells per strip 0..maxStrip, summed over the bands of the coverage pass's table. */
+function seenOfBands(seen: SeenByBand, maxStrip: number): Int32Array {
+  if (seen.strips !== maxStrip + 1) throw new Error(`seen cells counted for ${seen.strips} strips, ${maxStrip + 1} expected`);
+  const out = new Int32Array(maxStrip + 1);
+  for (let b = 0; b < seen.counts.length; b += seen.strips) for (let s = 0; s <= maxStrip; s++) out[s] += seen.counts[b + s];
+  return out;
+}
+
+/** Seen site cells (a GSD exists) per strip 0..maxStrip, from the cells. */
+function seenOfCells(inSite: Uint8Array, gsdCm: Float32Array, nadirStrip: Uint16Array, maxStrip: number): Int32Array {
+  const out = new Int32Array(maxStrip + 1);
+  for (let i = 0; i < inSite.length; i++) if (inSite[i] !== 0 && gsdCm[i] === gsdCm[i]) out[nadirStrip[i]]++;
+  return out;
 }
 
 function pct(part: number, whole: number): number {
@@ -54,36 +72,38 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   if (maxStrip < 0) for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
   maxStrip = Math.max(0, maxStrip);
 
-  // One pass: a histogram of flag values per strip (strip 0: cells no photo sees) gives every
-  // count; flag kinds are read off the 512 bins afterwards instead of testing 9 bits per cell.
-  // The same pass counts image counts of site cells with data (their min and median).
-  const flagHist = new Float64Array((maxStrip + 1) * FLAG_VALUES);
-  const seenCount = new Int32Array(maxStrip + 2);
-  const imageHist = new Float64Array(65536);
-  for (let i = 0; i < n; i++) {
-    if (inSite[i] === 0) continue;
-    if (valid[i] === 1) imageHist[images[i]]++;
-    const s = nadirStrip[i];
-    flagHist[s * FLAG_VALUES + flags[i]]++;
-    if (gsdCm[i] === gsdCm[i]) seenCount[s + 1]++;
-  }
+  // Where each strip's GSD values go in one array grouped by strip: the seen cells per
+  // strip, from the coverage pass's counts when it made them, else counted here.
+  const seenCount = input.seenByBand ? seenOfBands(input.seenByBand, maxStrip) : seenOfCells(inSite, gsdCm, nadirStrip, maxStrip);
   const start = new Int32Array(maxStrip + 2);
-  for (let s = 0; s <= maxStrip; s++) start[s + 1] = start[s] + seenCount[s + 1];
+  for (let s = 0; s <= maxStrip; s++) start[s + 1] = start[s] + seenCount[s];
   const grouped = new Float32Array(start[maxStrip + 1]);
   const fill = start.slice();
-  // Seen cells in band, per strip: no coarse/fine bit and a GSD.
+
+  // One pass: a histogram of flag values per strip (strip 0: cells no photo sees) gives every
+  // count; flag kinds are read off the 512 bins afterwards instead of testing 9 bits per cell.
+  // The same pass counts image counts of site cells with data (their min and median), groups
+  // the seen cells' GSD by strip, counts the seen cells in band per strip, and makes the first
+  // radix pass of the site's GSD quantiles (quantiles.ts).
+  const flagHist = new Float64Array((maxStrip + 1) * FLAG_VALUES);
+  const imageHist = new Float64Array(65536);
   const inBandSeen = new Float64Array(maxStrip + 1);
-  // The same pass makes the first radix pass of the site's GSD quantiles (quantiles.ts).
   const gsdBits = float32Keys(gsdCm);
   const radixHist = new Uint32Array(RADIX_BINS);
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
+    if (valid[i] === 1) imageHist[images[i]]++;
+    const s = nadirStrip[i];
+    const f = flags[i];
+    flagHist[s * FLAG_VALUES + f]++;
     const g = gsdCm[i];
     if (g !== g) continue;
-    const s = nadirStrip[i];
     grouped[fill[s]++] = g;
     radixHist[radixBin(gsdBits[i])]++;
-    if ((flags[i] & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[s]++;
+    if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[s]++;
+  }
+  for (let s = 0; s <= maxStrip; s++) {
+    if (fill[s] !== start[s + 1]) throw new Error(`strip ${s}: ${fill[s] - start[s]} seen cells grouped, ${seenCount[s]} counted`);
   }
 
   const kindCounts = (s0: number, s1: number): { cells: Float64Array; all: number; flagged: number } => {

@@ -42,6 +42,23 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
       expect(Buffer.from(twoD[k]!.buffer).equals(Buffer.from(oneD[k]!.buffer)), k).toBe(true);
     }
     expect(oneD.flags!.some((f) => f !== 0)).toBe(true);
+    // The seen cells per band and strip, counted with the effects: the same from either
+    // split, and the same per strip as a count over the rasters.
+    expect(Array.from(twoD.seenByBand!.counts)).toEqual(Array.from(oneD.seenByBand!.counts));
+    const { counts, strips } = oneD.seenByBand!;
+    const direct = new Array(strips).fill(0);
+    for (let i = 0; i < inSite.length; i++) if (inSite[i] && !Number.isNaN(oneD.gsdCm[i])) direct[oneD.nadirStrip[i]]++;
+    const summed = new Array(strips).fill(0);
+    for (let b = 0; b < counts.length; b += strips) for (let st = 0; st < strips; st++) summed[st] += counts[b + st];
+    expect(summed).toEqual(direct);
+    expect(direct.filter((c) => c > 0).length).toBeGreaterThan(10);
+    // The statistics taken from the table equal those that count the cells themselves.
+    const { assessmentStats } = (await import(new URL("../../dist/assess/stats.js", import.meta.url).href)) as typeof import("../../src/assess/stats.js");
+    const statsIn = { gsdCm: oneD.gsdCm, images: oneD.images, flags: oneD.flags!, inSite, valid: grid.valid, nadirStrip: oneD.nadirStrip, cellAreaM2: 0.25, maxStrip: strips - 1 };
+    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand })).toEqual(assessmentStats(statsIn));
+    // A table for another number of strips is refused rather than misread.
+    expect(() => assessmentStats({ ...statsIn, maxStrip: strips })).not.toThrow();
+    expect(() => assessmentStats({ ...statsIn, maxStrip: strips, seenByBand: twoD.seenByBand })).toThrow(/strips/);
   });
 
   it("gives the same constant-altitude image counts as one thread", async () => {
