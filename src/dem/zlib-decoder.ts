@@ -38,23 +38,48 @@ export function undoPredictor(block: ArrayBuffer, p: DecoderParameters): ArrayBu
     return block;
   }
   if (p.predictor !== 3) throw new Error(`unsupported predictor ${p.predictor}`);
-  const scratch = new Uint8Array(rowBytes);
   const wc = rowSamples;
+  if (bytes === 4 && LITTLE_ENDIAN_HOST) return undoFloatPredictor32(block, rows, rowBytes, stride, wc);
+  const scratch = new Uint8Array(rowBytes);
   for (let r = 0; r < rows; r++) {
     const row = new Uint8Array(block, r * rowBytes, rowBytes);
     for (let i = stride; i < rowBytes; i++) row[i] = (row[i] + row[i - stride]) & 255;
-    if (bytes === 4) {
-      for (let i = 0; i < wc; i++) {
-        const o = 4 * i;
-        scratch[o] = row[3 * wc + i];
-        scratch[o + 1] = row[2 * wc + i];
-        scratch[o + 2] = row[wc + i];
-        scratch[o + 3] = row[i];
+    for (let i = 0; i < wc; i++) for (let b = 0; b < bytes; b++) scratch[bytes * i + b] = row[(bytes - b - 1) * wc + i];
+    row.set(scratch);
+  }
+  return block;
+}
+
+const LITTLE_ENDIAN_HOST = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
+
+/**
+ * Predictor 3 on 32-bit samples (the usual Float32 DEM), the same bytes as the general
+ * loop above, about twice as fast: the byte sums of a row run in a local (the general
+ * loop reads back the byte it has just stored, one dependent load and store per byte),
+ * and each sample's four byte planes are put together as one 32-bit word (its most
+ * significant byte first in the planes) and stored once, in the host's little-endian order.
+ */
+function undoFloatPredictor32(block: ArrayBuffer, rows: number, rowBytes: number, stride: number, wc: number): ArrayBuffer {
+  const bytes = new Uint8Array(block, 0, rows * rowBytes);
+  const words = new Uint32Array(block, 0, rows * wc);
+  const scratch = new Uint32Array(wc);
+  for (let r = 0; r < rows; r++) {
+    const o = r * rowBytes;
+    const end = o + rowBytes;
+    if (stride === 1) {
+      let acc = bytes[o];
+      for (let i = o + 1; i < end; i++) {
+        acc = (acc + bytes[i]) & 255;
+        bytes[i] = acc;
       }
     } else {
-      for (let i = 0; i < wc; i++) for (let b = 0; b < bytes; b++) scratch[bytes * i + b] = row[(bytes - b - 1) * wc + i];
+      for (let i = o + stride; i < end; i++) bytes[i] = (bytes[i] + bytes[i - stride]) & 255;
     }
-    row.set(scratch);
+    const o1 = o + wc;
+    const o2 = o1 + wc;
+    const o3 = o2 + wc;
+    for (let i = 0; i < wc; i++) scratch[i] = (bytes[o + i] << 24) | (bytes[o1 + i] << 16) | (bytes[o2 + i] << 8) | bytes[o3 + i];
+    words.set(scratch, r * wc);
   }
   return block;
 }
