@@ -187,6 +187,10 @@ function copyBlock(
   heights: Float32Array, valid: Uint8Array, k: number, c: number, nd: number,
 ): void {
   const identity = k === 1 && c === 0;
+  if (identity && pixStride === 1 && raw instanceof Float32Array) {
+    copyFloat32Rows(raw, tw, bx0, by0, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, valid, nd);
+    return;
+  }
   for (let row = rowA; row < rowB; row++) {
     let src = ((row - by0) * tw + (colA - bx0)) * pixStride + sampleOff;
     let dst = (row - wr0) * outW + (colA - wc0);
@@ -201,6 +205,32 @@ function copyBlock(
         valid[dst] = 0;
       } else {
         valid[dst] = 1;
+      }
+    }
+  }
+}
+
+/**
+ * copyBlock for the usual DEM (Float32 samples, one band, heights as stored): each row
+ * copied at once, then nodata and non-finite cells made NaN: the same heights and mask.
+ */
+function copyFloat32Rows(
+  raw: Float32Array, tw: number, bx0: number, by0: number, sampleOff: number,
+  colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
+  heights: Float32Array, valid: Uint8Array, nd: number,
+): void {
+  const n = colB - colA;
+  for (let row = rowA; row < rowB; row++) {
+    const src = (row - by0) * tw + (colA - bx0) + sampleOff;
+    const dst = (row - wr0) * outW + (colA - wc0);
+    heights.set(raw.subarray(src, src + n), dst);
+    for (let d = dst; d < dst + n; d++) {
+      const h = heights[d];
+      if (h === nd || h - h !== 0) {
+        heights[d] = NaN;
+        valid[d] = 0;
+      } else {
+        valid[d] = 1;
       }
     }
   }
