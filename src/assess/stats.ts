@@ -1,6 +1,6 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
 import type { SeenByBand } from "./coverageKernel.js";
-import { FLAG_COARSE, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
+import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf, type RadixHistogram } from "./quantiles.js";
 
 /**
@@ -106,22 +106,24 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     if (fill[s] !== start[s + 1]) throw new Error(`strip ${s}: ${fill[s] - start[s]} seen cells grouped, ${seenCount[s]} counted`);
   }
 
-  const kindCounts = (s0: number, s1: number): { cells: Float64Array; all: number; flagged: number } => {
+  const kindCounts = (s0: number, s1: number): { cells: Float64Array; all: number; flagged: number; effect: number } => {
     const cells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
     let all = 0;
     let flagged = 0;
+    let effect = 0;
     for (let s = s0; s <= s1; s++) {
       for (let f = 0; f < FLAG_VALUES; f++) {
         const c = flagHist[s * FLAG_VALUES + f];
         if (c === 0) continue;
         all += c;
         if (f !== 0) flagged += c;
+        if (f & (FLAG_COARSE | FLAG_FINE | FLAG_FEW_IMAGES)) effect += c;
         ASSESSMENT_FLAG_KINDS.forEach((kind, k) => {
           if (f & kind.bit) cells[k] += c;
         });
       }
     }
-    return { cells, all, flagged };
+    return { cells, all, flagged, effect };
   };
   const byKind = (counts: Float64Array, whole: number): Record<string, { cells: number; areaM2: number; pct: number }> => {
     const out: Record<string, { cells: number; areaM2: number; pct: number }> = {};
@@ -153,7 +155,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     gsdCm: gsdStats(grouped, { hist: radixHist, n: grouped.length }),
     withinBandPct: pct(inBand, site.all),
     images: countStatsOfHistogram(imageHist),
-    flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all) },
+    flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all), effectCells: site.effect },
     perStrip,
   };
 }

@@ -47,6 +47,8 @@ export interface AssessmentStats {
     cells: number;
     areaM2: number;
     byKind: Record<string, { cells: number; areaM2: number; pct: number }>;
+    /** Site cells carrying an effect bit: coarser, finer or too few images (measured, whatever the cause). */
+    effectCells: number;
   };
   perStrip: {
     strip: number;

@@ -4,7 +4,7 @@
  */
 import type { PlanRun } from "./plan.js";
 import type { PlanOptions } from "./options.js";
-import { ASSESSMENT_FLAG_KINDS, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE } from "../assess/flags.js";
+import { ASSESSMENT_FLAG_KINDS } from "../assess/flags.js";
 import { STANDARD_CAUTIONS } from "../cautions.js";
 import { crossStripFigures, type FamilyFigures } from "./crossStripFigures.js";
 
@@ -149,7 +149,7 @@ export function planSummary(run: PlanRun): PlanSummary {
     byKind[k.key] = { cells: v.cells, areaM2: r(v.areaM2, 1), pct: r(v.pct, 3) };
   }
   const b = run.baseline.stats;
-  const effectCells = countEffectCells(run.assessment.rasters.flags, run.assessment.rasters.inSite);
+  const effectCells = a.flagged.effectCells;
   const cautions = [...STANDARD_CAUTIONS];
   cautions.unshift(
     `Ceiling rule applied: ${run.options.ceiling.heightM} m, ${CEILING_RULES[run.options.ceiling.reference]}. Check that this is the rule where you fly.`,
@@ -277,14 +277,6 @@ function bends(l: PlanRun["flights"]["flights"][number]["legs"][number]): boolea
   if (!(len > 0)) return false;
   for (let k = 1; k < n - 1; k++) if (Math.abs((p.x[k] - ax) * dy - (p.y[k] - ay) * dx) / len > 0.01) return true;
   return false;
-}
-
-/** Site cells carrying an effect bit (1 coarser, 2 finer, 4 too few images). */
-function countEffectCells(flags: Uint16Array, inSite: Uint8Array): number {
-  const effect = FLAG_COARSE | FLAG_FINE | FLAG_FEW_IMAGES;
-  let n = 0;
-  for (let i = 0; i < flags.length; i++) if (inSite[i] && flags[i] & effect) n++;
-  return n;
 }
 
 /**

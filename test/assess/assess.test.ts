@@ -73,6 +73,8 @@ describe("assessPlan on flat ground", () => {
     const a = assessPlan(grid, site, plan(H0 + AGL), camera, band, { triggerM, zoneHalfAcrossM: spacingM / 2, toWgs84: identity });
     expect(a.stats.flagged.byKind.fine.pct).toBe(100);
     expect(a.stats.flagged.byKind.coarse.cells).toBe(0);
+    // Every site cell carries the fine bit: all of them count as measured effects.
+    expect(a.stats.flagged.effectCells).toBe(a.stats.siteCells);
     expect(a.stats.withinBandPct).toBe(0);
     expect(a.polygons.fine.properties.areaM2).toBe(160 * 110);
   });

@@ -55,7 +55,13 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     // The statistics taken from the table equal those that count the cells themselves.
     const { assessmentStats } = (await import(new URL("../../dist/assess/stats.js", import.meta.url).href)) as typeof import("../../src/assess/stats.js");
     const statsIn = { gsdCm: oneD.gsdCm, images: oneD.images, flags: oneD.flags!, inSite, valid: grid.valid, nadirStrip: oneD.nadirStrip, cellAreaM2: 0.25, maxStrip: strips - 1 };
-    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand })).toEqual(assessmentStats(statsIn));
+    const st = assessmentStats(statsIn);
+    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand })).toEqual(st);
+    // Cells with an effect bit (coarse 1, fine 2, too few images 4), read off the flag histogram.
+    let effect = 0;
+    for (let i = 0; i < inSite.length; i++) if (inSite[i] && oneD.flags![i] & 7) effect++;
+    expect(effect).toBeGreaterThan(1000);
+    expect(st.flagged.effectCells).toBe(effect);
     // A table for another number of strips is refused rather than misread.
     expect(() => assessmentStats({ ...statsIn, maxStrip: strips })).not.toThrow();
     expect(() => assessmentStats({ ...statsIn, maxStrip: strips, seenByBand: twoD.seenByBand })).toThrow(/strips/);

@@ -33,7 +33,7 @@ describe("planOutputFiles + writeOutputSet", () => {
     const summary = buildSummary({
       name: "set", flights: [], rows, photos: 0, headingDeg: 0, lineSpacingM: 1, triggerDistanceM: 1,
       speed: { speedMps: 8, limit: "aircraft" }, gsdBandCm: { target: 2, low: 1.8, high: 2.2 },
-      stats: { siteCells: n, cellAreaM2: 1, gsdCm: { min: 2, p5: 2, median: 2, p95: 2, max: 2 }, withinBandPct: 100, images: { min: 5, median: 5 }, flagged: { cells: 0, areaM2: 0, byKind: {} }, perStrip: [] },
+      stats: { siteCells: n, cellAreaM2: 1, gsdCm: { min: 2, p5: 2, median: 2, p95: 2, max: 2 }, withinBandPct: 100, images: { min: 5, median: 5 }, flagged: { cells: 0, areaM2: 0, byKind: {}, effectCells: 0 }, perStrip: [] },
       ceiling: { heightM: 120, reference: "ground" }, verticalDatum: "egm96", takeoff: map.takeoff, warnings: [],
     });
     const out = path.join(mkdtempSync(path.join(tmpdir(), "gsdplan-set-")), "out");

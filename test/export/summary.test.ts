@@ -11,7 +11,7 @@ const stats: AssessmentStats = {
   gsdCm: { min: 1.8, p5: 1.85, median: 2.01, p95: 2.18, max: 2.4 },
   withinBandPct: 93.456,
   images: { min: 1, median: 9 },
-  flagged: { cells: 70, areaM2: 280, byKind: { coarse: { cells: 20, areaM2: 80, pct: 2 }, ceiling: { cells: 50, areaM2: 200, pct: 5 } } },
+  flagged: { cells: 70, areaM2: 280, byKind: { coarse: { cells: 20, areaM2: 80, pct: 2 }, ceiling: { cells: 50, areaM2: 200, pct: 5 } }, effectCells: 20 },
   perStrip: [],
 };
 
