@@ -104,7 +104,7 @@ export function assessPlan(
   const rasters = { width, height, transform, gsdCm, images, flags, inSite };
   opts.onRasters?.(rasters);
   const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand });
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { ...rasters, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },

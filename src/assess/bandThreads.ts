@@ -15,7 +15,7 @@ import { Worker } from "node:worker_threads";
  */
 
 /** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
-export type BandKind = "sweep" | "lattice";
+export type BandKind = "sweep" | "lattice" | "stats";
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
 const workerUrl = new URL("./coverageWorker.js", import.meta.url);
@@ -37,7 +37,7 @@ export function bandThreads(cells: number, bands: number, requested?: number): n
  * `a` itself when one thread reads it or it is already in shared memory, else a shared copy.
  * @example const heights = shareable(grid.heights, threads);
  */
-export function shareable<T extends Float32Array | Uint8Array>(a: T, threads: number): T {
+export function shareable<T extends Float32Array | Uint8Array | Uint16Array>(a: T, threads: number): T {
   if (threads === 1 || a.buffer instanceof SharedArrayBuffer) return a;
   const c = new (a.constructor as new (b: SharedArrayBuffer) => T)(new SharedArrayBuffer(a.byteLength));
   c.set(a);
@@ -47,17 +47,18 @@ export function shareable<T extends Float32Array | Uint8Array>(a: T, threads: nu
 /**
  * Runs `loop` (which takes bands from the counter until none is left) on this thread and,
  * with more than one thread, the same loop (`kind`) in workers over `input`, whose arrays
- * the workers write must be in shared memory. The workers are ended afterwards: a worker
+ * the workers write must be in shared memory. Each thread has its slot (this one 0, the
+ * workers 1 .. threads - 1), for loops that keep per-thread tallies. The workers are ended afterwards: a worker
  * kept idle would hold on to the last job's shared arrays until its own heap is collected,
  * which an idle thread never does.
  * @example runBands("lattice", input, bands, threads, latticeBands);
  */
-export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number) => void): void {
+export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number, slot: number) => void): void {
   const next = new Int32Array(new SharedArrayBuffer(4));
   const done = new Int32Array(new SharedArrayBuffer(4 * threads));
   const workers: Worker[] = [];
   for (let t = 1; t < threads; t++) workers.push(new Worker(workerUrl, { workerData: { kind, input, next, bands, done, slot: t } }));
-  loop(input, next, bands);
+  loop(input, next, bands, 0);
   let failed = false;
   for (let t = 1; t < threads; t++) {
     // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.

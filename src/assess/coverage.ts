@@ -98,7 +98,7 @@ export function computeCoverage(
       ? {
           flags: new Uint16Array(buffer(2 * n)),
           effects: { lowCm: opts.effects.lowGsdCm, highCm: opts.effects.highGsdCm, minImages: opts.effects.minImages },
-          seenByBand: { counts: new Int32Array(buffer(4 * bands * strips)), strips, bandRows: BAND_ROWS },
+          seenByBand: { counts: new Int32Array(buffer(4 * bands * strips)), strips, bandRows: BAND_ROWS, bandCells: BAND_ROWS * width },
         }
       : {}),
     ex: Float64Array.from(exposures, (e) => e.x),

@@ -73,6 +73,8 @@ export interface SeenByBand {
   counts: Int32Array;
   strips: number;
   bandRows: number;
+  /** Cells per band (bandRows whole rows; the last band may hold fewer). */
+  bandCells: number;
 }
 
 /** Side of the square blocks whose lowest site ground bounds the footprints, in cells. */

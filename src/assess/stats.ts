@@ -1,5 +1,6 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
 import type { SeenByBand } from "./coverageKernel.js";
+import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf, type RadixHistogram } from "./quantiles.js";
 
@@ -25,8 +26,13 @@ export interface StatsInput {
   cellAreaM2: number;
   /** Highest strip number that can occur in nadirStrip (saves a pass over the grid when known). */
   maxStrip?: number;
-  /** Seen site cells per band and nadir strip, counted by the coverage pass (saves the pass that counts them here). */
+  /**
+   * Seen site cells per band and nadir strip, counted by the coverage pass: saves the pass that
+   * counts them here, and lets the pass over the cells go band by band on several threads.
+   */
   seenByBand?: SeenByBand;
+  /** Threads for that pass (see bandThreads); default the machine's choice. */
+  threads?: number;
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -39,6 +45,93 @@ function gsdStats(values: Float32Array, radix?: RadixHistogram): GsdStats {
 function quantilesOfRadix(values: Float32Array, radix: RadixHistogram): number[] {
   const { n, stats } = orderStatisticsOfRadix(values, radix, (m) => ranksOf(m, QUANTILES));
   return n === 0 ? QUANTILES.map(() => NaN) : interpolate(n, QUANTILES, stats);
+}
+
+/**
+ * The statistics' pass over the cells, as plain typed arrays (in shared memory when several
+ * threads take its bands): the cells' rasters, where each band's seen cells of each strip
+ * go in `grouped`, and each thread's tallies at its slot.
+ */
+export interface StatsPassJob {
+  gsdCm: Float32Array;
+  images: Uint16Array;
+  flags: Uint16Array;
+  inSite: Uint8Array;
+  valid: Uint8Array;
+  nadirStrip: Uint16Array;
+  strips: number;
+  /** (bands + 1) rows of `strips`: band b's first place per strip; the last row, each strip's end. */
+  offsets: Int32Array;
+  /** Cells per band (the last band may hold fewer). */
+  bandCells: number;
+  /** Seen site cells' GSD grouped by strip (out). */
+  grouped: Float32Array;
+  /** Per slot: flag values per strip (strips x FLAG_VALUES), image counts of site cells with data (65,536), seen cells in band per strip, the first radix pass of the GSD. */
+  flagHist: Float64Array;
+  imageHist: Float64Array;
+  inBandSeen: Float64Array;
+  radixHist: Uint32Array;
+}
+
+/**
+ * Takes bands of the statistics' pass from the counter until none is left, tallying at `slot`
+ * (runBands' loop, on the calling thread or a worker).
+ * @example runBands("stats", job, bands, threads, statsPassBands);
+ */
+export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: number, slot: number): void {
+  const S = job.strips;
+  const fill = new Int32Array(S);
+  for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
+    fill.set(job.offsets.subarray(b * S, (b + 1) * S));
+    const i0 = b * job.bandCells;
+    statsPassCells(job, i0, Math.min(job.inSite.length, i0 + job.bandCells), slot, fill);
+    for (let s = 0; s < S; s++) {
+      const end = job.offsets[(b + 1) * S + s];
+      if (fill[s] !== end) throw new Error(`band ${b}, strip ${s}: ${fill[s] - job.offsets[b * S + s]} seen cells grouped, ${end - job.offsets[b * S + s]} counted`);
+    }
+  }
+}
+
+/**
+ * Cells i0..i1-1: a histogram of flag values per strip (strip 0: cells no photo sees) gives
+ * every count (flag kinds are read off the 512 bins afterwards instead of testing 9 bits per
+ * cell); image counts of site cells with data (their min and median); the seen cells' GSD
+ * into their strip's places (`fill`, advanced); seen cells in band per strip; the first radix
+ * pass of the site's GSD quantiles (quantiles.ts).
+ */
+function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number, fill: Int32Array): void {
+  const { gsdCm, images, flags, inSite, valid, nadirStrip, grouped, flagHist, imageHist, inBandSeen, radixHist } = job;
+  const S = job.strips;
+  const fh = slot * S * FLAG_VALUES;
+  const ih = slot * 65536;
+  const bs = slot * S;
+  const rh = slot * RADIX_BINS;
+  const gsdBits = float32Keys(gsdCm);
+  for (let i = i0; i < i1; i++) {
+    if (inSite[i] === 0) continue;
+    if (valid[i] === 1) imageHist[ih + images[i]]++;
+    const s = nadirStrip[i];
+    const f = flags[i];
+    flagHist[fh + s * FLAG_VALUES + f]++;
+    const g = gsdCm[i];
+    if (g !== g) continue;
+    grouped[fill[s]++] = g;
+    radixHist[rh + radixBin(gsdBits[i])]++;
+    if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
+  }
+}
+
+/** Memory for the statistics' pass: shared when other threads fill it. */
+function buffer(threads: number, bytes: number): ArrayBufferLike {
+  return threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes);
+}
+
+/** The per-slot tallies added up (slot 0's own array when there is one slot). */
+function sumOfSlots<T extends Float64Array | Uint32Array>(a: T, slots: number): T {
+  const len = a.length / slots;
+  const out = a.subarray(0, len) as T;
+  for (let t = 1; t < slots; t++) for (let k = 0; k < len; k++) out[k] += a[t * len + k];
+  return out;
 }
 
 /** Seen site cells per strip 0..maxStrip, summed over the bands of the coverage pass's table. */
@@ -74,37 +167,38 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
 
   // Where each strip's GSD values go in one array grouped by strip: the seen cells per
   // strip, from the coverage pass's counts when it made them, else counted here.
+  const S = maxStrip + 1;
   const seenCount = input.seenByBand ? seenOfBands(input.seenByBand, maxStrip) : seenOfCells(inSite, gsdCm, nadirStrip, maxStrip);
-  const start = new Int32Array(maxStrip + 2);
-  for (let s = 0; s <= maxStrip; s++) start[s + 1] = start[s] + seenCount[s];
-  const grouped = new Float32Array(start[maxStrip + 1]);
-  const fill = start.slice();
+  const start = new Int32Array(S + 1);
+  for (let s = 0; s < S; s++) start[s + 1] = start[s] + seenCount[s];
 
-  // One pass: a histogram of flag values per strip (strip 0: cells no photo sees) gives every
-  // count; flag kinds are read off the 512 bins afterwards instead of testing 9 bits per cell.
-  // The same pass counts image counts of site cells with data (their min and median), groups
-  // the seen cells' GSD by strip, counts the seen cells in band per strip, and makes the first
-  // radix pass of the site's GSD quantiles (quantiles.ts).
-  const flagHist = new Float64Array((maxStrip + 1) * FLAG_VALUES);
-  const imageHist = new Float64Array(65536);
-  const inBandSeen = new Float64Array(maxStrip + 1);
-  const gsdBits = float32Keys(gsdCm);
-  const radixHist = new Uint32Array(RADIX_BINS);
-  for (let i = 0; i < n; i++) {
-    if (inSite[i] === 0) continue;
-    if (valid[i] === 1) imageHist[images[i]]++;
-    const s = nadirStrip[i];
-    const f = flags[i];
-    flagHist[s * FLAG_VALUES + f]++;
-    const g = gsdCm[i];
-    if (g !== g) continue;
-    grouped[fill[s]++] = g;
-    radixHist[radixBin(gsdBits[i])]++;
-    if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[s]++;
+  // With the coverage pass's counts per band, the cells can be taken band by band on several
+  // threads: each band's seen cells of a strip have their own place in the grouped array
+  // (the same order as one pass over all the cells), the tallies are kept per thread.
+  const banded = input.seenByBand;
+  const bands = banded ? banded.counts.length / S : 1;
+  const threads = banded ? bandThreads(n, bands, input.threads) : 1;
+  const offsets = new Int32Array(buffer(threads, 4 * (bands + 1) * S));
+  offsets.set(start.subarray(0, S));
+  for (let b = 0; b < bands; b++) {
+    for (let s = 0; s < S; s++) offsets[(b + 1) * S + s] = offsets[b * S + s] + (banded ? banded.counts[b * S + s] : seenCount[s]);
   }
-  for (let s = 0; s <= maxStrip; s++) {
-    if (fill[s] !== start[s + 1]) throw new Error(`strip ${s}: ${fill[s] - start[s]} seen cells grouped, ${seenCount[s]} counted`);
-  }
+  const job: StatsPassJob = {
+    gsdCm: shareable(gsdCm, threads), images: shareable(images, threads), flags: shareable(flags, threads),
+    inSite: shareable(inSite, threads), valid: shareable(valid, threads), nadirStrip: shareable(nadirStrip, threads),
+    strips: S, offsets, bandCells: banded ? banded.bandCells : n,
+    grouped: new Float32Array(buffer(threads, 4 * start[S])),
+    flagHist: new Float64Array(buffer(threads, 8 * threads * S * FLAG_VALUES)),
+    imageHist: new Float64Array(buffer(threads, 8 * threads * 65536)),
+    inBandSeen: new Float64Array(buffer(threads, 8 * threads * S)),
+    radixHist: new Uint32Array(buffer(threads, 4 * threads * RADIX_BINS)),
+  };
+  runBands("stats", job, bands, threads, statsPassBands);
+  const grouped = job.grouped;
+  const flagHist = sumOfSlots(job.flagHist, threads);
+  const imageHist = sumOfSlots(job.imageHist, threads);
+  const inBandSeen = sumOfSlots(job.inBandSeen, threads);
+  const radixHist = sumOfSlots(job.radixHist, threads);
 
   const kindCounts = (s0: number, s1: number): { cells: Float64Array; all: number; flagged: number; effect: number } => {
     const cells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);

@@ -52,11 +52,13 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     for (let b = 0; b < counts.length; b += strips) for (let st = 0; st < strips; st++) summed[st] += counts[b + st];
     expect(summed).toEqual(direct);
     expect(direct.filter((c) => c > 0).length).toBeGreaterThan(10);
-    // The statistics taken from the table equal those that count the cells themselves.
+    // The statistics taken from the table equal those that count the cells themselves, ...
     const { assessmentStats } = (await import(new URL("../../dist/assess/stats.js", import.meta.url).href)) as typeof import("../../src/assess/stats.js");
     const statsIn = { gsdCm: oneD.gsdCm, images: oneD.images, flags: oneD.flags!, inSite, valid: grid.valid, nadirStrip: oneD.nadirStrip, cellAreaM2: 0.25, maxStrip: strips - 1 };
     const st = assessmentStats(statsIn);
-    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand })).toEqual(st);
+    // ... whether the pass over the cells runs on one thread or takes the bands on three.
+    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 1 })).toEqual(st);
+    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 3 })).toEqual(st);
     // Cells with an effect bit (coarse 1, fine 2, too few images 4), read off the flag histogram.
     let effect = 0;
     for (let i = 0; i < inSite.length; i++) if (inSite[i] && oneD.flags![i] & 7) effect++;
