@@ -15,7 +15,7 @@ import { Worker } from "node:worker_threads";
  */
 
 /** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
-export type BandKind = "sweep" | "lattice" | "stats";
+export type BandKind = "sweep" | "lattice" | "stats" | "quantiles";
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
 const workerUrl = new URL("./coverageWorker.js", import.meta.url);
@@ -37,7 +37,7 @@ export function bandThreads(cells: number, bands: number, requested?: number): n
  * `a` itself when one thread reads it or it is already in shared memory, else a shared copy.
  * @example const heights = shareable(grid.heights, threads);
  */
-export function shareable<T extends Float32Array | Uint8Array | Uint16Array>(a: T, threads: number): T {
+export function shareable<T extends Float32Array | Uint8Array | Uint16Array | Int32Array>(a: T, threads: number): T {
   if (threads === 1 || a.buffer instanceof SharedArrayBuffer) return a;
   const c = new (a.constructor as new (b: SharedArrayBuffer) => T)(new SharedArrayBuffer(a.byteLength));
   c.set(a);

@@ -37,8 +37,7 @@ export interface StatsInput {
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
 
-function gsdStats(values: Float32Array, radix?: RadixHistogram): GsdStats {
-  const [min, p5, median, p95, max] = radix ? quantilesOfRadix(values, radix) : quantilesFloat32(values, QUANTILES);
+function gsdStats([min, p5, median, p95, max]: Iterable<number>): GsdStats {
   return { min, p5, median, p95, max };
 }
 
@@ -118,6 +117,24 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number,
     grouped[fill[s]++] = g;
     radixHist[rh + radixBin(gsdBits[i])]++;
     if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
+  }
+}
+
+/** Each strip's GSD values (grouped[start[s]] up to start[s + 1]) and their quantiles (out, QUANTILES per strip). */
+export interface StripQuantilesJob {
+  grouped: Float32Array;
+  start: Int32Array;
+  quantiles: Float64Array;
+}
+
+/**
+ * Takes strips from the counter until none is left and writes each one's GSD quantiles
+ * (runBands' loop: a strip is a band here).
+ * @example runBands("quantiles", job, strips, threads, stripQuantilesBands);
+ */
+export function stripQuantilesBands(job: StripQuantilesJob, next: Int32Array, strips: number): void {
+  for (let s = Atomics.add(next, 0, 1); s < strips; s = Atomics.add(next, 0, 1)) {
+    job.quantiles.set(quantilesFloat32(job.grouped.subarray(job.start[s], job.start[s + 1]), QUANTILES), s * QUANTILES.length);
   }
 }
 
@@ -227,6 +244,21 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     return out;
   };
 
+  // The strips' GSD quantiles, strips shared between threads as bands; this thread makes the
+  // site's own first (from the pass's radix tallies), then takes strips too.
+  const qThreads = Math.min(threads, S);
+  const qJob: StripQuantilesJob = {
+    grouped,
+    start: shareable(start, qThreads),
+    quantiles: new Float64Array(buffer(qThreads, 8 * S * QUANTILES.length)),
+  };
+  let siteGsd: GsdStats | undefined;
+  runBands("quantiles", qJob, S, qThreads, (job, next, bands) => {
+    siteGsd = gsdStats(quantilesOfRadix(grouped, { hist: radixHist, n: grouped.length }));
+    stripQuantilesBands(job, next, bands);
+  });
+  const stripGsd = (s: number): GsdStats => gsdStats(qJob.quantiles.subarray(s * QUANTILES.length, (s + 1) * QUANTILES.length));
+
   const perStrip: AssessmentStats["perStrip"] = [];
   for (let s = 1; s <= maxStrip; s++) {
     const k = kindCounts(s, s);
@@ -234,7 +266,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     perStrip.push({
       strip: s,
       cells: k.all,
-      gsdCm: gsdStats(grouped.subarray(start[s], start[s + 1])),
+      gsdCm: stripGsd(s),
       withinBandPct: pct(inBandSeen[s], k.all),
       flagged: byKind(k.cells, k.all),
     });
@@ -246,7 +278,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   return {
     siteCells: site.all,
     cellAreaM2,
-    gsdCm: gsdStats(grouped, { hist: radixHist, n: grouped.length }),
+    gsdCm: siteGsd!,
     withinBandPct: pct(inBand, site.all),
     images: countStatsOfHistogram(imageHist),
     flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all), effectCells: site.effect },

@@ -59,6 +59,22 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     // ... whether the pass over the cells runs on one thread or takes the bands on three.
     expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 1 })).toEqual(st);
     expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 3 })).toEqual(st);
+    // Each strip's GSD quantiles (taken by strips on three threads above) against a sort of
+    // the strip's values: type 7 of Hyndman & Fan (1996), numpy's default.
+    const type7 = (v: number[], p: number) => {
+      const h = (v.length - 1) * p;
+      const lo = v[Math.floor(h)];
+      return lo + (h - Math.floor(h)) * (v[Math.min(v.length - 1, Math.floor(h) + 1)] - lo);
+    };
+    expect(st.perStrip.length).toBeGreaterThan(10);
+    for (const ps of st.perStrip) {
+      const v: number[] = [];
+      for (let i = 0; i < inSite.length; i++) if (inSite[i] && oneD.nadirStrip[i] === ps.strip && !Number.isNaN(oneD.gsdCm[i])) v.push(oneD.gsdCm[i]);
+      v.sort((a, b) => a - b);
+      const want = [0, 0.05, 0.5, 0.95, 1].map((p) => type7(v, p));
+      const got = [ps.gsdCm.min, ps.gsdCm.p5, ps.gsdCm.median, ps.gsdCm.p95, ps.gsdCm.max];
+      got.forEach((g, k) => expect(g, `strip ${ps.strip} q${k}`).toBeCloseTo(want[k], 9));
+    }
     // Cells with an effect bit (coarse 1, fine 2, too few images 4), read off the flag histogram.
     let effect = 0;
     for (let i = 0; i < inSite.length; i++) if (inSite[i] && oneD.flags![i] & 7) effect++;
