@@ -3,6 +3,7 @@ import type { Position } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { FlagPolygons } from "./types.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_VALUES } from "./flags.js";
+import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 
 /**
  * Flagged cells as polygons, one MultiPolygon layer per flag kind, for the
@@ -105,4 +106,28 @@ function dropCollinear(ring: Position[]): Position[] {
   if (kept.length < 3) return ring;
   kept.push(kept[0]);
   return kept;
+}
+
+/** What flagPolygonsInBackground's worker needs: the flag raster (shared memory) and the frame by its proj4 definition. */
+export interface FlagPolygonsJob {
+  flags: Uint16Array;
+  width: number;
+  height: number;
+  transform: GeoTransform;
+  frame: { proj4: string; epsg: number | null; name: string };
+  cellAreaM2: number;
+}
+
+const workerUrl = new URL("./flagPolygonsWorker.js", import.meta.url);
+
+/**
+ * flagPolygons made on a worker thread from now on (the flags must be final and in shared
+ * memory), its frame rebuilt there from the proj4 definition: the same polygons, while this
+ * thread makes the statistics. Not for small grids or one thread (NOT_IN_BACKGROUND: the
+ * caller makes them itself).
+ * @example const p = flagPolygonsInBackground(job, threads); ...; (await p.result()) ?? flagPolygons(...)
+ */
+export function flagPolygonsInBackground(job: FlagPolygonsJob, threads?: number): Background<FlagPolygons> {
+  if (!backgroundAllowed(job.width * job.height, threads) || !(job.flags.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
+  return inBackground<FlagPolygons>(workerUrl, job);
 }

@@ -37,7 +37,9 @@ import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan, siteMaskFor } from "../assess/assess.js";
 import { photoPhaseOn, type AssessedLeg } from "../assess/exposures.js";
-import type { Assessment } from "../assess/types.js";
+import type { Assessment, FlagPolygons } from "../assess/types.js";
+import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.js";
+import { NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import type { Baseline } from "./baseline.js";
 import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
@@ -314,8 +316,10 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
 
   stage("assess");
   let reportMaps: (() => Promise<ReportMapsAndLayers | undefined>) | undefined;
+  let polygonsMade: Background<FlagPolygons> = NOT_IN_BACKGROUND;
   const flownLegs = flights.flights.flatMap((f) => f.legs);
-  const assessment = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
+  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+  const assessed = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
     triggerM,
     minImages: options.minImages,
     zoneHalfAcrossM: zoneHalfAcrossM(spacingM, triggerM),
@@ -326,11 +330,17 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
     inSite,
-    // The report's maps and the DEM's layers are made on the other core while the statistics are made.
+    // The flag polygons (below), the report's maps and the DEM's layers are made on the other
+    // core while the statistics are made.
+    polygons: false,
     onRasters: (r) => {
+      polygonsMade = flagPolygonsInBackground({ flags: r.flags, width: r.width, height: r.height, transform: r.transform, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2 }, hooks.threads);
       reportMaps = reportMapsInBackground(grid, r, hooks.threads).result;
     },
   });
+  const r = assessed.rasters;
+  const polygons = (await polygonsMade.result()) ?? flagPolygons(r.flags, r.width, r.height, r.transform, frame.toWgs84, cellAreaM2);
+  const assessment: Assessment = { ...assessed, polygons };
   lap("assess");
 
   stage("baseline");
