@@ -52,6 +52,20 @@ export interface Baseline {
   };
   /** Our plan's site cells above the ceiling by the same measure (expected none; ceilingBreaches counts alike). */
   planCeilingBreaches: CeilingBreaches;
+  /** Site cells where the one altitude leaves less than the plan's clearance above the ground straight below; undefined without site ground. */
+  clearanceShortfall?: ClearanceShortfall;
+}
+
+/**
+ * Site cells where a constant altitude leaves less than `clearanceM` above the DEM ground
+ * straight below (a simpler measure than the solver's safety disc, enough to show that one
+ * altitude cannot clear the high ground), and the highest site ground.
+ */
+export interface ClearanceShortfall {
+  clearanceM: number;
+  cells: number;
+  areaM2: number;
+  maxGroundM: number;
 }
 
 export interface BaselineOptions {
@@ -60,6 +74,8 @@ export interface BaselineOptions {
   minImages: number;
   ceiling: { heightM: number; reference: CeilingReference };
   takeoffGroundM: number;
+  /** The plan's clearance floor (minimum + obstacle margin + DEM accuracy): the comparison's clearance shortfall is counted against it. */
+  clearanceM: number;
   /** The terrain-following plan's rasters: its site mask and GSD give its own breaches. */
   planRasters: AssessmentRasters;
   /** Threads for the image counts (see bandThreads); default the machine's choice. */
@@ -100,6 +116,7 @@ export interface BaselineJob {
   minImages: number;
   ceiling: BaselineOptions["ceiling"];
   takeoffGroundM: number;
+  clearanceM: number;
 }
 
 /** The comparison's figures, before the plan's own rasters are there to compare. */
@@ -107,6 +124,7 @@ export interface BaselineFigures {
   altitudeAmslM: number;
   medianGroundM: number;
   stats: Baseline["stats"];
+  clearanceShortfall?: ClearanceShortfall;
   /** A bit per cell: site cells some photo sees (cell order), and how many. */
   seenBits: Uint8Array;
   seen: number;
@@ -145,6 +163,7 @@ export function baselineJob(
     ifov: camera.ifov, kAlong: (camera.ifov * alongPx) / 2, kAcross: (camera.ifov * acrossPx) / 2,
     lowGsdM: requirement.lowGsdM, highGsdM: requirement.highGsdM,
     targetHeightM: o.targetHeightM, triggerM: o.triggerM, minImages: o.minImages, ceiling: o.ceiling, takeoffGroundM: o.takeoffGroundM,
+    clearanceM: o.clearanceM,
   };
 }
 
@@ -160,8 +179,8 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   const A = medianGroundM + job.targetHeightM;
   const images = latticeImageCounts(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, threads);
 
-  // One pass over the site: GSD, flags (the assessment's effect bits), every count and the
-  // first radix pass of the GSD quantiles (below).
+  // One pass over the site: GSD, flags (the assessment's effect bits), every count, the
+  // clearance shortfall and the first radix pass of the GSD quantiles (below).
   const n = inSite.length;
   const gsdPerM = job.ifov * 100;
   const lo = job.lowGsdM * 100 * (1 - BAND_SLACK);
@@ -179,11 +198,17 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   let flagged = 0;
   let inBand = 0;
   let breaches = 0;
+  let shortCells = 0;
+  let maxGroundM = -Infinity;
+  const clearanceM = job.clearanceM;
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     siteCells++;
     const c = images[i];
     const z = heights[i];
+    // NaN (nodata) ground fails both comparisons.
+    if (z > maxGroundM) maxGroundM = z;
+    if (A - z < clearanceM) shortCells++;
     if (c > 0) {
       seen++;
       seenBits[i >> 3] |= 1 << (i & 7);
@@ -228,6 +253,7 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   return {
     altitudeAmslM: A,
     medianGroundM,
+    ...(Number.isFinite(maxGroundM) ? { clearanceShortfall: { clearanceM, cells: shortCells, areaM2: shortCells * cellAreaM2, maxGroundM } } : {}),
     seenBits,
     seen,
     stats: {
@@ -292,6 +318,7 @@ export function baselineOf(
     },
     stats: f.stats,
     planCeilingBreaches: ceilingBreaches(grid, planRasters, camera, o),
+    ...(f.clearanceShortfall ? { clearanceShortfall: f.clearanceShortfall } : {}),
   };
 }
 

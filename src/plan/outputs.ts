@@ -115,8 +115,8 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
   const planRasters = run.assessment.rasters;
   // Both histograms on the same bins, so the page can draw one over the other.
   const edges = gsdBinEdges(g.low, g.high, Math.min(g.min, b.stats.gsdCm.min), Math.max(g.max, b.stats.gsdCm.max), REPORT_GSD_BINS);
-  const clearanceM = summary.clearance.floorM;
-  const shortfall = clearanceShortfall(run.grid, planRasters.inSite, planRasters.width, planRasters.height, b.altitudeAmslM, clearanceM);
+  // Counted by the comparison against the plan's clearance floor (the summary's figure).
+  const shortfall = b.clearanceShortfall?.clearanceM === summary.clearance.floorM ? b.clearanceShortfall : undefined;
   const site = run.site.local;
   // Block take-off ground from the DEM's datum to AMSL, as flightRows and waypoints.csv write it.
   const toAmsl = (h: number, lon: number, lat: number) => heightReferences(h, lon, lat, { datum: run.verticalDatum, undulationM: undulationFor(run.verticalDatum), takeoffGroundM: 0 })[0];
@@ -146,7 +146,7 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
       withinBandPct: b.stats.withinBandPct,
       ceilingBreaches: b.stats.ceilingBreaches,
       images: b.stats.images,
-      ...(shortfall ? { maxSiteGroundM: shortfall.maxGroundM, clearanceShortfall: { cells: shortfall.cells, areaM2: shortfall.areaM2, clearanceM } } : {}),
+      ...(shortfall ? { maxSiteGroundM: shortfall.maxGroundM, clearanceShortfall: { cells: shortfall.cells, areaM2: shortfall.areaM2, clearanceM: shortfall.clearanceM } } : {}),
     },
     planCeilingBreaches: b.planCeilingBreaches,
     gsdHistogram: histogram(planRasters.gsdCm, planRasters.inSite, edges),
@@ -225,30 +225,6 @@ function siteCentre(site: PlanRun["site"]["local"]): [number, number] {
       y1 = Math.max(y1, y);
     }
   return [(x0 + x1) / 2, (y0 + y1) / 2];
-}
-
-/**
- * Site cells where a constant altitude leaves less than `clearanceM` above the DEM
- * ground straight below (a simpler measure than the solver's safety disc, enough to
- * show that one altitude cannot clear the high ground). Undefined when the
- * assessment grid is not the DEM grid.
- */
-function clearanceShortfall(grid: DemGrid, inSite: Uint8Array, w: number, h: number, altitudeM: number, clearanceM: number) {
-  if (grid.width !== w || grid.height !== h) return undefined;
-  const z = grid.heights;
-  const n = z.length;
-  let cells = 0;
-  let maxGroundM = -Infinity;
-  for (let i = 0; i < n; i++) {
-    if (inSite[i] === 0) continue;
-    const zi = z[i];
-    // NaN (nodata) fails both comparisons.
-    if (zi > maxGroundM) maxGroundM = zi;
-    if (altitudeM - zi < clearanceM) cells++;
-  }
-  if (!Number.isFinite(maxGroundM)) return undefined;
-  const cellM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
-  return { cells, areaM2: cells * cellM2, maxGroundM };
 }
 
 /**

@@ -43,6 +43,7 @@ import { NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import type { Baseline } from "./baseline.js";
 import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
+import { clearanceSummary } from "./summary.js";
 import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
@@ -265,6 +266,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     minImages: options.minImages,
     ceiling: options.ceiling,
     takeoffGroundM: takeoffGround,
+    clearanceM: clearanceSummary(options).floorM,
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   }, inSite);
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();

@@ -79,8 +79,19 @@ describe("constant-altitude baseline computed directly", () => {
       const layout = layoutAt(headingDeg);
       const inSite = rasteriseSite(site, W, H, grid.transform);
       const plan = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
-      const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0 };
+      const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0, clearanceM: 80 };
       const b = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters: plan });
+      // Clearance shortfall: site cells whose ground lies less than 80 m below the one
+      // altitude, counted here from the DEM heights, and the highest site ground.
+      let short = 0;
+      let top = -Infinity;
+      for (let i = 0; i < W * H; i++) {
+        if (!inSite[i]) continue;
+        top = Math.max(top, grid.heights[i]);
+        if (b.altitudeAmslM - grid.heights[i] < 80) short++;
+      }
+      expect(short).toBeGreaterThan(1000);
+      expect(b.clearanceShortfall).toEqual({ clearanceM: 80, cells: short, areaM2: short * cellM * cellM, maxGroundM: top });
       const swept = assessPlan(grid, site, assessedLegs(layout, b.altitudeAmslM), camera, requirement, {
         triggerM, minImages: 3, zoneHalfAcrossM: spacingM / 2, toWgs84: (x, y) => [x, y], nadirBy: "distance", polygons: false, threads: 1,
       });
@@ -123,8 +134,10 @@ describe("constant-altitude baseline computed directly", () => {
     const inSite = rasteriseSite(site, W, H, grid.transform);
     const plan = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
     const b = constantAltitudeBaseline(grid, layout, camera, requirement, {
-      targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 120, reference: "ground" }, takeoffGroundM: 0, planRasters: plan,
+      targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 120, reference: "ground" }, takeoffGroundM: 0, clearanceM: 30, planRasters: plan,
     });
+    // 90 m above flat ground clears 30 m everywhere.
+    expect(b.clearanceShortfall).toEqual({ clearanceM: 30, cells: 0, areaM2: 0, maxGroundM: ground });
     expect(b.altitudeAmslM).toBe(ground + targetHeightM);
     // Pinhole camera: GSD = H * pixel pitch / focal length = 90 m * (13.2 mm / 5472) / 8.8 mm.
     const expected = (90 * (13.2 / 5472)) / 8.8 * 100;
@@ -168,7 +181,7 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
     const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
     const layout = layoutAt(33);
     const inSite = rasteriseSite(site, W, H, grid.transform);
-    const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0 };
+    const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0, clearanceM: 80 };
     const here = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters: { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite }, threads: 1 });
     // The plan given to finish: the swept constant-altitude plan, so its breaches are the baseline's own.
     const swept = assessPlan(grid, site, assessedLegs(layout, here.altitudeAmslM), camera, requirement, {
@@ -181,6 +194,8 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
     expect(b.altitudeAmslM).toBe(here.altitudeAmslM);
     expect(b.medianGroundM).toBe(here.medianGroundM);
     expect(b.stats).toEqual(here.stats);
+    expect(b.clearanceShortfall).toEqual(here.clearanceShortfall);
+    expect(b.clearanceShortfall!.cells).toBeGreaterThan(0);
     expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(here.gsdValuesCm()));
     expect(b.planCeilingBreaches).toEqual(here.stats.ceilingBreaches);
     expect(b.planCeilingBreaches.cells).toBeGreaterThan(0);
