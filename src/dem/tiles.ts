@@ -4,7 +4,7 @@ import type { DemSource } from "./source.js";
 import { remoteClient, remoteFailure } from "./tiffSource.js";
 import { fetchRuns, type RangeBlock, type RangeClient } from "./remote.js";
 import type { CellWindow } from "./window.js";
-import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
+import { LITTLE_ENDIAN_HOST, StrictLzwDecoder, floatPredictorRow32, withZstdContentSize } from "./zlib-decoder.js";
 
 type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array | Float64Array;
 
@@ -54,25 +54,41 @@ export async function decodeWindowDirect(
   const s = source.band - 1;
   const tw = image.getTileWidth();
   const th = image.getTileHeight();
+  const k = source.scale * source.verticalUnitM;
+  const c = source.offset * source.verticalUnitM;
+  // The usual DEM (Float32 samples, one per block pixel, heights as stored, floating-point
+  // predictor): the decoder only inflates, and each block row is un-predicted straight into
+  // the window (placeFloatPredicted), without an un-predicted copy of the block.
+  const fused = source.predictor === 3 && source.sampleFormat === "float" && bitsAll[0] === 32 && (planar === 2 || spp === 1) && k === 1 && c === 0 && LITTLE_ENDIAN_HOST;
   const params = {
     tileWidth: tw,
     tileHeight: th,
     planarConfiguration: planar,
     bitsPerSample: bitsAll,
-    predictor: source.predictor,
+    predictor: fused ? 1 : source.predictor,
   };
   // Bytes a block holds: tiles are whole; the last strip may be shorter.
   const blockBytes = (ty: number): number => tw * image.getBlockHeight(ty) * (bitsAll[0] / 8) * (planar === 2 ? 1 : spp);
   // LZW through our strict decoder (geotiff's turns a damaged block into plausible
   // heights); Zstandard told each block's size (see withZstdContentSize).
-  const base = source.compressionCode === 5 ? new StrictLzwDecoder(params) : await getDecoder(source.compressionCode, params as never);
+  const decoder = source.compressionCode === 5 ? new StrictLzwDecoder(params) : await getDecoder(source.compressionCode, params as never);
+  // Blocks still carrying the predictor: those the decoder made. geotiff fills a sparse block
+  // (none in the file) with the nodata value itself, without the decoder: placed as it is.
+  const stillPredicted = new WeakSet<ArrayBufferLike>();
+  const base = fused
+    ? {
+        decode: async (b: ArrayBufferLike) => {
+          const d = await decoder.decode(b);
+          stillPredicted.add(d);
+          return d;
+        },
+      }
+    : decoder;
   const decoderFor = source.compressionCode === 50000 ? (ty: number) => withZstdContentSize(base, blockBytes(ty)) : () => base;
 
   const outW = place.stride;
   // Output index of cell (col, row): (row - wr0) * outW + (col - wc0).
   const wc0 = win.col0 - place.col, wr0 = win.row0 - place.row;
-  const k = source.scale * source.verticalUnitM;
-  const c = source.offset * source.verticalUnitM;
   const nd = source.nodata === null ? NaN : source.sampleFormat === "float" && source.bitsPerSample === 32 ? Math.fround(source.nodata) : source.nodata;
   const pixStride = planar === 2 ? 1 : spp;
   const sampleOff = planar === 2 ? 0 : s;
@@ -83,10 +99,15 @@ export async function decodeWindowDirect(
   for (let ty = ty0; ty < ty1; ty++) for (let tx = tx0; tx < tx1; tx++) jobs.push([tx, ty]);
 
   const sample = planar === 2 ? s : 0;
+  const words = fused ? new Uint32Array(heights.buffer, heights.byteOffset, heights.length) : undefined;
   const place1 = (tx: number, ty: number, data: ArrayBuffer) => {
-    const raw = rawView(source.sampleFormat, source.bitsPerSample, data);
     const colA = Math.max(win.col0, tx * tw), colB = Math.min(win.col1, (tx + 1) * tw);
     const rowA = Math.max(win.row0, ty * th), rowB = Math.min(win.row1, (ty + 1) * th, source.height);
+    if (words && stillPredicted.has(data)) {
+      placeFloatPredicted(new Uint8Array(data), tw, tx * tw, ty * th, colA, colB, rowA, rowB, wc0, wr0, outW, words, heights, valid, nd);
+      return;
+    }
+    const raw = rawView(source.sampleFormat, source.bitsPerSample, data);
     copyBlock(raw, tw, tx * tw, ty * th, pixStride, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, valid, k, c, nd);
   };
 
@@ -211,6 +232,39 @@ function copyBlock(
 }
 
 /**
+ * A block of Float32 samples still carrying the floating-point predictor (one sample per
+ * pixel, heights as stored), placed as copyBlock places the un-predicted block: each row's
+ * byte sums undone and its samples in the window written straight into the heights (`words`
+ * views their bytes), then nodata and non-finite cells made NaN. The same heights and mask.
+ */
+function placeFloatPredicted(
+  bytes: Uint8Array, tw: number, bx0: number, by0: number,
+  colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
+  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number,
+): void {
+  const rowBytes = 4 * tw;
+  const n = colB - colA;
+  for (let row = rowA; row < rowB; row++) {
+    const dst = (row - wr0) * outW + (colA - wc0);
+    floatPredictorRow32(bytes, (row - by0) * rowBytes, rowBytes, 1, tw, colA - bx0, colB - bx0, words, dst);
+    markNodata(heights, valid, dst, dst + n, nd);
+  }
+}
+
+/** Cells d0..d1-1 of the window: NaN and not valid where the height is nodata or not finite, valid elsewhere. */
+function markNodata(heights: Float32Array, valid: Uint8Array, d0: number, d1: number, nd: number): void {
+  for (let d = d0; d < d1; d++) {
+    const h = heights[d];
+    if (h === nd || h - h !== 0) {
+      heights[d] = NaN;
+      valid[d] = 0;
+    } else {
+      valid[d] = 1;
+    }
+  }
+}
+
+/**
  * copyBlock for the usual DEM (Float32 samples, one band, heights as stored): each row
  * copied at once, then nodata and non-finite cells made NaN: the same heights and mask.
  */
@@ -224,14 +278,6 @@ function copyFloat32Rows(
     const src = (row - by0) * tw + (colA - bx0) + sampleOff;
     const dst = (row - wr0) * outW + (colA - wc0);
     heights.set(raw.subarray(src, src + n), dst);
-    for (let d = dst; d < dst + n; d++) {
-      const h = heights[d];
-      if (h === nd || h - h !== 0) {
-        heights[d] = NaN;
-        valid[d] = 0;
-      } else {
-        valid[d] = 1;
-      }
-    }
+    markNodata(heights, valid, dst, dst + n, nd);
   }
 }
