@@ -52,6 +52,11 @@ describe("zoneExtremaOnAxis (the axis-leg path) equals the per-station rectangle
     ["east-going", [10.1, 80.25], [190.3, 80.25], 11.9, 24],
     ["north-going, across edges on cell centres", [80, 5], [80, 195], 12.25, 20],
     ["west-going, along edges on cell centres", [190.25, 99.7], [9.75, 99.7], 10.25, 15.3],
+    // Short zones (a few cells along), as corridorAlong gives it on axis legs too.
+    ["east-going, half a cell along", [10.1, 80.25], [190.3, 80.25], 0.25, 20],
+    ["north-going, a cell along, edges on cell centres", [80.25, 5], [80.25, 195], 0.5, 12.25],
+    ["south-going, a few cells along", [60.6, 190.1], [60.6, 8.3], 1.3, 9.7],
+    ["east-going, under 16 cells along", [5.5, 120.2], [195.2, 120.2], 7.75, 3.1],
   ];
   for (const [name, from, to, ha, hc] of cases) {
     it(name, () => {
