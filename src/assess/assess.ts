@@ -47,6 +47,8 @@ export interface AssessOptions {
   keepNadirStrip?: boolean;
   /** The site mask, when the caller has made it already (siteMaskFor with the same site and grid). */
   inSite?: Uint8Array;
+  /** Also count the seen site cells whose GSD is at least this, cm/px (stats.gsdAtLeast): e.g. the plan's own ceiling breaches (see ceilingBreachGsdCm). */
+  countGsdAtLeastCm?: number;
   /** Called once the rasters are final, before the statistics and polygons are made from them (which must not change them). */
   onRasters?: (rasters: Assessment["rasters"]) => void;
 }
@@ -104,7 +106,7 @@ export function assessPlan(
   const rasters = { width, height, transform, gsdCm, images, flags, inSite };
   opts.onRasters?.(rasters);
   const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads });
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { ...rasters, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },

@@ -33,6 +33,8 @@ export interface StatsInput {
   seenByBand?: SeenByBand;
   /** Threads for that pass (see bandThreads); default the machine's choice. */
   threads?: number;
+  /** Also count the seen site cells whose GSD is at least this (cm/px): stats.gsdAtLeast. */
+  gsdAtLeastCm?: number;
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -70,6 +72,9 @@ export interface StatsPassJob {
   imageHist: Float64Array;
   inBandSeen: Float64Array;
   radixHist: Uint32Array;
+  /** Seen cells with a GSD of at least atLeastCm, per slot (atLeastCm Infinity: none asked for). */
+  atLeastCm: number;
+  atLeast: Float64Array;
 }
 
 /**
@@ -99,13 +104,14 @@ export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: numbe
  * pass of the site's GSD quantiles (quantiles.ts).
  */
 function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number, fill: Int32Array): void {
-  const { gsdCm, images, flags, inSite, valid, nadirStrip, grouped, flagHist, imageHist, inBandSeen, radixHist } = job;
+  const { gsdCm, images, flags, inSite, valid, nadirStrip, grouped, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
   const S = job.strips;
   const fh = slot * S * FLAG_VALUES;
   const ih = slot * 65536;
   const bs = slot * S;
   const rh = slot * RADIX_BINS;
   const gsdBits = float32Keys(gsdCm);
+  let atLeast = 0;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) continue;
     if (valid[i] === 1) imageHist[ih + images[i]]++;
@@ -117,7 +123,9 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number,
     grouped[fill[s]++] = g;
     radixHist[rh + radixBin(gsdBits[i])]++;
     if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
+    if (g >= atLeastCm) atLeast++;
   }
+  job.atLeast[slot] += atLeast;
 }
 
 /** Each strip's GSD values (grouped[start[s]] up to start[s + 1]) and their quantiles (out, QUANTILES per strip). */
@@ -209,6 +217,8 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     imageHist: new Float64Array(buffer(threads, 8 * threads * 65536)),
     inBandSeen: new Float64Array(buffer(threads, 8 * threads * S)),
     radixHist: new Uint32Array(buffer(threads, 4 * threads * RADIX_BINS)),
+    atLeastCm: input.gsdAtLeastCm ?? Infinity,
+    atLeast: new Float64Array(buffer(threads, 8 * threads)),
   };
   runBands("stats", job, bands, threads, statsPassBands);
   const grouped = job.grouped;
@@ -283,5 +293,6 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     images: countStatsOfHistogram(imageHist),
     flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all), effectCells: site.effect },
     perStrip,
+    ...(input.gsdAtLeastCm !== undefined ? { gsdAtLeast: { cm: input.gsdAtLeastCm, cells: sumOfSlots(job.atLeast, threads)[0] } } : {}),
   };
 }

@@ -58,6 +58,8 @@ export interface AssessmentStats {
     /** Flagged cells of this strip by flag key; pct is of the strip's own cells (added by the assessment). */
     flagged?: Record<string, { cells: number; areaM2: number; pct: number }>;
   }[];
+  /** Seen site cells whose GSD is at least `cm`, when the assessment was asked for them (AssessOptions.countGsdAtLeastCm). */
+  gsdAtLeast?: { cm: number; cells: number };
 }
 
 /** One layer per flag kind, polygons in WGS84. */

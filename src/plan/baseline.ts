@@ -269,7 +269,8 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
 }
 
 /**
- * The Baseline from its figures and the plan's rasters (the plan's own ceiling breaches).
+ * The Baseline from its figures and the plan's rasters (the plan's own ceiling breaches, or
+ * their count when the assessment made it: see ceilingBreachGsdCm).
  * @example baselineOf(grid, camera, o, baselineFigures(job), assessment.rasters)
  */
 export function baselineOf(
@@ -278,6 +279,7 @@ export function baselineOf(
   o: Pick<BaselineOptions, "targetHeightM" | "ceiling" | "takeoffGroundM">,
   f: BaselineFigures,
   planRasters: AssessmentRasters,
+  planBreachCells?: number,
 ): Baseline {
   const A = f.altitudeAmslM;
   const { heights } = grid;
@@ -317,7 +319,7 @@ export function baselineOf(
       return counter.result();
     },
     stats: f.stats,
-    planCeilingBreaches: ceilingBreaches(grid, planRasters, camera, o),
+    planCeilingBreaches: planBreachCells === undefined ? ceilingBreaches(grid, planRasters, camera, o) : breachesOf(grid, planBreachCells),
     ...(f.clearanceShortfall ? { clearanceShortfall: f.clearanceShortfall } : {}),
   };
 }
@@ -340,7 +342,37 @@ export function ceilingBreaches(
     const g = r.gsdCm[i];
     if (g > 0 && overCeiling(g, grid.heights[i], camera.ifov, o)) cells++;
   }
+  return breachesOf(grid, cells);
+}
+
+function breachesOf(grid: Pick<DemGrid, "cellSizeM">, cells: number): CeilingBreaches {
   return { cells, areaM2: cells * grid.cellSizeM[0] * grid.cellSizeM[1] };
+}
+
+/**
+ * Under the `ground` and `surface` rules a cell's breach depends on its GSD alone (the camera
+ * height H = GSD / ifov against the ceiling): the smallest Float32 GSD in cm/px that
+ * ceilingBreaches counts, so that `GSD >= it` counts the same cells (the test is monotone in
+ * the GSD; found by stepping Float32 values from an estimate). Undefined under `takeoff`,
+ * where the ground below matters too.
+ * @example const t = ceilingBreachGsdCm(camera.ifov, o); // count site cells with gsdCm >= t
+ */
+export function ceilingBreachGsdCm(ifov: number, o: Pick<BaselineOptions, "ceiling" | "takeoffGroundM">): number | undefined {
+  if (o.ceiling.reference === "takeoff") return undefined;
+  const over = (g: number) => overCeiling(g, 0, ifov, o);
+  const g = new Float32Array(1);
+  const bits = new Uint32Array(g.buffer);
+  // Positive Float32 values order like their bit patterns.
+  g[0] = Math.max(Math.fround((o.ceiling.heightM + 0.01) * 100 * ifov), 1e-45);
+  while (!over(g[0]) && g[0] < Infinity) bits[0]++;
+  while (bits[0] > 1) {
+    bits[0]--;
+    if (!over(g[0])) {
+      bits[0]++;
+      break;
+    }
+  }
+  return g[0];
 }
 
 /** Whether a photo giving GSD g (cm/px) over ground z was above the ceiling (1 cm of slack: heights rebuilt from Float32 GSD). */

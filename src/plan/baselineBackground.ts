@@ -26,15 +26,15 @@ export function constantAltitudeBaselineInBackground(
   requirement: Requirement,
   o: Omit<BaselineOptions, "planRasters">,
   inSite: Uint8Array,
-): { finish: (planRasters: AssessmentRasters) => Promise<Baseline>; madeIn: () => "worker" | "this thread" | "pending" } {
+): { finish: (planRasters: AssessmentRasters, planBreachCells?: number) => Promise<Baseline>; madeIn: () => "worker" | "this thread" | "pending" } {
   const job = baselineJob(grid, layout, camera, requirement, o, inSite);
   const figures = backgroundAllowed(grid.width * grid.height, o.threads) ? inBackground<BaselineFigures>(workerUrl, job) : NOT_IN_BACKGROUND;
   let madeIn: "worker" | "this thread" | "pending" = "pending";
   return {
-    finish: async (planRasters) => {
+    finish: async (planRasters, planBreachCells) => {
       const fromWorker = await figures.result();
       madeIn = fromWorker ? "worker" : "this thread";
-      return baselineOf(grid, camera, o, fromWorker ?? baselineFigures(job, o.threads), planRasters);
+      return baselineOf(grid, camera, o, fromWorker ?? baselineFigures(job, o.threads), planRasters, planBreachCells);
     },
     madeIn: () => madeIn,
   };

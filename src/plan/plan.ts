@@ -41,7 +41,7 @@ import type { Assessment, FlagPolygons } from "../assess/types.js";
 import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.js";
 import { NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
-import type { Baseline } from "./baseline.js";
+import { ceilingBreachGsdCm, type Baseline } from "./baseline.js";
 import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
 import { clearanceSummary } from "./summary.js";
 import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
@@ -321,6 +321,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   let polygonsMade: Background<FlagPolygons> = NOT_IN_BACKGROUND;
   const flownLegs = flights.flights.flatMap((f) => f.legs);
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+  // The comparison shows the plan's own ceiling breaches: under the ground and surface rules
+  // they are counted in the statistics' pass (GSD at or above the breach threshold).
+  const breachGsdCm = ceilingBreachGsdCm(camera.ifov, { ceiling: options.ceiling, takeoffGroundM: takeoffGround });
   const assessed = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
     triggerM,
     minImages: options.minImages,
@@ -332,6 +335,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
     inSite,
+    ...(breachGsdCm !== undefined ? { countGsdAtLeastCm: breachGsdCm } : {}),
     // The flag polygons (below), the report's maps and the DEM's layers are made on the other
     // core while the statistics are made.
     polygons: false,
@@ -346,7 +350,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   lap("assess");
 
   stage("baseline");
-  const baseline = await baselineRun.finish(assessment.rasters);
+  const baseline = await baselineRun.finish(assessment.rasters, assessment.stats.gsdAtLeast?.cells);
   lap("baseline");
 
   const [tLon, tLat] = frame.toWgs84(layout.takeoff[0], layout.takeoff[1]);

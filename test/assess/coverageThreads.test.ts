@@ -75,6 +75,12 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
       const got = [ps.gsdCm.min, ps.gsdCm.p5, ps.gsdCm.median, ps.gsdCm.p95, ps.gsdCm.max];
       got.forEach((g, k) => expect(g, `strip ${ps.strip} q${k}`).toBeCloseTo(want[k], 9));
     }
+    // Seen cells at or above a GSD, counted in the same pass on one thread or three.
+    const atCm = st.gsdCm.p95;
+    let direct95 = 0;
+    for (let i = 0; i < inSite.length; i++) if (inSite[i] && oneD.gsdCm[i] >= atCm) direct95++;
+    expect(direct95).toBeGreaterThan(1000);
+    for (const threads of [1, 3]) expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads, gsdAtLeastCm: atCm }).gsdAtLeast).toEqual({ cm: atCm, cells: direct95 });
     // Cells with an effect bit (coarse 1, fine 2, too few images 4), read off the flag histogram.
     let effect = 0;
     for (let i = 0; i < inSite.length; i++) if (inSite[i] && oneD.flags![i] & 7) effect++;

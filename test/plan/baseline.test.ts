@@ -11,7 +11,7 @@ import type { Layout, LayoutLeg, XY } from "../../src/layout/types.js";
 import type { Requirement } from "../../src/camera/types.js";
 import { genericCamera } from "../assess/helpers.js";
 import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
-import { ceilingBreaches } from "../../src/plan/baseline.js";
+import { ceilingBreaches, ceilingBreachGsdCm } from "../../src/plan/baseline.js";
 import type { constantAltitudeBaselineInBackground as Background } from "../../src/plan/baselineBackground.js";
 
 /**
@@ -170,6 +170,37 @@ describe("constant-altitude baseline computed directly", () => {
       expect(images[row * W + col], `cell ${col},${row}`).toBe(count);
       if (inSite[row * W + col]) expect(count).toBeGreaterThanOrEqual(8);
     }
+  });
+});
+
+describe("the plan's ceiling breaches as a GSD threshold", () => {
+  // ceilingBreaches takes a cell's camera height from its GSD (H = GSD / ifov): under the
+  // ground and surface rules the breach depends on the GSD alone, so the cells it counts are
+  // those at or above one Float32 GSD. Checked on the 2001 Float32 values around it.
+  for (const [heightM, reference] of [[120, "ground"], [121.92, "surface"], [95, "ground"], [30.5, "surface"]] as const) {
+    it(`${heightM} m, ${reference} rule: GSD >= the threshold counts exactly ceilingBreaches' cells`, () => {
+      const o = { ceiling: { heightM, reference }, takeoffGroundM: 0 };
+      const t = ceilingBreachGsdCm(camera.ifov, o)!;
+      // Near the GSD of a photo at the ceiling: H p / f (pinhole camera).
+      expect(t).toBeCloseTo(((heightM + 0.01) * 100 * 13.2) / 5472 / 8.8, 4);
+      const n = 2001;
+      const g = new Float32Array(n);
+      const bits = new Uint32Array(g.buffer);
+      g[1000] = t;
+      for (let k = 0; k < n; k++) bits[k] = bits[1000] + (k - 1000);
+      const grid = makeGrid({ width: n, height: 1, x0: 0, y0: 1, cellM: 1, heights: () => 100 });
+      const rasters = { width: n, height: 1, transform: grid.transform, gsdCm: g, images: new Uint16Array(n), flags: new Uint16Array(n), inSite: new Uint8Array(n).fill(1) };
+      expect(ceilingBreaches(grid, rasters, camera, o).cells).toBe(1001);
+      let atLeast = 0;
+      for (let k = 0; k < n; k++) if (g[k] >= t) atLeast++;
+      expect(atLeast).toBe(1001);
+      // The cell just below the threshold is not a breach, the threshold itself is.
+      expect(ceilingBreaches(grid, { ...rasters, inSite: Uint8Array.from({ length: n }, (_, k) => (k === 999 ? 1 : 0)) }, camera, o).cells).toBe(0);
+      expect(ceilingBreaches(grid, { ...rasters, inSite: Uint8Array.from({ length: n }, (_, k) => (k === 1000 ? 1 : 0)) }, camera, o).cells).toBe(1);
+    });
+  }
+  it("none under the take-off rule, where the ground below matters too", () => {
+    expect(ceilingBreachGsdCm(camera.ifov, { ceiling: { heightM: 120, reference: "takeoff" }, takeoffGroundM: 300 })).toBeUndefined();
   });
 });
 
