@@ -66,6 +66,13 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     ? { epsg: native.crs.epsg, proj4: native.crs.proj4, geographic: native.crs.geographic, name: native.crs.name }
     : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
   const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
+  // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
+  // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
+  // thread (on large grids, threads allowed), started now so it works while the report's
+  // figures are made here; or here after gsd.tif when none ran.
+  let small: Background<Partial<AssessmentTiffs>> | undefined;
+  const smallTiffs = () => (small ??= backgroundAllowed(rasters.width * rasters.height, run.threads) ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"]) : NOT_IN_BACKGROUND);
+  smallTiffs();
   const report = reportInput(run, summary, meta);
   // Both report files come from one compacted input. The page is rendered in a worker thread
   // started when the rasters start, so it is made on the other core while they and
@@ -74,14 +81,8 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const compactReport = () => (compact ??= (async () => compactReportInput(report, 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
   const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
-  // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
-  // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
-  // thread (on large grids, threads allowed), or here after it when none ran.
-  let small: Background<Partial<AssessmentTiffs>> | undefined;
-  const smallTiffs = () => (small ??= backgroundAllowed(rasters.width * rasters.height, run.threads) ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"]) : NOT_IN_BACKGROUND);
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     await reportPage();
-    smallTiffs();
     if (name !== "gsd.tif") {
       const made = (await smallTiffs().result())?.[name];
       if (made) return made;
