@@ -4,7 +4,10 @@ import type { DemSource } from "./source.js";
 import { remoteClient, remoteFailure } from "./tiffSource.js";
 import { fetchRuns, type RangeBlock, type RangeClient } from "./remote.js";
 import type { CellWindow } from "./window.js";
-import { LITTLE_ENDIAN_HOST, StrictLzwDecoder, floatPredictorRow32, withZstdContentSize } from "./zlib-decoder.js";
+import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
+import { LITTLE_ENDIAN_HOST, markNodata, placeFloatPredicted } from "./floatBlocks.js";
+import { blocksInBackground, type BlockRef } from "./blocksInBackground.js";
+import { BACKGROUND_MIN_CELLS, NOT_IN_BACKGROUND, type Background } from "../background.js";
 
 type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array | Float64Array;
 
@@ -116,14 +119,37 @@ export async function decodeWindowDirect(
     await decodeRemote(source, image, client, jobs, sample, decoderFor, blockBytes, place1);
     return true;
   }
-  let next = 0;
-  const worker = async () => {
-    while (next < jobs.length) {
-      const [tx, ty] = jobs[next++];
-      place1(tx, ty, await readBlock(source, image, decoderFor(ty), tx, ty, sample, blockBytes(ty)));
+  // A large window of the usual local Deflate DEM: the later half of its blocks go to a
+  // worker thread (blocksInBackground), decoded and placed there while this thread does the
+  // rest; should the worker fail, this thread decodes them too (with its own errors).
+  let theirs: BlockRef[] = [];
+  let inWorker: Background<boolean> = NOT_IN_BACKGROUND;
+  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && (win.col1 - win.col0) * (win.row1 - win.row0) >= BACKGROUND_MIN_CELLS) {
+    const later = jobs.splice(Math.ceil(jobs.length / 2));
+    const across = Math.ceil(source.width / tw), down = Math.ceil(source.height / th);
+    const tag = image.isTiled ? "Tile" : "Strip";
+    for (const [tx, ty] of later) {
+      const index = (planar === 2 ? sample * across * down : 0) + ty * across + tx;
+      const length = Number(await fd.loadValueIndexed(`${tag}ByteCounts`, index));
+      // A sparse block (no bytes: geotiff fills it with nodata) stays here.
+      if (length === 0) jobs.push([tx, ty]);
+      else theirs.push({ offset: Number(await fd.loadValueIndexed(`${tag}Offsets`, index)), length, tx, ty, need: blockBytes(ty) });
     }
+    inWorker = blocksInBackground({ path: source.path, blocks: theirs, tw, th, win: { col0: win.col0, col1: win.col1, row0: win.row0, row1: win.row1 }, sourceHeight: source.height, wc0, wr0, outW, heights, valid, nd });
+    if (inWorker === NOT_IN_BACKGROUND) jobs.push(...theirs.map((b) => [b.tx, b.ty] as [number, number]));
+  }
+  const decodeHere = async (list: [number, number][]) => {
+    let next = 0;
+    const worker = async () => {
+      while (next < list.length) {
+        const [tx, ty] = list[next++];
+        place1(tx, ty, await readBlock(source, image, decoderFor(ty), tx, ty, sample, blockBytes(ty)));
+      }
+    };
+    await Promise.all(Array.from({ length: Math.min(IN_FLIGHT, list.length) }, worker));
   };
-  await Promise.all(Array.from({ length: Math.min(IN_FLIGHT, jobs.length) }, worker));
+  await decodeHere(jobs);
+  if (inWorker !== NOT_IN_BACKGROUND && (await inWorker.result()) !== true) await decodeHere(theirs.map((b) => [b.tx, b.ty]));
   return true;
 }
 
@@ -227,39 +253,6 @@ function copyBlock(
       } else {
         valid[dst] = 1;
       }
-    }
-  }
-}
-
-/**
- * A block of Float32 samples still carrying the floating-point predictor (one sample per
- * pixel, heights as stored), placed as copyBlock places the un-predicted block: each row's
- * byte sums undone and its samples in the window written straight into the heights (`words`
- * views their bytes), then nodata and non-finite cells made NaN. The same heights and mask.
- */
-function placeFloatPredicted(
-  bytes: Uint8Array, tw: number, bx0: number, by0: number,
-  colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
-  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number,
-): void {
-  const rowBytes = 4 * tw;
-  const n = colB - colA;
-  for (let row = rowA; row < rowB; row++) {
-    const dst = (row - wr0) * outW + (colA - wc0);
-    floatPredictorRow32(bytes, (row - by0) * rowBytes, rowBytes, 1, tw, colA - bx0, colB - bx0, words, dst);
-    markNodata(heights, valid, dst, dst + n, nd);
-  }
-}
-
-/** Cells d0..d1-1 of the window: NaN and not valid where the height is nodata or not finite, valid elsewhere. */
-function markNodata(heights: Float32Array, valid: Uint8Array, d0: number, d1: number, nd: number): void {
-  for (let d = d0; d < d1; d++) {
-    const h = heights[d];
-    if (h === nd || h - h !== 0) {
-      heights[d] = NaN;
-      valid[d] = 0;
-    } else {
-      valid[d] = 1;
     }
   }
 }

@@ -7,6 +7,7 @@
 import { inflate, inflateSync } from "node:zlib";
 import { promisify } from "node:util";
 import { BaseDecoder, addDecoder } from "geotiff";
+import { LITTLE_ENDIAN_HOST, floatPredictorRow32 } from "./floatBlocks.js";
 
 interface DecoderParameters {
   tileWidth: number;
@@ -50,9 +51,6 @@ export function undoPredictor(block: ArrayBuffer, p: DecoderParameters): ArrayBu
   return block;
 }
 
-/** Whether this machine stores numbers little-endian (as TIFF "II" files and our outputs do). */
-export const LITTLE_ENDIAN_HOST = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
-
 /**
  * Predictor 3 on 32-bit samples (the usual Float32 DEM), the same bytes as the general
  * loop above, about twice as fast (see floatPredictorRow32).
@@ -66,32 +64,6 @@ function undoFloatPredictor32(block: ArrayBuffer, rows: number, rowBytes: number
     words.set(scratch, r * wc);
   }
   return block;
-}
-
-/**
- * One row of a predictor-3 block of 32-bit samples (`wc` samples; `stride` samples per
- * pixel), starting at byte `o` of `bytes`: the byte differences summed in place, then
- * samples c0..c1-1 put together and written as 32-bit words (host order, little-endian
- * only) to out[at..]. The byte sums run in a local (reading back each byte just stored
- * would make every byte wait for the one before), and each sample's four byte planes
- * (most significant first) make one word, stored once.
- * @example floatPredictorRow32(bytes, 0, 4 * 256, 1, 256, 0, 256, words, 0)
- */
-export function floatPredictorRow32(bytes: Uint8Array, o: number, rowBytes: number, stride: number, wc: number, c0: number, c1: number, out: Uint32Array, at: number): void {
-  const end = o + rowBytes;
-  if (stride === 1) {
-    let acc = bytes[o];
-    for (let i = o + 1; i < end; i++) {
-      acc = (acc + bytes[i]) & 255;
-      bytes[i] = acc;
-    }
-  } else {
-    for (let i = o + stride; i < end; i++) bytes[i] = (bytes[i] + bytes[i - stride]) & 255;
-  }
-  const o1 = o + wc;
-  const o2 = o1 + wc;
-  const o3 = o2 + wc;
-  for (let i = c0; i < c1; i++) out[at + i - c0] = (bytes[o + i] << 24) | (bytes[o1 + i] << 16) | (bytes[o2 + i] << 8) | bytes[o3 + i];
 }
 
 /**

@@ -1,0 +1,68 @@
+/**
+ * Float32 DEM blocks with the floating-point predictor (TIFF predictor 3: each row's bytes
+ * split into planes, most significant first, then differenced; Adobe Photoshop TIFF Technical
+ * Note 3) un-predicted and placed into a window of heights. Plain typed-array code, shared by
+ * the decoder, the window reader and the block worker (no geotiff here).
+ */
+
+/** Whether this machine stores numbers little-endian (as TIFF "II" files and our outputs do). */
+export const LITTLE_ENDIAN_HOST = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
+
+/**
+ * One row of a predictor-3 block of 32-bit samples (`wc` samples; `stride` samples per
+ * pixel), starting at byte `o` of `bytes`: the byte differences summed in place, then
+ * samples c0..c1-1 put together and written as 32-bit words (host order, little-endian
+ * only) to out[at..]. The byte sums run in a local (reading back each byte just stored
+ * would make every byte wait for the one before), and each sample's four byte planes
+ * (most significant first) make one word, stored once.
+ * @example floatPredictorRow32(bytes, 0, 4 * 256, 1, 256, 0, 256, words, 0)
+ */
+export function floatPredictorRow32(bytes: Uint8Array, o: number, rowBytes: number, stride: number, wc: number, c0: number, c1: number, out: Uint32Array, at: number): void {
+  const end = o + rowBytes;
+  if (stride === 1) {
+    let acc = bytes[o];
+    for (let i = o + 1; i < end; i++) {
+      acc = (acc + bytes[i]) & 255;
+      bytes[i] = acc;
+    }
+  } else {
+    for (let i = o + stride; i < end; i++) bytes[i] = (bytes[i] + bytes[i - stride]) & 255;
+  }
+  const o1 = o + wc;
+  const o2 = o1 + wc;
+  const o3 = o2 + wc;
+  for (let i = c0; i < c1; i++) out[at + i - c0] = (bytes[o + i] << 24) | (bytes[o1 + i] << 16) | (bytes[o2 + i] << 8) | bytes[o3 + i];
+}
+
+/**
+ * A block of Float32 samples still carrying the floating-point predictor (one sample per
+ * pixel, heights as stored), placed as copyBlock places the un-predicted block: each row's
+ * byte sums undone and its samples in the window written straight into the heights (`words`
+ * views their bytes), then nodata and non-finite cells made NaN. The same heights and mask.
+ */
+export function placeFloatPredicted(
+  bytes: Uint8Array, tw: number, bx0: number, by0: number,
+  colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
+  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number,
+): void {
+  const rowBytes = 4 * tw;
+  const n = colB - colA;
+  for (let row = rowA; row < rowB; row++) {
+    const dst = (row - wr0) * outW + (colA - wc0);
+    floatPredictorRow32(bytes, (row - by0) * rowBytes, rowBytes, 1, tw, colA - bx0, colB - bx0, words, dst);
+    markNodata(heights, valid, dst, dst + n, nd);
+  }
+}
+
+/** Cells d0..d1-1 of the window: NaN and not valid where the height is nodata or not finite, valid elsewhere. */
+export function markNodata(heights: Float32Array, valid: Uint8Array, d0: number, d1: number, nd: number): void {
+  for (let d = d0; d < d1; d++) {
+    const h = heights[d];
+    if (h === nd || h - h !== 0) {
+      heights[d] = NaN;
+      valid[d] = 0;
+    } else {
+      valid[d] = 1;
+    }
+  }
+}
