@@ -7,7 +7,7 @@ import type { CellWindow } from "./window.js";
 import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
 import { LITTLE_ENDIAN_HOST, markNodata, placeFloatPredicted } from "./floatBlocks.js";
 import { blocksInBackground, type BlockRef } from "./blocksInBackground.js";
-import { BACKGROUND_MIN_CELLS, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { backgroundAllowed, NOT_IN_BACKGROUND, type Background } from "../background.js";
 
 type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array | Float64Array;
 
@@ -46,6 +46,7 @@ export async function decodeWindowDirect(
   heights: Float32Array,
   valid: Uint8Array,
   place: OutputPlace = { stride: win.col1 - win.col0, col: 0, row: 0 },
+  threads?: number,
 ): Promise<boolean> {
   const fd = image.fileDirectory;
   const bitsAll = Array.from(fd.getValue("BitsPerSample") as ArrayLike<number>);
@@ -124,7 +125,7 @@ export async function decodeWindowDirect(
   // rest; should the worker fail, this thread decodes them too (with its own errors).
   let theirs: BlockRef[] = [];
   let inWorker: Background<boolean> = NOT_IN_BACKGROUND;
-  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && (win.col1 - win.col0) * (win.row1 - win.row0) >= BACKGROUND_MIN_CELLS) {
+  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && backgroundAllowed((win.col1 - win.col0) * (win.row1 - win.row0), threads)) {
     const later = jobs.splice(Math.ceil(jobs.length / 2));
     const across = Math.ceil(source.width / tw), down = Math.ceil(source.height / th);
     const tag = image.isTiled ? "Tile" : "Strip";

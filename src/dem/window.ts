@@ -12,6 +12,8 @@ export interface ReadWindowOptions {
   crs?: string;
   /** Extra ground distance added on every side, metres (default 0). */
   marginM?: number;
+  /** Threads the read may use (1: this one only; default: a worker thread for half the blocks of a large window). */
+  threads?: number;
 }
 
 /** A window in cell indices: columns [col0, col1), rows [row0, row1). */
@@ -75,15 +77,16 @@ export async function readWindow(source: DemSource, bbox: Bounds, opts: ReadWind
     const nb = nativeBounds(source);
     throw new InputFileError(source.path, `the requested area (${fmtBox(native)}) lies outside the DEM extent (${fmtBox(nb)}) in its CRS`);
   }
-  return readCells(source, win);
+  return readCells(source, win, opts.threads);
 }
 
 /**
- * Reads a window given in cell indices (see readWindow for the conversions). A mosaic
- * (several files, a VRT) reads through its own reader, on its own grid.
+ * Reads a window given in cell indices (see readWindow for the conversions; `threads` as
+ * ReadWindowOptions.threads). A mosaic (several files, a VRT) reads through its own reader,
+ * on its own grid.
  * @example const grid = await readCells(dem, { col0: 0, row0: 0, col1: 100, row1: 50 });
  */
-export async function readCells(source: DemSource, win: CellWindow): Promise<DemGrid> {
+export async function readCells(source: DemSource, win: CellWindow, threads?: number): Promise<DemGrid> {
   const width = win.col1 - win.col0;
   const height = win.row1 - win.row0;
   let heights: Float32Array;
@@ -96,7 +99,7 @@ export async function readCells(source: DemSource, win: CellWindow): Promise<Dem
     // Shared memory: the assessment's and the comparison's worker threads read them in place (no copy).
     heights = new Float32Array(new SharedArrayBuffer(4 * width * height));
     valid = new Uint8Array(new SharedArrayBuffer(width * height));
-    if (!(await decodeWindowDirect(source, image, win, heights, valid))) {
+    if (!(await decodeWindowDirect(source, image, win, heights, valid, undefined, threads))) {
       // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).
       let rasters: ArrayLike<number>[];
       try {

@@ -153,7 +153,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   const warnings: SolveWarning[] = [];
 
   stage("load");
-  const prepared = await prepareMission(options);
+  const prepared = await prepareMission(options, hooks.threads);
   const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings: loadWarnings } = prepared;
   warnings.push(...loadWarnings);
   lap("load");
@@ -526,7 +526,7 @@ export interface PreparedMission {
  * the DEM window (with margin) on that frame's metric grid.
  * @example const m = await prepareMission(options); m.spacingM
  */
-export async function prepareMission(options: PlanOptions): Promise<PreparedMission> {
+export async function prepareMission(options: PlanOptions, threads?: number): Promise<PreparedMission> {
   const warnings: SolveWarning[] = [];
   // Camera and requirement first: the window margin depends on the footprint.
   const camera = makeCamera(cameraSpec(options));
@@ -604,8 +604,8 @@ export async function prepareMission(options: PlanOptions): Promise<PreparedMiss
       ? // A geographic DEM: the box in its own degrees, in the wrap of its own longitudes
         // (a tile written from 179.95 to 180.05 E). The datum shift to the DEM's geographic
         // CRS is metres at most, well inside the margin.
-        await readWindow(source, shiftedToDem(source, { west, south, east, north }), { marginM })
-      : await readWindow(source, { west: wrap180(west), south, east: wrap180(east) < wrap180(west) ? 180 : wrap180(east), north }, { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM });
+        await readWindow(source, shiftedToDem(source, { west, south, east, north }), { marginM, threads })
+      : await readWindow(source, { west: wrap180(west), south, east: wrap180(east) < wrap180(west) ? 180 : wrap180(east), north }, { crs: "+proj=longlat +datum=WGS84 +no_defs", marginM, threads });
     nativeGrid = raw;
     const onFrame = gridOnFrame(raw, frame);
     grid = onFrame.grid;
