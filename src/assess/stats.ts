@@ -53,13 +53,7 @@ function quantilesOfRadix(values: Float32Array, radix: RadixHistogram): number[]
  * threads take its bands): the cells' rasters, where each band's seen cells of each strip
  * go in `grouped`, and each thread's tallies at its slot.
  */
-export interface StatsPassJob {
-  gsdCm: Float32Array;
-  images: Uint16Array;
-  flags: Uint16Array;
-  inSite: Uint8Array;
-  valid: Uint8Array;
-  nadirStrip: Uint16Array;
+export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "flags" | "inSite" | "valid" | "nadirStrip"> {
   strips: number;
   /** (bands + 1) rows of `strips`: band b's first place per strip; the last row, each strip's end. */
   offsets: Int32Array;
