@@ -22,6 +22,23 @@ export interface Background<T> {
 export const BACKGROUND_MIN_CELLS = 250_000;
 
 /**
+ * Below this many cells a light pass (a few nanoseconds a cell: the statistics' pass, half a
+ * DEM window's blocks, the flag polygons) moves less work to a second thread than the thread
+ * costs to start (~40-80 ms of CPU: its own engine and modules), so it stays on one; measured
+ * on the demo (2.7 M cells), whose assessment took ~0.15 s longer with them split.
+ */
+export const SPLIT_MIN_CELLS = 8_000_000;
+
+/**
+ * Whether such a light pass over `cells` is split onto another thread: when more than one
+ * thread was asked for, whatever the size; by default from SPLIT_MIN_CELLS cells.
+ * @example const threads = splitAllowed(n, opts.threads) ? bandThreads(n, bands, opts.threads) : 1;
+ */
+export function splitAllowed(cells: number, threads?: number): boolean {
+  return threads === undefined ? cells >= SPLIT_MIN_CELLS : threads > 1;
+}
+
+/**
  * Whether work over a grid of `cells` goes to a worker thread: not when one thread was
  * requested (a campaign planning sites side by side), nor on grids where it is too small to pay.
  * @example const b = backgroundAllowed(grid.width * grid.height, threads) ? inBackground(url, job) : NOT_IN_BACKGROUND;

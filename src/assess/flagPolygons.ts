@@ -3,7 +3,7 @@ import type { Position } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { FlagPolygons } from "./types.js";
 import { ASSESSMENT_FLAG_KINDS, FLAG_VALUES } from "./flags.js";
-import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { inBackground, NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 
 /**
  * Flagged cells as polygons, one MultiPolygon layer per flag kind, for the
@@ -123,11 +123,11 @@ const workerUrl = new URL("./flagPolygonsWorker.js", import.meta.url);
 /**
  * flagPolygons made on a worker thread from now on (the flags must be final and in shared
  * memory), its frame rebuilt there from the proj4 definition: the same polygons, while this
- * thread makes the statistics. Not for small grids or one thread (NOT_IN_BACKGROUND: the
- * caller makes them itself).
+ * thread makes the statistics. Only where splitAllowed (by default on large grids; not
+ * with one thread): otherwise NOT_IN_BACKGROUND, and the caller makes them itself.
  * @example const p = flagPolygonsInBackground(job, threads); ...; (await p.result()) ?? flagPolygons(...)
  */
 export function flagPolygonsInBackground(job: FlagPolygonsJob, threads?: number): Background<FlagPolygons> {
-  if (!backgroundAllowed(job.width * job.height, threads) || !(job.flags.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
+  if (!splitAllowed(job.width * job.height, threads) || !(job.flags.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
   return inBackground<FlagPolygons>(workerUrl, job);
 }

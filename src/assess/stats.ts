@@ -1,6 +1,7 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
 import type { SeenByBand } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable } from "./bandThreads.js";
+import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf, type RadixHistogram } from "./quantiles.js";
 
@@ -196,7 +197,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   // (the same order as one pass over all the cells), the tallies are kept per thread.
   const banded = input.seenByBand;
   const bands = banded ? banded.counts.length / S : 1;
-  const threads = banded ? bandThreads(n, bands, input.threads) : 1;
+  const threads = banded && splitAllowed(n, input.threads) ? bandThreads(n, bands, input.threads) : 1;
   const offsets = new Int32Array(buffer(threads, 4 * (bands + 1) * S));
   offsets.set(start.subarray(0, S));
   for (let b = 0; b < bands; b++) {

@@ -7,7 +7,7 @@ import type { CellWindow } from "./window.js";
 import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
 import { LITTLE_ENDIAN_HOST, markNodata, placeFloatPredicted } from "./floatBlocks.js";
 import { blocksInBackground, type BlockRef } from "./blocksInBackground.js";
-import { backgroundAllowed, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 
 type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array | Float64Array;
 
@@ -120,12 +120,12 @@ export async function decodeWindowDirect(
     await decodeRemote(source, image, client, jobs, sample, decoderFor, blockBytes, place1);
     return true;
   }
-  // A large window of the usual local Deflate DEM: the later half of its blocks go to a
+  // A large window of the usual local Deflate DEM (see splitAllowed): the later half of its blocks go to a
   // worker thread (blocksInBackground), decoded and placed there while this thread does the
   // rest; should the worker fail, this thread decodes them too (with its own errors).
   let theirs: BlockRef[] = [];
   let inWorker: Background<boolean> = NOT_IN_BACKGROUND;
-  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && backgroundAllowed((win.col1 - win.col0) * (win.row1 - win.row0), threads)) {
+  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && splitAllowed((win.col1 - win.col0) * (win.row1 - win.row0), threads)) {
     const later = jobs.splice(Math.ceil(jobs.length / 2));
     const across = Math.ceil(source.width / tw), down = Math.ceil(source.height / th);
     const tag = image.isTiled ? "Tile" : "Strip";

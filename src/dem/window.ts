@@ -12,7 +12,7 @@ export interface ReadWindowOptions {
   crs?: string;
   /** Extra ground distance added on every side, metres (default 0). */
   marginM?: number;
-  /** Threads the read may use (1: this one only; default: a worker thread for half the blocks of a large window). */
+  /** Threads the read may use (1: this one only; more: half the blocks on a worker thread; default: that on large windows, see splitAllowed). */
   threads?: number;
 }
 

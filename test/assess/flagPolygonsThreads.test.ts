@@ -31,7 +31,7 @@ describe.skipIf(!built.available)("flag polygons traced on a worker thread", () 
       const transform = { x0: 1000, y0: 2000, dx: 0.5, dy: -0.5 };
       const here = flagPolygons(flags, W, H, transform, frame.toWgs84, 0.25);
       expect(Object.keys(here).sort()).toEqual(["ceiling", "coarse", "fewImages"].sort());
-      const made = await flagPolygonsInBackground({ flags, width: W, height: H, transform, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2: 0.25 }).result();
+      const made = await flagPolygonsInBackground({ flags, width: W, height: H, transform, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2: 0.25 }, 2).result();
       expect(made).toBeDefined();
       expect(made).toEqual(here);
     });
