@@ -6,8 +6,9 @@ import { Worker } from "node:worker_threads";
  * Work started on a worker thread now and awaited later, so one core does it while this
  * thread goes on with the plan. The worker module posts one message, its result, and is
  * ended. Used for the parts of a plan that need only what is known early (the DEM, the
- * final strips, the final rasters): the constant-altitude comparison, the report's DEM
- * layers and reduced maps, the small compressed rasters.
+ * final strips, the final rasters): half the blocks of a large DEM window, the
+ * constant-altitude comparison, the flag polygons, the report's DEM layers and reduced maps,
+ * the small compressed rasters.
  */
 export interface Background<T> {
   /**

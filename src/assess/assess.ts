@@ -105,7 +105,8 @@ export function assessPlan(
 
   const rasters = { width, height, transform, gsdCm, images, flags, inSite };
   opts.onRasters?.(rasters);
-  const maxStrip = exposures.reduce((m, e) => Math.max(m, e.strip), 0);
+  // The coverage pass counted the seen cells for strips 0 .. the highest photo's strip.
+  const maxStrip = seenByBand.strips - 1;
   const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {

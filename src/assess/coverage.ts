@@ -97,8 +97,10 @@ export function computeCoverage(
     ...(opts.effects
       ? {
           flags: new Uint16Array(buffer(2 * n)),
-          effects: { lowCm: opts.effects.lowGsdCm, highCm: opts.effects.highGsdCm, minImages: opts.effects.minImages },
-          seenByBand: { counts: new Int32Array(buffer(4 * bands * strips)), strips, bandRows: BAND_ROWS, bandCells: BAND_ROWS * width },
+          effects: {
+            lowCm: opts.effects.lowGsdCm, highCm: opts.effects.highGsdCm, minImages: opts.effects.minImages,
+            seen: { counts: new Int32Array(buffer(4 * bands * strips)), strips, bandRows: BAND_ROWS, bandCells: BAND_ROWS * width },
+          },
         }
       : {}),
     ex: Float64Array.from(exposures, (e) => e.x),
@@ -128,6 +130,6 @@ export function computeCoverage(
   return {
     gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip,
     ...(input.flags ? { flags: input.flags } : {}),
-    ...(input.seenByBand ? { seenByBand: input.seenByBand } : {}),
+    ...(input.effects ? { seenByBand: input.effects.seen } : {}),
   };
 }

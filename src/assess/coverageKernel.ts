@@ -24,12 +24,11 @@ export interface SweepInput {
   nadirStrip: Uint16Array;
   /** Effect flags (coarse, fine, too few images, no data), written band by band when given. */
   flags?: Uint16Array;
-  effects?: { lowCm: number; highCm: number; minImages: number };
   /**
-   * With the effects: seen site cells (a GSD exists) per band and nadir strip, counted as
-   * each band's cells become final, band b's counts at b * strips (see SeenByBand).
+   * The effects' GSD band and image minimum, and the table where the same pass counts the
+   * seen site cells (a GSD exists) per band and nadir strip as each band's cells become final.
    */
-  seenByBand?: SeenByBand;
+  effects?: BandEffects;
   /** Photos as columns: position, altitude AMSL, along-track unit vector, strip. */
   ex: Float64Array;
   ey: Float64Array;
@@ -75,6 +74,14 @@ export interface SeenByBand {
   bandRows: number;
   /** Cells per band (bandRows whole rows; the last band may hold fewer). */
   bandCells: number;
+}
+
+/** What bandEffects sets and counts: see SweepInput.effects. */
+export interface BandEffects {
+  lowCm: number;
+  highCm: number;
+  minImages: number;
+  seen: SeenByBand;
 }
 
 /** Side of the square blocks whose lowest site ground bounds the footprints, in cells. */
@@ -248,7 +255,7 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
       );
     }
   }
-  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, base0, (r1 + 1) * width, inp.seenByBand, band);
+  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, base0, (r1 + 1) * width, band);
 }
 
 /**
@@ -305,17 +312,16 @@ function sweepRow(
  * Effect bits and the no-data bit of the cells i0..i1-1, whose photos are all
  * counted: coarse or fine outside the GSD band, too few images under
  * minImages; no data where the site's ground is unknown; 0 outside the site.
- * With `seen`, the same pass counts the band's seen site cells per nadir strip.
+ * The same pass counts the band's seen site cells per nadir strip (fx.seen).
  */
-function bandEffects(inp: SweepInput, flags: Uint16Array, fx: { lowCm: number; highCm: number; minImages: number }, i0: number, i1: number, seen: SeenByBand | undefined, band: number): void {
+function bandEffects(inp: SweepInput, flags: Uint16Array, fx: BandEffects, i0: number, i1: number, band: number): void {
   const { inSite, ground, gsdCm, images, nadirStrip } = inp;
   const lo = fx.lowCm * (1 - BAND_SLACK);
   const hi = fx.highCm * (1 + BAND_SLACK);
   const minImages = fx.minImages;
   // Neighbouring cells mostly share their strip: the count of a run of them is added at once.
-  // (Without a table to fill, the runs are counted and dropped.)
-  const counts = seen ? seen.counts : new Int32Array(65536);
-  const at = seen ? band * seen.strips : 0;
+  const counts = fx.seen.counts;
+  const at = band * fx.seen.strips;
   let runStrip = 0;
   let run = 0;
   for (let i = i0; i < i1; i++) {

@@ -1,7 +1,7 @@
 import { closeSync, openSync, readSync } from "node:fs";
 import { inflateSync } from "node:zlib";
 import { parentPort, workerData } from "node:worker_threads";
-import { placeFloatPredicted } from "./floatBlocks.js";
+import { blockCellsInWindow, placeFloatPredicted } from "./floatBlocks.js";
 import type { BlockJob } from "./blocksInBackground.js";
 
 /**
@@ -22,9 +22,8 @@ try {
     if (readSync(fd, compressed, 0, b.length, b.offset) !== b.length) throw new Error("short read");
     const bytes = inflateSync(compressed);
     if (bytes.byteLength < b.need) throw new Error("short block");
-    const { win, tw, th } = job;
-    const colA = Math.max(win.col0, b.tx * tw), colB = Math.min(win.col1, (b.tx + 1) * tw);
-    const rowA = Math.max(win.row0, b.ty * th), rowB = Math.min(win.row1, (b.ty + 1) * th, job.sourceHeight);
+    const { tw, th } = job;
+    const [colA, colB, rowA, rowB] = blockCellsInWindow(b.tx, b.ty, tw, th, job.win, job.sourceHeight);
     placeFloatPredicted(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), tw, b.tx * tw, b.ty * th, colA, colB, rowA, rowB, job.wc0, job.wr0, job.outW, words, job.heights, job.valid, job.nd);
   }
 } catch {

@@ -35,6 +35,15 @@ export function floatPredictorRow32(bytes: Uint8Array, o: number, rowBytes: numb
 }
 
 /**
+ * The cells of block (tx, ty), `tw` x `th` cells, that lie in the window: columns colA..colB-1,
+ * rows rowA..rowB-1 of the source (the last strip stops at the source's height).
+ * @example const [colA, colB, rowA, rowB] = blockCellsInWindow(2, 1, 256, 256, win, source.height)
+ */
+export function blockCellsInWindow(tx: number, ty: number, tw: number, th: number, win: { col0: number; col1: number; row0: number; row1: number }, sourceHeight: number): [number, number, number, number] {
+  return [Math.max(win.col0, tx * tw), Math.min(win.col1, (tx + 1) * tw), Math.max(win.row0, ty * th), Math.min(win.row1, (ty + 1) * th, sourceHeight)];
+}
+
+/**
  * A block of Float32 samples still carrying the floating-point predictor (one sample per
  * pixel, heights as stored), placed as copyBlock places the un-predicted block: each row's
  * byte sums undone and its samples in the window written straight into the heights (`words`

@@ -5,7 +5,7 @@ import { remoteClient, remoteFailure } from "./tiffSource.js";
 import { fetchRuns, type RangeBlock, type RangeClient } from "./remote.js";
 import type { CellWindow } from "./window.js";
 import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
-import { LITTLE_ENDIAN_HOST, markNodata, placeFloatPredicted } from "./floatBlocks.js";
+import { LITTLE_ENDIAN_HOST, blockCellsInWindow, markNodata, placeFloatPredicted } from "./floatBlocks.js";
 import { blocksInBackground, type BlockRef } from "./blocksInBackground.js";
 import { NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 
@@ -105,8 +105,7 @@ export async function decodeWindowDirect(
   const sample = planar === 2 ? s : 0;
   const words = fused ? new Uint32Array(heights.buffer, heights.byteOffset, heights.length) : undefined;
   const place1 = (tx: number, ty: number, data: ArrayBuffer) => {
-    const colA = Math.max(win.col0, tx * tw), colB = Math.min(win.col1, (tx + 1) * tw);
-    const rowA = Math.max(win.row0, ty * th), rowB = Math.min(win.row1, (ty + 1) * th, source.height);
+    const [colA, colB, rowA, rowB] = blockCellsInWindow(tx, ty, tw, th, win, source.height);
     if (words && stillPredicted.has(data)) {
       placeFloatPredicted(new Uint8Array(data), tw, tx * tw, ty * th, colA, colB, rowA, rowB, wc0, wr0, outW, words, heights, valid, nd);
       return;

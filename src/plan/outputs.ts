@@ -70,9 +70,9 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
   // thread (on large grids, threads allowed), started now so it works while the report's
   // figures are made here; or here after gsd.tif when none ran.
-  let small: Background<Partial<AssessmentTiffs>> | undefined;
-  const smallTiffs = () => (small ??= backgroundAllowed(rasters.width * rasters.height, run.threads) ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"]) : NOT_IN_BACKGROUND);
-  smallTiffs();
+  const smallTiffs: Background<Partial<AssessmentTiffs>> = backgroundAllowed(rasters.width * rasters.height, run.threads)
+    ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"])
+    : NOT_IN_BACKGROUND;
   const report = reportInput(run, summary, meta);
   // Both report files come from one compacted input. The page is rendered in a worker thread
   // started when the rasters start, so it is made on the other core while they and
@@ -84,7 +84,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     await reportPage();
     if (name !== "gsd.tif") {
-      const made = (await smallTiffs().result())?.[name];
+      const made = (await smallTiffs.result())?.[name];
       if (made) return made;
     }
     return assessmentGeoTiffChunks(rasters, crs, name);
