@@ -3,7 +3,7 @@ import type { Camera, Requirement } from "../camera/types.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import { computeCoverage, type Coverage } from "./coverage.js";
-import { bandThreads, shareable } from "./bandThreads.js";
+import { bandThreads } from "./bandThreads.js";
 import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
 import { paintCauseZones, paintKeepOutCuts } from "./flagRaster.js";
@@ -60,7 +60,7 @@ export interface AssessOptions {
  */
 export function siteMaskFor(grid: Pick<DemGrid, "width" | "height" | "transform">, site: Polygon | MultiPolygon, threads?: number): Uint8Array {
   const { width, height, transform } = grid;
-  return shareable(rasteriseSite(site, width, height, transform), bandThreads(width * height, 2, threads));
+  return rasteriseSite(site, width, height, transform, bandThreads(width * height, 2, threads) > 1);
 }
 
 /**

@@ -17,7 +17,8 @@ import type { GeoTransform } from "../dem/grid.js";
  */
 
 /**
- * Rasterise a local-frame polygon onto a grid: 1 where the cell centre is inside.
+ * Rasterise a local-frame polygon onto a grid: 1 where the cell centre is inside. `shared`:
+ * the mask is made in shared memory (worker threads then read it in place).
  * @example
  * const inSite = rasteriseSite(site.local, grid.width, grid.height, grid.transform);
  */
@@ -26,6 +27,7 @@ export function rasteriseSite(
   width: number,
   height: number,
   transform: GeoTransform,
+  shared = false,
 ): Uint8Array {
   const { x0, y0, dx, dy } = transform;
   const rings: number[][][] = geometry.type === "Polygon" ? geometry.coordinates : geometry.coordinates.flat();
@@ -71,7 +73,7 @@ export function rasteriseSite(
   const fill = firstCount.slice(0, height);
   for (let i = 0; i < nEdges; i++) byRow[fill[rowStart[i]]++] = i;
 
-  const mask = new Uint8Array(width * height);
+  const mask = new Uint8Array(shared ? new SharedArrayBuffer(width * height) : new ArrayBuffer(width * height));
   const active = new Int32Array(nEdges);
   const xs = new Float64Array(nEdges);
   let nActive = 0;

@@ -105,6 +105,9 @@ function check(images: CogImage[], o: CogOptions): void {
  * are read once before the first chunk and again for their own tiles; an image whose
  * bands come from a reduction (geotiffRasters.ts) must allow that second reading.
  * A compressed file comes as one chunk (its tiles must all be known to lay it out).
+ * The tile rows come in one buffer, filled anew for each: a chunk is valid until the next
+ * one is asked for (a writer that writes each before taking the next, as fs's writeFile
+ * does with an iterable, needs no copy; one that keeps them must copy each).
  * @example for (const chunk of cogChunks(images, options)) await file.write(chunk);
  */
 export function* cogChunks(images: CogImage[], o: CogOptions): Generator<Uint8Array, void, undefined> {
@@ -127,9 +130,12 @@ export function* cogChunks(images: CogImage[], o: CogOptions): Generator<Uint8Ar
   yield head;
   const span = 4 + rawBytes + 4;
   const base = head.length;
+  // One tile row's buffer, filled anew for each row (every byte is written: tiles, their
+  // padding, leaders and trailers): a fresh one per row left ~10 MB of garbage a row at 4 km2,
+  // which the allocator kept long after it was collected.
+  const chunk = new Uint8Array(across * span);
+  const view = new DataView(chunk.buffer);
   for (let ty = 0; ty < down; ty++) {
-    const chunk = new Uint8Array(across * span);
-    const view = new DataView(chunk.buffer);
     const at = L.tileAt[0].slice(ty * across, (ty + 1) * across).map((p) => p - base - ty * across * span);
     writeRawTileRow(full, ty, T, o.fill, chunk, at);
     for (const p of at) frameTile(chunk, view, p, rawBytes);

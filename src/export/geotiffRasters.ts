@@ -117,6 +117,7 @@ export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: k
 /**
  * The same file as chunks in file order (cog.ts, cogChunks), for writing straight to disk:
  * the uncompressed gsd.tif is never held whole in memory. The same bytes as assessmentGeoTiff.
+ * Each chunk is valid until the next is asked for (cogChunks): write it, or copy it, first.
  * @example await writeFile("gsd.tif", assessmentGeoTiffChunks(assessment.rasters, dem.crs, "gsd.tif"))
  */
 export function assessmentGeoTiffChunks(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): Iterable<Uint8Array> {

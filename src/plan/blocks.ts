@@ -36,6 +36,8 @@ export interface BlockInputs {
   /** True when the user gave exactly one take-off point. */
   givenOne: boolean;
   keepOut: KeepOutSet | null;
+  /** The site's cells on `grid` (rasteriseSite), when the caller has them or makes them anyway: asked for only when the site is cut into blocks. */
+  inSite?: () => Uint8Array;
 }
 
 /**
@@ -90,7 +92,7 @@ function blocksFor(b: BlockInputs, grid: BlockGrid, whole: Block, frame: StripFr
   const warnings: SolveWarning[] = [];
   const pieces = whole.pieces;
   const blocks = blocksOf(pieces, grid, b.triggerM);
-  const inSite = rasteriseSite(b.site.local, b.grid.width, b.grid.height, b.grid.transform);
+  const inSite = b.inSite?.() ?? rasteriseSite(b.site.local, b.grid.width, b.grid.height, b.grid.transform);
   const out: PlannedBlock[] = [];
   let strip = 1;
   for (const blk of blocks) {

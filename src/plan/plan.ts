@@ -181,6 +181,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
       }
     }
   }
+  // The site's cells on the grid: made once, for the blocks (if the site is cut into them) and the assessment.
+  let siteCells: Uint8Array | undefined;
+  const siteMask = () => (siteCells ??= siteMaskFor(grid, site.local, hooks.threads));
   const blockLayouts: { block: PlannedBlock; layout: Layout; groundM: number }[] = [];
   for (const familyLayout of crossLayout ? [fullLayout, crossLayout] : [fullLayout]) {
     // The second family's blocks prefer the first's take-off points (fewer launch sites)
@@ -189,6 +192,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     const blocking = planBlocks({
       layout: familyLayout, site, grid, rangeM: options.aircraft.maxRangeM, triggerM,
       candidates: offset && !candidates.length ? blockLayouts.map((b) => b.layout.takeoff) : candidates, givenOne: options.takeoff !== undefined, keepOut,
+      inSite: siteMask,
     });
     warnings.push(...blocking.warnings);
     // Blocks number their strips afresh: the second family's continue after the first's.
@@ -258,7 +262,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   stage("route");
   // The constant-altitude comparison needs only the final strips, the DEM and the site: it
   // is made on the other core from here on, while this thread routes, checks and assesses.
-  const inSite = siteMaskFor(grid, site.local, hooks.threads);
+  const inSite = siteMask();
   const takeoffGround = solvedBlocks[0].groundM;
   const baselineRun = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, {
     targetHeightM,
