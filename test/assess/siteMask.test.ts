@@ -34,6 +34,11 @@ describe("site mask by scanline even-odd fill", () => {
     const mask = rasteriseSite(poly, 100, 100, transform);
     const ref = reference(poly, 100, 100, 1000, 2000, 2);
     expect(differences(mask, ref)).toBe(0);
+    // Made in shared memory (for worker threads): the same cells.
+    const shared = rasteriseSite(poly, 100, 100, transform, true);
+    expect(shared.buffer).toBeInstanceOf(SharedArrayBuffer);
+    expect(mask.buffer).not.toBeInstanceOf(SharedArrayBuffer);
+    expect(differences(shared, ref)).toBe(0);
     // The hole is really empty and the shape is neither empty nor full.
     const sum = mask.reduce((a, b) => a + b, 0);
     expect(sum).toBeGreaterThan(1000);
