@@ -15,7 +15,7 @@ import { Worker } from "node:worker_threads";
  */
 
 /** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
-export type BandKind = "sweep" | "lattice" | "stats" | "quantiles";
+export type BandKind = "sweep" | "lattice" | "stats";
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
 const workerUrl = new URL("./coverageWorker.js", import.meta.url);

@@ -2,7 +2,7 @@ import { workerData } from "node:worker_threads";
 import type { BandKind } from "./bandThreads.js";
 import { sweepBands, type SweepInput } from "./coverageKernel.js";
 import { latticeBands, type LatticeInput } from "./latticeCoverage.js";
-import { statsPassBands, stripQuantilesBands, type StatsPassJob, type StripQuantilesJob } from "./stats.js";
+import { statsPassBands, type StatsPassJob } from "./stats.js";
 
 /**
  * Worker thread of a banded pass (bandThreads.ts): runs the band loop of its
@@ -13,8 +13,7 @@ const { kind, input, next, bands, done, slot } = workerData as { kind: BandKind;
 try {
   if (kind === "sweep") sweepBands(input as SweepInput, next, bands);
   else if (kind === "lattice") latticeBands(input as LatticeInput, next, bands);
-  else if (kind === "stats") statsPassBands(input as StatsPassJob, next, bands, slot);
-  else stripQuantilesBands(input as StripQuantilesJob, next, bands);
+  else statsPassBands(input as StatsPassJob, next, bands, slot);
   Atomics.store(done, slot, 1);
 } catch {
   Atomics.store(done, slot, 2);

@@ -127,6 +127,93 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
   return { n, stats };
 }
 
+/**
+ * Type-7 quantiles `ps` of each group of values at once, without copying the values into
+ * groups: `group[i]` (0 .. groups - 1) names value i's group, and only values where
+ * `include[i]` is not 0 (and not NaN) count. `all` is the first radix pass over exactly those
+ * values (RADIX_BINS bins, as orderStatistics counts them): it bounds the bins the values fall
+ * in, so each group's own first pass needs only that span of bins (the first pass over the
+ * cells counts groups x span, not groups x 65,536); a second pass gathers the values of the
+ * bins that hold a wanted rank, per group, and selects within them. The same order statistics
+ * as quantilesFloat32 on each group's values alone. Out: `groups` rows of ps.length values
+ * (NaN for a group with no values).
+ * @example quantilesOfGroups(gsdCm, nadirStrip, inSite, strips, [0, 0.5, 1], siteRadix)
+ */
+export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array): Float64Array {
+  const out = new Float64Array(groups * ps.length).fill(NaN);
+  let lo = 0;
+  while (lo < RADIX_BINS && all[lo] === 0) lo++;
+  if (lo === RADIX_BINS) return out;
+  let hi = RADIX_BINS - 1;
+  while (all[hi] === 0) hi--;
+  const span = hi - lo + 1;
+  const keys = float32Keys(values);
+  const n = values.length;
+  // First pass: each group's bins, within the span.
+  const hist = new Uint32Array(groups * span);
+  for (let i = 0; i < n; i++) {
+    if (include[i] === 0) continue;
+    const v = values[i];
+    if (v !== v) continue;
+    hist[group[i] * span + radixBin(keys[i]) - lo]++;
+  }
+  // Each group's wanted ranks: the bin holding each one and its rank within the bin.
+  const wanted = Array.from({ length: groups }, () => ({ n: 0, bins: [] as number[], within: [] as number[] }));
+  const slot = new Int32Array(groups * span).fill(-1);
+  const sizes: number[] = [];
+  for (let g = 0; g < groups; g++) {
+    const row = g * span;
+    let count = 0;
+    for (let b = 0; b < span; b++) count += hist[row + b];
+    const w = wanted[g];
+    w.n = count;
+    if (count === 0) continue;
+    for (const r of ranksOf(count, ps)) {
+      let acc = 0;
+      let b = 0;
+      while (acc + hist[row + b] <= r) acc += hist[row + b++];
+      w.bins.push(b);
+      w.within.push(r - acc);
+      if (slot[row + b] < 0) {
+        slot[row + b] = sizes.length;
+        sizes.push(hist[row + b]);
+      }
+    }
+  }
+  // Second pass: the values of those bins only, in the order they come.
+  const gathered = sizes.map((m) => new Float32Array(m));
+  const fill = new Int32Array(sizes.length);
+  for (let i = 0; i < n; i++) {
+    if (include[i] === 0) continue;
+    const v = values[i];
+    if (v !== v) continue;
+    const k = slot[group[i] * span + radixBin(keys[i]) - lo];
+    if (k >= 0) gathered[k][fill[k]++] = v;
+  }
+  // Within each bin, the wanted ranks selected in ascending order.
+  for (let g = 0; g < groups; g++) {
+    const w = wanted[g];
+    if (w.n === 0) continue;
+    const stats = new Array<number>(w.bins.length);
+    const order = w.bins.map((_, j) => j).sort((x, y) => w.bins[x] - w.bins[y] || w.within[x] - w.within[y]);
+    let at = -1;
+    let from = 0;
+    for (const j of order) {
+      const k = slot[g * span + w.bins[j]];
+      if (k !== at) {
+        at = k;
+        from = 0;
+      }
+      const a = gathered[k];
+      selectRank(a, w.within[j], from, a.length - 1);
+      stats[j] = a[w.within[j]];
+      from = w.within[j];
+    }
+    out.set(interpolate(w.n, ps, stats), g * ps.length);
+  }
+  return out;
+}
+
 const SELECT_BELOW = 1 << 16;
 
 /** The two order statistics (0-based ranks) each quantile interpolates between: floor(h) and the next, h = (n - 1) p. */

@@ -3,7 +3,7 @@ import type { SeenByBand } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf, type RadixHistogram } from "./quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesOfGroups, radixBin, ranksOf } from "./quantiles.js";
 
 /**
  * Summary figures of an assessment over the site's cells.
@@ -44,24 +44,22 @@ function gsdStats([min, p5, median, p95, max]: Iterable<number>): GsdStats {
   return { min, p5, median, p95, max };
 }
 
-function quantilesOfRadix(values: Float32Array, radix: RadixHistogram): number[] {
-  const { n, stats } = orderStatisticsOfRadix(values, radix, (m) => ranksOf(m, QUANTILES));
+/** The site's GSD quantiles from the pass's radix tallies (`hist`, over the seen site cells). */
+function siteQuantiles(gsdCm: Float32Array, inSite: Uint8Array, hist: Uint32Array): number[] {
+  let n = 0;
+  for (let b = 0; b < RADIX_BINS; b++) n += hist[b];
+  const { stats } = orderStatisticsOfRadix(gsdCm, { hist, n }, (m) => ranksOf(m, QUANTILES), inSite);
   return n === 0 ? QUANTILES.map(() => NaN) : interpolate(n, QUANTILES, stats);
 }
 
 /**
  * The statistics' pass over the cells, as plain typed arrays (in shared memory when several
- * threads take its bands): the cells' rasters, where each band's seen cells of each strip
- * go in `grouped`, and each thread's tallies at its slot.
+ * threads take its bands): the cells' rasters and each thread's tallies at its slot.
  */
 export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "flags" | "inSite" | "valid" | "nadirStrip"> {
   strips: number;
-  /** (bands + 1) rows of `strips`: band b's first place per strip; the last row, each strip's end. */
-  offsets: Int32Array;
   /** Cells per band (the last band may hold fewer). */
   bandCells: number;
-  /** Seen site cells' GSD grouped by strip (out). */
-  grouped: Float32Array;
   /** Per slot: flag values per strip (strips x FLAG_VALUES), image counts of site cells with data (65,536), seen cells in band per strip, the first radix pass of the GSD. */
   flagHist: Float64Array;
   imageHist: Float64Array;
@@ -78,28 +76,20 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
  * @example runBands("stats", job, bands, threads, statsPassBands);
  */
 export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: number, slot: number): void {
-  const S = job.strips;
-  const fill = new Int32Array(S);
   for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
-    fill.set(job.offsets.subarray(b * S, (b + 1) * S));
     const i0 = b * job.bandCells;
-    statsPassCells(job, i0, Math.min(job.inSite.length, i0 + job.bandCells), slot, fill);
-    for (let s = 0; s < S; s++) {
-      const end = job.offsets[(b + 1) * S + s];
-      if (fill[s] !== end) throw new Error(`band ${b}, strip ${s}: ${fill[s] - job.offsets[b * S + s]} seen cells grouped, ${end - job.offsets[b * S + s]} counted`);
-    }
+    statsPassCells(job, i0, Math.min(job.inSite.length, i0 + job.bandCells), slot);
   }
 }
 
 /**
  * Cells i0..i1-1: a histogram of flag values per strip (strip 0: cells no photo sees) gives
  * every count (flag kinds are read off the 512 bins afterwards instead of testing 9 bits per
- * cell); image counts of site cells with data (their min and median); the seen cells' GSD
- * into their strip's places (`fill`, advanced); seen cells in band per strip; the first radix
- * pass of the site's GSD quantiles (quantiles.ts).
+ * cell); image counts of site cells with data (their min and median); seen cells in band per
+ * strip; the first radix pass of the site's GSD quantiles (quantiles.ts).
  */
-function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number, fill: Int32Array): void {
-  const { gsdCm, images, flags, inSite, valid, nadirStrip, grouped, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
+function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number): void {
+  const { gsdCm, images, flags, inSite, valid, nadirStrip, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
   const S = job.strips;
   const fh = slot * S * FLAG_VALUES;
   const ih = slot * 65536;
@@ -115,30 +105,11 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number,
     flagHist[fh + s * FLAG_VALUES + f]++;
     const g = gsdCm[i];
     if (g !== g) continue;
-    grouped[fill[s]++] = g;
     radixHist[rh + radixBin(gsdBits[i])]++;
     if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
     if (g >= atLeastCm) atLeast++;
   }
   job.atLeast[slot] += atLeast;
-}
-
-/** Each strip's GSD values (grouped[start[s]] up to start[s + 1]) and their quantiles (out, QUANTILES per strip). */
-export interface StripQuantilesJob {
-  grouped: Float32Array;
-  start: Int32Array;
-  quantiles: Float64Array;
-}
-
-/**
- * Takes strips from the counter until none is left and writes each one's GSD quantiles
- * (runBands' loop: a strip is a band here).
- * @example runBands("quantiles", job, strips, threads, stripQuantilesBands);
- */
-export function stripQuantilesBands(job: StripQuantilesJob, next: Int32Array, strips: number): void {
-  for (let s = Atomics.add(next, 0, 1); s < strips; s = Atomics.add(next, 0, 1)) {
-    job.quantiles.set(quantilesFloat32(job.grouped.subarray(job.start[s], job.start[s + 1]), QUANTILES), s * QUANTILES.length);
-  }
 }
 
 /** Memory for the statistics' pass: shared when other threads fill it. */
@@ -154,19 +125,9 @@ function sumOfSlots<T extends Float64Array | Uint32Array>(a: T, slots: number): 
   return out;
 }
 
-/** Seen site cells per strip 0..maxStrip, summed over the bands of the coverage pass's table. */
-function seenOfBands(seen: SeenByBand, maxStrip: number): Int32Array {
+/** Refuses a coverage pass's table of seen cells made for another number of strips than 0..maxStrip. */
+function checkSeenTable(seen: SeenByBand, maxStrip: number): void {
   if (seen.strips !== maxStrip + 1) throw new Error(`seen cells counted for ${seen.strips} strips, ${maxStrip + 1} expected`);
-  const out = new Int32Array(maxStrip + 1);
-  for (let b = 0; b < seen.counts.length; b += seen.strips) for (let s = 0; s <= maxStrip; s++) out[s] += seen.counts[b + s];
-  return out;
-}
-
-/** Seen site cells (a GSD exists) per strip 0..maxStrip, from the cells. */
-function seenOfCells(inSite: Uint8Array, gsdCm: Float32Array, nadirStrip: Uint16Array, maxStrip: number): Int32Array {
-  const out = new Int32Array(maxStrip + 1);
-  for (let i = 0; i < inSite.length; i++) if (inSite[i] !== 0 && gsdCm[i] === gsdCm[i]) out[nadirStrip[i]]++;
-  return out;
 }
 
 function pct(part: number, whole: number): number {
@@ -185,29 +146,19 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   if (maxStrip < 0) for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
   maxStrip = Math.max(0, maxStrip);
 
-  // Where each strip's GSD values go in one array grouped by strip: the seen cells per
-  // strip, from the coverage pass's counts when it made them, else counted here.
   const S = maxStrip + 1;
-  const seenCount = input.seenByBand ? seenOfBands(input.seenByBand, maxStrip) : seenOfCells(inSite, gsdCm, nadirStrip, maxStrip);
-  const start = new Int32Array(S + 1);
-  for (let s = 0; s < S; s++) start[s + 1] = start[s] + seenCount[s];
+  // The coverage pass's table of seen cells per band and strip must be for these strips.
+  if (input.seenByBand) checkSeenTable(input.seenByBand, maxStrip);
 
-  // With the coverage pass's counts per band, the cells can be taken band by band on several
-  // threads: each band's seen cells of a strip have their own place in the grouped array
-  // (the same order as one pass over all the cells), the tallies are kept per thread.
+  // With the coverage pass's bands, the cells can be taken band by band on several threads,
+  // the tallies kept per thread.
   const banded = input.seenByBand;
   const bands = banded ? banded.counts.length / S : 1;
   const threads = banded && splitAllowed(n, input.threads) ? bandThreads(n, bands, input.threads) : 1;
-  const offsets = new Int32Array(buffer(threads, 4 * (bands + 1) * S));
-  offsets.set(start.subarray(0, S));
-  for (let b = 0; b < bands; b++) {
-    for (let s = 0; s < S; s++) offsets[(b + 1) * S + s] = offsets[b * S + s] + (banded ? banded.counts[b * S + s] : seenCount[s]);
-  }
   const job: StatsPassJob = {
     gsdCm: shareable(gsdCm, threads), images: shareable(images, threads), flags: shareable(flags, threads),
     inSite: shareable(inSite, threads), valid: shareable(valid, threads), nadirStrip: shareable(nadirStrip, threads),
-    strips: S, offsets, bandCells: banded ? banded.bandCells : n,
-    grouped: new Float32Array(buffer(threads, 4 * start[S])),
+    strips: S, bandCells: banded ? banded.bandCells : n,
     flagHist: new Float64Array(buffer(threads, 8 * threads * S * FLAG_VALUES)),
     imageHist: new Float64Array(buffer(threads, 8 * threads * 65536)),
     inBandSeen: new Float64Array(buffer(threads, 8 * threads * S)),
@@ -216,7 +167,6 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     atLeast: new Float64Array(buffer(threads, 8 * threads)),
   };
   runBands("stats", job, bands, threads, statsPassBands);
-  const grouped = job.grouped;
   const flagHist = sumOfSlots(job.flagHist, threads);
   const imageHist = sumOfSlots(job.imageHist, threads);
   const inBandSeen = sumOfSlots(job.inBandSeen, threads);
@@ -249,20 +199,12 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     return out;
   };
 
-  // The strips' GSD quantiles, strips shared between threads as bands; this thread makes the
-  // site's own first (from the pass's radix tallies), then takes strips too.
-  const qThreads = Math.min(threads, S);
-  const qJob: StripQuantilesJob = {
-    grouped,
-    start: shareable(start, qThreads),
-    quantiles: new Float64Array(buffer(qThreads, 8 * S * QUANTILES.length)),
-  };
-  let siteGsd: GsdStats | undefined;
-  runBands("quantiles", qJob, S, qThreads, (job, next, bands) => {
-    siteGsd = gsdStats(quantilesOfRadix(grouped, { hist: radixHist, n: grouped.length }));
-    stripQuantilesBands(job, next, bands);
-  });
-  const stripGsd = (s: number): GsdStats => gsdStats(qJob.quantiles.subarray(s * QUANTILES.length, (s + 1) * QUANTILES.length));
+  // The site's GSD quantiles from the pass's radix tallies; each strip's from its own, counted
+  // over the span of bins the site's fill (quantiles.ts quantilesOfGroups): no copy of the
+  // GSD grouped by strip (4 bytes a seen cell) is made.
+  const siteGsd = gsdStats(siteQuantiles(gsdCm, inSite, radixHist));
+  const stripQuantiles = quantilesOfGroups(gsdCm, nadirStrip, inSite, S, QUANTILES, radixHist);
+  const stripGsd = (s: number): GsdStats => gsdStats(stripQuantiles.subarray(s * QUANTILES.length, (s + 1) * QUANTILES.length));
 
   const perStrip: AssessmentStats["perStrip"] = [];
   for (let s = 1; s <= maxStrip; s++) {
@@ -283,7 +225,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   return {
     siteCells: site.all,
     cellAreaM2,
-    gsdCm: siteGsd!,
+    gsdCm: siteGsd,
     withinBandPct: pct(inBand, site.all),
     images: countStatsOfHistogram(imageHist),
     flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all), effectCells: site.effect },

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, radixBin } from "../../src/assess/quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfGroups, radixBin } from "../../src/assess/quantiles.js";
 
 /**
  * Straightforward reference: sort, then interpolate linearly at h = (n - 1) p
@@ -103,5 +103,42 @@ describe("exact quantiles by radix selection", () => {
     };
     expect(countStatsOfHistogram(counts(inc))).toEqual({ min: 1, median: 6 });
     expect(countStatsOfHistogram(counts(new Uint8Array(7)))).toEqual({ min: NaN, median: NaN });
+  });
+});
+
+describe("quantiles of every group at once (quantilesOfGroups)", () => {
+  // Reference: each group's values sorted, type 7 of Hyndman & Fan (1996) (sortedQuantile).
+  it("equal each group's own sorted quantiles: NaN and excluded cells left out, empty groups NaN", () => {
+    let seed = 11;
+    const rnd = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
+    const n = 300_000;
+    const groups = 7;
+    const values = new Float32Array(n);
+    const group = new Uint16Array(n);
+    const include = new Uint8Array(n);
+    for (let i = 0; i < n; i++) {
+      // Group 5 is never used; group 6 has a handful of values; most values crowd near 2.5,
+      // as a plan's GSD does (a few radix bins hold most of them), with a spread tail.
+      const g = rnd() < 0.0001 ? 6 : Math.floor(rnd() * 5);
+      group[i] = g;
+      include[i] = rnd() < 0.9 ? 1 : 0;
+      values[i] = rnd() < 0.02 ? NaN : rnd() < 0.8 ? 2.5 + 0.01 * (rnd() - 0.5) : 0.5 + 4 * rnd() + g;
+    }
+    const radix = new Uint32Array(RADIX_BINS);
+    const keys = float32Keys(values);
+    for (let i = 0; i < n; i++) if (include[i] && values[i] === values[i]) radix[radixBin(keys[i])]++;
+    const got = quantilesOfGroups(values, group, include, groups, PS, radix);
+    for (let g = 0; g < groups; g++) {
+      const v: number[] = [];
+      for (let i = 0; i < n; i++) if (group[i] === g && include[i] && values[i] === values[i]) v.push(values[i]);
+      v.sort((a, b) => a - b);
+      if (g === 5) expect(v.length).toBe(0);
+      PS.forEach((p, k) => {
+        const want = v.length ? sortedQuantile(v, p) : NaN;
+        expect(got[g * PS.length + k], `group ${g} p ${p} of ${v.length}`).toBe(want);
+      });
+    }
+    // No value at all: every group NaN.
+    expect(Array.from(quantilesOfGroups(values, group, new Uint8Array(n), groups, PS, new Uint32Array(RADIX_BINS))).every(Number.isNaN)).toBe(true);
   });
 });
