@@ -80,21 +80,7 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
   const { hist, n } = radix;
   if (n === 0) return { n, stats: [] };
   const keys = float32Keys(values);
-  const ranks = ranksFor(n);
-  // For each wanted rank: its high-16 bin and its rank within the bin, in one walk over the
-  // bins with the ranks taken in ascending order.
-  const order = ranks.map((_, j) => j).sort((a, b) => ranks[a] - ranks[b]);
-  const binOf = new Array<number>(ranks.length);
-  const within = new Array<number>(ranks.length);
-  {
-    let acc = 0;
-    let b = 0;
-    for (const j of order) {
-      while (acc + hist[b] <= ranks[j]) acc += hist[b++];
-      binOf[j] = b;
-      within[j] = ranks[j] - acc;
-    }
-  }
+  const { binOf, within } = ranksInBins(hist, 0, ranksFor(n));
   // Second pass: gather the values of those bins only, then select within each bin (a bin
   // holds 1/128 of an octave, a small share of a plan's GSD values).
   const bins = [...new Set(binOf)];
@@ -114,17 +100,49 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
   bins.forEach((b, k) => {
     if (fill[k] !== hist[b]) throw new Error(`radix histogram does not match the values: bin ${b} counted ${hist[b]}, found ${fill[k]}`);
   });
-  const stats = new Array<number>(ranks.length);
-  bins.forEach((bin, k) => {
-    const a = gathered[k];
-    let from = 0;
-    for (const j of order.filter((j) => binOf[j] === bin).sort((x, y) => within[x] - within[y])) {
-      selectRank(a, within[j], from, a.length - 1);
-      stats[j] = a[within[j]];
-      from = within[j];
+  return { n, stats: selectWithinBins(binOf, within, (bin) => gathered[slot[bin]]) };
+}
+
+/**
+ * Where each wanted rank of a first pass's counts hist[from ..] lies: its bin (counted from
+ * `from`) and its rank within that bin, in one walk over the bins with the ranks taken in
+ * ascending order. Ranks must lie in [0, n), n the counts' sum.
+ */
+function ranksInBins(hist: ArrayLike<number>, from: number, ranks: readonly number[]): { binOf: number[]; within: number[] } {
+  const order = ranks.map((_, j) => j).sort((a, b) => ranks[a] - ranks[b]);
+  const binOf = new Array<number>(ranks.length);
+  const within = new Array<number>(ranks.length);
+  let acc = 0;
+  let b = 0;
+  for (const j of order) {
+    while (acc + hist[from + b] <= ranks[j]) acc += hist[from + b++];
+    binOf[j] = b;
+    within[j] = ranks[j] - acc;
+  }
+  return { binOf, within };
+}
+
+/**
+ * The order statistics the second pass gathered for: rank j is the within[j]-th smallest of
+ * its bin's values (`gatheredOf(binOf[j])`). A bin's ranks are selected in ascending order,
+ * each search starting where the one before stopped.
+ */
+function selectWithinBins(binOf: readonly number[], within: readonly number[], gatheredOf: (bin: number) => Float32Array): number[] {
+  const order = binOf.map((_, j) => j).sort((x, y) => binOf[x] - binOf[y] || within[x] - within[y]);
+  const stats = new Array<number>(binOf.length);
+  let bin = -1;
+  let from = 0;
+  for (const j of order) {
+    if (binOf[j] !== bin) {
+      bin = binOf[j];
+      from = 0;
     }
-  });
-  return { n, stats };
+    const a = gatheredOf(bin);
+    selectRank(a, within[j], from, a.length - 1);
+    stats[j] = a[within[j]];
+    from = within[j];
+  }
+  return stats;
 }
 
 /**
@@ -158,22 +176,16 @@ export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>
     hist[group[i] * span + radixBin(keys[i]) - lo]++;
   }
   // Each group's wanted ranks: the bin holding each one and its rank within the bin.
-  const wanted = Array.from({ length: groups }, () => ({ n: 0, bins: [] as number[], within: [] as number[] }));
+  const wanted: ({ n: number } & ReturnType<typeof ranksInBins>)[] = [];
   const slot = new Int32Array(groups * span).fill(-1);
   const sizes: number[] = [];
   for (let g = 0; g < groups; g++) {
     const row = g * span;
     let count = 0;
     for (let b = 0; b < span; b++) count += hist[row + b];
-    const w = wanted[g];
-    w.n = count;
-    if (count === 0) continue;
-    for (const r of ranksOf(count, ps)) {
-      let acc = 0;
-      let b = 0;
-      while (acc + hist[row + b] <= r) acc += hist[row + b++];
-      w.bins.push(b);
-      w.within.push(r - acc);
+    const w = { n: count, ...(count > 0 ? ranksInBins(hist, row, ranksOf(count, ps)) : { binOf: [], within: [] }) };
+    wanted.push(w);
+    for (const b of w.binOf) {
       if (slot[row + b] < 0) {
         slot[row + b] = sizes.length;
         sizes.push(hist[row + b]);
@@ -190,25 +202,10 @@ export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>
     const k = slot[group[i] * span + radixBin(keys[i]) - lo];
     if (k >= 0) gathered[k][fill[k]++] = v;
   }
-  // Within each bin, the wanted ranks selected in ascending order.
   for (let g = 0; g < groups; g++) {
     const w = wanted[g];
     if (w.n === 0) continue;
-    const stats = new Array<number>(w.bins.length);
-    const order = w.bins.map((_, j) => j).sort((x, y) => w.bins[x] - w.bins[y] || w.within[x] - w.within[y]);
-    let at = -1;
-    let from = 0;
-    for (const j of order) {
-      const k = slot[g * span + w.bins[j]];
-      if (k !== at) {
-        at = k;
-        from = 0;
-      }
-      const a = gathered[k];
-      selectRank(a, w.within[j], from, a.length - 1);
-      stats[j] = a[w.within[j]];
-      from = w.within[j];
-    }
+    const stats = selectWithinBins(w.binOf, w.within, (b) => gathered[slot[g * span + b]]);
     out.set(interpolate(w.n, ps, stats), g * ps.length);
   }
   return out;
@@ -253,15 +250,7 @@ function statsBySelection(values: Float32Array, ranksFor: (n: number) => number[
   const a = new Float32Array(n);
   for (let i = 0, k = 0; i < values.length; i++) if (keep(i)) a[k++] = values[i];
   const ranks = ranksFor(n);
-  const order = ranks.map((_, j) => j).sort((x, y) => ranks[x] - ranks[y]);
-  const stats = new Array<number>(ranks.length);
-  let from = 0;
-  for (const j of order) {
-    selectRank(a, ranks[j], from, n - 1);
-    stats[j] = a[ranks[j]];
-    from = ranks[j];
-  }
-  return { n, stats };
+  return { n, stats: selectWithinBins(ranks.map(() => 0), ranks, () => a) };
 }
 
 /** Moves the k-th smallest of a[lo..hi] to a[k], smaller ones before it, larger after. */
