@@ -202,6 +202,11 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
   if (r0 > r1) return;
   const base0 = r0 * width;
   gsdCm.fill(NaN, base0, (r1 + 1) * width);
+  // Zeros written before the first count is read: a fresh page that is first read maps the
+  // kernel's shared zero page, and the write after it copies the page and flushes the TLB of
+  // every core running one of the plan's threads (an interrupt to each, costly in a virtual
+  // machine); a page first written is only allocated.
+  images.fill(0, base0, (r1 + 1) * width);
   best.fill(Infinity, 0, (r1 - r0 + 1) * width);
   const byDistance = inp.nadirBy === "distance";
   // In distance mode the weights are 1 and the division by d^2 is dropped (d2 = 1 below).

@@ -180,6 +180,8 @@ export function latticeBand(inp: LatticeInput, band: number): void {
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
   const span = new Int32Array(2);
+  // Written before read, as in sweepBand (coverageKernel.ts).
+  images.fill(0, r0 * width, (r1 + 1) * width);
   for (let j = 0; j < inp.fx.length; j++) {
     const rLo = Math.max(inp.rowLo[j], r0);
     const rHi = Math.min(inp.rowHi[j], r1);
