@@ -105,20 +105,23 @@ export function siteGroundBlocks(heights: Float32Array, inSite: Uint8Array, widt
   const bw = Math.ceil(width / BLOCK);
   const bh = Math.ceil(height / BLOCK);
   const mins = new Float64Array(bw * bh).fill(Infinity);
-  let globalMin = Infinity;
+  // Block by block along each row, the running minimum in a local (no division per cell).
   for (let r = 0; r < height; r++) {
     const brow = ((r / BLOCK) | 0) * bw;
     const base = r * width;
-    for (let c = 0; c < width; c++) {
-      const i = base + c;
-      if (inSite[i] === 0) continue;
-      const g = heights[i];
-      if (!(g === g)) continue;
-      const b = brow + ((c / BLOCK) | 0);
-      if (g < mins[b]) mins[b] = g;
-      if (g < globalMin) globalMin = g;
+    for (let b = 0; b < bw; b++) {
+      let m = mins[brow + b];
+      const end = base + Math.min(width, (b + 1) * BLOCK);
+      // NaN ground (no data) fails g < m.
+      for (let i = base + b * BLOCK; i < end; i++) {
+        const g = heights[i];
+        if (g < m && inSite[i] !== 0) m = g;
+      }
+      mins[brow + b] = m;
     }
   }
+  let globalMin = Infinity;
+  for (let b = 0; b < mins.length; b++) if (mins[b] < globalMin) globalMin = mins[b];
   return { mins, bw, bh, globalMin };
 }
 
