@@ -7,7 +7,7 @@
 //
 // Usage: npm run build && node scripts/bench/plan.mjs [--km2 4] [--large]
 //   (prints one JSON object; `npm run bench` runs it as part of the full table)
-import { mkdtempSync, rmSync, readFileSync, statSync } from "node:fs";
+import { existsSync, mkdtempSync, rmSync, readFileSync, statSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join, dirname } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
@@ -98,10 +98,13 @@ function fileBytes(f) {
 async function child(planFile, outDir) {
   const t0 = performance.now();
   const load = (p) => import(pathToFileURL(join(dist, p)).href);
-  const { resolvePlanOptions } = await load("plan/options.js");
-  const { planMission } = await load("plan/plan.js");
-  const { planOutputs } = await load("plan/outputs.js");
-  const { writeOutputSet } = await load("export/atomicDir.js");
+  // The package's entry as users load it (the bundle, scripts/bundle.mjs); a build from
+  // before the bundle: its modules one by one.
+  const entry = existsSync(join(dist, "bundle", "index.js")) ? await load("bundle/index.js") : undefined;
+  const { resolvePlanOptions } = entry ?? (await load("plan/options.js"));
+  const { planMission } = entry ?? (await load("plan/plan.js"));
+  const { planOutputs } = entry ?? (await load("plan/outputs.js"));
+  const { writeOutputSet } = entry ?? (await load("export/atomicDir.js"));
   const tImport = performance.now();
 
   const options = resolvePlanOptions(JSON.parse(readFileSync(planFile, "utf8")), {}, dirname(planFile));

@@ -60,7 +60,7 @@ export function benchTargets({ reuse = {}, timeoutS = 600, log = () => {} } = {}
 function benchDemo(timeoutS) {
   const dir = mkdtempSync(join(tmpdir(), "gsdplan-bench-demo-"));
   try {
-    const runs = [0, 1].map(() => timedRun(process.execPath, [join(root, "dist", "cli", "main.js"), "plan", join(root, "fixtures", "demo", "corrie-vane-plan.yaml"), "--out", join(dir, "out"), "--force", "--quiet"], { timeoutS }));
+    const runs = [0, 1].map(() => timedRun(process.execPath, [join(root, "dist", "bundle", "main.js"), "plan", join(root, "fixtures", "demo", "corrie-vane-plan.yaml"), "--out", join(dir, "out"), "--force", "--quiet"], { timeoutS }));
     const best = runs.reduce((a, b) => (b.seconds < a.seconds ? b : a));
     return { wallS: best.seconds, cpuS: best.cpuS, peakRssBytes: best.peakRssBytes };
   } finally {

@@ -1,10 +1,13 @@
 #!/usr/bin/env node
-// The CLI stays thin: each command module declares its options and loads the
-// library lazily in its action, so `gsdplan --help` starts fast.
+// The CLI stays thin: each command module declares its options and calls the library in
+// its action. Users run it bundled into one file with the library (package.json's bin,
+// dist/bundle/main.js, scripts/bundle.mjs), so it starts without resolving each module.
 import { readFileSync } from "node:fs";
+import { join } from "node:path";
 import { Command } from "commander";
 import { registerCommands } from "./commands/index.js";
 import { runMain } from "./run.js";
+import { packageRoot } from "../packageRoot.js";
 
 const program = new Command();
 program
@@ -19,10 +22,10 @@ program
 
 registerCommands(program);
 
-/** The version in package.json (dist/cli/main.js sits two folders below it). */
+/** The version in package.json. */
 function packageVersion(): string {
   try {
-    return (JSON.parse(readFileSync(new URL("../../package.json", import.meta.url), "utf8")) as { version: string }).version;
+    return (JSON.parse(readFileSync(join(packageRoot(), "package.json"), "utf8")) as { version: string }).version;
   } catch {
     return "unknown";
   }

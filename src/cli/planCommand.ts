@@ -1,15 +1,15 @@
-import { readFile } from "node:fs/promises";
-import { fileURLToPath } from "node:url";
+import { access, readFile, stat } from "node:fs/promises";
 import path from "node:path";
 import { flagOverridesFromParsed, loadPlanFile, resolvePlanOptions } from "../plan/options.js";
 import { planMission, type PlanStage } from "../plan/plan.js";
-import { planOutputs } from "../plan/outputs.js";
+import { OUTPUT_NAMES, planOutputs } from "../plan/outputs.js";
 import { writeOutputSet, type OutputFile } from "../export/atomicDir.js";
 import type { PlanOptions } from "../plan/options.js";
 import type { PlanSummary } from "../plan/summary.js";
 import { InputError } from "../errors.js";
-import { existsSync } from "node:fs";
+import { constants, existsSync } from "node:fs";
 import { summaryText } from "./summaryText.js";
+import { packageRoot } from "../packageRoot.js";
 import { stageProgress } from "./progress.js";
 
 const STAGES: readonly PlanStage[] = ["load", "layout", "solve", "route", "assess", "baseline"];
@@ -27,7 +27,6 @@ export async function runPlanCommand(
   const options = resolvePlanOptions(file?.data ?? {}, flagOverridesFromParsed(opts), file?.dir);
   const outDir = String(opts.out);
   // Refuse early (before minutes of work) when outputs exist and --force is not given.
-  const { OUTPUT_NAMES } = await import("../plan/outputs.js");
   await assertWritableTarget(outDir);
   if (!opts.force) {
     const present = OUTPUT_NAMES.filter((n) => existsSync(path.join(outDir, n)));
@@ -89,7 +88,7 @@ export async function planToFolder(options: PlanOptions, o: PlanToFolderOptions)
  * @example await toolVersion() // "0.1.0"
  */
 export async function toolVersion(): Promise<string> {
-  const pkg = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "..", "package.json");
+  const pkg = path.join(packageRoot(), "package.json");
   try {
     return JSON.parse(await readFile(pkg, "utf8")).version as string;
   } catch {
@@ -104,8 +103,6 @@ export async function toolVersion(): Promise<string> {
  * @example await assertWritableTarget("out/site-a") // throws InputError when "out" is a file
  */
 export async function assertWritableTarget(outDir: string): Promise<void> {
-  const { stat, access } = await import("node:fs/promises");
-  const { constants } = await import("node:fs");
   let p = path.resolve(outDir);
   for (;;) {
     const st = await stat(p).catch(() => null);

@@ -6,7 +6,7 @@ import { gdalinfo, gdalComputedStats } from "./gdal-helpers.js";
 
 // The built CLI, as a user runs it. Bad input must give one line naming the file and the
 // problem, exit code 2 and no stack trace (issue 2, "Bad input").
-const CLI = "dist/cli/main.js";
+const CLI = "dist/bundle/main.js";
 beforeAll(() => {
   if (!existsSync(CLI)) execFileSync("npm", ["run", "build"], { stdio: "ignore" });
 }, 120_000);

@@ -167,7 +167,7 @@ describe("servers that cannot serve a GeoTIFF by ranges", () => {
   }
 
   it("gsdplan inspect on such a URL exits 2 with one line", async () => {
-    const cli = "dist/cli/main.js";
+    const cli = "dist/bundle/main.js";
     if (!existsSync(cli)) await promisify(execFile)("npm", ["run", "build"]);
     const srv = await serveFiles(ROOT, "no-range");
     try {

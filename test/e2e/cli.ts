@@ -1,5 +1,5 @@
 /**
- * Runs the built CLI (`node dist/cli/main.js`) as a user would, from the
+ * Runs the built CLI (`node dist/bundle/main.js`, package.json's bin) as a user would, from the
  * repository root. `npm test` builds first; a missing build is an error here,
  * not a silent skip.
  */
@@ -11,7 +11,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..", "..");
-export const CLI = path.join(ROOT, "dist", "cli", "main.js");
+export const CLI = path.join(ROOT, "dist", "bundle", "main.js");
 
 export interface CliResult {
   status: number | null;
@@ -19,7 +19,7 @@ export interface CliResult {
   stderr: string;
 }
 
-/** `node dist/cli/main.js ...args` with stdout and stderr piped (not a terminal). */
+/** `node dist/bundle/main.js ...args` with stdout and stderr piped (not a terminal). */
 export function runCli(args: string[], opts: { cwd?: string; timeoutMs?: number } = {}): CliResult {
   if (!existsSync(CLI)) throw new Error(`${CLI} is missing: run \`npm run build\` first (npm test does)`);
   const r = spawnSync(process.execPath, [CLI, ...args], {

@@ -17,7 +17,7 @@ import { readWindow } from "../../src/dem/window.js";
 import { loadPlanFile, resolvePlanOptions } from "../../src/plan/options.js";
 import { planMission } from "../../src/plan/plan.js";
 
-export const CLI = path.resolve("dist/cli/main.js");
+export const CLI = path.resolve("dist/bundle/main.js");
 
 /** Builds the CLI once when dist/ is missing (vitest runs from the repository root). */
 export function ensureBuilt(): void {

@@ -1,5 +1,6 @@
 import type { Command } from "commander";
 import { EXIT_FLAGGED } from "../run.js";
+import { runCampaignCommand } from "../../campaign/command.js";
 
 /**
  * `gsdplan campaign <campaign-file> --out <dir>`: many sites in one run, in parallel.
@@ -28,7 +29,6 @@ export function registerCampaign(program: Command): void {
       ].join("\n"),
     )
     .action(async (campaignFile: string, opts: { out: string; jobs?: string; force?: boolean; quiet?: boolean }) => {
-      const { runCampaignCommand } = await import("../../campaign/command.js");
       const { failed } = await runCampaignCommand(campaignFile, opts);
       if (failed > 0) process.exitCode = EXIT_FLAGGED;
     });

@@ -1,4 +1,7 @@
 import type { Command } from "commander";
+import path from "node:path";
+import { runPlanCommand } from "../planCommand.js";
+import { packageRoot } from "../../packageRoot.js";
 
 /**
  * `gsdplan demo [--out dir]`: plans the bundled invented demo site (the Corrie
@@ -13,11 +16,7 @@ export function registerDemo(program: Command): void {
     .option("--quiet", "no progress display")
     .option("--json", "print summary.json to stdout")
     .action(async (opts: { out: string; quiet?: boolean; json?: boolean }) => {
-      const path = await import("node:path");
-      const { fileURLToPath } = await import("node:url");
-      const { runPlanCommand } = await import("../planCommand.js");
-      const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..", "..", "..");
-      const planFile = path.join(root, "fixtures", "demo", "corrie-vane-plan.yaml");
+      const planFile = path.join(packageRoot(), "fixtures", "demo", "corrie-vane-plan.yaml");
       // The demo is re-run freely: its own outputs are replaced.
       const { outDir } = await runPlanCommand(planFile, { out: opts.out, force: true, quiet: opts.quiet, json: opts.json }, { explainAllFlags: true });
       if (!opts.json) process.stdout.write(`demo report: ${path.resolve(outDir, "report.html")}\n`);

@@ -1,5 +1,6 @@
 import type { Command } from "commander";
 import { InputError } from "../../errors.js";
+import { inspectDem, formatDemReport } from "../../dem/inspect.js";
 
 /**
  * `gsdplan inspect <dem>`: describes a DEM (CRS, size, cell size, extent, heights,
@@ -18,7 +19,6 @@ export function registerInspect(program: Command): void {
     .action(async (dems: string[], opts: { json?: boolean; band: string; verticalUnit?: string; verticalDatum?: string }) => {
       const band = Number(opts.band);
       if (!/^\d+$/.test(opts.band) || !Number.isInteger(band) || band < 1) throw new InputError("--band", opts.band, "an integer >= 1");
-      const { inspectDem, formatDemReport } = await import("../../dem/inspect.js");
       // As --dem takes them: several arguments, or a comma-separated list.
       const list = dems.flatMap((d) => d.split(",")).map((d) => d.trim()).filter((d) => d !== "");
       const report = await inspectDem(list.length === 1 ? list[0] : list, {

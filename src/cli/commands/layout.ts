@@ -1,5 +1,9 @@
 import type { Command } from "commander";
 import { addPlanFlags } from "../planFlags.js";
+import { loadPlanFile, resolvePlanOptions, flagOverridesFromParsed } from "../../plan/options.js";
+import { prepareMission, missionLayout } from "../../plan/plan.js";
+import { siteCoverage } from "../../layout/site.js";
+import { layoutSummaryLines } from "../../layout/summary.js";
 
 /**
  * `gsdplan layout`: lays out the flight strips for a plan (a plan file and/or
@@ -24,12 +28,6 @@ export function registerLayout(program: Command): void {
  * @example process.stdout.write(await runLayoutCommand({ plan: "plan.yaml" }))
  */
 export async function runLayoutCommand(opts: Record<string, unknown>): Promise<string> {
-  // Stage modules (geotiff, proj4, turf behind them) load only when the command runs.
-  const { loadPlanFile, resolvePlanOptions, flagOverridesFromParsed } = await import("../../plan/options.js");
-  const { prepareMission, missionLayout } = await import("../../plan/plan.js");
-  const { siteCoverage } = await import("../../layout/site.js");
-  const { layoutSummaryLines } = await import("../../layout/summary.js");
-
   const file = typeof opts.plan === "string" ? await loadPlanFile(opts.plan) : undefined;
   const po = resolvePlanOptions(file?.data ?? {}, flagOverridesFromParsed(opts), file?.dir);
   const m = await prepareMission(po);

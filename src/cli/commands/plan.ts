@@ -2,6 +2,7 @@ import type { Command } from "commander";
 import { PLAN_OPTION_SPECS } from "../../plan/optionsSchema.js";
 import { EXIT_FLAGGED } from "../run.js";
 import { addPlanFlags } from "../planFlags.js";
+import { runPlanCommand } from "../planCommand.js";
 
 /**
  * `gsdplan plan [plan-file] --out <dir>`: the main job end to end. Every
@@ -23,7 +24,6 @@ export function registerPlan(program: Command): void {
   addPlanFlags(cmd, optionHelp);
   cmd.addHelpText("after", planHelpAfter());
   cmd.action(async (planFile: string | undefined, opts: Record<string, unknown>) => {
-    const { runPlanCommand } = await import("../planCommand.js");
     const { flagged } = await runPlanCommand(planFile, opts);
     if (flagged && opts.failOnFlags) process.exitCode = EXIT_FLAGGED;
   });

@@ -1,4 +1,10 @@
 import type { Command } from "commander";
+import path from "node:path";
+import { readFile } from "node:fs/promises";
+import { InputFileError } from "../../errors.js";
+import { parseReportInput } from "../../report/serialize.js";
+import { renderReport } from "../../report/render.js";
+import { writeOutputSet } from "../../export/atomicDir.js";
 
 /**
  * `gsdplan report <out-dir>`: re-renders report.html from a finished output
@@ -11,12 +17,6 @@ export function registerReport(program: Command): void {
     .argument("<out-dir>", "a folder written by `gsdplan plan`")
     .description("re-render report.html from a finished plan's output folder (reads report-data.json)")
     .action(async (outDir: string) => {
-      const path = await import("node:path");
-      const { readFile } = await import("node:fs/promises");
-      const { InputFileError } = await import("../../errors.js");
-      const { parseReportInput } = await import("../../report/serialize.js");
-      const { renderReport } = await import("../../report/render.js");
-      const { writeOutputSet } = await import("../../export/atomicDir.js");
       const dataPath = path.join(outDir, "report-data.json");
       let text: string;
       try {

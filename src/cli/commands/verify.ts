@@ -1,5 +1,8 @@
 import type { Command } from "commander";
 import { EXIT_FLAGGED } from "../run.js";
+import { loadVerifyInputs } from "../../verify/load.js";
+import { verifyWaypoints } from "../../verify/verify.js";
+import { verifyJson, verifyText } from "../../verify/format.js";
 
 /**
  * `gsdplan verify <out-dir | waypoints.csv> --plan <plan-file>`: the independent
@@ -18,9 +21,6 @@ export function registerVerify(program: Command): void {
     )
     .addHelpText("after", "\nExit codes: 0 no breach, 3 any breach, 2 bad input, 1 internal error.\nA clean check is not a permission to fly: local rules apply and the pilot in command decides.")
     .action(async (target: string, opts: { plan: string; json?: boolean }) => {
-      const { loadVerifyInputs } = await import("../../verify/load.js");
-      const { verifyWaypoints } = await import("../../verify/verify.js");
-      const { verifyJson, verifyText } = await import("../../verify/format.js");
       const inputs = await loadVerifyInputs(target, opts.plan);
       const result = verifyWaypoints(inputs.rows, inputs.limits, inputs.dem);
       if (opts.json) process.stdout.write(verifyJson(result, inputs.limits));
