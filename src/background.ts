@@ -17,6 +17,8 @@ export interface Background<T> {
    * the work on its own thread.
    */
   result: () => Promise<T | undefined>;
+  /** Stops the worker (its result is not wanted); result() then gives undefined. */
+  cancel: () => void;
 }
 
 /** Below this many DEM cells such work takes a few tens of milliseconds: no thread is started for it. */
@@ -49,7 +51,7 @@ export function backgroundAllowed(cells: number, threads?: number): boolean {
 }
 
 /** No worker: result() gives undefined. */
-export const NOT_IN_BACKGROUND: Background<never> = { result: async () => undefined };
+export const NOT_IN_BACKGROUND: Background<never> = { result: async () => undefined, cancel: () => {} };
 
 /**
  * Starts `workerUrl` with `data` (typed arrays over shared memory are read in place, the
@@ -75,5 +77,6 @@ export function inBackground<T>(workerUrl: URL, data: unknown): Background<T> {
       w.ref();
       return made;
     },
+    cancel: () => void w.terminate(),
   };
 }

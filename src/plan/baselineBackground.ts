@@ -1,22 +1,53 @@
-import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND } from "../background.js";
+import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout } from "../layout/types.js";
 import type { AssessmentRasters } from "../assess/types.js";
-import { baselineFigures, baselineJob, baselineOf, type Baseline, type BaselineFigures, type BaselineOptions } from "./baseline.js";
+import type { LatticeStrip } from "../assess/latticeCoverage.js";
+import { baselineFigures, baselineJob, baselineOf, type Baseline, type BaselineFigures, type BaselineJob, type BaselineOptions } from "./baseline.js";
 
 const workerUrl = new URL("./baselineWorker.js", import.meta.url);
+
+/** The comparison started on a worker thread from the strips as laid out, before the solve. */
+export interface EarlyBaseline {
+  job: BaselineJob;
+  figures: Background<BaselineFigures>;
+}
+
+/**
+ * Starts the constant-altitude comparison's figures on a worker thread from the strips as
+ * laid out, before they are solved: the solve runs on this thread alone and leaves the other
+ * core idle. The figures depend on the strips' photo lattices (each strip's ends, its photo
+ * phase and its stretches without photos), the DEM and the site only; the solve keeps them
+ * unless it flies the strips the other way round or finds stretches without photos, and
+ * constantAltitudeBaselineInBackground uses these figures only when the final strips are
+ * the same (sameBaselineJob). Undefined where no worker would run (one thread, small grids).
+ * @example const early = baselineBeforeSolve(grid, laidOut, camera, req, o, inSite); ...; constantAltitudeBaselineInBackground(grid, solved, camera, req, o, inSite, early)
+ */
+export function baselineBeforeSolve(
+  grid: DemGrid,
+  layout: Layout,
+  camera: Camera,
+  requirement: Requirement,
+  o: Omit<BaselineOptions, "planRasters">,
+  inSite: Uint8Array,
+): EarlyBaseline | undefined {
+  if (!backgroundAllowed(grid.width * grid.height, o.threads)) return undefined;
+  const job = baselineJob(grid, layout, camera, requirement, o, inSite);
+  return { job, figures: inBackground<BaselineFigures>(workerUrl, job) };
+}
 
 /**
  * Starts the constant-altitude comparison as soon as the strips are final: its figures
  * depend on the layout, the DEM and the site only, so a worker thread makes them while
  * this thread routes, checks and assesses the plan (which leaves the other core idle
- * for much of that time). `finish` adds what needs the plan's own rasters. In this
- * thread instead (when finished) with one thread requested, on small grids, when the
- * compiled worker is missing (worker threads run from the built library, dist/) or
- * when the worker fails. The figures are the same either way (test/plan/baseline.test.ts).
- * `inSite` is the site mask the assessment will use (in shared memory, so the worker
- * reads it in place; the DEM heights are shared already).
+ * for much of that time). With `early` (baselineBeforeSolve) for the same job, its worker
+ * goes on instead; for another job it is stopped. `finish` adds what needs the plan's own
+ * rasters. In this thread instead (when finished) with one thread requested, on small
+ * grids, when the compiled worker is missing (worker threads run from the built library,
+ * dist/) or when the worker fails. The figures are the same either way
+ * (test/plan/baseline.test.ts). `inSite` is the site mask the assessment will use (in
+ * shared memory, so the worker reads it in place; the DEM heights are shared already).
  * @example const b = constantAltitudeBaselineInBackground(grid, layout, camera, req, o, inSite); ...; await b.finish(assessment.rasters)
  */
 export function constantAltitudeBaselineInBackground(
@@ -26,9 +57,12 @@ export function constantAltitudeBaselineInBackground(
   requirement: Requirement,
   o: Omit<BaselineOptions, "planRasters">,
   inSite: Uint8Array,
-): { finish: (planRasters: AssessmentRasters, planBreachCells?: number) => Promise<Baseline>; madeIn: () => "worker" | "this thread" | "pending" } {
+  early?: EarlyBaseline,
+): { finish: (planRasters: AssessmentRasters, planBreachCells?: number) => Promise<Baseline>; madeIn: () => "worker" | "this thread" | "pending"; startedBeforeSolve: boolean } {
   const job = baselineJob(grid, layout, camera, requirement, o, inSite);
-  const figures = backgroundAllowed(grid.width * grid.height, o.threads) ? inBackground<BaselineFigures>(workerUrl, job) : NOT_IN_BACKGROUND;
+  const startedBeforeSolve = early !== undefined && sameBaselineJob(early.job, job);
+  if (early && !startedBeforeSolve) early.figures.cancel();
+  const figures = startedBeforeSolve ? early.figures : backgroundAllowed(grid.width * grid.height, o.threads) ? inBackground<BaselineFigures>(workerUrl, job) : NOT_IN_BACKGROUND;
   let madeIn: "worker" | "this thread" | "pending" = "pending";
   return {
     finish: async (planRasters, planBreachCells) => {
@@ -37,5 +71,32 @@ export function constantAltitudeBaselineInBackground(
       return baselineOf(grid, camera, o, fromWorker ?? baselineFigures(job, o.threads), planRasters, planBreachCells);
     },
     madeIn: () => madeIn,
+    startedBeforeSolve,
   };
+}
+
+/**
+ * Whether two jobs give the same figures: the same DEM and site mask (the same arrays),
+ * the same numbers, and the same photo lattices in any order (each strip's image counts are
+ * added cell by cell, whole numbers, so the order of the strips does not change them).
+ * @example sameBaselineJob(early.job, baselineJob(grid, solvedLayout, camera, req, o, inSite))
+ */
+export function sameBaselineJob(a: BaselineJob, b: BaselineJob): boolean {
+  if (a.grid.heights !== b.grid.heights || a.grid.valid !== b.grid.valid || a.inSite !== b.inSite) return false;
+  if (a.grid.width !== b.grid.width || a.grid.height !== b.grid.height) return false;
+  const ta = a.grid.transform, tb = b.grid.transform;
+  if (ta.x0 !== tb.x0 || ta.y0 !== tb.y0 || ta.dx !== tb.dx || ta.dy !== tb.dy) return false;
+  if (a.grid.cellSizeM[0] !== b.grid.cellSizeM[0] || a.grid.cellSizeM[1] !== b.grid.cellSizeM[1]) return false;
+  const numbers = ["ifov", "kAlong", "kAcross", "lowGsdM", "highGsdM", "targetHeightM", "triggerM", "minImages", "takeoffGroundM", "clearanceM"] as const;
+  if (numbers.some((k) => !Object.is(a[k], b[k]))) return false;
+  if (a.ceiling.heightM !== b.ceiling.heightM || a.ceiling.reference !== b.ceiling.reference) return false;
+  if (a.strips.length !== b.strips.length) return false;
+  const keys = (strips: readonly LatticeStrip[]) => strips.map(stripKey).sort();
+  const ka = keys(a.strips), kb = keys(b.strips);
+  return ka.every((k, i) => k === kb[i]);
+}
+
+/** A strip's photo lattice as text: every number in full (String of a number reads back exactly). */
+function stripKey({ from, lattice: l }: LatticeStrip): string {
+  return `${from[0]} ${from[1]} ${l.ux} ${l.uy} ${l.lengthM} ${l.s0} ${l.n} ${l.present.join("")}`;
 }

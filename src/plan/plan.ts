@@ -42,7 +42,7 @@ import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.j
 import { NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import { ceilingBreachGsdCm, type Baseline } from "./baseline.js";
-import { constantAltitudeBaselineInBackground } from "./baselineBackground.js";
+import { baselineBeforeSolve, constantAltitudeBaselineInBackground } from "./baselineBackground.js";
 import { clearanceSummary } from "./summary.js";
 import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
@@ -212,6 +212,19 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   }
   lap("layout");
 
+  // The comparison's figures from the strips as laid out, on the other core while this one
+  // solves (the solve keeps them as a rule: checked against the final strips at the route stage).
+  const baselineOptions = {
+    targetHeightM,
+    triggerM,
+    minImages: options.minImages,
+    ceiling: options.ceiling,
+    takeoffGroundM: blockLayouts[0].groundM,
+    clearanceM: clearanceSummary(options).floorM,
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
+  };
+  const earlyBaseline = baselineBeforeSolve(grid, { ...fullLayout, legs: blockLayouts.flatMap((b) => b.layout.legs) }, camera, requirement, baselineOptions, siteMask());
+
   stage("solve");
   const solverOptions: SolverOptions = {
     ceiling: options.ceiling,
@@ -261,18 +274,11 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
 
   stage("route");
   // The constant-altitude comparison needs only the final strips, the DEM and the site: it
-  // is made on the other core from here on, while this thread routes, checks and assesses.
+  // is made on the other core from here on (or from before the solve, when the solve kept
+  // the strips as laid out), while this thread routes, checks and assesses.
   const inSite = siteMask();
   const takeoffGround = solvedBlocks[0].groundM;
-  const baselineRun = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, {
-    targetHeightM,
-    triggerM,
-    minImages: options.minImages,
-    ceiling: options.ceiling,
-    takeoffGroundM: takeoffGround,
-    clearanceM: clearanceSummary(options).floorM,
-    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
-  }, inSite);
+  const baselineRun = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, baselineOptions, inSite, earlyBaseline);
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
   const splits = solvedBlocks.map((b) =>
     splitFlights(b.solve.legs, {

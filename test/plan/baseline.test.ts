@@ -5,14 +5,14 @@ import { assessPlan } from "../../src/assess/assess.js";
 import { rasteriseSite } from "../../src/assess/siteMask.js";
 import { latticeImageCounts } from "../../src/assess/latticeCoverage.js";
 import { photoLattice, type AssessedLeg } from "../../src/assess/exposures.js";
-import { constantAltitudeBaseline } from "../../src/plan/baseline.js";
+import { baselineFigures, baselineJob, constantAltitudeBaseline } from "../../src/plan/baseline.js";
 import { straightTransitLeg } from "../../src/route/flights.js";
 import type { Layout, LayoutLeg, XY } from "../../src/layout/types.js";
 import type { Requirement } from "../../src/camera/types.js";
 import { genericCamera } from "../assess/helpers.js";
 import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
 import { ceilingBreaches, ceilingBreachGsdCm } from "../../src/plan/baseline.js";
-import type { constantAltitudeBaselineInBackground as Background } from "../../src/plan/baselineBackground.js";
+import { constantAltitudeBaselineInBackground, sameBaselineJob, type baselineBeforeSolve as BeforeSolve, type constantAltitudeBaselineInBackground as Background } from "../../src/plan/baselineBackground.js";
 
 /**
  * The constant-altitude comparison is computed directly (GSD from each cell's own ground,
@@ -230,5 +230,75 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
     expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(here.gsdValuesCm()));
     expect(b.planCeilingBreaches).toEqual(here.stats.ceilingBreaches);
     expect(b.planCeilingBreaches.cells).toBeGreaterThan(0);
+  });
+
+  it("started before the solve on the strips as laid out, gives the same figures", async () => {
+    const mod = (await import(built.href)) as { constantAltitudeBaselineInBackground: typeof Background; baselineBeforeSolve: typeof BeforeSolve };
+    const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
+    const layout = layoutAt(33);
+    const inSite = rasteriseSite(site, W, H, grid.transform);
+    const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0, clearanceM: 80 };
+    const planRasters = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
+    const here = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters, threads: 1 });
+    const early = mod.baselineBeforeSolve(grid, layout, camera, requirement, opts, inSite);
+    expect(early).toBeDefined();
+    const run = mod.constantAltitudeBaselineInBackground(grid, { ...layout, legs: [...layout.legs].reverse() }, camera, requirement, opts, inSite, early);
+    expect(run.startedBeforeSolve).toBe(true);
+    const b = await run.finish(planRasters);
+    expect(run.madeIn()).toBe("worker");
+    expect(b.stats).toEqual(here.stats);
+    expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(here.gsdValuesCm()));
+  });
+});
+
+describe("constant-altitude baseline started before the solve", () => {
+  const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
+  const inSite = rasteriseSite(site, W, H, grid.transform);
+  const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0, clearanceM: 80 };
+  const planRasters = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
+  const laidOut = layoutAt(33);
+  /** The strips flown the other way: each from its other end (its photos then fall elsewhere along it). */
+  const flipped: Layout = { ...laidOut, legs: laidOut.legs.map((l) => ({ ...l, from: l.to, to: l.from })) };
+  /** An early start whose figures are a sentinel, so which figures finish used shows. */
+  const sentinel = (layout: Layout) => {
+    const job = baselineJob(grid, layout, camera, requirement, opts, inSite);
+    const figures = { ...baselineFigures(job, 1), altitudeAmslM: -12345 };
+    let cancelled = 0;
+    return { early: { job, figures: { result: async () => figures, cancel: () => void cancelled++ } }, cancelled: () => cancelled };
+  };
+
+  it("uses the early figures when the solve kept the strips (in any order)", async () => {
+    const s = sentinel(laidOut);
+    const solved: Layout = { ...laidOut, legs: [...laidOut.legs].reverse() };
+    const run = constantAltitudeBaselineInBackground(grid, solved, camera, requirement, opts, inSite, s.early);
+    expect(run.startedBeforeSolve).toBe(true);
+    expect((await run.finish(planRasters)).altitudeAmslM).toBe(-12345);
+    expect(s.cancelled()).toBe(0);
+  });
+
+  it("stops them and makes the final strips' figures when the solve flew the strips the other way", async () => {
+    const here = constantAltitudeBaseline(grid, flipped, camera, requirement, { ...opts, planRasters, threads: 1 });
+    const s = sentinel(laidOut);
+    const run = constantAltitudeBaselineInBackground(grid, flipped, camera, requirement, { ...opts, threads: 1 }, inSite, s.early);
+    expect(run.startedBeforeSolve).toBe(false);
+    expect(s.cancelled()).toBe(1);
+    const b = await run.finish(planRasters);
+    // Not the early figures (the sentinel): those of the strips flown, as made directly.
+    expect(b.altitudeAmslM).toBe(here.altitudeAmslM);
+    expect(b.stats).toEqual(here.stats);
+    expect(Array.from(b.gsdValuesCm())).toEqual(Array.from(here.gsdValuesCm()));
+  });
+
+  it("takes a job for another only when every input that makes the figures is the same", () => {
+    const a = baselineJob(grid, laidOut, camera, requirement, opts, inSite);
+    expect(sameBaselineJob(a, baselineJob(grid, laidOut, camera, requirement, opts, inSite))).toBe(true);
+    // A stretch without photos found by the solve.
+    const gap: Layout = { ...laidOut, legs: laidOut.legs.map((l) => (l.strip === 2 ? { ...l, noPhotoIntervals: [[10, 40]] as [number, number][] } : l)) };
+    expect(sameBaselineJob(a, baselineJob(grid, gap, camera, requirement, opts, inSite))).toBe(false);
+    expect(sameBaselineJob(a, baselineJob(grid, flipped, camera, requirement, opts, inSite))).toBe(false);
+    expect(sameBaselineJob(a, baselineJob(grid, laidOut, camera, requirement, { ...opts, clearanceM: 81 }, inSite))).toBe(false);
+    expect(sameBaselineJob(a, baselineJob(grid, laidOut, camera, requirement, { ...opts, takeoffGroundM: 1 }, inSite))).toBe(false);
+    expect(sameBaselineJob(a, baselineJob(grid, laidOut, camera, requirement, opts, inSite.slice()))).toBe(false);
+    expect(sameBaselineJob(a, baselineJob(grid, { ...laidOut, legs: laidOut.legs.slice(1) }, camera, requirement, opts, inSite))).toBe(false);
   });
 });
