@@ -8,6 +8,15 @@ import { baselineFigures, baselineJob, baselineOf, type Baseline, type BaselineF
 
 const workerUrl = new URL("./baselineWorker.js", import.meta.url);
 
+/**
+ * Below this many DEM cells no comparison is started before the solve (unless more than one
+ * thread is asked for). A worker beside the solve slows it (4 km2: 0.6 -> 0.85 s), which
+ * the comparison made meanwhile repays on large grids (the assessment then has both cores:
+ * 4 km2 -0.1 s overall, 3.2 km2 oblique -0.5 s); on the demo (2.7 M cells, whose solve flies
+ * the strips the other way, so the early figures are not used) it cost 2.16 -> 2.20 s.
+ */
+export const EARLY_BASELINE_MIN_CELLS = 8_000_000;
+
 /** The comparison started on a worker thread from the strips as laid out, before the solve. */
 export interface EarlyBaseline {
   job: BaselineJob;
@@ -21,7 +30,8 @@ export interface EarlyBaseline {
  * phase and its stretches without photos), the DEM and the site only; the solve keeps them
  * unless it flies the strips the other way round or finds stretches without photos, and
  * constantAltitudeBaselineInBackground uses these figures only when the final strips are
- * the same (sameBaselineJob). Undefined where no worker would run (one thread, small grids).
+ * the same (sameBaselineJob). Undefined where no worker would run (one thread, small grids)
+ * and below EARLY_BASELINE_MIN_CELLS.
  * @example const early = baselineBeforeSolve(grid, laidOut, camera, req, o, inSite); ...; constantAltitudeBaselineInBackground(grid, solved, camera, req, o, inSite, early)
  */
 export function baselineBeforeSolve(
@@ -32,7 +42,8 @@ export function baselineBeforeSolve(
   o: Omit<BaselineOptions, "planRasters">,
   inSite: Uint8Array,
 ): EarlyBaseline | undefined {
-  if (!backgroundAllowed(grid.width * grid.height, o.threads)) return undefined;
+  const cells = grid.width * grid.height;
+  if (!backgroundAllowed(cells, o.threads) || !(o.threads === undefined ? cells >= EARLY_BASELINE_MIN_CELLS : o.threads > 1)) return undefined;
   const job = baselineJob(grid, layout, camera, requirement, o, inSite);
   return { job, figures: inBackground<BaselineFigures>(workerUrl, job) };
 }

@@ -240,9 +240,11 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
     const opts = { targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0, clearanceM: 80 };
     const planRasters = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
     const here = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters, threads: 1 });
-    const early = mod.baselineBeforeSolve(grid, layout, camera, requirement, opts, inSite);
+    // Two threads asked for: by default a grid this small starts no comparison before the solve.
+    expect(mod.baselineBeforeSolve(grid, layout, camera, requirement, opts, inSite)).toBeUndefined();
+    const early = mod.baselineBeforeSolve(grid, layout, camera, requirement, { ...opts, threads: 2 }, inSite);
     expect(early).toBeDefined();
-    const run = mod.constantAltitudeBaselineInBackground(grid, { ...layout, legs: [...layout.legs].reverse() }, camera, requirement, opts, inSite, early);
+    const run = mod.constantAltitudeBaselineInBackground(grid, { ...layout, legs: [...layout.legs].reverse() }, camera, requirement, { ...opts, threads: 2 }, inSite, early);
     expect(run.startedBeforeSolve).toBe(true);
     const b = await run.finish(planRasters);
     expect(run.madeIn()).toBe("worker");
