@@ -65,6 +65,7 @@ export function benchPlan({ areaKm2 = 4, dem = demSmall(), cx, cy, gdalRepeat = 
       importS: c.importS,
       stagesS: c.stagesS,
       stagesCpuS: c.stagesCpuS,
+      stagesMainCpuS: c.stagesMainCpuS,
       stageSumS,
       stageCpuSumS,
       stageShares: Object.fromEntries(Object.entries(c.stagesS).map(([k, v]) => [k, v / stageSumS])),
@@ -94,6 +95,20 @@ function fileBytes(f) {
   return statSync(f).size;
 }
 
+/**
+ * CPU seconds of the calling thread (Linux: utime + stime of /proc/thread-self/stat, in
+ * clock ticks of 10 ms, the kernel's USER_HZ of 100); NaN elsewhere.
+ */
+function mainThreadCpuS() {
+  try {
+    const stat = readFileSync("/proc/thread-self/stat", "utf8");
+    const f = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+    return (Number(f[11]) + Number(f[12])) / 100;
+  } catch {
+    return NaN;
+  }
+}
+
 /** The child: plans, writes the output set, measures itself, prints one JSON line. */
 async function child(planFile, outDir) {
   const t0 = performance.now();
@@ -112,13 +127,20 @@ async function child(planFile, outDir) {
   const log = (m) => process.stderr.write(`[bench plan ${((performance.now() - t0) / 1000).toFixed(1)} s] ${m}\n`);
   // CPU seconds (all threads, so the assessment's workers count) from one stage start to the next.
   const cpuNow = () => { const u = process.cpuUsage(); return (u.user + u.system) / 1e6; };
+  // And this (the main) thread's alone: the stages it runs by itself (the solve) with a
+  // worker beside them (the comparison started before the solve) count only their own.
   const stagesCpuS = {};
-  let cpuStage, cpuMark = cpuNow();
+  const stagesMainCpuS = {};
+  let cpuStage, cpuMark = cpuNow(), mainMark = mainThreadCpuS();
   const cpuLap = (next) => {
-    const c = cpuNow();
-    if (cpuStage) stagesCpuS[cpuStage] = c - cpuMark;
+    const c = cpuNow(), m = mainThreadCpuS();
+    if (cpuStage) {
+      stagesCpuS[cpuStage] = c - cpuMark;
+      stagesMainCpuS[cpuStage] = m - mainMark;
+    }
     cpuStage = next;
     cpuMark = c;
+    mainMark = m;
   };
   const run = await planMission(options, { now: () => performance.now(), onStage: (st) => { log(st); cpuLap(st); } });
   cpuLap("export");
@@ -183,6 +205,7 @@ async function child(planFile, outDir) {
     inProcessS: (tEnd - tImport) / 1000,
     stagesS: { ...run.timings, export: exportS, report: reportS },
     stagesCpuS,
+    stagesMainCpuS,
     filesS: fileS,
     maxRssAfterPlanBytes,
     maxRssBytes: process.resourceUsage().maxRSS * 1024,

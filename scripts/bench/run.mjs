@@ -246,7 +246,7 @@ function tableRows(s) {
       rows.push(row("3", `CPU per km2, largest / smallest site (${fmt.x(dv.areaRatio)} area)`, fmt.x(dv.cpuPerKm2LargestOverSmallest), "1x if no fixed cost; < 1x: fixed cost", dv.cpuPerKm2LargestOverSmallest));
       const cf = dv.cpuFit, rf = dv.rssFit, sf = dv.solveCpuFit;
       if (cf) rows.push(row("3", "CPU = fixed + slope x area (fit)", `${fmt.s(cf.b)} per km2 + ${fmt.s(cf.a)}`, `largest residual ${fmt.pct(100 * cf.maxRelResidual)}`, NaN, "residual < 10 %", cf.maxRelResidual < 0.1));
-      if (sf) rows.push(row("3", "  solve stage CPU = fixed + slope x area (fit)", `${fmt.s(sf.b)} per km2 + ${fmt.s(sf.a)}`, `largest residual ${fmt.pct(100 * sf.maxRelResidual)}`, NaN, "residual < 10 %", sf.maxRelResidual < 0.1));
+      if (sf) rows.push(row("3", "  solve stage CPU (main thread) = fixed + slope x area (fit)", `${fmt.s(sf.b)} per km2 + ${fmt.s(sf.a)}`, `largest residual ${fmt.pct(100 * sf.maxRelResidual)}`, NaN, "residual < 10 %", sf.maxRelResidual < 0.1));
       if (rf) rows.push(row("3", "peak RSS = fixed + slope x window bytes (fit)", `${fmt.n(rf.b, 1)} B per window byte + ${fmt.mb(rf.a)}`, `largest residual ${fmt.pct(100 * rf.maxRelResidual)}; window ${fmt.x(dv.windowBytesRatio)}, RSS ${fmt.x(dv.peakRssRatio)}`, NaN, "residual < 10 %", rf.maxRelResidual < 0.1));
       for (const [k, v] of Object.entries(dv.stageCpuPerKm2Ratio ?? {})) rows.push(row("3", `  stage ${k}: CPU per km2, largest / smallest`, fmt.x(v), "linear: 1x", v));
     }
