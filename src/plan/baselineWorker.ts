@@ -6,8 +6,10 @@ import { lowerThisThreadPriority } from "../threadPriority.js";
  * Worker thread that makes the constant-altitude comparison's figures from its job (one
  * thread: the cores are shared with the plan's own assessment meanwhile; see
  * constantAltitudeBaselineInBackground). The seen-cell bits are handed over, not copied.
+ * `nice`: started before the solve, its figures are wanted only after the assessment, so
+ * the solve and the assessment come first (baselineBeforeSolve).
  */
-// Its figures are wanted after the assessment: the solve and the assessment come first.
-lowerThisThreadPriority(10);
-const figures = baselineFigures(workerData as BaselineJob, 1);
+const { job, nice } = workerData as { job: BaselineJob; nice?: number };
+if (nice !== undefined) lowerThisThreadPriority(nice);
+const figures = baselineFigures(job, 1);
 parentPort?.postMessage(figures, [figures.seenBits.buffer as ArrayBuffer]);
