@@ -33,27 +33,19 @@ export interface EarlyBaseline {
 }
 
 /**
- * Starts the constant-altitude comparison's figures on a worker thread from the strips as
- * laid out, before they are solved: the solve runs on this thread alone and leaves the other
- * core idle. The figures depend on the strips' photo lattices (each strip's ends, its photo
- * phase and its stretches without photos), the DEM and the site only; the solve keeps them
- * unless it flies the strips the other way round or finds stretches without photos, and
- * constantAltitudeBaselineInBackground uses these figures only when the final strips are
- * the same (sameBaselineJob). Undefined where no worker would run (one thread, small grids)
- * and below EARLY_BASELINE_MIN_CELLS.
- * @example const early = baselineBeforeSolve(grid, laidOut, camera, req, o, inSite); ...; constantAltitudeBaselineInBackground(grid, solved, camera, req, o, inSite, early)
+ * Starts the constant-altitude comparison's figures on a worker thread from the job of the
+ * strips as laid out (baselineJob), before they are solved: the solve runs on this thread
+ * alone and leaves the other core idle. The figures depend on the strips' photo lattices
+ * (each strip's ends, its photo phase and its stretches without photos), the DEM and the
+ * site only; the solve keeps them unless it flies the strips the other way round or finds
+ * stretches without photos, and constantAltitudeBaselineInBackground uses these figures only
+ * when the final strips are the same (sameBaselineJob). Undefined where no worker would run
+ * (one thread, small grids) and below EARLY_BASELINE_MIN_CELLS.
+ * @example const early = baselineBeforeSolve(baselineJob(grid, laidOut, camera, req, o, inSite), o.threads); ...; constantAltitudeBaselineInBackground(grid, solved, camera, req, o, inSite, early)
  */
-export function baselineBeforeSolve(
-  grid: DemGrid,
-  layout: Layout,
-  camera: Camera,
-  requirement: Requirement,
-  o: Omit<BaselineOptions, "planRasters">,
-  inSite: Uint8Array,
-): EarlyBaseline | undefined {
-  const cells = grid.width * grid.height;
-  if (!backgroundAllowed(cells, o.threads) || !(o.threads === undefined ? cells >= EARLY_BASELINE_MIN_CELLS : o.threads > 1)) return undefined;
-  const job = baselineJob(grid, layout, camera, requirement, o, inSite);
+export function baselineBeforeSolve(job: BaselineJob, threads?: number): EarlyBaseline | undefined {
+  const cells = job.grid.width * job.grid.height;
+  if (!backgroundAllowed(cells, threads) || !(threads === undefined ? cells >= EARLY_BASELINE_MIN_CELLS : threads > 1)) return undefined;
   return { job, figures: inBackground<BaselineFigures>(workerUrl, { job, nice: EARLY_BASELINE_NICE }) };
 }
 

@@ -41,7 +41,7 @@ import type { Assessment, FlagPolygons } from "../assess/types.js";
 import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.js";
 import { NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
-import { ceilingBreachGsdCm, type Baseline } from "./baseline.js";
+import { baselineJob, ceilingBreachGsdCm, type Baseline } from "./baseline.js";
 import { baselineBeforeSolve, constantAltitudeBaselineInBackground } from "./baselineBackground.js";
 import { clearanceSummary } from "./summary.js";
 import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
@@ -223,7 +223,8 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     clearanceM: clearanceSummary(options).floorM,
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   };
-  const earlyBaseline = baselineBeforeSolve(grid, { ...fullLayout, legs: blockLayouts.flatMap((b) => b.layout.legs) }, camera, requirement, baselineOptions, siteMask());
+  const laidOut = { ...fullLayout, legs: blockLayouts.flatMap((b) => b.layout.legs) };
+  const earlyBaseline = baselineBeforeSolve(baselineJob(grid, laidOut, camera, requirement, baselineOptions, siteMask()), hooks.threads);
 
   stage("solve");
   const solverOptions: SolverOptions = {

@@ -241,8 +241,9 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
     const planRasters = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
     const here = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters, threads: 1 });
     // Two threads asked for: by default a grid this small starts no comparison before the solve.
-    expect(mod.baselineBeforeSolve(grid, layout, camera, requirement, opts, inSite)).toBeUndefined();
-    const early = mod.baselineBeforeSolve(grid, layout, camera, requirement, { ...opts, threads: 2 }, inSite);
+    const job = baselineJob(grid, layout, camera, requirement, opts, inSite);
+    expect(mod.baselineBeforeSolve(job)).toBeUndefined();
+    const early = mod.baselineBeforeSolve(job, 2);
     expect(early).toBeDefined();
     const run = mod.constantAltitudeBaselineInBackground(grid, { ...layout, legs: [...layout.legs].reverse() }, camera, requirement, { ...opts, threads: 2 }, inSite, early);
     expect(run.startedBeforeSolve).toBe(true);
