@@ -96,10 +96,17 @@ function fileBytes(f) {
 }
 
 /**
- * CPU seconds of the calling thread (Linux: utime + stime of /proc/thread-self/stat, in
- * clock ticks of 10 ms, the kernel's USER_HZ of 100); NaN elsewhere.
+ * CPU seconds of the calling thread (Linux): the nanoseconds it ran on a CPU from
+ * /proc/thread-self/schedstat (sched-stats.rst), else utime + stime of /proc/thread-self/stat
+ * in clock ticks of 10 ms (the kernel's USER_HZ of 100, proc(5)); NaN elsewhere.
  */
 function mainThreadCpuS() {
+  try {
+    const ns = Number(readFileSync("/proc/thread-self/schedstat", "utf8").split(" ")[0]);
+    if (Number.isFinite(ns)) return ns / 1e9;
+  } catch {
+    // no schedstat: the ticks below
+  }
   try {
     const stat = readFileSync("/proc/thread-self/stat", "utf8");
     const f = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
