@@ -34,11 +34,11 @@ export const SPLIT_MIN_CELLS = 8_000_000;
 
 /**
  * Whether such a light pass over `cells` is split onto another thread: when more than one
- * thread was asked for, whatever the size; by default from SPLIT_MIN_CELLS cells.
+ * thread was asked for, whatever the size; by default from `minCells` (SPLIT_MIN_CELLS) cells.
  * @example const threads = splitAllowed(n, opts.threads) ? bandThreads(n, bands, opts.threads) : 1;
  */
-export function splitAllowed(cells: number, threads?: number): boolean {
-  return threads === undefined ? cells >= SPLIT_MIN_CELLS : threads > 1;
+export function splitAllowed(cells: number, threads?: number, minCells = SPLIT_MIN_CELLS): boolean {
+  return threads === undefined ? cells >= minCells : threads > 1;
 }
 
 /**

@@ -22,6 +22,18 @@ export function packageRoot(): string {
   }
 }
 
+/**
+ * The version in gsdplan's package.json, "unknown" when it cannot be read.
+ * @example packageVersion() // "0.1.0"
+ */
+export function packageVersion(): string {
+  try {
+    return (JSON.parse(readFileSync(join(packageRoot(), "package.json"), "utf8")) as { version: string }).version;
+  } catch {
+    return "unknown";
+  }
+}
+
 function isOurs(file: string): boolean {
   try {
     return (JSON.parse(readFileSync(file, "utf8")) as { name?: string }).name === "gsdplan";

@@ -10,7 +10,7 @@ import { tmpdir } from "node:os";
 import { join, dirname } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import { benchPlan } from "./plan.mjs";
-import { linearFit } from "./scaling.mjs";
+import { linearFit, solveCpuS } from "./scaling.mjs";
 import { demLarge } from "./lib/dems.mjs";
 import { timedRun } from "./lib/proc.mjs";
 
@@ -48,10 +48,7 @@ export function benchTargets({ reuse = {}, timeoutS = 600, log = () => {} } = {}
     ? {
         cpu: linearFit(cases.map((c) => c.siteKm2), cases.map((c) => c.cpuS)),
         wall: linearFit(cases.map((c) => c.siteKm2), cases.map((c) => c.wallS)),
-        // The solve's own CPU: the main thread's. On large grids the comparison's worker runs
-        // beside it, and V8's compiler threads serve both, so they are left out; the 1 km2
-        // point carries the solver's warm-up in the interpreter (~0.08 s over a linear fit).
-        solveCpu: linearFit(cases.map((c) => c.siteKm2), cases.map((c) => c.stagesMainCpuS?.solve ?? c.stagesCpuS.solve)),
+        solveCpu: linearFit(cases.map((c) => c.siteKm2), cases.map(solveCpuS)),
         rss: linearFit(cases.map((c) => c.window.bytes), cases.map((c) => c.peakRssBytes)),
         areasKm2: cases.map((c) => c.siteKm2),
       }

@@ -9,7 +9,8 @@ import { InputError } from "../errors.js";
 import { writeOutputSet } from "../export/atomicDir.js";
 import { resolvePlanOptions, type PlanOptions } from "../plan/options.js";
 import { OUTPUT_NAMES } from "../plan/outputs.js";
-import { assertWritableTarget, toolVersion } from "../cli/planCommand.js";
+import { assertWritableTarget } from "../cli/planCommand.js";
+import { packageVersion } from "../packageRoot.js";
 import { readCampaignFile } from "./campaignFile.js";
 import { campaignCsv } from "./csv.js";
 import { currentFigures } from "./figures.js";
@@ -52,7 +53,7 @@ export async function runCampaign(campaignFile: string, o: CampaignRunOptions): 
   const campaign = await readCampaignFile(campaignFile);
   await assertWritableTarget(o.outDir);
   const outDir = path.resolve(o.outDir);
-  const version = await toolVersion();
+  const version = packageVersion();
 
   const outcomes = new Map<number, SiteOutcome>();
   const optionsOf = new Map<number, PlanOptions>();

@@ -1,4 +1,4 @@
-import { access, readFile, stat } from "node:fs/promises";
+import { access, stat } from "node:fs/promises";
 import path from "node:path";
 import { flagOverridesFromParsed, loadPlanFile, resolvePlanOptions } from "../plan/options.js";
 import { planMission, type PlanStage } from "../plan/plan.js";
@@ -9,7 +9,7 @@ import type { PlanSummary } from "../plan/summary.js";
 import { InputError } from "../errors.js";
 import { constants, existsSync } from "node:fs";
 import { summaryText } from "./summaryText.js";
-import { packageRoot } from "../packageRoot.js";
+import { packageVersion } from "../packageRoot.js";
 import { stageProgress } from "./progress.js";
 
 const STAGES: readonly PlanStage[] = ["load", "layout", "solve", "route", "assess", "baseline"];
@@ -76,24 +76,11 @@ export async function planToFolder(options: PlanOptions, o: PlanToFolderOptions)
   o.onStage?.("write");
   const { files, summary } = planOutputs(run, {
     ...(o.planFile ? { planFile: o.planFile } : {}),
-    toolVersion: await toolVersion(),
+    toolVersion: packageVersion(),
     generatedAt: new Date().toISOString(),
   });
   await writeOutputSet(o.outDir, o.amendFiles ? o.amendFiles(files, summary) : files, { force: Boolean(o.force) });
   return summary;
-}
-
-/**
- * The version in package.json, "unknown" when it cannot be read.
- * @example await toolVersion() // "0.1.0"
- */
-export async function toolVersion(): Promise<string> {
-  const pkg = path.join(packageRoot(), "package.json");
-  try {
-    return JSON.parse(await readFile(pkg, "utf8")).version as string;
-  } catch {
-    return "unknown";
-  }
 }
 
 /**

@@ -1,4 +1,4 @@
-import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { Layout } from "../layout/types.js";
@@ -33,19 +33,26 @@ export interface EarlyBaseline {
 }
 
 /**
+ * Whether the comparison is started before the solve on a grid of `cells`: where a worker
+ * may run (backgroundAllowed) and from EARLY_BASELINE_MIN_CELLS, or with more than one
+ * thread asked for (splitAllowed). Asked before the job is made, which is then not made.
+ * @example const early = earlyBaselineAllowed(n, threads) ? baselineBeforeSolve(baselineJob(...)) : undefined;
+ */
+export function earlyBaselineAllowed(cells: number, threads?: number): boolean {
+  return backgroundAllowed(cells, threads) && splitAllowed(cells, threads, EARLY_BASELINE_MIN_CELLS);
+}
+
+/**
  * Starts the constant-altitude comparison's figures on a worker thread from the job of the
  * strips as laid out (baselineJob), before they are solved: the solve runs on this thread
  * alone and leaves the other core idle. The figures depend on the strips' photo lattices
  * (each strip's ends, its photo phase and its stretches without photos), the DEM and the
  * site only; the solve keeps them unless it flies the strips the other way round or finds
  * stretches without photos, and constantAltitudeBaselineInBackground uses these figures only
- * when the final strips are the same (sameBaselineJob). Undefined where no worker would run
- * (one thread, small grids) and below EARLY_BASELINE_MIN_CELLS.
- * @example const early = baselineBeforeSolve(baselineJob(grid, laidOut, camera, req, o, inSite), o.threads); ...; constantAltitudeBaselineInBackground(grid, solved, camera, req, o, inSite, early)
+ * when the final strips are the same (sameBaselineJob). Call it where earlyBaselineAllowed.
+ * @example const early = baselineBeforeSolve(baselineJob(grid, laidOut, camera, req, o, inSite)); ...; constantAltitudeBaselineInBackground(grid, solved, camera, req, o, inSite, early)
  */
-export function baselineBeforeSolve(job: BaselineJob, threads?: number): EarlyBaseline | undefined {
-  const cells = job.grid.width * job.grid.height;
-  if (!backgroundAllowed(cells, threads) || !(threads === undefined ? cells >= EARLY_BASELINE_MIN_CELLS : threads > 1)) return undefined;
+export function baselineBeforeSolve(job: BaselineJob): EarlyBaseline {
   return { job, figures: inBackground<BaselineFigures>(workerUrl, { job, nice: EARLY_BASELINE_NICE }) };
 }
 

@@ -42,7 +42,7 @@ import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.j
 import { NOT_IN_BACKGROUND, type Background } from "../background.js";
 import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flights.js";
 import { baselineJob, ceilingBreachGsdCm, type Baseline } from "./baseline.js";
-import { baselineBeforeSolve, constantAltitudeBaselineInBackground } from "./baselineBackground.js";
+import { baselineBeforeSolve, constantAltitudeBaselineInBackground, earlyBaselineAllowed } from "./baselineBackground.js";
 import { clearanceSummary } from "./summary.js";
 import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
@@ -223,8 +223,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     clearanceM: clearanceSummary(options).floorM,
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
   };
-  const laidOut = { ...fullLayout, legs: blockLayouts.flatMap((b) => b.layout.legs) };
-  const earlyBaseline = baselineBeforeSolve(baselineJob(grid, laidOut, camera, requirement, baselineOptions, siteMask()), hooks.threads);
+  const earlyBaseline = earlyBaselineAllowed(grid.width * grid.height, hooks.threads)
+    ? baselineBeforeSolve(baselineJob(grid, { ...fullLayout, legs: blockLayouts.flatMap((b) => b.layout.legs) }, camera, requirement, baselineOptions, siteMask()))
+    : undefined;
 
   stage("solve");
   const solverOptions: SolverOptions = {

@@ -12,7 +12,7 @@ import type { Requirement } from "../../src/camera/types.js";
 import { genericCamera } from "../assess/helpers.js";
 import { gsdBinEdges, histogram } from "../../src/report/histogram.js";
 import { ceilingBreaches, ceilingBreachGsdCm } from "../../src/plan/baseline.js";
-import { constantAltitudeBaselineInBackground, sameBaselineJob, type baselineBeforeSolve as BeforeSolve, type constantAltitudeBaselineInBackground as Background } from "../../src/plan/baselineBackground.js";
+import { constantAltitudeBaselineInBackground, sameBaselineJob, type baselineBeforeSolve as BeforeSolve, type earlyBaselineAllowed as EarlyAllowed, type constantAltitudeBaselineInBackground as Background } from "../../src/plan/baselineBackground.js";
 
 /**
  * The constant-altitude comparison is computed directly (GSD from each cell's own ground,
@@ -233,7 +233,7 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
   });
 
   it("started before the solve on the strips as laid out, gives the same figures", async () => {
-    const mod = (await import(built.href)) as { constantAltitudeBaselineInBackground: typeof Background; baselineBeforeSolve: typeof BeforeSolve };
+    const mod = (await import(built.href)) as { constantAltitudeBaselineInBackground: typeof Background; baselineBeforeSolve: typeof BeforeSolve; earlyBaselineAllowed: typeof EarlyAllowed };
     const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
     const layout = layoutAt(33);
     const inSite = rasteriseSite(site, W, H, grid.transform);
@@ -241,10 +241,9 @@ describe.skipIf(!built.available)("constant-altitude baseline made in a worker t
     const planRasters = { width: W, height: H, transform: grid.transform, gsdCm: new Float32Array(W * H).fill(NaN), images: new Uint16Array(W * H), flags: new Uint16Array(W * H), inSite };
     const here = constantAltitudeBaseline(grid, layout, camera, requirement, { ...opts, planRasters, threads: 1 });
     // Two threads asked for: by default a grid this small starts no comparison before the solve.
-    const job = baselineJob(grid, layout, camera, requirement, opts, inSite);
-    expect(mod.baselineBeforeSolve(job)).toBeUndefined();
-    const early = mod.baselineBeforeSolve(job, 2);
-    expect(early).toBeDefined();
+    expect(mod.earlyBaselineAllowed(W * H)).toBe(false);
+    expect(mod.earlyBaselineAllowed(W * H, 2)).toBe(true);
+    const early = mod.baselineBeforeSolve(baselineJob(grid, layout, camera, requirement, opts, inSite));
     const run = mod.constantAltitudeBaselineInBackground(grid, { ...layout, legs: [...layout.legs].reverse() }, camera, requirement, { ...opts, threads: 2 }, inSite, early);
     expect(run.startedBeforeSolve).toBe(true);
     const b = await run.finish(planRasters);
