@@ -163,6 +163,8 @@ async function child(planFile, outDir) {
   const fileCpuS = {};
   const timed = files.map((f) => ({
     name: f.name,
+    // A file its own worker writes (gsd.tif on large grids): timed with the whole write below.
+    ...(f.background ? { background: f.background } : {}),
     data: async () => {
       const t = performance.now();
       const c = cpuNow();

@@ -18,6 +18,12 @@ export interface OutputFile {
   name: string;
   /** The content, or a function making it (called one at a time, so big rasters need not all sit in memory). */
   data: OutputData | (() => OutputData | Promise<OutputData>);
+  /**
+   * Writes the file itself at `filePath` (on a worker thread, say) while the others are
+   * written; started before them. Resolves true when written, false when it could not start
+   * (then `data` is written instead, after the others); a rejection fails the whole set.
+   */
+  background?: (filePath: string) => Promise<boolean>;
 }
 
 export interface WriteOutputsOptions {
@@ -71,10 +77,21 @@ export async function writeOutputSet(outDir: string, files: OutputFile[], option
   const movedAside: string[] = [];
   try {
     await mkdir(backup, { recursive: true });
-    for (const f of files) {
+    const write = async (f: OutputFile) => {
       const data = typeof f.data === "function" ? await f.data() : f.data;
       await writeFile(path.join(tmp, f.name), data instanceof ArrayBuffer ? new Uint8Array(data) : data);
+    };
+    // Files that write themselves start first and are awaited once the others are written
+    // (all of them, even when one fails, so none still writes into the folder removed below).
+    const started = files.filter((f) => f.background).map((f) => ({ f, written: f.background!(path.join(tmp, f.name)) }));
+    // Handled here so a failure while the others are written is not an unhandled rejection; it is thrown below.
+    for (const s of started) s.written.catch(() => undefined);
+    try {
+      for (const f of files) if (!f.background) await write(f);
+    } finally {
+      await Promise.allSettled(started.map((s) => s.written));
     }
+    for (const { f, written } of started) if (!(await written)) await write(f);
     for (const [i, f] of files.entries()) {
       if (options.force && (await exists(targets[i]))) {
         await rename(targets[i], path.join(backup, f.name));

@@ -36,7 +36,7 @@ import { flagColorMap } from "./flagPalette.js";
 import { blockMeans, blockSums, coarserSums, coarserSumsInto, nearestOverview, newBlockSums, orOverview, overviewSizes, type BlockSums } from "./overviews.js";
 import { TAG, type TiffField } from "./tiffTags.js";
 import { escapeXml } from "./xml.js";
-import { inBackground, type Background } from "../background.js";
+import { inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 
 export const IMAGES_NODATA = 65535;
 /** 255 would set both "coarser" (1) and "finer" (2), which no cell can be: safe as nodata whatever bits are in use. */
@@ -617,6 +617,37 @@ export interface CogJob {
  */
 export function assessmentGeoTiffsInBackground(r: AssessmentRasters, crs: RasterCrs, names: (keyof AssessmentTiffs)[]): Background<Partial<AssessmentTiffs>> {
   const { width, height, transform, gsdCm, images, flags, inSite } = r;
-  const job: CogJob = { rasters: { width, height, transform, gsdCm, images, flags, inSite }, crs: { epsg: crs.epsg, proj4: crs.proj4, geographic: crs.geographic, ...(crs.name !== undefined ? { name: crs.name } : {}) }, names };
+  const job: CogJob = { rasters: { width, height, transform, gsdCm, images, flags, inSite }, crs: plainCrs(crs), names };
   return inBackground<Partial<AssessmentTiffs>>(cogWorkerUrl, job);
+}
+
+/** The CRS fields a worker needs, as plain data. */
+function plainCrs(crs: RasterCrs): RasterCrs {
+  return { epsg: crs.epsg, proj4: crs.proj4, geographic: crs.geographic, ...(crs.name !== undefined ? { name: crs.name } : {}) };
+}
+
+const cogFileWorkerUrl = new URL("./cogFileWorker.js", import.meta.url);
+
+/** What the file-writing worker gets: the arrays its file reads (in shared memory), the CRS, the file and where to write it. */
+export interface CogFileJob {
+  rasters: Pick<AssessmentRasters, "width" | "height" | "transform" | "inSite"> & Partial<Pick<AssessmentRasters, "gsdCm" | "images" | "flags">>;
+  crs: RasterCrs;
+  name: keyof AssessmentTiffs;
+  path: string;
+}
+
+/**
+ * Starts writing one assessment raster's file at `filePath` on a worker thread, chunk by
+ * chunk (the same bytes as assessmentGeoTiffChunks, test/export/geotiffRasters.test.ts),
+ * so a large uncompressed gsd.tif is made and written on another core. Starts only when the
+ * arrays the file reads are in shared memory (read in place, never copied); result() gives
+ * true once the file is whole, undefined when no worker ran or it failed.
+ * @example (await assessmentGeoTiffFileInBackground(rasters, crs, "gsd.tif", "out/gsd.tif").result()) ?? writeOnThisThread()
+ */
+export function assessmentGeoTiffFileInBackground(r: AssessmentRasters, crs: RasterCrs, name: keyof AssessmentTiffs, filePath: string): Background<true> {
+  const { width, height, transform, inSite } = r;
+  const own = name === "gsd.tif" ? { gsdCm: r.gsdCm } : name === "images.tif" ? { images: r.images } : { flags: r.flags };
+  if (![inSite, ...Object.values(own)].every((a) => a.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
+  const job: CogFileJob = { rasters: { width, height, transform, inSite, ...own }, crs: plainCrs(crs), name, path: filePath };
+  return inBackground<true>(cogFileWorkerUrl, job);
 }

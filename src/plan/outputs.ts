@@ -13,8 +13,8 @@ import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
-import { assessmentGeoTiffChunks, assessmentGeoTiffsInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
-import { backgroundAllowed, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, assessmentGeoTiffsInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
+import { backgroundAllowed, NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import { reportHtmlInBackground } from "../report/background.js";
@@ -67,24 +67,28 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
   const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
   // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
-  // memory); the small compressed images.tif and flags.tif are encoded meanwhile on a worker
-  // thread (on large grids, threads allowed), started now so it works while the report's
-  // figures are made here; or here after gsd.tif when none ran.
-  const smallTiffs: Background<Partial<AssessmentTiffs>> = backgroundAllowed(rasters.width * rasters.height, run.threads)
+  // memory). On large grids (threads allowed) it is made and written by a worker thread of its
+  // own, started before the other files (writeOutputSet's background files), while the rest
+  // are made here and the page on its worker: at 4 km2 the run took ~0.15 s less (3.2 km2
+  // oblique: ~0.4 s less) for ~40 MB (70) more at its peak. The small compressed images.tif and
+  // flags.tif are then made here: a third worker beside those two took the same time and more
+  // memory.
+  // On smaller grids (by default below SPLIT_MIN_CELLS) and on one thread, gsd.tif is
+  // made here, the high point of the run's memory (its overviews), and the small rasters on a
+  // worker thread started now, which is let finish first; the page's worker (~85 MB at 4 km2:
+  // its copy of the input and the page's strings) starts after gsd.tif.
+  const gsdInBackground = splitAllowed(rasters.width * rasters.height, run.threads);
+  const smallTiffs: Background<Partial<AssessmentTiffs>> = !gsdInBackground && backgroundAllowed(rasters.width * rasters.height, run.threads)
     ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"])
     : NOT_IN_BACKGROUND;
-  const report = reportInput(run, summary, meta);
-  // Both report files come from one compacted input. The page is rendered in a worker thread
-  // started once gsd.tif is written (below), so it is made on the other core while the small
-  // rasters and report-data.json are written here.
+  // Both report files come from one compacted input, made when first asked for (its
+  // histograms are two passes over the grid, made after gsd.tif's worker has started). The
+  // page is rendered in a worker thread started by the first small raster (below), so it is
+  // made on the other core while report-data.json is written here.
   let compact: Promise<ReportInput> | undefined;
-  const compactReport = () => (compact ??= (async () => compactReportInput(report, 1000, await run.reportMaps?.()))());
+  const compactReport = () => (compact ??= (async () => compactReportInput(reportInput(run, summary, meta), 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
   const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
-  // Memory: gsd.tif's overviews are made while it is written, the high point of a run's
-  // memory; the small rasters' worker is let finish first, and the page's worker (~85 MB at
-  // 4 km2: its copy of the input and the page's strings) starts only after it. At 4 km2 that
-  // kept ~55 MB off the peak without a slower run.
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     if (name === "gsd.tif") await smallTiffs.result();
     else await reportPage();
@@ -100,7 +104,11 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     { name: "plan.geojson", data: () => JSON.stringify(planGeoJson(exportInput)) + "\n" },
     { name: "plan.kml", data: () => planKml(exportInput) },
     { name: "plan.gpx", data: () => planGpx(exportInput) },
-    { name: "gsd.tif", data: tiff("gsd.tif") },
+    {
+      name: "gsd.tif",
+      data: tiff("gsd.tif"),
+      ...(gsdInBackground ? { background: async (filePath: string) => (await assessmentGeoTiffFileInBackground(rasters, crs, "gsd.tif", filePath).result()) === true } : {}),
+    },
     { name: "images.tif", data: tiff("images.tif") },
     { name: "flags.tif", data: tiff("flags.tif") },
     { name: "summary.json", data: JSON.stringify(summary, null, 2) + "\n" },

@@ -87,3 +87,75 @@ describe("writeOutputSet", () => {
     expect(readdirSync(path.join(out, "ro"))).toEqual([]);
   });
 });
+
+describe("writeOutputSet with files that write themselves", () => {
+  /** A background writer that records when it started and writes `text` at its path after `ms`. */
+  const writer = (log: string[], text: string, ms: number, ok = true) => async (filePath: string) => {
+    log.push(`start ${path.basename(filePath)}`);
+    await new Promise((r) => setTimeout(r, ms));
+    if (!ok) return false;
+    writeFileSync(filePath, text);
+    log.push(`done ${path.basename(filePath)}`);
+    return true;
+  };
+
+  it("starts them before the other files and places them with the set", async () => {
+    const out = path.join(fresh(), "out");
+    const log: string[] = [];
+    const paths = await writeOutputSet(out, [
+      { name: "a.csv", data: () => (log.push("a.csv"), "a") },
+      { name: "big.tif", data: () => "made here", background: writer(log, "made there", 30) },
+      { name: "c.json", data: () => (log.push("c.json"), "{}") },
+    ]);
+    expect(paths.map((p) => path.basename(p))).toEqual(["a.csv", "big.tif", "c.json"]);
+    // Started first; the other files were made while it ran.
+    expect(log).toEqual(["start big.tif", "a.csv", "c.json", "done big.tif"]);
+    expect(readFileSync(path.join(out, "big.tif"), "utf8")).toBe("made there");
+    expect(readdirSync(out).sort()).toEqual(["a.csv", "big.tif", "c.json"]);
+  });
+
+  it("writes the file's data instead when its writer could not start", async () => {
+    const out = path.join(fresh(), "out");
+    const log: string[] = [];
+    await writeOutputSet(out, [
+      { name: "big.tif", data: () => (log.push("data big.tif"), "made here"), background: writer(log, "made there", 5, false) },
+      { name: "a.csv", data: () => (log.push("a.csv"), "a") },
+    ]);
+    expect(log).toEqual(["start big.tif", "a.csv", "data big.tif"]);
+    expect(readFileSync(path.join(out, "big.tif"), "utf8")).toBe("made here");
+  });
+
+  it("leaves nothing when the writer fails, waiting for it before clearing up", async () => {
+    const parent = fresh();
+    const out = path.join(parent, "out");
+    const run = writeOutputSet(out, [
+      { name: "a.csv", data: "a" },
+      {
+        name: "big.tif",
+        data: "made here",
+        background: async () => {
+          await new Promise((r) => setTimeout(r, 20));
+          throw new Error("disk full");
+        },
+      },
+    ]);
+    await expect(run).rejects.toThrow("disk full");
+    expect(existsSync(out)).toBe(false);
+    expect(readdirSync(parent)).toEqual([]);
+  });
+
+  it("waits for a running writer when another file fails, so it does not write into a removed folder", async () => {
+    const parent = fresh();
+    const out = path.join(parent, "out");
+    const log: string[] = [];
+    const run = writeOutputSet(out, [
+      { name: "big.tif", data: "made here", background: writer(log, "made there", 40) },
+      { name: "b.csv", data: () => Promise.reject(new Error("boom")) },
+    ]);
+    await expect(run).rejects.toThrow("boom");
+    // The writer had finished before the temp folder was removed: nothing is left behind.
+    expect(log).toEqual(["start big.tif", "done big.tif"]);
+    expect(existsSync(out)).toBe(false);
+    expect(readdirSync(parent)).toEqual([]);
+  });
+});

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import { execFileSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { builtModule } from "../helpers/dist.js";
 import { tmpdir } from "node:os";
 import path from "node:path";
@@ -8,7 +8,7 @@ import { fromArrayBuffer } from "geotiff";
 import { HAS_GDAL } from "../helpers/tools.js";
 import type { AssessmentRasters } from "../../src/assess/types.js";
 import { FLAG_CEILING, FLAG_COARSE } from "../../src/assess/flags.js";
-import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff, type assessmentGeoTiffsInBackground as InBackground } from "../../src/export/geotiffRasters.js";
+import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff, type assessmentGeoTiffsInBackground as InBackground, type assessmentGeoTiffFileInBackground as FileInBackground } from "../../src/export/geotiffRasters.js";
 
 // A 5 x 4 grid of 2 m cells in UTM 33N; the site is every cell but the first column.
 const W = 5;
@@ -137,5 +137,42 @@ describe.skipIf(!built.available)("assessment GeoTIFFs encoded on a worker threa
     // Read back: an overview level is there (the grid is over one 512-px tile).
     const tif = await fromArrayBuffer(made!["images.tif"]!);
     expect(await tif.getImageCount()).toBeGreaterThan(1);
+  });
+});
+
+const builtFile = builtModule("export/geotiffRasters.js", ["cogFileWorker.js"]);
+
+describe.skipIf(!builtFile.available)("an assessment GeoTIFF written to its file by a worker thread", () => {
+  const crs = { epsg: 32633, proj4: "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs", geographic: false, name: "WGS 84 / UTM zone 33N" };
+  /** A 1300 x 1100 grid (overviews: over one 512-px tile), its arrays in shared memory or not. */
+  function grid(shared: boolean): AssessmentRasters {
+    const w = 1300, h = 1100, n = w * h;
+    const buf = (bytes: number) => (shared ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
+    const r: AssessmentRasters = { width: w, height: h, transform, gsdCm: new Float32Array(buf(4 * n)), images: new Uint16Array(buf(2 * n)), flags: new Uint16Array(buf(2 * n)), inSite: new Uint8Array(buf(n)) };
+    for (let i = 0; i < n; i++) {
+      const c = i % w, row = Math.floor(i / w);
+      r.inSite[i] = c > 40 && row > 30 && c + row < 2200 ? 1 : 0;
+      // A few in-site cells left unseen (NaN), as the assessment leaves them.
+      r.gsdCm[i] = r.inSite[i] && (c * 7 + row) % 101 !== 0 ? 2.5 + 0.2 * Math.sin(c / 37) * Math.cos(row / 53) : NaN;
+    }
+    return r;
+  }
+
+  it("holds the bytes gsd.tif has when made on this thread", async () => {
+    const { assessmentGeoTiffFileInBackground } = (await import(builtFile.href)) as { assessmentGeoTiffFileInBackground: typeof FileInBackground };
+    const r = grid(true);
+    const at = path.join(dir, "worker-gsd.tif");
+    expect(await assessmentGeoTiffFileInBackground(r, crs, "gsd.tif", at).result()).toBe(true);
+    const here = Buffer.from(assessmentGeoTiffs(r, crs)["gsd.tif"]);
+    const there = readFileSync(at);
+    expect(there.length).toBe(here.length);
+    expect(there.equals(here)).toBe(true);
+  });
+
+  it("does not start when the arrays are not in shared memory (they would be copied)", async () => {
+    const { assessmentGeoTiffFileInBackground } = (await import(builtFile.href)) as { assessmentGeoTiffFileInBackground: typeof FileInBackground };
+    const at = path.join(dir, "unshared-gsd.tif");
+    expect(await assessmentGeoTiffFileInBackground(grid(false), crs, "gsd.tif", at).result()).toBeUndefined();
+    expect(existsSync(at)).toBe(false);
   });
 });
