@@ -11,6 +11,7 @@ import { flagPolygons, type ToWgs84 } from "./flagPolygons.js";
 import { rasteriseSite } from "./siteMask.js";
 import { assessmentStats } from "./stats.js";
 import type { Assessment } from "./types.js";
+import type { GsdTallyGrid } from "./gsdTally.js";
 import type { XY } from "../layout/types.js";
 
 /**
@@ -49,6 +50,8 @@ export interface AssessOptions {
   inSite?: Uint8Array;
   /** Also count the seen site cells whose GSD is at least this, cm/px (stats.gsdAtLeast): e.g. the plan's own ceiling breaches (see ceilingBreachGsdCm). */
   countGsdAtLeastCm?: number;
+  /** Also tally the seen site cells' GSD on this grid (stats.gsdTally), for histograms read off it (report/histogram.ts histogramOfTally). */
+  gsdTally?: GsdTallyGrid;
   /** Called once the rasters are final, before the statistics and polygons are made from them (which must not change them). */
   onRasters?: (rasters: Assessment["rasters"]) => void;
 }
@@ -107,7 +110,7 @@ export function assessPlan(
   opts.onRasters?.(rasters);
   // The coverage pass counted the seen cells for strips 0 .. the highest photo's strip.
   const maxStrip = seenByBand.strips - 1;
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm });
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}) });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { ...rasters, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },

@@ -3,6 +3,7 @@ import type { SeenByBand } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
+import { tallyCounter, tallyOfSlots, type GsdTally, type GsdTallyGrid } from "./gsdTally.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesOfGroups, radixBin, ranksOf } from "./quantiles.js";
 
 /**
@@ -36,6 +37,8 @@ export interface StatsInput {
   threads?: number;
   /** Also count the seen site cells whose GSD is at least this (cm/px): stats.gsdAtLeast. */
   gsdAtLeastCm?: number;
+  /** Also tally the seen site cells' GSD on this grid (gsdTally.ts): gsdTallyOfStats. */
+  gsdTally?: GsdTallyGrid;
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -68,6 +71,9 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   /** Seen cells with a GSD of at least atLeastCm, per slot (atLeastCm Infinity: none asked for). */
   atLeastCm: number;
   atLeast: Float64Array;
+  /** The seen cells' GSD on this grid, per slot (gsdTally.ts tallyCounter's layout), if asked for. */
+  tallyGrid?: GsdTallyGrid;
+  tally?: Float64Array;
 }
 
 /**
@@ -97,6 +103,7 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const rh = slot * RADIX_BINS;
   const gsdBits = float32Keys(gsdCm);
   let atLeast = 0;
+  const tally = job.tallyGrid && job.tally ? tallyCounter(job.tallyGrid, job.tally, slot * (job.tallyGrid.bins + 2)) : undefined;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) continue;
     if (valid[i] === 1) imageHist[ih + images[i]]++;
@@ -108,6 +115,7 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
     radixHist[rh + radixBin(gsdBits[i])]++;
     if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
     if (g >= atLeastCm) atLeast++;
+    if (tally !== undefined) tally.add(g);
   }
   job.atLeast[slot] += atLeast;
 }
@@ -165,6 +173,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     radixHist: new Uint32Array(buffer(threads, 4 * threads * RADIX_BINS)),
     atLeastCm: input.gsdAtLeastCm ?? Infinity,
     atLeast: new Float64Array(buffer(threads, 8 * threads)),
+    ...(input.gsdTally ? { tallyGrid: input.gsdTally, tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
   };
   runBands("stats", job, bands, threads, statsPassBands);
   const flagHist = sumOfSlots(job.flagHist, threads);
@@ -231,5 +240,6 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     flagged: { cells: site.flagged, areaM2: site.flagged * cellAreaM2, byKind: byKind(site.cells, site.all), effectCells: site.effect },
     perStrip,
     ...(input.gsdAtLeastCm !== undefined ? { gsdAtLeast: { cm: input.gsdAtLeastCm, cells: sumOfSlots(job.atLeast, threads)[0] } } : {}),
+    ...(job.tallyGrid && job.tally ? { gsdTally: tallyOfSlots(job.tallyGrid, job.tally, threads) } : {}),
   };
 }

@@ -1,5 +1,6 @@
 import type { Feature, MultiPolygon } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
+import type { GsdTally } from "./gsdTally.js";
 
 /** One photo: camera position (local frame, metres AMSL) and the track heading. */
 export interface Exposure {
@@ -60,6 +61,8 @@ export interface AssessmentStats {
   }[];
   /** Seen site cells whose GSD is at least `cm`, when the assessment was asked for them (AssessOptions.countGsdAtLeastCm). */
   gsdAtLeast?: { cm: number; cells: number };
+  /** The seen site cells' GSD tallied on a grid, when the assessment was asked for it (AssessOptions.gsdTally; gsdTally.ts). */
+  gsdTally?: GsdTally;
 }
 
 /** One layer per flag kind, polygons in WGS84. */

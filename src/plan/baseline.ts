@@ -20,7 +20,8 @@ import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage
 import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf } from "../assess/quantiles.js";
-import { histogramCounter } from "../report/histogram.js";
+import { histogramCounter, histogramOfTally } from "../report/histogram.js";
+import { tallyCounter, tallyOfSlots, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 import type { Histogram } from "../report/model.js";
 
 export interface CeilingBreaches {
@@ -38,8 +39,10 @@ export interface Baseline {
    * not the values), so the figures do not hold memory through the outputs.
    */
   gsdValuesCm: () => Float32Array;
-  /** The report's histogram of those values on the given bin edges (report/histogram.ts), without the array. */
+  /** The report's histogram of those values on the given bin edges (report/histogram.ts), without the array: read off gsdTally when the edges fall on its grid. */
   gsdHistogram: (edgesCm: number[]) => Histogram;
+  /** Those values tallied in the comparison's pass (BaselineOptions.gsdTally), if asked for. */
+  gsdTally?: GsdTally;
   stats: {
     gsdCm: GsdStats;
     withinBandPct: number;
@@ -80,6 +83,8 @@ export interface BaselineOptions {
   planRasters: AssessmentRasters;
   /** Threads for the image counts (see bandThreads); default the machine's choice. */
   threads?: number;
+  /** Also tally the seen cells' GSD on this grid in the comparison's pass, so gsdHistogram is read off it when its edges fall on the grid. */
+  gsdTally?: GsdTallyGrid;
 }
 
 /**
@@ -117,6 +122,7 @@ export interface BaselineJob {
   ceiling: BaselineOptions["ceiling"];
   takeoffGroundM: number;
   clearanceM: number;
+  gsdTally?: GsdTallyGrid;
 }
 
 /** The comparison's figures, before the plan's own rasters are there to compare. */
@@ -128,6 +134,8 @@ export interface BaselineFigures {
   /** A bit per cell: site cells some photo sees (cell order), and how many. */
   seenBits: Uint8Array;
   seen: number;
+  /** The seen cells' GSD on the job's tally grid, if it had one. */
+  gsdTally?: GsdTally;
 }
 
 /**
@@ -164,6 +172,7 @@ export function baselineJob(
     lowGsdM: requirement.lowGsdM, highGsdM: requirement.highGsdM,
     targetHeightM: o.targetHeightM, triggerM: o.triggerM, minImages: o.minImages, ceiling: o.ceiling, takeoffGroundM: o.takeoffGroundM,
     clearanceM: o.clearanceM,
+    ...(o.gsdTally ? { gsdTally: o.gsdTally } : {}),
   };
 }
 
@@ -201,6 +210,8 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   let shortCells = 0;
   let maxGroundM = -Infinity;
   const clearanceM = job.clearanceM;
+  const tallySlots = job.gsdTally ? new Float64Array(job.gsdTally.bins + 2) : undefined;
+  const tally = job.gsdTally && tallySlots ? tallyCounter(job.gsdTally, tallySlots, 0) : undefined;
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
     siteCells++;
@@ -217,6 +228,8 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
         seenGround[radixBin(heightBits[i])]++;
         seenWithGround++;
       }
+      // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
+      if (tally !== undefined) tally.add(Math.fround((A - z) * gsdPerM));
     }
     let f: number;
     if (valid[i] === 0) f = FLAG_NODATA;
@@ -256,6 +269,7 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
     ...(Number.isFinite(maxGroundM) ? { clearanceShortfall: { clearanceM, cells: shortCells, areaM2: shortCells * cellAreaM2, maxGroundM } } : {}),
     seenBits,
     seen,
+    ...(job.gsdTally && tallySlots ? { gsdTally: tallyOfSlots(job.gsdTally, tallySlots) } : {}),
     stats: {
       gsdCm: { min, p5, median, p95, max },
       withinBandPct: pct(inBand),
@@ -314,10 +328,13 @@ export function baselineOf(
       return out;
     },
     gsdHistogram: (edgesCm) => {
+      const read = histogramOfTally(f.gsdTally, edgesCm);
+      if (read) return read;
       const counter = histogramCounter(edgesCm);
       seenGsdChunks((chunk) => counter.add(chunk, null));
       return counter.result();
     },
+    ...(f.gsdTally ? { gsdTally: f.gsdTally } : {}),
     stats: f.stats,
     planCeilingBreaches: planBreachCells === undefined ? ceilingBreaches(grid, planRasters, camera, o) : breachesOf(grid, planBreachCells),
     ...(f.clearanceShortfall ? { clearanceShortfall: f.clearanceShortfall } : {}),

@@ -109,6 +109,8 @@ export function sameBaselineJob(a: BaselineJob, b: BaselineJob): boolean {
   const numbers = ["ifov", "kAlong", "kAcross", "lowGsdM", "highGsdM", "targetHeightM", "triggerM", "minImages", "takeoffGroundM", "clearanceM"] as const;
   if (numbers.some((k) => !Object.is(a[k], b[k]))) return false;
   if (a.ceiling.heightM !== b.ceiling.heightM || a.ceiling.reference !== b.ceiling.reference) return false;
+  const ga = a.gsdTally, gb = b.gsdTally;
+  if ((ga === undefined) !== (gb === undefined) || (ga && gb && (ga.first !== gb.first || ga.stepCm !== gb.stepCm || ga.bins !== gb.bins))) return false;
   if (a.strips.length !== b.strips.length) return false;
   const keys = (strips: readonly LatticeStrip[]) => strips.map(stripKey).sort();
   const ka = keys(a.strips), kb = keys(b.strips);

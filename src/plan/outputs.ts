@@ -19,7 +19,7 @@ import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import { reportHtmlInBackground } from "../report/background.js";
 import type { ReportInput } from "../report/model.js";
-import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "../report/histogram.js";
+import { REPORT_GSD_BINS, gsdBinEdges, histogram, histogramOfTally } from "../report/histogram.js";
 import type { LocalFrame } from "../geo/frame.js";
 import type { DemGrid } from "../dem/grid.js";
 import { undulationFor, type PlanRun } from "./plan.js";
@@ -171,7 +171,8 @@ export function reportInput(run: PlanRun, summary: PlanSummary, meta: { planFile
       ...(shortfall ? { maxSiteGroundM: shortfall.maxGroundM, clearanceShortfall: { cells: shortfall.cells, areaM2: shortfall.areaM2, clearanceM: shortfall.clearanceM } } : {}),
     },
     planCeilingBreaches: b.planCeilingBreaches,
-    gsdHistogram: histogram(planRasters.gsdCm, planRasters.inSite, edges),
+    // Read off the statistics' tally when its edges fall on the tally's grid (they do, but for an empty band).
+    gsdHistogram: histogramOfTally(run.assessment.stats.gsdTally, edges) ?? histogram(planRasters.gsdCm, planRasters.inSite, edges),
     baselineHistogram: b.gsdHistogram(edges),
     files: {
       dem: (Array.isArray(run.options.dem) ? run.options.dem : [run.options.dem]).map((d) => path.basename(d)).join(", "),

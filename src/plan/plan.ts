@@ -45,6 +45,7 @@ import { baselineJob, ceilingBreachGsdCm, type Baseline } from "./baseline.js";
 import { baselineBeforeSolve, constantAltitudeBaselineInBackground, earlyBaselineAllowed } from "./baselineBackground.js";
 import { clearanceSummary } from "./summary.js";
 import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
+import { gsdTallyGrid } from "../report/histogram.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
 import { keepOutZonesFor, limitsFromPlanOptions } from "../verify/limits.js";
@@ -214,6 +215,9 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
 
   // The comparison's figures from the strips as laid out, on the other core while this one
   // solves (the solve keeps them as a rule: checked against the final strips at the route stage).
+  // The report's GSD histograms (the plan's and the comparison's) are read off tallies made
+  // in the statistics' pass and the comparison's pass, on a grid their edges fall on.
+  const gsdTally = gsdTallyGrid(requirement.lowGsdM * 100, requirement.highGsdM * 100);
   const baselineOptions = {
     targetHeightM,
     triggerM,
@@ -222,6 +226,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     takeoffGroundM: blockLayouts[0].groundM,
     clearanceM: clearanceSummary(options).floorM,
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
+    ...(gsdTally ? { gsdTally } : {}),
   };
   const earlyBaseline = earlyBaselineAllowed(grid.width * grid.height, hooks.threads)
     ? baselineBeforeSolve(baselineJob(grid, { ...fullLayout, legs: blockLayouts.flatMap((b) => b.layout.legs) }, camera, requirement, baselineOptions, siteMask()))
@@ -348,6 +353,7 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
     inSite,
     ...(breachGsdCm !== undefined ? { countGsdAtLeastCm: breachGsdCm } : {}),
+    ...(gsdTally ? { gsdTally } : {}),
     // The flag polygons (below), the report's maps and the DEM's layers are made on the other
     // core while the statistics are made.
     polygons: false,

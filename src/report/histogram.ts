@@ -1,5 +1,6 @@
 import type { Histogram } from "./model.js";
 import { niceStep } from "./nice.js";
+import { tallyEdge, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 
 /**
  * Bins across the histogram's whole axis: with the axis spanning three to seven band
@@ -116,4 +117,51 @@ export function histogramCounter(edgesCm: number[]): { add: (values: Float32Arra
     return { edgesCm, counts, under, over };
   };
   return { add, result };
+}
+
+/**
+ * A tally grid (assess/gsdTally.ts) on which every gsdBinEdges(lowCm, highCm, min, max, bins)
+ * falls, whatever the extremes: the axis spans 3 to 7 band widths, so its step is a nice step
+ * between niceStep(3 w) and niceStep(7 w), every one of them a whole number of the grid's step
+ * (a power of ten not above the smallest; a band width read 1 % narrower, so the rounding of
+ * the summary's band edges cannot put the step under it), and its edges lie within 3 band
+ * widths and a step of the band. Undefined for an empty band (the axis is then not of that form).
+ * @example gsdTallyGrid(2.25, 2.75) // { first: 160, stepCm: 0.01, bins: ... }
+ */
+export function gsdTallyGrid(lowCm: number, highCm: number, bins = REPORT_GSD_BINS): GsdTallyGrid | undefined {
+  const w = highCm - lowCm;
+  if (!(w > 0) || !Number.isFinite(w)) return undefined;
+  const stepCm = +Math.pow(10, Math.floor(Math.log10(niceStep(3 * w * 0.99, bins)))).toPrecision(1);
+  const stepMax = niceStep(7 * w * 1.01, bins);
+  const first = Math.floor((lowCm - 3 * w - 2 * stepMax) / stepCm);
+  const end = Math.ceil((highCm + 3 * w + 3 * stepMax) / stepCm);
+  return { first, stepCm, bins: end - first };
+}
+
+/**
+ * The histogram over `edgesCm` read off a tally: the same counts as `histogram` over the
+ * tallied values, when every edge is one of the tally's edges; undefined otherwise (count the
+ * values themselves then).
+ * @example histogramOfTally(run.assessment.gsdTally, edges) ?? histogram(gsdCm, inSite, edges)
+ */
+export function histogramOfTally(tally: GsdTally | undefined, edgesCm: number[]): Histogram | undefined {
+  if (!tally || edgesCm.length < 2) return undefined;
+  const g = tally.grid;
+  // Each edge's place on the grid, which must hold exactly that number.
+  const at: number[] = [];
+  for (const e of edgesCm) {
+    const j = Math.round(e / g.stepCm) - g.first;
+    if (!(j >= 0 && j <= g.bins) || tallyEdge(g, j) !== e) return undefined;
+    if (at.length && j <= at[at.length - 1]) return undefined;
+    at.push(j);
+  }
+  const c = tally.counts;
+  const sum = (j0: number, j1: number) => {
+    let s = 0;
+    for (let j = j0; j < j1; j++) s += c[j];
+    return s;
+  };
+  const counts: number[] = [];
+  for (let k = 0; k + 1 < at.length; k++) counts.push(sum(at[k], at[k + 1]));
+  return { edgesCm, counts, under: tally.under + sum(0, at[0]), over: tally.over + sum(at[at.length - 1], g.bins) };
 }

@@ -1,0 +1,89 @@
+/**
+ * GSD values (cm/px) counted on a grid of equal decimal steps, as one more tally in a pass
+ * over the cells that has other work to do (the statistics' pass, the comparison's pass). A
+ * histogram whose edges all lie on that grid is then read off the tally
+ * (report/histogram.ts histogramOfTally) instead of another pass over tens of millions of
+ * cells: the report's histogram edges depend on figures known only after those passes (the
+ * plan's and the comparison's extremes), but always fall on such a grid.
+ *
+ * Counting follows report/histogram.ts histogramCounter exactly: NaN is skipped, a value below
+ * the first edge (and above -Infinity) is under, one at or above the last (below Infinity)
+ * over, and bin j holds edge[j] <= v < edge[j + 1], the edges being the decimal numbers
+ * (first + j) x step rounded to 12 significant digits as the report's edges are.
+ */
+
+export interface GsdTallyGrid {
+  /** The first edge as a whole number of steps. */
+  first: number;
+  /** The step, cm/px. */
+  stepCm: number;
+  /** Number of bins (edges: bins + 1). */
+  bins: number;
+}
+
+export interface GsdTally {
+  grid: GsdTallyGrid;
+  /** Values in each bin. */
+  counts: Float64Array;
+  /** Values below the first edge, and at or above the last. */
+  under: number;
+  over: number;
+}
+
+/**
+ * The grid's edges, cm/px.
+ * @example tallyEdges({ first: 180, stepCm: 0.01, bins: 3 }) // Float64Array [1.8, 1.81, 1.82, 1.83]
+ */
+export function tallyEdges(g: GsdTallyGrid): Float64Array {
+  const e = new Float64Array(g.bins + 1);
+  for (let j = 0; j <= g.bins; j++) e[j] = tallyEdge(g, j);
+  return e;
+}
+
+/** Edge j of the grid: (first + j) steps, rounded as the report rounds its edges. */
+export function tallyEdge(g: GsdTallyGrid, j: number): number {
+  return +((g.first + j) * g.stepCm).toPrecision(12);
+}
+
+/**
+ * Counts into `slots`, a Float64Array of at least bins + 2 entries from `at`: [under, bin 0,
+ * ..., bin bins-1, over]. Made once per pass, so a pass over the cells calls add(v) per value
+ * (a few comparisons and one multiplication).
+ * @example const t = tallyCounter(grid, new Float64Array(grid.bins + 2), 0); t.add(2.51); tallyOfSlots(grid, slots, 0)
+ */
+export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number): { add: (v: number) => void } {
+  const edges = tallyEdges(g);
+  const n = g.bins;
+  const lo = edges[0];
+  const hi = edges[n];
+  const inv = n / (hi - lo);
+  const last = n - 1;
+  const base = at + 1;
+  return {
+    add: (v: number) => {
+      // NaN fails every comparison and is skipped, as are the infinities.
+      if (v < lo) {
+        if (v > -Infinity) slots[at]++;
+      } else if (v < hi) {
+        // Index by multiplication, then correct the slip of one at an edge (as histogramCounter).
+        let b = ((v - lo) * inv) | 0;
+        if (b > last) b = last;
+        if (v < edges[b]) b--;
+        else if (v >= edges[b + 1]) b++;
+        slots[base + b]++;
+      } else if (v < Infinity) slots[base + n]++;
+    },
+  };
+}
+
+/**
+ * The tally held in `slots` at `at` (the layout tallyCounter counts into), summed over
+ * `copies` such blocks of bins + 2 entries one after another (one per thread).
+ * @example tallyOfSlots(grid, slots, 2)
+ */
+export function tallyOfSlots(g: GsdTallyGrid, slots: Float64Array, copies = 1): GsdTally {
+  const w = g.bins + 2;
+  const sum = new Float64Array(w);
+  for (let c = 0; c < copies; c++) for (let k = 0; k < w; k++) sum[k] += slots[c * w + k];
+  return { grid: g, counts: sum.slice(1, w - 1), under: sum[0], over: sum[w - 1] };
+}
