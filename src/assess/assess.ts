@@ -110,7 +110,11 @@ export function assessPlan(
   opts.onRasters?.(rasters);
   // The coverage pass counted the seen cells for strips 0 .. the highest photo's strip.
   const maxStrip = seenByBand.strips - 1;
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}) });
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}),
+    // Each strip's first radix pass in the statistics' pass, over an eighth of the band's low
+    // edge to eight times its high edge (three octaves either side, ~800 bins): a strip whose
+    // wanted ranks (its extremes among them) lie beyond has its quantiles made by more passes.
+    stripSpanCm: [(requirement.lowGsdM * 100) / 8, requirement.highGsdM * 100 * 8] });
   const polygons = opts.polygons === false ? {} : flagPolygons(flags, width, height, transform, opts.toWgs84, cellAreaM2);
   return {
     rasters: { ...rasters, ...(opts.keepNadirStrip ? { nadirStrip } : {}) },

@@ -65,6 +65,11 @@ export function float32Keys(values: Float32Array): Uint32Array {
   return new Uint32Array(values.buffer, values.byteOffset, values.length);
 }
 
+/** The first-pass bin of a number as a float32 (radixBin of its bits). */
+export function radixBinOfValue(v: number): number {
+  return radixBin(float32Keys(new Float32Array([v]))[0]);
+}
+
 /** The first-pass bin of a float32's raw bits: bins order like the values (NaN excluded by the caller). */
 export function radixBin(bits: number): number {
   return sortKey(bits) >>> 16;
@@ -207,6 +212,110 @@ export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>
     if (w.n === 0) continue;
     const stats = selectWithinBins(w.binOf, w.within, (b) => gathered[slot[g * span + b]]);
     out.set(interpolate(w.n, ps, stats), g * ps.length);
+  }
+  return out;
+}
+
+/**
+ * Each group's first radix pass over a span of bins fixed before the pass (the statistics'
+ * pass counts it beside its other tallies): hist[g * span + (bin - lo)] for values whose bin
+ * lies in lo .. lo + span - 1, and per group the values below and above that span.
+ */
+export interface GroupRadix {
+  lo: number;
+  span: number;
+  hist: Uint32Array;
+  below: Uint32Array;
+  above: Uint32Array;
+}
+
+/**
+ * The quantiles `ps` of all included values (their first pass `all`, as quantilesOfGroups
+ * takes it) and of each group's, from the groups' first passes counted elsewhere (`byGroup`):
+ * one pass over the values gathers the bins that hold a wanted rank, the site's and every
+ * group's at once, where quantilesFloat32's and quantilesOfGroups's ways take three. When a
+ * group's wanted rank lies outside its counted span (or no byGroup is given) the groups'
+ * quantiles are made by quantilesOfGroups instead (`fromSpans` false). The same figures either way.
+ * @example const { all, groups } = quantilesOfAllAndGroups(gsdCm, nadirStrip, inSite, strips, [0, 0.5, 1], siteRadix, stripRadix)
+ */
+export function quantilesOfAllAndGroups(values: Float32Array, group: ArrayLike<number>, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array, byGroup?: GroupRadix): { all: number[]; groups: Float64Array; fromSpans: boolean } {
+  let n = 0;
+  for (let b = 0; b < RADIX_BINS; b++) n += all[b];
+  const wantedGroups = byGroup ? groupRanks(byGroup, groups, ps) : undefined;
+  if (n === 0 || !wantedGroups || !byGroup) {
+    const { stats } = orderStatisticsOfRadix(values, { hist: all, n }, (m) => ranksOf(m, ps), include);
+    return { all: n === 0 ? ps.map(() => NaN) : interpolate(n, ps, stats), groups: quantilesOfGroups(values, group, include, groups, ps, all), fromSpans: false };
+  }
+  const { lo, span, hist } = byGroup;
+  // Slots of the bins to gather: the site's (by bin) and each group's (by group and bin).
+  const sizes: number[] = [];
+  const siteW = ranksInBins(all, 0, ranksOf(n, ps));
+  const siteSlot = new Int32Array(RADIX_BINS).fill(-1);
+  for (const b of siteW.binOf) {
+    if (siteSlot[b] < 0) {
+      siteSlot[b] = sizes.length;
+      sizes.push(all[b]);
+    }
+  }
+  const groupSlot = new Int32Array(groups * span).fill(-1);
+  for (let g = 0; g < groups; g++) {
+    for (const b of wantedGroups[g].binOf) {
+      const at = g * span + b;
+      if (groupSlot[at] < 0) {
+        groupSlot[at] = sizes.length;
+        sizes.push(hist[at]);
+      }
+    }
+  }
+  const gathered = sizes.map((m) => new Float32Array(m));
+  const fill = new Int32Array(sizes.length);
+  const keys = float32Keys(values);
+  for (let i = 0; i < values.length; i++) {
+    if (include[i] === 0) continue;
+    const v = values[i];
+    if (v !== v) continue;
+    const bin = radixBin(keys[i]);
+    const k = siteSlot[bin];
+    if (k >= 0) gathered[k][fill[k]++] = v;
+    const b = bin - lo;
+    if (b >= 0 && b < span) {
+      const kg = groupSlot[group[i] * span + b];
+      if (kg >= 0) gathered[kg][fill[kg]++] = v;
+    }
+  }
+  // First passes counted on other values than these would select wrongly: refuse them.
+  sizes.forEach((m, k) => {
+    if (fill[k] !== m) throw new Error(`radix histograms do not match the values: slot ${k} counted ${m}, found ${fill[k]}`);
+  });
+  const out = new Float64Array(groups * ps.length).fill(NaN);
+  for (let g = 0; g < groups; g++) {
+    const w = wantedGroups[g];
+    if (w.n === 0) continue;
+    const stats = selectWithinBins(w.binOf, w.within, (b) => gathered[groupSlot[g * span + b]]);
+    out.set(interpolate(w.n, ps, stats), g * ps.length);
+  }
+  const siteStats = selectWithinBins(siteW.binOf, siteW.within, (b) => gathered[siteSlot[b]]);
+  return { all: interpolate(n, ps, siteStats), groups: out, fromSpans: true };
+}
+
+/**
+ * Each group's count and where its wanted ranks lie in its counted span (bins from lo, ranks
+ * within them); undefined when a wanted rank lies below or above the span.
+ */
+function groupRanks(r: GroupRadix, groups: number, ps: readonly number[]): ({ n: number } & ReturnType<typeof ranksInBins>)[] | undefined {
+  const out: ({ n: number } & ReturnType<typeof ranksInBins>)[] = [];
+  for (let g = 0; g < groups; g++) {
+    const row = g * r.span;
+    let inSpan = 0;
+    for (let b = 0; b < r.span; b++) inSpan += r.hist[row + b];
+    const n = inSpan + r.below[g] + r.above[g];
+    if (n === 0) {
+      out.push({ n, binOf: [], within: [] });
+      continue;
+    }
+    const ranks = ranksOf(n, ps).map((k) => k - r.below[g]);
+    if (ranks.some((k) => k < 0 || k >= inSpan)) return undefined;
+    out.push({ n, ...ranksInBins(r.hist, row, ranks) });
   }
   return out;
 }

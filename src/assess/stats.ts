@@ -4,7 +4,7 @@ import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { tallyCounter, tallyOfSlots, type GsdTally, type GsdTallyGrid } from "./gsdTally.js";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesOfGroups, radixBin, ranksOf } from "./quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, quantilesOfAllAndGroups, radixBin, radixBinOfValue, type GroupRadix } from "./quantiles.js";
 
 /**
  * Summary figures of an assessment over the site's cells.
@@ -37,8 +37,14 @@ export interface StatsInput {
   threads?: number;
   /** Also count the seen site cells whose GSD is at least this (cm/px): stats.gsdAtLeast. */
   gsdAtLeastCm?: number;
-  /** Also tally the seen site cells' GSD on this grid (gsdTally.ts): gsdTallyOfStats. */
+  /** Also tally the seen site cells' GSD on this grid (gsdTally.ts): stats.gsdTally. */
   gsdTally?: GsdTallyGrid;
+  /**
+   * GSD range (cm/px) whose first-pass radix bins each strip counts in the pass (the band
+   * widened well beyond its edges): the strips' quantiles then need one more pass over the
+   * cells instead of two, unless a strip's wanted rank lies outside the range.
+   */
+  stripSpanCm?: [number, number];
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -47,13 +53,8 @@ function gsdStats([min, p5, median, p95, max]: Iterable<number>): GsdStats {
   return { min, p5, median, p95, max };
 }
 
-/** The site's GSD quantiles from the pass's radix tallies (`hist`, over the seen site cells). */
-function siteQuantiles(gsdCm: Float32Array, inSite: Uint8Array, hist: Uint32Array): number[] {
-  let n = 0;
-  for (let b = 0; b < RADIX_BINS; b++) n += hist[b];
-  const { stats } = orderStatisticsOfRadix(gsdCm, { hist, n }, (m) => ranksOf(m, QUANTILES), inSite);
-  return n === 0 ? QUANTILES.map(() => NaN) : interpolate(n, QUANTILES, stats);
-}
+/** Above this many strip x bin counters per thread the strips' first pass is left to quantilesOfGroups (64 MB). */
+const MAX_STRIP_BINS = 1 << 24;
 
 /**
  * The statistics' pass over the cells, as plain typed arrays (in shared memory when several
@@ -74,6 +75,12 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   /** The seen cells' GSD on this grid, per slot (gsdTally.ts tallyCounter's layout), if asked for. */
   tallyGrid?: GsdTallyGrid;
   tally?: Float64Array;
+  /** Each strip's first radix pass over bins spanLo .. spanLo + span - 1, per slot (strips x span), and its values below and above (strips), if asked for. */
+  spanLo?: number;
+  span?: number;
+  stripHist?: Uint32Array;
+  stripBelow?: Uint32Array;
+  stripAbove?: Uint32Array;
 }
 
 /**
@@ -104,6 +111,10 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const gsdBits = float32Keys(gsdCm);
   let atLeast = 0;
   const tally = job.tallyGrid && job.tally ? tallyCounter(job.tallyGrid, job.tally, slot * (job.tallyGrid.bins + 2)) : undefined;
+  const { stripHist, stripBelow, stripAbove } = job;
+  const spanLo = job.spanLo ?? 0;
+  const span = job.span ?? 0;
+  const sh = slot * S * span;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) continue;
     if (valid[i] === 1) imageHist[ih + images[i]]++;
@@ -112,12 +123,33 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
     flagHist[fh + s * FLAG_VALUES + f]++;
     const g = gsdCm[i];
     if (g !== g) continue;
-    radixHist[rh + radixBin(gsdBits[i])]++;
+    const bin = radixBin(gsdBits[i]);
+    radixHist[rh + bin]++;
+    if (stripHist !== undefined && stripBelow !== undefined && stripAbove !== undefined) {
+      const b = bin - spanLo;
+      if (b < 0) stripBelow[bs + s]++;
+      else if (b >= span) stripAbove[bs + s]++;
+      else stripHist[sh + s * span + b]++;
+    }
     if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
     if (g >= atLeastCm) atLeast++;
     if (tally !== undefined) tally.add(g);
   }
   job.atLeast[slot] += atLeast;
+}
+
+/** The pass's counters of each strip's first radix pass over the bins of `spanCm`, if asked for and not too many. */
+function stripSpanJob(spanCm: [number, number] | undefined, strips: number, threads: number): Pick<StatsPassJob, "spanLo" | "span" | "stripHist" | "stripBelow" | "stripAbove"> {
+  if (!spanCm || !(spanCm[0] > 0) || !(spanCm[1] >= spanCm[0]) || !Number.isFinite(spanCm[1])) return {};
+  const spanLo = radixBinOfValue(spanCm[0]);
+  const span = radixBinOfValue(spanCm[1]) - spanLo + 1;
+  if (strips * span > MAX_STRIP_BINS) return {};
+  return {
+    spanLo, span,
+    stripHist: new Uint32Array(buffer(threads, 4 * threads * strips * span)),
+    stripBelow: new Uint32Array(buffer(threads, 4 * threads * strips)),
+    stripAbove: new Uint32Array(buffer(threads, 4 * threads * strips)),
+  };
 }
 
 /** Memory for the statistics' pass: shared when other threads fill it. */
@@ -174,6 +206,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     atLeastCm: input.gsdAtLeastCm ?? Infinity,
     atLeast: new Float64Array(buffer(threads, 8 * threads)),
     ...(input.gsdTally ? { tallyGrid: input.gsdTally, tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
+    ...stripSpanJob(input.stripSpanCm, S, threads),
   };
   runBands("stats", job, bands, threads, statsPassBands);
   const flagHist = sumOfSlots(job.flagHist, threads);
@@ -211,8 +244,12 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   // The site's GSD quantiles from the pass's radix tallies; each strip's from its own, counted
   // over the span of bins the site's fill (quantiles.ts quantilesOfGroups): no copy of the
   // GSD grouped by strip (4 bytes a seen cell) is made.
-  const siteGsd = gsdStats(siteQuantiles(gsdCm, inSite, radixHist));
-  const stripQuantiles = quantilesOfGroups(gsdCm, nadirStrip, inSite, S, QUANTILES, radixHist);
+  const byStrip: GroupRadix | undefined = job.stripHist && job.stripBelow && job.stripAbove && job.span !== undefined && job.spanLo !== undefined
+    ? { lo: job.spanLo, span: job.span, hist: sumOfSlots(job.stripHist, threads), below: sumOfSlots(job.stripBelow, threads), above: sumOfSlots(job.stripAbove, threads) }
+    : undefined;
+  const q = quantilesOfAllAndGroups(gsdCm, nadirStrip, inSite, S, QUANTILES, radixHist, byStrip);
+  const siteGsd = gsdStats(q.all);
+  const stripQuantiles = q.groups;
   const stripGsd = (s: number): GsdStats => gsdStats(stripQuantiles.subarray(s * QUANTILES.length, (s + 1) * QUANTILES.length));
 
   const perStrip: AssessmentStats["perStrip"] = [];

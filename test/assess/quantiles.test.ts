@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfGroups, radixBin } from "../../src/assess/quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfAllAndGroups, quantilesOfGroups, radixBin, radixBinOfValue, type GroupRadix } from "../../src/assess/quantiles.js";
 
 /**
  * Straightforward reference: sort, then interpolate linearly at h = (n - 1) p
@@ -140,5 +140,99 @@ describe("quantiles of every group at once (quantilesOfGroups)", () => {
     }
     // No value at all: every group NaN.
     expect(Array.from(quantilesOfGroups(values, group, new Uint8Array(n), groups, PS, new Uint32Array(RADIX_BINS))).every(Number.isNaN)).toBe(true);
+  });
+});
+
+describe("quantiles of all values and of every group, the groups' first pass counted over a span (quantilesOfAllAndGroups)", () => {
+  // Reference: the values sorted, type 7 of Hyndman & Fan (1996) (sortedQuantile), for all
+  // included values and for each group's.
+  function sample(seed0: number, outlierGroup: number | undefined) {
+    let seed = seed0;
+    const rnd = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
+    const n = 200_000;
+    const groups = 6;
+    const values = new Float32Array(n);
+    const group = new Uint16Array(n);
+    const include = new Uint8Array(n);
+    for (let i = 0; i < n; i++) {
+      const g = rnd() < 0.0002 ? 5 : Math.floor(rnd() * 4);
+      group[i] = g;
+      include[i] = rnd() < 0.9 ? 1 : 0;
+      // Mostly near 2.5, a spread tail, a few far values (0.6 and 9.5, near the span's ends) in
+      // every group; in `outlierGroup` a fifth of the values far below the span, so its
+      // extremes and 5 % quantile lie there.
+      const far = rnd();
+      values[i] = rnd() < 0.02 ? NaN : g === outlierGroup && far < 0.2 ? 0.01 + 0.01 * rnd() : far < 0.001 ? (rnd() < 0.5 ? 0.6 : 9.5) : rnd() < 0.8 ? 2.5 + 0.01 * (rnd() - 0.5) : 1.5 + 2 * rnd();
+    }
+    const all = new Uint32Array(RADIX_BINS);
+    const lo = radixBinOfValue(0.5), span = radixBinOfValue(10) - lo + 1;
+    const byGroup: GroupRadix = { lo, span, hist: new Uint32Array(groups * span), below: new Uint32Array(groups), above: new Uint32Array(groups) };
+    const keys = float32Keys(values);
+    for (let i = 0; i < n; i++) {
+      if (!include[i] || values[i] !== values[i]) continue;
+      const bin = radixBin(keys[i]);
+      all[bin]++;
+      const b = bin - lo;
+      if (b < 0) byGroup.below[group[i]]++;
+      else if (b >= span) byGroup.above[group[i]]++;
+      else byGroup.hist[group[i] * span + b]++;
+    }
+    const sorted = (keep: (i: number) => boolean) => {
+      const v: number[] = [];
+      for (let i = 0; i < n; i++) if (keep(i) && include[i] && values[i] === values[i]) v.push(values[i]);
+      return v.sort((a, b) => a - b);
+    };
+    return { values, group, include, groups, all, byGroup, sorted };
+  }
+
+  for (const outlierGroup of [undefined, 2]) {
+    it(outlierGroup === undefined ? "equal the sorted quantiles, from one more pass over the values" : "equal them when a group's wanted rank lies below the span (made the groups' own way)", () => {
+      const s = sample(outlierGroup === undefined ? 5 : 9, outlierGroup);
+      const got = quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup);
+      expect(got.fromSpans).toBe(outlierGroup === undefined);
+      const every = s.sorted(() => true);
+      PS.forEach((p, k) => expect(got.all[k], `all p ${p}`).toBe(sortedQuantile(every, p)));
+      for (let g = 0; g < s.groups; g++) {
+        const v = s.sorted((i) => s.group[i] === g);
+        if (g === 4) expect(v.length).toBe(0);
+        PS.forEach((p, k) => expect(got.groups[g * PS.length + k], `group ${g} p ${p} of ${v.length}`).toBe(v.length ? sortedQuantile(v, p) : NaN));
+      }
+      // The same figures as the groups' own way.
+      expect(Array.from(got.groups)).toEqual(Array.from(quantilesOfGroups(s.values, s.group, s.include, s.groups, PS, s.all)));
+    });
+  }
+
+  it("place the wanted ranks past the values counted below the span (quantiles without the extremes)", () => {
+    const s = sample(5, undefined);
+    // Half the 0.6 values fall below a span from 1.0: counted below, not in it.
+    const lo = radixBinOfValue(1.0), span = radixBinOfValue(10) - lo + 1;
+    const byGroup: GroupRadix = { lo, span, hist: new Uint32Array(s.groups * span), below: new Uint32Array(s.groups), above: new Uint32Array(s.groups) };
+    const keys = float32Keys(s.values);
+    for (let i = 0; i < s.values.length; i++) {
+      if (!s.include[i] || s.values[i] !== s.values[i]) continue;
+      const b = radixBin(keys[i]) - lo;
+      if (b < 0) byGroup.below[s.group[i]]++;
+      else if (b >= span) byGroup.above[s.group[i]]++;
+      else byGroup.hist[s.group[i] * span + b]++;
+    }
+    expect(byGroup.below[0]).toBeGreaterThan(10);
+    const ps = [0.05, 0.5, 0.95];
+    const got = quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, ps, s.all, byGroup);
+    expect(got.fromSpans).toBe(true);
+    for (let g = 0; g < s.groups; g++) {
+      const v = s.sorted((i) => s.group[i] === g);
+      ps.forEach((p, k) => expect(got.groups[g * ps.length + k], `group ${g} p ${p}`).toBe(v.length ? sortedQuantile(v, p) : NaN));
+    }
+  });
+
+  it("refuse first passes that do not match the values", () => {
+    const s = sample(5, undefined);
+    const hist = s.byGroup.hist.slice();
+    // One count moved to another group's bin holding a wanted rank: the gathered bins come out short.
+    const lo = s.byGroup.lo, span = s.byGroup.span;
+    const bin = radixBinOfValue(2.5) - lo;
+    hist[0 * span + bin]--;
+    hist[1 * span + bin]++;
+    expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, { ...s.byGroup, hist })).toThrow(/do not match/);
   });
 });
