@@ -8,21 +8,13 @@ import { describe, it, expect } from "vitest";
 import { REPORT_GSD_BINS, gsdBinEdges, gsdTallyGrid, histogram, histogramOfTally } from "../../src/report/histogram.js";
 import { tallyCounter, tallyEdges, tallyOfSlots, type GsdTallyGrid } from "../../src/assess/gsdTally.js";
 import path from "node:path";
+import { seededRandom } from "../geo/projCli.js";
 import { loadPlanFile, resolvePlanOptions } from "../../src/plan/options.js";
 import { planMission } from "../../src/plan/plan.js";
 import { planSummary } from "../../src/plan/summary.js";
 
-/** A small deterministic generator (mulberry32), so a failure can be replayed. */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** A seeded generator (mulberry32), so a failure can be replayed. */
+const random = seededRandom;
 
 /** Summary rounding of the band edges (plan/summary.ts: 4 decimals). */
 const r4 = (x: number) => Math.round(x * 1e4) / 1e4;
