@@ -48,11 +48,10 @@ export function tallyEdge(g: GsdTallyGrid, j: number): number {
 /**
  * Counts into `slots`, a Float64Array of at least bins + 2 entries from `at`: [under, bin 0,
  * ..., bin bins-1, over]. Made once per pass, so a pass over the cells calls add(v) per value
- * (a few comparisons and one multiplication).
+ * (a few comparisons and one multiplication); `edges`: the grid's (tallyEdges), when made already.
  * @example const t = tallyCounter(grid, new Float64Array(grid.bins + 2), 0); t.add(2.51); tallyOfSlots(grid, slots, 0)
  */
-export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number): { add: (v: number) => void } {
-  const edges = tallyEdges(g);
+export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number, edges: Float64Array = tallyEdges(g)): { add: (v: number) => void } {
   const n = g.bins;
   const lo = edges[0];
   const hi = edges[n];

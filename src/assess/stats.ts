@@ -3,7 +3,7 @@ import type { SeenByBand } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
-import { tallyCounter, tallyOfSlots, type GsdTally, type GsdTallyGrid } from "./gsdTally.js";
+import { tallyCounter, tallyEdges, tallyOfSlots, type GsdTallyGrid } from "./gsdTally.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, quantilesOfAllAndGroups, radixBin, radixBinOfValue, type GroupRadix } from "./quantiles.js";
 
 /**
@@ -74,6 +74,7 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   atLeast: Float64Array;
   /** The seen cells' GSD on this grid, per slot (gsdTally.ts tallyCounter's layout), if asked for. */
   tallyGrid?: GsdTallyGrid;
+  tallyEdges?: Float64Array;
   tally?: Float64Array;
   /** Each strip's first radix pass over bins spanLo .. spanLo + span - 1, per slot (strips x span), and its values below and above (strips), if asked for. */
   spanLo?: number;
@@ -110,7 +111,7 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const rh = slot * RADIX_BINS;
   const gsdBits = float32Keys(gsdCm);
   let atLeast = 0;
-  const tally = job.tallyGrid && job.tally ? tallyCounter(job.tallyGrid, job.tally, slot * (job.tallyGrid.bins + 2)) : undefined;
+  const tally = job.tallyGrid && job.tally ? tallyCounter(job.tallyGrid, job.tally, slot * (job.tallyGrid.bins + 2), job.tallyEdges) : undefined;
   const { stripHist, stripBelow, stripAbove } = job;
   const spanLo = job.spanLo ?? 0;
   const span = job.span ?? 0;
@@ -205,7 +206,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     radixHist: new Uint32Array(buffer(threads, 4 * threads * RADIX_BINS)),
     atLeastCm: input.gsdAtLeastCm ?? Infinity,
     atLeast: new Float64Array(buffer(threads, 8 * threads)),
-    ...(input.gsdTally ? { tallyGrid: input.gsdTally, tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
+    ...(input.gsdTally ? { tallyGrid: input.gsdTally, tallyEdges: tallyEdges(input.gsdTally), tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
     ...stripSpanJob(input.stripSpanCm, S, threads),
   };
   runBands("stats", job, bands, threads, statsPassBands);
@@ -242,8 +243,10 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   };
 
   // The site's GSD quantiles from the pass's radix tallies; each strip's from its own, counted
-  // over the span of bins the site's fill (quantiles.ts quantilesOfGroups): no copy of the
-  // GSD grouped by strip (4 bytes a seen cell) is made.
+  // in the pass over the bins around the band (stripSpanCm), one more pass gathering the bins
+  // that hold the wanted ranks of both (quantiles.ts quantilesOfAllAndGroups; for a strip
+  // with a wanted rank beyond that span, quantilesOfGroups): no copy of the GSD grouped by
+  // strip (4 bytes a seen cell) is made.
   const byStrip: GroupRadix | undefined = job.stripHist && job.stripBelow && job.stripAbove && job.span !== undefined && job.spanLo !== undefined
     ? { lo: job.spanLo, span: job.span, hist: sumOfSlots(job.stripHist, threads), below: sumOfSlots(job.stripBelow, threads), above: sumOfSlots(job.stripAbove, threads) }
     : undefined;

@@ -70,7 +70,8 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // memory). On large grids (threads allowed) it is made and written by a worker thread of its
   // own, started before the other files (writeOutputSet's background files), while the rest
   // are made here and the page on its worker: at 4 km2 the run took ~0.15 s less (3.2 km2
-  // oblique: ~0.4 s less) for ~40 MB (70) more at its peak. The small compressed images.tif and
+  // oblique: ~0.4 s less) for some 30-70 MB more at its peak (which varies by ~40 MB from run
+  // to run). The small compressed images.tif and
   // flags.tif are then made here: a third worker beside those two took the same time and more
   // memory.
   // On smaller grids (by default below SPLIT_MIN_CELLS) and on one thread, gsd.tif is
@@ -81,10 +82,10 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const smallTiffs: Background<Partial<AssessmentTiffs>> = !gsdInBackground && backgroundAllowed(rasters.width * rasters.height, run.threads)
     ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"])
     : NOT_IN_BACKGROUND;
-  // Both report files come from one compacted input, made when first asked for (its
-  // histograms are two passes over the grid, made after gsd.tif's worker has started). The
-  // page is rendered in a worker thread started by the first small raster (below), so it is
-  // made on the other core while report-data.json is written here.
+  // Both report files come from one compacted input, made when first asked for (after
+  // gsd.tif's worker has started). The page is rendered in a worker thread started by the
+  // first small raster (below), so it is made on the other core while report-data.json is
+  // written here.
   let compact: Promise<ReportInput> | undefined;
   const compactReport = () => (compact ??= (async () => compactReportInput(reportInput(run, summary, meta), 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;

@@ -213,11 +213,11 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   }
   lap("layout");
 
-  // The comparison's figures from the strips as laid out, on the other core while this one
-  // solves (the solve keeps them as a rule: checked against the final strips at the route stage).
   // The report's GSD histograms (the plan's and the comparison's) are read off tallies made
   // in the statistics' pass and the comparison's pass, on a grid their edges fall on.
   const gsdTally = gsdTallyGrid(requirement.lowGsdM * 100, requirement.highGsdM * 100);
+  // The comparison's figures from the strips as laid out, on the other core while this one
+  // solves (the solve keeps them as a rule: checked against the final strips at the route stage).
   const baselineOptions = {
     targetHeightM,
     triggerM,
