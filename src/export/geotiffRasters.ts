@@ -599,28 +599,6 @@ function unitToMeter(u: string): number {
   throw new Error(`unit ${u} not mapped for GeoTIFF`);
 }
 
-const cogWorkerUrl = new URL("./cogWorker.js", import.meta.url);
-
-/** What a raster worker gets: the grid, its CRS and which files to make (arrays in shared memory read in place). */
-export interface CogJob {
-  rasters: Pick<AssessmentRasters, "width" | "height" | "transform" | "gsdCm" | "images" | "flags" | "inSite">;
-  crs: RasterCrs;
-  names: (keyof AssessmentTiffs)[];
-}
-
-/**
- * Starts making some of the assessment rasters' files on a worker thread (background.ts),
- * so they are encoded on another core while this thread writes the rest: the same bytes
- * as assessmentGeoTiff (test/export/geotiffRasters.test.ts). For the compressed images.tif
- * and flags.tif, whose files are small; undefined from result() when no worker ran.
- * @example const bg = assessmentGeoTiffsInBackground(rasters, crs, ["images.tif"]); ...; (await bg.result())?.["images.tif"]
- */
-export function assessmentGeoTiffsInBackground(r: AssessmentRasters, crs: RasterCrs, names: (keyof AssessmentTiffs)[]): Background<Partial<AssessmentTiffs>> {
-  const { width, height, transform, gsdCm, images, flags, inSite } = r;
-  const job: CogJob = { rasters: { width, height, transform, gsdCm, images, flags, inSite }, crs: plainCrs(crs), names };
-  return inBackground<Partial<AssessmentTiffs>>(cogWorkerUrl, job);
-}
-
 /** The CRS fields a worker needs, as plain data. */
 function plainCrs(crs: RasterCrs): RasterCrs {
   return { epsg: crs.epsg, proj4: crs.proj4, geographic: crs.geographic, ...(crs.name !== undefined ? { name: crs.name } : {}) };

@@ -13,8 +13,8 @@ import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
-import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, assessmentGeoTiffsInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
-import { backgroundAllowed, NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
+import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
+import { SPLIT_MIN_CELLS, splitAllowed } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import { reportHtmlInBackground } from "../report/background.js";
@@ -71,32 +71,24 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // own, started before the other files (writeOutputSet's background files), while the rest
   // are made here and the page on its worker: at 4 km2 the run took ~0.15 s less (3.2 km2
   // oblique: ~0.4 s less) for some 30-70 MB more at its peak (which varies by ~40 MB from run
-  // to run). The small compressed images.tif and
-  // flags.tif are then made here: a third worker beside those two took the same time and more
-  // memory.
-  // On smaller grids (by default below SPLIT_MIN_CELLS) and on one thread, gsd.tif is
-  // made here, the high point of the run's memory (its overviews), and the small rasters on a
-  // worker thread started now, which is let finish first; the page's worker (~85 MB at 4 km2:
-  // its copy of the input and the page's strings) starts after gsd.tif.
-  const gsdInBackground = splitAllowed(rasters.width * rasters.height, run.threads);
-  const smallTiffs: Background<Partial<AssessmentTiffs>> = !gsdInBackground && backgroundAllowed(rasters.width * rasters.height, run.threads)
-    ? assessmentGeoTiffsInBackground(rasters, crs, ["images.tif", "flags.tif"])
-    : NOT_IN_BACKGROUND;
+  // to run). Otherwise it is made here, the high point of the run's memory (its overviews).
+  // images.tif and flags.tif (small once compressed) are made here: a worker of their own
+  // beside gsd.tif's and the page's took the same time and more memory at 4 km2, and on the
+  // demo the page's worker gained more from the core it left free (below).
+  const cells = rasters.width * rasters.height;
+  const gsdInBackground = splitAllowed(cells, run.threads);
   // Both report files come from one compacted input, made when first asked for (after
-  // gsd.tif's worker has started). The page is rendered in a worker thread started by the
-  // first small raster (below), so it is made on the other core while report-data.json is
-  // written here.
+  // gsd.tif's worker has started). The page is rendered in a worker thread, so it is made on
+  // the other core while the rasters and report-data.json are written here: on large grids
+  // started by the first small raster, after gsd.tif when that is made here (the page's
+  // worker holds ~85 MB at 4 km2: its copy of the input and the page's strings); on smaller
+  // grids as soon as its input is ready (the demo, 20 interleaved runs: 0.07 s sooner done).
   let compact: Promise<ReportInput> | undefined;
   const compactReport = () => (compact ??= (async () => compactReportInput(reportInput(run, summary, meta), 1000, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
   const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
   const tiff = (name: keyof AssessmentTiffs) => async () => {
-    if (name === "gsd.tif") await smallTiffs.result();
-    else await reportPage();
-    if (name !== "gsd.tif") {
-      const made = (await smallTiffs.result())?.[name];
-      if (made) return made;
-    }
+    if (name !== "gsd.tif") await reportPage();
     return assessmentGeoTiffChunks(rasters, crs, name);
   };
   const files: OutputFile[] = [
@@ -124,6 +116,8 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     },
     { name: "report.html", data: async () => (await reportPage()).html() },
   ];
+  // Its failure surfaces from report.html.
+  if (cells < SPLIT_MIN_CELLS) reportPage().catch(() => undefined);
   return { files, summary };
 }
 

@@ -8,7 +8,7 @@ import { fromArrayBuffer } from "geotiff";
 import { HAS_GDAL } from "../helpers/tools.js";
 import type { AssessmentRasters } from "../../src/assess/types.js";
 import { FLAG_CEILING, FLAG_COARSE } from "../../src/assess/flags.js";
-import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff, type assessmentGeoTiffsInBackground as InBackground, type assessmentGeoTiffFileInBackground as FileInBackground } from "../../src/export/geotiffRasters.js";
+import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiffs, rasterGeoTiff, type assessmentGeoTiffFileInBackground as FileInBackground } from "../../src/export/geotiffRasters.js";
 
 // A 5 x 4 grid of 2 m cells in UTM 33N; the site is every cell but the first column.
 const W = 5;
@@ -108,35 +108,6 @@ describe.skipIf(!HAS_GDAL)("assessment GeoTIFFs read by GDAL (gdalinfo, gdalloca
     const p4u = /PROJ\.4 string is:\s*'([^']+)'/.exec(execFileSync("gdalinfo", ["-proj4", f]).toString())![1];
     // GDAL recognises the parameter set as UTM zone 33 south.
     expect(p4u).toMatch(/^\+proj=utm \+zone=33 \+south \+datum=WGS84/);
-  });
-});
-
-const built = builtModule("export/geotiffRasters.js", ["cogWorker.js"]);
-
-describe.skipIf(!built.available)("assessment GeoTIFFs encoded on a worker thread", () => {
-  it("are the bytes encoded on this thread, with overviews (a 1300 x 1100 grid)", async () => {
-    const { assessmentGeoTiffsInBackground } = (await import(built.href)) as { assessmentGeoTiffsInBackground: typeof InBackground };
-    const w = 1300, h = 1100, n = w * h;
-    const r: AssessmentRasters = { width: w, height: h, transform, gsdCm: new Float32Array(n), images: new Uint16Array(n), flags: new Uint16Array(n), inSite: new Uint8Array(n) };
-    for (let i = 0; i < n; i++) {
-      const c = i % w, row = Math.floor(i / w);
-      r.inSite[i] = c > 40 && row > 30 && c + row < 2200 ? 1 : 0;
-      r.gsdCm[i] = r.inSite[i] ? 2.5 + 0.2 * Math.sin(c / 37) * Math.cos(row / 53) : NaN;
-      r.images[i] = r.inSite[i] ? 3 + ((c * 3 + row * 5) % 11) : 0;
-      r.flags[i] = r.inSite[i] && (c ^ row) % 17 === 0 ? FLAG_COARSE : 0;
-    }
-    const crs = { epsg: 32633, proj4: "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs", geographic: false, name: "WGS 84 / UTM zone 33N" };
-    const made = await assessmentGeoTiffsInBackground(r, crs, ["images.tif", "flags.tif"]).result();
-    expect(made).toBeDefined();
-    expect(Object.keys(made!).sort()).toEqual(["flags.tif", "images.tif"]);
-    const here = assessmentGeoTiffs(r, crs);
-    for (const name of ["images.tif", "flags.tif"] as const) {
-      expect(made![name]!.byteLength, name).toBe(here[name].byteLength);
-      expect(Buffer.from(made![name]!).equals(Buffer.from(here[name])), name).toBe(true);
-    }
-    // Read back: an overview level is there (the grid is over one 512-px tile).
-    const tif = await fromArrayBuffer(made!["images.tif"]!);
-    expect(await tif.getImageCount()).toBeGreaterThan(1);
   });
 });
 
