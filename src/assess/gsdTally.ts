@@ -6,10 +6,9 @@
  * cells: the report's histogram edges depend on figures known only after those passes (the
  * plan's and the comparison's extremes), but always fall on such a grid.
  *
- * Counting follows report/histogram.ts histogramCounter exactly: NaN is skipped, a value below
- * the first edge (and above -Infinity) is under, one at or above the last (below Infinity)
- * over, and bin j holds edge[j] <= v < edge[j + 1], the edges being the decimal numbers
- * (first + j) x step rounded to 12 significant digits as the report's edges are.
+ * Counting is report/histogram.ts histogramCounter's (both bin through binCounter below), the
+ * edges being the decimal numbers (first + j) x step rounded to 12 significant digits as the
+ * report's edges are.
  */
 
 export interface GsdTallyGrid {
@@ -52,25 +51,40 @@ export function tallyEdge(g: GsdTallyGrid, j: number): number {
  * @example const t = tallyCounter(grid, new Float64Array(grid.bins + 2), 0); t.add(2.51); tallyOfSlots(grid, slots, 0)
  */
 export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number, edges: Float64Array = tallyEdges(g)): { add: (v: number) => void } {
-  const n = g.bins;
+  return binCounter(edges, slots, at);
+}
+
+/**
+ * Counts values on equal-width `edges` into `slots` from `at`: [under, bin 0, ..., over], one
+ * bin fewer than edges (none for fewer than two). The one way a value is binned, for the tally
+ * and for report/histogram.ts histogramCounter alike: NaN is skipped, a value below the first
+ * edge (above -Infinity) is under, one at or above the last (below Infinity) over, bin j holds
+ * edges[j] <= v < edges[j + 1].
+ * @example const slots = new Float64Array(4); binCounter(Float64Array.of(2, 2.5, 3), slots, 0).add(2.7) // slots [0, 0, 1, 0]
+ */
+export function binCounter(edges: Float64Array, slots: Float64Array, at: number): { add: (v: number) => void } {
+  const n = edges.length - 1;
   const lo = edges[0];
   const hi = edges[n];
+  // Multiplying by the inverse step may slip a bin where dividing would not: the edge
+  // check below corrects either.
   const inv = n / (hi - lo);
   const last = n - 1;
   const base = at + 1;
+  const overAt = base + Math.max(n, 0);
   return {
     add: (v: number) => {
       // NaN fails every comparison and is skipped, as are the infinities.
       if (v < lo) {
         if (v > -Infinity) slots[at]++;
       } else if (v < hi) {
-        // Index by multiplication, then correct the slip of one at an edge (as histogramCounter).
+        // Index by multiplication, then correct the slip of one at an edge.
         let b = ((v - lo) * inv) | 0;
         if (b > last) b = last;
         if (v < edges[b]) b--;
         else if (v >= edges[b + 1]) b++;
         slots[base + b]++;
-      } else if (v < Infinity) slots[base + n]++;
+      } else if (v < Infinity) slots[overAt]++;
     },
   };
 }

@@ -1,6 +1,6 @@
 import type { Histogram } from "./model.js";
 import { niceStep } from "./nice.js";
-import { tallyEdge, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
+import { binCounter, tallyEdge, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 
 /**
  * Bins across the histogram's whole axis: with the axis spanning three to seven band
@@ -75,46 +75,18 @@ function histogramFloat32(values: Float32Array, mask: Uint8Array | null, edgesCm
  * @example const c = histogramCounter([2, 2.5, 3]); c.add(chunk, null); c.result().counts
  */
 export function histogramCounter(edgesCm: number[]): { add: (values: Float32Array, mask: Uint8Array | null) => void; result: () => Histogram } {
-  const n = edgesCm.length - 1;
-  const nb = Math.max(n, 0);
-  const edges = Float64Array.from(edgesCm);
-  // One spare slot either end: a bin index slipped by one at the axis ends lands there
-  // before the correction moves it back.
-  const bins = new Float64Array(nb + 2);
-  const lo = edges[0];
-  const hi = edges[n];
-  // Multiplying by the inverse step may slip a bin where dividing would not: the edge
-  // check below corrects either, so the counts are the same.
-  const inv = n / (hi - lo);
-  const last = n - 1;
-  let under = 0;
-  let over = 0;
+  const nb = Math.max(edgesCm.length - 1, 0);
+  // [under, bins..., over] (assess/gsdTally.ts binCounter: the tallies bin the same way).
+  const slots = new Float64Array(nb + 2);
+  const counter = binCounter(Float64Array.from(edgesCm), slots, 0);
   const add = (values: Float32Array, mask: Uint8Array | null): void => {
     const len = values.length;
-    // Local tallies in the loop (closure variables would be written back every cell).
-    let u = 0;
-    let o = 0;
-    for (let i = 0; i < len; i++) {
-      if (mask !== null && mask[i] === 0) continue;
-      const v = values[i];
-      // NaN fails every comparison below and is skipped, as are the infinities.
-      if (v < lo) {
-        if (v > -Infinity) u++;
-      } else if (v < hi) {
-        let b = ((v - lo) * inv) | 0;
-        if (b > last) b = last;
-        if (v < edges[b]) b--;
-        else if (v >= edges[b + 1]) b++;
-        bins[b + 1]++;
-      } else if (v < Infinity) o++;
-    }
-    under += u;
-    over += o;
+    for (let i = 0; i < len; i++) if (mask === null || mask[i] !== 0) counter.add(values[i]);
   };
   const result = (): Histogram => {
     const counts = new Array<number>(nb);
-    for (let b = 0; b < nb; b++) counts[b] = bins[b + 1];
-    return { edgesCm, counts, under, over };
+    for (let b = 0; b < nb; b++) counts[b] = slots[b + 1];
+    return { edgesCm, counts, under: slots[0], over: slots[nb + 1] };
   };
   return { add, result };
 }
