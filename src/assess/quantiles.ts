@@ -163,10 +163,9 @@ function selectWithinBins(binOf: readonly number[], within: readonly number[], g
  * @example quantilesOfGroups(gsdCm, nadirStrip, inSite, strips, [0, 0.5, 1], siteRadix)
  */
 export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array): Float64Array {
-  const out = new Float64Array(groups * ps.length).fill(NaN);
   let lo = 0;
   while (lo < RADIX_BINS && all[lo] === 0) lo++;
-  if (lo === RADIX_BINS) return out;
+  if (lo === RADIX_BINS) return new Float64Array(groups * ps.length).fill(NaN);
   let hi = RADIX_BINS - 1;
   while (all[hi] === 0) hi--;
   const span = hi - lo + 1;
@@ -180,40 +179,9 @@ export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>
     if (v !== v) continue;
     hist[group[i] * span + radixBin(keys[i]) - lo]++;
   }
-  // Each group's wanted ranks: the bin holding each one and its rank within the bin.
-  const wanted: ({ n: number } & ReturnType<typeof ranksInBins>)[] = [];
-  const slot = new Int32Array(groups * span).fill(-1);
-  const sizes: number[] = [];
-  for (let g = 0; g < groups; g++) {
-    const row = g * span;
-    let count = 0;
-    for (let b = 0; b < span; b++) count += hist[row + b];
-    const w = { n: count, ...(count > 0 ? ranksInBins(hist, row, ranksOf(count, ps)) : { binOf: [], within: [] }) };
-    wanted.push(w);
-    for (const b of w.binOf) {
-      if (slot[row + b] < 0) {
-        slot[row + b] = sizes.length;
-        sizes.push(hist[row + b]);
-      }
-    }
-  }
-  // Second pass: the values of those bins only, in the order they come.
-  const gathered = sizes.map((m) => new Float32Array(m));
-  const fill = new Int32Array(sizes.length);
-  for (let i = 0; i < n; i++) {
-    if (include[i] === 0) continue;
-    const v = values[i];
-    if (v !== v) continue;
-    const k = slot[group[i] * span + radixBin(keys[i]) - lo];
-    if (k >= 0) gathered[k][fill[k]++] = v;
-  }
-  for (let g = 0; g < groups; g++) {
-    const w = wanted[g];
-    if (w.n === 0) continue;
-    const stats = selectWithinBins(w.binOf, w.within, (b) => gathered[slot[g * span + b]]);
-    out.set(interpolate(w.n, ps, stats), g * ps.length);
-  }
-  return out;
+  // Every value lies in the span: each group's wanted ranks are in its bins.
+  const byGroup: GroupRadix = { lo, span, hist, below: new Uint32Array(groups), above: new Uint32Array(groups) };
+  return gatherWanted(values, group, include, ps, byGroup, groupRanks(byGroup, groups, ps)!).groups;
 }
 
 /**
@@ -246,20 +214,40 @@ export function quantilesOfAllAndGroups(values: Float32Array, group: ArrayLike<n
     const { stats } = orderStatisticsOfRadix(values, { hist: all, n }, (m) => ranksOf(m, ps), include);
     return { all: n === 0 ? ps.map(() => NaN) : interpolate(n, ps, stats), groups: quantilesOfGroups(values, group, include, groups, ps, all), fromSpans: false };
   }
+  const got = gatherWanted(values, group, include, ps, byGroup, wantedGroups, { hist: all, n });
+  return { ...got, fromSpans: true };
+}
+
+/**
+ * The second pass of quantilesOfGroups and quantilesOfAllAndGroups: gathers the values of the
+ * bins holding each group's wanted ranks (and, with `site`, those of all values' first pass),
+ * in the order they come, and selects within them. Out: `groups` rows of ps.length values (NaN
+ * for a group with no values), and all values' quantiles when `site` was given (else none).
+ */
+function gatherWanted(
+  values: Float32Array,
+  group: ArrayLike<number>,
+  include: Uint8Array,
+  ps: readonly number[],
+  byGroup: GroupRadix,
+  wanted: ({ n: number } & ReturnType<typeof ranksInBins>)[],
+  site?: RadixHistogram,
+): { all: number[]; groups: Float64Array } {
   const { lo, span, hist } = byGroup;
+  const groups = wanted.length;
   // Slots of the bins to gather: the site's (by bin) and each group's (by group and bin).
   const sizes: number[] = [];
-  const siteW = ranksInBins(all, 0, ranksOf(n, ps));
-  const siteSlot = new Int32Array(RADIX_BINS).fill(-1);
-  for (const b of siteW.binOf) {
+  const siteW = site ? ranksInBins(site.hist, 0, ranksOf(site.n, ps)) : undefined;
+  const siteSlot = new Int32Array(site ? RADIX_BINS : 0).fill(-1);
+  for (const b of siteW?.binOf ?? []) {
     if (siteSlot[b] < 0) {
       siteSlot[b] = sizes.length;
-      sizes.push(all[b]);
+      sizes.push(site!.hist[b]);
     }
   }
   const groupSlot = new Int32Array(groups * span).fill(-1);
   for (let g = 0; g < groups; g++) {
-    for (const b of wantedGroups[g].binOf) {
+    for (const b of wanted[g].binOf) {
       const at = g * span + b;
       if (groupSlot[at] < 0) {
         groupSlot[at] = sizes.length;
@@ -275,8 +263,10 @@ export function quantilesOfAllAndGroups(values: Float32Array, group: ArrayLike<n
     const v = values[i];
     if (v !== v) continue;
     const bin = radixBin(keys[i]);
-    const k = siteSlot[bin];
-    if (k >= 0) gathered[k][fill[k]++] = v;
+    if (siteW) {
+      const k = siteSlot[bin];
+      if (k >= 0) gathered[k][fill[k]++] = v;
+    }
     const b = bin - lo;
     if (b >= 0 && b < span) {
       const kg = groupSlot[group[i] * span + b];
@@ -289,13 +279,14 @@ export function quantilesOfAllAndGroups(values: Float32Array, group: ArrayLike<n
   });
   const out = new Float64Array(groups * ps.length).fill(NaN);
   for (let g = 0; g < groups; g++) {
-    const w = wantedGroups[g];
+    const w = wanted[g];
     if (w.n === 0) continue;
     const stats = selectWithinBins(w.binOf, w.within, (b) => gathered[groupSlot[g * span + b]]);
     out.set(interpolate(w.n, ps, stats), g * ps.length);
   }
+  if (!site || !siteW) return { all: [], groups: out };
   const siteStats = selectWithinBins(siteW.binOf, siteW.within, (b) => gathered[siteSlot[b]]);
-  return { all: interpolate(n, ps, siteStats), groups: out, fromSpans: true };
+  return { all: interpolate(site.n, ps, siteStats), groups: out };
 }
 
 /**
