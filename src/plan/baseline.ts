@@ -217,6 +217,8 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
     siteCells++;
     const c = images[i];
     const z = heights[i];
+    // The GSD of a seen cell (made once: the flags and the report's histogram both use it).
+    const g = c > 0 ? Math.fround((A - z) * gsdPerM) : NaN;
     // NaN (nodata) ground fails both comparisons.
     if (z > maxGroundM) maxGroundM = z;
     if (A - z < clearanceM) shortCells++;
@@ -229,7 +231,7 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
         seenWithGround++;
       }
       // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
-      if (tally !== undefined) tally.add(Math.fround((A - z) * gsdPerM));
+      if (tally !== undefined) tally.add(g);
     }
     let f: number;
     if (valid[i] === 0) f = FLAG_NODATA;
@@ -237,7 +239,6 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
       imageHist[c]++;
       f = c < job.minImages ? FLAG_FEW_IMAGES : 0;
       if (c > 0) {
-        const g = Math.fround((A - z) * gsdPerM);
         if (g > hi) f |= FLAG_COARSE;
         else if (g < lo) f |= FLAG_FINE;
         else inBand++;
