@@ -199,10 +199,22 @@ export function reachOfPhotos(inp: SweepInput): void {
  * @example const best = new Float32Array(inp.bandRows * inp.width); sweepBand(inp, 0, best);
  */
 export function sweepBand(inp: SweepInput, band: number, best: Float32Array): void {
-  const { width, x0, y0, dx, dy, ground, inSite, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
   if (r0 > r1) return;
+  sweepPhotos(inp, r0, r1, best);
+  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, r0 * inp.width, (r1 + 1) * inp.width, band);
+}
+
+/**
+ * sweepBand's photo loop over rows r0..r1. A function of its own so that the engine's
+ * on-the-fly compilation of this loop (entered during the first band, before any band's
+ * effects were made) does not hold the effects pass too: compiled together, the effects
+ * call had no type feedback yet and sent every later band back to the interpreter
+ * (seen with node --trace-deopt: one deoptimisation per band and thread).
+ */
+function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array): void {
+  const { width, x0, y0, dx, dy, ground, inSite, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
   const base0 = r0 * width;
   gsdCm.fill(NaN, base0, (r1 + 1) * width);
   // Zeros written before the first count is read: a fresh page that is first read maps the
@@ -263,7 +275,6 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
       );
     }
   }
-  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, base0, (r1 + 1) * width, band);
 }
 
 /**

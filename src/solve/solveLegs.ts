@@ -347,6 +347,10 @@ function solvePiece(
 ): { altitudeM: Float64Array; vertexStation: Int32Array; stepToM?: number; stepFromM?: number } {
   const prof = p.profile;
   const n = prof.s.length;
+  // Read before the loops below: the engine compiles a long loop while it runs, and code
+  // after it that has not yet run then has no type feedback (node --trace-deopt showed this
+  // call, made only after the loops, sending every later piece back to the interpreter).
+  const vertexStepM = vertexStepOf(opts);
   const lo = new Float64Array(n), hi = new Float64Array(n);
   // Unknown ground under a transit: the floor over the cells that have data nearby, else
   // the highest floor known on this leg, else the take-off's (a guess: warned below).
@@ -433,7 +437,7 @@ function solvePiece(
     else { envelopeCut[k] = 1; tLo[k] = eLo[k]; tHi[k] = Math.min(eHi[k], eLo[k] + bandWidthM); }
   }
   const gates = targetGates(prof.s, eLo, eHi, tLo, tHi, gMin, gMax);
-  const path = minLinkPathOnLattice(prof.s, gates.lo, gates.hi, gMin, gMax, vertexStepOf(opts), pref);
+  const path = minLinkPathOnLattice(prof.s, gates.lo, gates.hi, gMin, gMax, vertexStepM, pref);
   if (!path) throw new Error(`solver: no path through the gates of ${p.kind === "strip" ? "strip" : "the leg into strip"} ${p.strip} (internal error)`);
   const alt = prof.altitudeM;
   for (let v = 0; v + 1 < path.vertexStation.length; v++) {

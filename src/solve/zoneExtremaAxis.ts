@@ -96,36 +96,8 @@ export function zoneExtremaOnAxis(
   let oneRun = true;
   for (let l = cA; l <= cB; l++) if (laneEdge[l]) oneRun = false;
   if (!oneRun) return false;
-  // Fold each group's core cells, in memory order: along the rows of the grid (a row is a
-  // group of a north-south leg, a lane of an east-west one).
   const nanOf = new Int32Array(m);
-  gMax.fill(-Infinity);
-  gMin.fill(Infinity);
-  if (lStride === 1) {
-    for (let j = 0; j < m; j++) {
-      const base = groups[j] * gStride;
-      let mx = -Infinity, mn = Infinity, nan = 0;
-      for (let i = base + cA; i <= base + cB; i++) {
-        const z = heights[i];
-        if (z !== z) { nan++; continue; }
-        if (z > mx) mx = z;
-        if (z < mn) mn = z;
-      }
-      gMax[j] = mx;
-      gMin[j] = mn;
-      nanOf[j] = nan;
-    }
-  } else {
-    for (let l = cA; l <= cB; l++) {
-      const base = l * lStride;
-      for (let j = 0; j < m; j++) {
-        const z = heights[base + groups[j] * gStride];
-        if (z !== z) { nanOf[j]++; continue; }
-        if (z > gMax[j]) gMax[j] = z;
-        if (z < gMin[j]) gMin[j] = z;
-      }
-    }
-  }
+  foldCoreCells(heights, groups, gStride, lStride, cA, cB, gMax, gMin, nanOf);
   for (let j = 0; j < m; j++) nanBefore[j + 1] = nanBefore[j] + nanOf[j];
   const edgeLanes: number[] = [];
   for (let l = l0; l <= l1; l++) if (laneEdge[l]) edgeLanes.push(l);
@@ -177,4 +149,53 @@ export function zoneExtremaOnAxis(
     outMin[i] = bad ? NaN : acc[1];
   }
   return true;
+}
+
+/**
+ * Fold each group's core cells (lanes cA..cB) to its max, min and nodata count, in memory
+ * order: along the rows of the grid (a row is a group of a north-south leg, a lane of an
+ * east-west one). A function of its own so that the engine's on-the-fly compilation of
+ * this loop does not take in the code after it before that code has run (compiled
+ * together, every later call left the compiled loop for the interpreter there: node
+ * --trace-deopt, one deoptimisation per leg).
+ */
+function foldCoreCells(
+  heights: Float32Array,
+  groups: number[],
+  gStride: number,
+  lStride: number,
+  cA: number,
+  cB: number,
+  gMax: Float64Array,
+  gMin: Float64Array,
+  nanOf: Int32Array,
+): void {
+  const m = groups.length;
+  gMax.fill(-Infinity);
+  gMin.fill(Infinity);
+  if (lStride === 1) {
+    for (let j = 0; j < m; j++) {
+      const base = groups[j] * gStride;
+      let mx = -Infinity, mn = Infinity, nan = 0;
+      for (let i = base + cA; i <= base + cB; i++) {
+        const z = heights[i];
+        if (z !== z) { nan++; continue; }
+        if (z > mx) mx = z;
+        if (z < mn) mn = z;
+      }
+      gMax[j] = mx;
+      gMin[j] = mn;
+      nanOf[j] = nan;
+    }
+  } else {
+    for (let l = cA; l <= cB; l++) {
+      const base = l * lStride;
+      for (let j = 0; j < m; j++) {
+        const z = heights[base + groups[j] * gStride];
+        if (z !== z) { nanOf[j]++; continue; }
+        if (z > gMax[j]) gMax[j] = z;
+        if (z < gMin[j]) gMin[j] = z;
+      }
+    }
+  }
 }
