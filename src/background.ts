@@ -60,7 +60,30 @@ export const NOT_IN_BACKGROUND: Background<never> = { result: async () => undefi
  * @example const b = inBackground<Figures>(new URL("./figuresWorker.js", import.meta.url), job); ...; (await b.result()) ?? figures(job)
  */
 export function inBackground<T>(workerUrl: URL, data: unknown): Background<T> {
-  if (!existsSync(fileURLToPath(workerUrl))) return NOT_IN_BACKGROUND;
+  return started<T>(workerUrl, data) ?? NOT_IN_BACKGROUND;
+}
+
+/** Work whose worker starts on what is known now and waits for the rest: `send` posts it. */
+export interface BackgroundWithInput<T> extends Background<T> {
+  /** Posts the rest of the input (typed arrays over shared memory are read in place, the rest is copied). */
+  send: (message: unknown) => void;
+}
+
+/** No worker: send() does nothing, result() gives undefined. */
+export const NOT_IN_BACKGROUND_WITH_INPUT: BackgroundWithInput<never> = { ...NOT_IN_BACKGROUND, send: () => {} };
+
+/**
+ * inBackground for a worker that begins with `data` and then waits for one more message
+ * (send). The caller sends it or cancels: a worker left waiting stays until the process ends.
+ * @example const b = inBackgroundWithInput<Maps>(url, { dem }); ...; b.send({ rasters }); (await b.result()) ?? maps(dem, rasters)
+ */
+export function inBackgroundWithInput<T>(workerUrl: URL, data: unknown): BackgroundWithInput<T> {
+  return started<T>(workerUrl, data) ?? NOT_IN_BACKGROUND_WITH_INPUT;
+}
+
+/** The worker and its handle; undefined when the compiled worker module is missing. */
+function started<T>(workerUrl: URL, data: unknown): BackgroundWithInput<T> | undefined {
+  if (!existsSync(fileURLToPath(workerUrl))) return undefined;
   const w = new Worker(workerUrl, { workerData: data });
   w.unref();
   const made = new Promise<T | undefined>((resolve) => {
@@ -78,5 +101,6 @@ export function inBackground<T>(workerUrl: URL, data: unknown): Background<T> {
       return made;
     },
     cancel: () => void w.terminate(),
+    send: (message: unknown) => w.postMessage(message),
   };
 }

@@ -44,7 +44,7 @@ import { farthestWaypointM, splitFlights, type FlightSplit } from "../route/flig
 import { baselineJob, ceilingBreachGsdCm, type Baseline } from "./baseline.js";
 import { baselineBeforeSolve, constantAltitudeBaselineInBackground, earlyBaselineAllowed } from "./baselineBackground.js";
 import { clearanceSummary } from "./summary.js";
-import { reportMapsInBackground, type ReportMapsAndLayers } from "../report/serialize.js";
+import { reportMapsInBackground, type ReportMapsAndLayers, type ReportMapsInBackground } from "../report/serialize.js";
 import { gsdTallyGrid } from "../report/histogram.js";
 import { waypointRows, type WaypointRow } from "../export/rows.js";
 import { verifyWaypoints } from "../verify/verify.js";
@@ -97,8 +97,8 @@ export interface PlanRun {
   timings: Record<string, number>;
   /**
    * The report's reduced DEM and rasters and the DEM's hill shade and contours, made on a
-   * worker thread once the rasters were final (report/serialize.ts reportMapsInBackground);
-   * undefined when they were not (the report makes them itself).
+   * worker thread (the DEM's part from the load on, the rasters' once final: report/serialize.ts
+   * reportMapsInBackground); undefined when they were not (the report makes them itself).
    */
   reportMaps?: () => Promise<ReportMapsAndLayers | undefined>;
   /** Threads the run was limited to (PlanHooks.threads), if it was: the outputs keep to it too. */
@@ -155,9 +155,33 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
 
   stage("load");
   const prepared = await prepareMission(options, hooks.threads);
-  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones, warnings: loadWarnings } = prepared;
-  warnings.push(...loadWarnings);
+  warnings.push(...prepared.warnings);
   lap("load");
+  // The report's maps: the DEM's part on another core from here on, while this thread lays
+  // out and solves; the rasters' part once they are final (reportMapsInBackground). A plan
+  // that fails stops that worker (it waits for the rasters).
+  const maps = reportMapsInBackground(prepared.grid, hooks.threads);
+  try {
+    return await planLoaded({ options, hooks, prepared, warnings, stage, lap, timings, maps });
+  } catch (e) {
+    maps.cancel();
+    throw e;
+  }
+}
+
+/** planMission from the loaded inputs on: layout, solve, route, verify, assess, comparison. */
+async function planLoaded(ctx: {
+  options: PlanOptions;
+  hooks: PlanHooks;
+  prepared: Awaited<ReturnType<typeof prepareMission>>;
+  warnings: SolveWarning[];
+  stage: (name: PlanStage) => void;
+  lap: (name: string) => void;
+  timings: Record<string, number>;
+  maps: ReportMapsInBackground;
+}): Promise<PlanRun> {
+  const { options, hooks, prepared, warnings, stage, lap, timings, maps } = ctx;
+  const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones } = prepared;
 
   stage("layout");
   const fullLayout = missionLayout(prepared, options);
@@ -359,9 +383,12 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
     polygons: false,
     onRasters: (r) => {
       polygonsMade = flagPolygonsInBackground({ flags: r.flags, width: r.width, height: r.height, transform: r.transform, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2 }, hooks.threads);
-      reportMaps = reportMapsInBackground(grid, r, hooks.threads).result;
+      maps.withRasters(r);
+      reportMaps = maps.result;
     },
   });
+  // No rasters handed over (none were made): the maps' worker is not left waiting for them.
+  if (!reportMaps) maps.cancel();
   const r = assessed.rasters;
   const polygons = (await polygonsMade.result()) ?? flagPolygons(r.flags, r.width, r.height, r.transform, frame.toWgs84, cellAreaM2);
   const assessment: Assessment = { ...assessed, polygons };

@@ -1,16 +1,26 @@
 import { parentPort, workerData } from "node:worker_threads";
-import { reportMaps, type ReportMaps, type ReportMapsAndLayers } from "./serialize.js";
+import type { ReportMapsAndLayers } from "./serialize.js";
+import type { ReportGrid, ReportRasters } from "./model.js";
+import { blockFactor, downsampleGrid, downsampleRasters } from "./downsample.js";
 import { demLayers } from "./demLayers.js";
+import { lowerThisThreadPriority } from "../threadPriority.js";
 
 /**
- * Worker thread that reduces the DEM and the plan's rasters for the report, and draws the
- * reduced DEM's hill shade and contours, while the plan's statistics are made (see
- * reportMapsInBackground); the reduced arrays are handed over.
+ * Worker thread of reportMapsInBackground: reduces the DEM for the report and draws the
+ * reduced DEM's hill shade and contours at once, then waits for the plan's rasters, reduces
+ * them and hands everything over (the reduced arrays are transferred, not copied). The
+ * factors are reportMaps's (serialize.ts), at its default of 1000 pixels.
  */
-const { dem, rasters } = workerData as ReportMaps;
-const maps = reportMaps(dem, rasters);
-const made: ReportMapsAndLayers = { ...maps, layers: demLayers(maps.dem) };
-const own = [maps.dem.heights, maps.rasters.gsdCm, maps.rasters.images, maps.rasters.flags, maps.rasters.inSite]
-  .map((a) => a.buffer)
-  .filter((b): b is ArrayBuffer => b instanceof ArrayBuffer);
-parentPort?.postMessage(made, [...new Set(own)]);
+const MAX_PX = 1000;
+const { dem, nice } = workerData as { dem: ReportGrid; nice?: number };
+if (nice !== undefined) lowerThisThreadPriority(nice);
+const small = downsampleGrid(dem, blockFactor(dem.width, dem.height, MAX_PX));
+const layers = demLayers(small);
+parentPort?.once("message", ({ rasters }: { rasters: ReportRasters }) => {
+  const reduced = downsampleRasters(rasters, blockFactor(rasters.width, rasters.height, MAX_PX));
+  const made: ReportMapsAndLayers = { dem: small, rasters: reduced, layers };
+  const own = [small.heights, reduced.gsdCm, reduced.images, reduced.flags, reduced.inSite]
+    .map((a) => a.buffer)
+    .filter((b): b is ArrayBuffer => b instanceof ArrayBuffer);
+  parentPort?.postMessage(made, [...new Set(own)]);
+});

@@ -12,7 +12,7 @@ import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
 import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
 import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
-import { backgroundAllowed, inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { backgroundAllowed, inBackgroundWithInput, NOT_IN_BACKGROUND, type Background } from "../background.js";
 import type { DemLayers } from "./demLayers.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
@@ -96,20 +96,41 @@ export interface ReportMapsAndLayers extends ReportMaps {
 }
 
 /**
- * Starts reportMaps, and the hill shade and contours of the reduced DEM, on a worker thread
- * (background.ts) as soon as the plan's rasters are final, so they are made while this
- * thread makes the plan's statistics. Only for a large grid on several threads (arrays in
- * shared memory are read in place).
- * @example const maps = reportMapsInBackground(grid, rasters); ...; compactReportInput(input, 1000, await maps.result())
+ * The nice value of the maps' worker (threadPriority.ts): it runs beside the layout and the
+ * solve, whose thread and whose code's optimisation (V8's compiler threads) come first.
  */
-export function reportMapsInBackground(dem: ReportGrid, rasters: ReportRasters, threads?: number): Background<ReportMapsAndLayers> {
-  if (!backgroundAllowed(dem.width * dem.height, threads) || blockFactor(dem.width, dem.height, 1000) <= 1) return NOT_IN_BACKGROUND;
+const MAPS_NICE = 10;
+
+/** reportMaps and the DEM's layers on a worker thread: the DEM's part at once, the rasters' when handed over. */
+export interface ReportMapsInBackground extends Background<ReportMapsAndLayers> {
+  /** Hands over the plan's final rasters: result() then gives the maps. */
+  withRasters: (rasters: ReportRasters) => void;
+}
+
+/**
+ * Starts the report's maps on a worker thread (background.ts) as soon as the DEM is read:
+ * the DEM reduced as reportMaps reduces it, and its hill shade and contours (demLayers), are
+ * made while this thread lays out and solves the plan (a second core mostly idle then); the
+ * rasters, handed over once final (withRasters), are reduced while this thread makes the
+ * plan's statistics. The same figures as reportMaps: reducing the DEM apart from the rasters
+ * adds each block's heights in the same order (downsample.ts). Only for a grid that is
+ * reduced, and large enough (arrays in shared memory are read in place). Hand the rasters
+ * over or cancel: the worker waits for them.
+ * @example const maps = reportMapsInBackground(grid); ...; maps.withRasters(rasters); compactReportInput(input, 1000, await maps.result())
+ */
+export function reportMapsInBackground(dem: ReportGrid, threads?: number): ReportMapsInBackground {
+  const none: ReportMapsInBackground = { ...NOT_IN_BACKGROUND, withRasters: () => {} };
+  if (!backgroundAllowed(dem.width * dem.height, threads) || blockFactor(dem.width, dem.height, 1000) <= 1) return none;
   const { width, height, transform, cellSizeM, heights } = dem;
-  const { gsdCm, images, flags, inSite } = rasters;
-  return inBackground<ReportMapsAndLayers>(mapsWorkerUrl, {
-    dem: { width, height, transform, cellSizeM, heights },
-    rasters: { width: rasters.width, height: rasters.height, transform: rasters.transform, gsdCm, images, flags, inSite },
-  } satisfies ReportMaps);
+  const job = inBackgroundWithInput<ReportMapsAndLayers>(mapsWorkerUrl, { dem: { width, height, transform, cellSizeM, heights } satisfies ReportGrid, nice: MAPS_NICE });
+  return {
+    result: job.result,
+    cancel: job.cancel,
+    withRasters: (r) => {
+      const { width, height, transform, gsdCm, images, flags, inSite } = r;
+      job.send({ rasters: { width, height, transform, gsdCm, images, flags, inSite } satisfies ReportRasters });
+    },
+  };
 }
 
 /**

@@ -56,7 +56,10 @@ describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thr
     }
     const here = reportMaps(dem, rasters);
     expect(here.dem.width).toBe(750);
-    const maps = await reportMapsInBackground(dem, rasters).result();
+    // The worker reduces the DEM as it starts and the rasters when they are handed over.
+    const job = reportMapsInBackground(dem);
+    job.withRasters(rasters);
+    const maps = await job.result();
     expect(maps).toBeDefined();
     expect(firstDifference(maps!.dem, here.dem)).toBe("");
     expect(firstDifference(maps!.rasters, here.rasters)).toBe("");
@@ -64,7 +67,17 @@ describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thr
     expect(maps!.layers).toEqual(demLayers(here.dem));
     expect(maps!.layers.contours.svg.length).toBeGreaterThan(1000);
     // One thread requested: no worker.
-    expect(await reportMapsInBackground(dem, rasters, 1).result()).toBeUndefined();
+    const one = reportMapsInBackground(dem, 1);
+    one.withRasters(rasters);
+    expect(await one.result()).toBeUndefined();
+  });
+
+  it("are not made when the plan stops before its rasters (the worker, waiting for them, is stopped)", async () => {
+    const { reportMapsInBackground } = (await import(builtMaps.href)) as { reportMapsInBackground: typeof MapsInBackground };
+    const dem = makeGrid({ width: 1500, height: 1100, x0: 500000, y0: 6000000, cellM: 1, heights: (x, y) => 300 + x / 100 + y / 50 });
+    const job = reportMapsInBackground(dem);
+    job.cancel();
+    expect(await job.result()).toBeUndefined();
   });
 
   it("are used by compactReportInput only when they fit its input", () => {
