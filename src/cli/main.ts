@@ -2,6 +2,8 @@
 // The CLI stays thin: each command module declares its options and calls the library in
 // its action. Users run it bundled into one file with the library (package.json's bin,
 // dist/bundle/main.js, scripts/bundle.mjs), so it starts without resolving each module.
+// First: the engine's settings for this process (engineSettings.ts), before any other module's code runs.
+import "./engineSettings.js";
 import { Command } from "commander";
 import { registerCommands } from "./commands/index.js";
 import { runMain } from "./run.js";
