@@ -12,6 +12,7 @@
  * packages", The American Statistician 50 (1996) 361-365 (the default of R
  * and NumPy).
  */
+import { zeroFilled } from "../zeroFill.js";
 
 /**
  * Quantiles `ps` (each in [0, 1]) of `values`; NaN entries are ignored, and so are
@@ -37,7 +38,7 @@ export function orderStatistics(values: Float32Array, ranksFor: (n: number) => n
   // Below this many values the radix table (65,536 bins) costs more than selecting on a copy.
   if (values.length <= SELECT_BELOW) return statsBySelection(values, ranksFor, mask);
   const keys = float32Keys(values);
-  const hist = new Uint32Array(RADIX_BINS);
+  const hist = zeroFilled(new Uint32Array(RADIX_BINS));
   let n = 0;
   for (let i = 0; i < keys.length; i++) {
     const v = values[i];
@@ -172,7 +173,7 @@ export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>
   const keys = float32Keys(values);
   const n = values.length;
   // First pass: each group's bins, within the span.
-  const hist = new Uint32Array(groups * span);
+  const hist = zeroFilled(new Uint32Array(groups * span));
   for (let i = 0; i < n; i++) {
     if (include[i] === 0) continue;
     const v = values[i];

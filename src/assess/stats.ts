@@ -5,6 +5,7 @@ import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { tallyCounter, tallyEdges, tallyOfSlots, type GsdTallyGrid } from "./gsdTally.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, quantilesOfAllAndGroups, radixBin, radixBinOfValue, type GroupRadix } from "./quantiles.js";
+import { zeroFilled } from "../zeroFill.js";
 
 /**
  * Summary figures of an assessment over the site's cells.
@@ -155,7 +156,10 @@ function stripSpanJob(spanCm: [number, number] | undefined, strips: number, thre
 
 /** Memory for the statistics' pass: shared when other threads fill it. */
 function buffer(threads: number, bytes: number): ArrayBufferLike {
-  return threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes);
+  // Counters: zeros written before the first count is read (zeroFill.ts).
+  const b = threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes);
+  zeroFilled(new Uint8Array(b));
+  return b;
 }
 
 /** The per-slot tallies added up (slot 0's own array when there is one slot). */

@@ -23,6 +23,7 @@ import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStati
 import { histogramCounter, histogramOfTally } from "../report/histogram.js";
 import { tallyCounter, tallyOfSlots, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 import type { Histogram } from "../report/model.js";
+import { zeroFilled } from "../zeroFill.js";
 
 export interface CeilingBreaches {
   cells: number;
@@ -197,11 +198,11 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   const { heights, valid } = grid;
   const heightBits = float32Keys(heights);
   let seen = 0;
-  const seenBits = new Uint8Array((n + 7) >> 3);
-  const imageHist = new Float64Array(65536);
+  const seenBits = zeroFilled(new Uint8Array((n + 7) >> 3));
+  const imageHist = zeroFilled(new Float64Array(65536));
   const kindCells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
   const flagHist = new Float64Array(FLAG_VALUES);
-  const seenGround = new Uint32Array(RADIX_BINS);
+  const seenGround = zeroFilled(new Uint32Array(RADIX_BINS));
   let seenWithGround = 0;
   let siteCells = 0;
   let flagged = 0;
@@ -210,7 +211,7 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   let shortCells = 0;
   let maxGroundM = -Infinity;
   const clearanceM = job.clearanceM;
-  const tallySlots = job.gsdTally ? new Float64Array(job.gsdTally.bins + 2) : undefined;
+  const tallySlots = job.gsdTally ? zeroFilled(new Float64Array(job.gsdTally.bins + 2)) : undefined;
   const tally = job.gsdTally && tallySlots ? tallyCounter(job.gsdTally, tallySlots, 0) : undefined;
   for (let i = 0; i < n; i++) {
     if (inSite[i] === 0) continue;
