@@ -3,7 +3,7 @@ import type { Camera, Requirement } from "../camera/types.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import { computeCoverage, type Coverage } from "./coverage.js";
-import { bandThreads } from "./bandThreads.js";
+import { bandPool as newBandPool, bandThreads, type BandPool } from "./bandThreads.js";
 import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
 import { paintCauseZones, paintKeepOutCuts } from "./flagRaster.js";
@@ -97,9 +97,25 @@ export function assessPlan(
   const inSite = opts.inSite ?? siteMaskFor(grid, site, opts.threads);
   if (inSite.length !== width * height) throw new Error(`site mask of ${inSite.length} cells for a ${width} x ${height} grid`);
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
+  // One set of band workers for the sweep and the statistics' pass (bandThreads.ts BandPool).
+  const bandPool = newBandPool();
+  try {
+    return assessWithPool(grid, inSite, legs, camera, requirement, opts, exposures, minImages, cellAreaM2, bandPool);
+  } finally {
+    bandPool.close();
+  }
+}
+
+/** assessPlan's passes, on `bandPool`'s workers. */
+function assessWithPool(
+  grid: DemGrid, inSite: Uint8Array, legs: readonly AssessedLeg[], camera: Camera, requirement: Pick<Requirement, "lowGsdM" | "highGsdM">, opts: AssessOptions,
+  exposures: ReturnType<typeof exposuresFromLegs>, minImages: number, cellAreaM2: number, bandPool: BandPool,
+): Assessment {
+  const { width, height, transform } = grid;
   const { gsdCm, images, nadirStrip, flags, seenByBand } = computeCoverage(grid, inSite, exposures, camera, {
     nadirBy: opts.nadirBy,
     threads: opts.threads,
+    bandPool,
     // The effect bits are set band by band as soon as a band's photos are all counted.
     effects: { lowGsdCm: requirement.lowGsdM * 100, highGsdCm: requirement.highGsdM * 100, minImages },
   }) as Required<Coverage>;
@@ -110,7 +126,7 @@ export function assessPlan(
   opts.onRasters?.(rasters);
   // The coverage pass counted the seen cells for strips 0 .. the highest photo's strip.
   const maxStrip = seenByBand.strips - 1;
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}),
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, bandPool, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}),
     // Each strip's first radix pass in the statistics' pass, over an eighth of the band's low
     // edge to eight times its high edge (three octaves either side, ~800 bins): a strip whose
     // wanted ranks (its extremes among them) lie beyond has its quantiles made by more passes.

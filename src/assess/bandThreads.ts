@@ -45,19 +45,45 @@ export function shareable<T extends Float32Array | Uint8Array | Uint16Array | In
 }
 
 /**
+ * Band workers kept for several passes (the assessment's footprint sweep, then its
+ * statistics' pass): a worker thread costs ~50 ms of CPU to start and about as much to end
+ * (its engine's pages unmapped one by one, each interrupting every core that runs one of the
+ * plan's threads), so one set serves both. close() ends them: a worker kept idle would hold
+ * on to the last job's arrays until its own heap is collected, which an idle thread never does.
+ * @example const pool = bandPool(); try { ...; runBands("sweep", input, bands, threads, sweepBands, pool); ... } finally { pool.close(); }
+ */
+export interface BandPool {
+  readonly workers: Worker[];
+  close: () => void;
+}
+
+/** An empty pool: runBands starts its workers when first needed. */
+export function bandPool(): BandPool {
+  const workers: Worker[] = [];
+  return { workers, close: () => { for (const w of workers.splice(0)) void w.terminate(); } };
+}
+
+/**
  * Runs `loop` (which takes bands from the counter until none is left) on this thread and,
  * with more than one thread, the same loop (`kind`) in workers over `input`, whose arrays
  * the workers write must be in shared memory. Each thread has its slot (this one 0, the
- * workers 1 .. threads - 1), for loops that keep per-thread tallies. The workers are ended afterwards: a worker
- * kept idle would hold on to the last job's shared arrays until its own heap is collected,
- * which an idle thread never does.
+ * workers 1 .. threads - 1), for loops that keep per-thread tallies. The workers are those of
+ * `pool` (started there when missing, kept for its next pass), else started for this pass and
+ * ended afterwards (see BandPool).
  * @example runBands("lattice", input, bands, threads, latticeBands);
  */
-export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number, slot: number) => void): void {
+export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number, slot: number) => void, pool?: BandPool): void {
   const next = new Int32Array(new SharedArrayBuffer(4));
   const done = new Int32Array(new SharedArrayBuffer(4 * threads));
-  const workers: Worker[] = [];
-  for (let t = 1; t < threads; t++) workers.push(new Worker(workerUrl, { workerData: { kind, input, next, bands, done, slot: t } }));
+  const own: Worker[] = [];
+  const workers = pool ? pool.workers : own;
+  while (workers.length < threads - 1) {
+    const w = new Worker(workerUrl);
+    // This thread waits on the flags, not on the event loop: a worker never keeps the process alive.
+    w.unref();
+    workers.push(w);
+  }
+  for (let t = 1; t < threads; t++) workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
   loop(input, next, bands, 0);
   let failed = false;
   for (let t = 1; t < threads; t++) {
@@ -66,6 +92,16 @@ export function runBands<I>(kind: BandKind, input: I, bands: number, threads: nu
     while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
     if (Atomics.load(done, t) !== 1) failed = true;
   }
-  for (const w of workers) void w.terminate();
+  for (const w of own) void w.terminate();
   if (failed) throw new Error(`${kind}: a worker thread failed`);
+}
+
+/** One pass's job for a band worker (coverageWorker.ts). */
+export interface BandJob {
+  kind: BandKind;
+  input: unknown;
+  next: Int32Array;
+  bands: number;
+  done: Int32Array;
+  slot: number;
 }

@@ -2,7 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import type { Camera } from "../camera/types.js";
 import type { Exposure } from "./types.js";
 import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBands, type NadirBy, type SeenByBand, type SweepInput } from "./coverageKernel.js";
-import { bandThreads, runBands, shareable } from "./bandThreads.js";
+import { bandThreads, runBands, shareable, type BandPool } from "./bandThreads.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -54,6 +54,8 @@ export interface CoverageOptions {
    * library (dist), where the compiled worker module sits next to this one.
    */
   threads?: number;
+  /** Workers to use, kept for later passes (bandThreads.ts BandPool); default: started for this pass and ended. */
+  bandPool?: BandPool;
   /** Also set the effect flags (coarse, fine, too few images, no data) in the same pass. */
   effects?: { lowGsdCm: number; highGsdCm: number; minImages: number };
 }
@@ -126,7 +128,7 @@ export function computeCoverage(
     // No site ground at all: no photo can see anything (every row range left empty).
     input.rowLo.fill(1);
   } else reachOfPhotos(input);
-  runBands("sweep", input, bands, threads, sweepBands);
+  runBands("sweep", input, bands, threads, sweepBands, opts.bandPool);
   return {
     gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip,
     ...(input.flags ? { flags: input.flags } : {}),

@@ -1,6 +1,6 @@
 import type { AssessmentStats, GsdStats } from "./types.js";
 import type { SeenByBand } from "./coverageKernel.js";
-import { bandThreads, runBands, shareable } from "./bandThreads.js";
+import { bandThreads, runBands, shareable, type BandPool } from "./bandThreads.js";
 import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { tallyCounter, tallyEdges, tallyOfSlots, type GsdTallyGrid } from "./gsdTally.js";
@@ -36,6 +36,8 @@ export interface StatsInput {
   seenByBand?: SeenByBand;
   /** Threads for that pass (see bandThreads); default the machine's choice. */
   threads?: number;
+  /** Workers to use, kept for later passes (bandThreads.ts BandPool); default: started for this pass and ended. */
+  bandPool?: BandPool;
   /** Also count the seen site cells whose GSD is at least this (cm/px): stats.gsdAtLeast. */
   gsdAtLeastCm?: number;
   /** Also tally the seen site cells' GSD on this grid (gsdTally.ts): stats.gsdTally. */
@@ -213,7 +215,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     ...(input.gsdTally ? { tallyGrid: input.gsdTally, tallyEdges: tallyEdges(input.gsdTally), tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
     ...stripSpanJob(input.stripSpanCm, S, threads),
   };
-  runBands("stats", job, bands, threads, statsPassBands);
+  runBands("stats", job, bands, threads, statsPassBands, input.bandPool);
   const flagHist = sumOfSlots(job.flagHist, threads);
   const imageHist = sumOfSlots(job.imageHist, threads);
   const inBandSeen = sumOfSlots(job.inBandSeen, threads);

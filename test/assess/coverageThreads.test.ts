@@ -91,6 +91,34 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     expect(() => assessmentStats({ ...statsIn, maxStrip: strips, seenByBand: twoD.seenByBand })).toThrow(/strips/);
   });
 
+  it("runs the sweep and the statistics on one pool's worker, with the same figures", async () => {
+    const { computeCoverage } = (await import(distCoverage.href)) as { computeCoverage: typeof ComputeCoverage };
+    const { assessmentStats } = (await import(new URL("../../dist/assess/stats.js", import.meta.url).href)) as typeof import("../../src/assess/stats.js");
+    const { bandPool } = (await import(new URL("../../dist/assess/bandThreads.js", import.meta.url).href)) as typeof import("../../src/assess/bandThreads.js");
+    const grid = makeGrid({ width: 1000, height: 1100, x0: 0, y0: 550, cellM: 0.5, heights: (x, y) => 180 + 15 * Math.cos(x / 33) * Math.sin(y / 47) });
+    const inSite = new Uint8Array(grid.width * grid.height).fill(1);
+    const ex: Exposure[] = [];
+    for (let j = 0; j < 12; j++) for (let k = 0; k < 24; k++) ex.push({ x: 30 + j * 40, y: 520 - k * 22, altitudeAmslM: 280 + (j % 2), ux: 0, uy: -1, strip: j + 1 });
+    const camera = genericCamera();
+    const effects = { lowGsdCm: 2.0, highGsdCm: 2.6, minImages: 3 };
+    const alone = computeCoverage(grid, inSite, ex, camera, { threads: 2, nadirBy: "distance", effects });
+    const pool = bandPool();
+    const pooled = computeCoverage(grid, inSite, ex, camera, { threads: 2, nadirBy: "distance", effects, bandPool: pool });
+    expect(pool.workers.length).toBe(1);
+    const worker = pool.workers[0];
+    for (const k of ["images", "gsdCm", "nadirStrip", "flags"] as const) {
+      expect(Buffer.from(pooled[k]!.buffer).equals(Buffer.from(alone[k]!.buffer)), k).toBe(true);
+    }
+    const statsIn = (c: typeof alone) => ({ gsdCm: c.gsdCm, images: c.images, flags: c.flags!, inSite, valid: grid.valid, nadirStrip: c.nadirStrip, cellAreaM2: 0.25, maxStrip: c.seenByBand!.strips - 1, seenByBand: c.seenByBand });
+    const own = assessmentStats({ ...statsIn(alone), threads: 2 });
+    expect(own.perStrip.length).toBe(12);
+    // The statistics' pass takes its bands on the same worker, which stays in the pool until closed.
+    expect(assessmentStats({ ...statsIn(pooled), threads: 2, bandPool: pool })).toEqual(own);
+    expect(pool.workers).toEqual([worker]);
+    pool.close();
+    expect(pool.workers.length).toBe(0);
+  });
+
   it("gives the same constant-altitude image counts as one thread", async () => {
     const { latticeImageCounts } = (await import(new URL("../../dist/assess/latticeCoverage.js", import.meta.url).href)) as typeof import("../../src/assess/latticeCoverage.js");
     const grid = makeGrid({ width: 1300, height: 1100, x0: 0, y0: 550, cellM: 0.5, heights: (x, y) => 150 + 18 * Math.sin(x / 37) * Math.cos(y / 51) });
