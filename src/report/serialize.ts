@@ -12,7 +12,7 @@ import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
 import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
 import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
-import { backgroundAllowed, inBackgroundWithInput, NOT_IN_BACKGROUND, type Background } from "../background.js";
+import { backgroundAllowed, inBackgroundWithInput, NOT_IN_BACKGROUND, type Background, type BackgroundWithInput } from "../background.js";
 import type { DemLayers } from "./demLayers.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
@@ -122,15 +122,27 @@ export function reportMapsInBackground(dem: ReportGrid, threads?: number): Repor
   const none: ReportMapsInBackground = { ...NOT_IN_BACKGROUND, withRasters: () => {} };
   if (!backgroundAllowed(dem.width * dem.height, threads) || blockFactor(dem.width, dem.height, 1000) <= 1) return none;
   const { width, height, transform, cellSizeM, heights } = dem;
-  const job = inBackgroundWithInput<ReportMapsAndLayers>(mapsWorkerUrl, { dem: { width, height, transform, cellSizeM, heights } satisfies ReportGrid, nice: MAPS_NICE });
-  return {
-    result: job.result,
-    cancel: job.cancel,
-    withRasters: (r) => {
-      const { width, height, transform, gsdCm, images, flags, inSite } = r;
-      job.send({ rasters: { width, height, transform, gsdCm, images, flags, inSite } satisfies ReportRasters });
-    },
+  const start = () => inBackgroundWithInput<ReportMapsAndLayers>(mapsWorkerUrl, { dem: { width, height, transform, cellSizeM, heights } satisfies ReportGrid, nice: MAPS_NICE });
+  const send = (job: BackgroundWithInput<ReportMapsAndLayers>, r: ReportRasters) => {
+    const { width, height, transform, gsdCm, images, flags, inSite } = r;
+    job.send({ rasters: { width, height, transform, gsdCm, images, flags, inSite } satisfies ReportRasters });
   };
+  if (!(heights.buffer instanceof SharedArrayBuffer)) {
+    // Heights outside shared memory (a mosaic's, a reprojected DEM's) are copied to the
+    // worker: started with the rasters instead, its copy is held only while the statistics
+    // are made, not through the assessment's peak.
+    let late: BackgroundWithInput<ReportMapsAndLayers> | undefined;
+    return {
+      result: async () => late?.result(),
+      cancel: () => late?.cancel(),
+      withRasters: (r) => {
+        late = start();
+        send(late, r);
+      },
+    };
+  }
+  const job = start();
+  return { result: job.result, cancel: job.cancel, withRasters: (r) => send(job, r) };
 }
 
 /**

@@ -56,16 +56,21 @@ describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thr
     }
     const here = reportMaps(dem, rasters);
     expect(here.dem.width).toBe(750);
-    // The worker reduces the DEM as it starts and the rasters when they are handed over.
-    const job = reportMapsInBackground(dem);
-    job.withRasters(rasters);
-    const maps = await job.result();
-    expect(maps).toBeDefined();
-    expect(firstDifference(maps!.dem, here.dem)).toBe("");
-    expect(firstDifference(maps!.rasters, here.rasters)).toBe("");
-    // With the DEM's layers drawn from the reduced DEM, as the page draws them from the full one.
-    expect(maps!.layers).toEqual(demLayers(here.dem));
-    expect(maps!.layers.contours.svg.length).toBeGreaterThan(1000);
+    // Heights in shared memory: the worker reduces the DEM as it starts and the rasters when
+    // they are handed over; other heights (copied to the worker): all once the rasters come.
+    const shared = new Float32Array(new SharedArrayBuffer(4 * n));
+    shared.set(dem.heights);
+    for (const heights of [shared, dem.heights]) {
+      const job = reportMapsInBackground({ ...dem, heights });
+      job.withRasters(rasters);
+      const maps = await job.result();
+      expect(maps).toBeDefined();
+      expect(firstDifference(maps!.dem, here.dem)).toBe("");
+      expect(firstDifference(maps!.rasters, here.rasters)).toBe("");
+      // With the DEM's layers drawn from the reduced DEM, as the page draws them from the full one.
+      expect(maps!.layers).toEqual(demLayers(here.dem));
+      expect(maps!.layers.contours.svg.length).toBeGreaterThan(1000);
+    }
     // One thread requested: no worker.
     const one = reportMapsInBackground(dem, 1);
     one.withRasters(rasters);
@@ -75,9 +80,13 @@ describe.skipIf(!builtMaps.available)("the report's maps reduced in a worker thr
   it("are not made when the plan stops before its rasters (the worker, waiting for them, is stopped)", async () => {
     const { reportMapsInBackground } = (await import(builtMaps.href)) as { reportMapsInBackground: typeof MapsInBackground };
     const dem = makeGrid({ width: 1500, height: 1100, x0: 500000, y0: 6000000, cellM: 1, heights: (x, y) => 300 + x / 100 + y / 50 });
-    const job = reportMapsInBackground(dem);
-    job.cancel();
-    expect(await job.result()).toBeUndefined();
+    const heights = new Float32Array(new SharedArrayBuffer(4 * dem.heights.length));
+    heights.set(dem.heights);
+    for (const d of [{ ...dem, heights }, dem]) {
+      const job = reportMapsInBackground(d);
+      job.cancel();
+      expect(await job.result()).toBeUndefined();
+    }
   });
 
   it("are used by compactReportInput only when they fit its input", () => {
