@@ -39,6 +39,8 @@ export interface AssessOptions {
   nadirBy?: NadirBy;
   /** Threads for the coverage pass (see CoverageOptions). */
   threads?: number;
+  /** Band workers to use, started ahead and ended by the caller (bandThreads.ts BandPool); default: the assessment's own. */
+  bandPool?: BandPool;
   /**
    * Stretches of strips cut at keep-out zones, with the footprint they would have
    * imaged: too-few-images cells under them get the keep-out bit.
@@ -97,12 +99,13 @@ export function assessPlan(
   const inSite = opts.inSite ?? siteMaskFor(grid, site, opts.threads);
   if (inSite.length !== width * height) throw new Error(`site mask of ${inSite.length} cells for a ${width} x ${height} grid`);
   const exposures = exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase });
-  // One set of band workers for the sweep and the statistics' pass (bandThreads.ts BandPool).
-  const bandPool = newBandPool();
+  // One set of band workers for the sweep and the statistics' pass (bandThreads.ts BandPool):
+  // the caller's, or one of its own ended here.
+  const own = opts.bandPool ? undefined : newBandPool();
   try {
-    return assessWithPool(grid, inSite, legs, camera, requirement, opts, exposures, minImages, cellAreaM2, bandPool);
+    return assessWithPool(grid, inSite, legs, camera, requirement, opts, exposures, minImages, cellAreaM2, opts.bandPool ?? own!);
   } finally {
-    bandPool.close();
+    own?.close();
   }
 }
 

@@ -54,13 +54,31 @@ export function shareable<T extends Float32Array | Uint8Array | Uint16Array | In
  */
 export interface BandPool {
   readonly workers: Worker[];
+  /**
+   * Starts workers now, up to `count`, ahead of the first pass: a worker takes 50-200 ms to
+   * start (more while other threads hold the cores), and a pass that begins before its workers
+   * are up runs on this thread alone meanwhile (the demo's sweep was over before its worker was).
+   */
+  start: (count: number) => void;
   close: () => void;
 }
 
-/** An empty pool: runBands starts its workers when first needed. */
+/** An empty pool: runBands (or start) starts its workers when first needed. */
 export function bandPool(): BandPool {
   const workers: Worker[] = [];
-  return { workers, close: () => { for (const w of workers.splice(0)) void w.terminate(); } };
+  return {
+    workers,
+    start: (count) => { while (workers.length < count) workers.push(bandWorker()); },
+    close: () => { for (const w of workers.splice(0)) void w.terminate(); },
+  };
+}
+
+/** A band worker (coverageWorker.ts), waiting for jobs. */
+function bandWorker(): Worker {
+  const w = new Worker(workerUrl);
+  // runBands waits on the flags, not on the event loop: a worker never keeps the process alive.
+  w.unref();
+  return w;
 }
 
 /**
@@ -77,12 +95,7 @@ export function runBands<I>(kind: BandKind, input: I, bands: number, threads: nu
   const done = new Int32Array(new SharedArrayBuffer(4 * threads));
   const own: Worker[] = [];
   const workers = pool ? pool.workers : own;
-  while (workers.length < threads - 1) {
-    const w = new Worker(workerUrl);
-    // This thread waits on the flags, not on the event loop: a worker never keeps the process alive.
-    w.unref();
-    workers.push(w);
-  }
+  while (workers.length < threads - 1) workers.push(bandWorker());
   for (let t = 1; t < threads; t++) workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
   loop(input, next, bands, 0);
   let failed = false;

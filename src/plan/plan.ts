@@ -36,6 +36,7 @@ import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan, siteMaskFor } from "../assess/assess.js";
+import { bandPool, bandThreads, type BandPool } from "../assess/bandThreads.js";
 import { photoPhaseOn, type AssessedLeg } from "../assess/exposures.js";
 import type { Assessment, FlagPolygons } from "../assess/types.js";
 import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.js";
@@ -161,11 +162,16 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   // out and solves; the rasters' part once they are final (reportMapsInBackground). A plan
   // that fails stops that worker (it waits for the rasters).
   const maps = reportMapsInBackground(prepared.grid, hooks.threads);
+  // The assessment's band workers, started at the route stage (planLoaded) so they are up when
+  // the sweep begins; ended here whatever happens.
+  const bands = bandPool();
   try {
-    return await planLoaded({ options, hooks, prepared, warnings, stage, lap, timings, maps });
+    return await planLoaded({ options, hooks, prepared, warnings, stage, lap, timings, maps, bands });
   } catch (e) {
     maps.cancel();
     throw e;
+  } finally {
+    bands.close();
   }
 }
 
@@ -179,8 +185,9 @@ async function planLoaded(ctx: {
   lap: (name: string) => void;
   timings: Record<string, number>;
   maps: ReportMapsInBackground;
+  bands: BandPool;
 }): Promise<PlanRun> {
-  const { options, hooks, prepared, warnings, stage, lap, timings, maps } = ctx;
+  const { options, hooks, prepared, warnings, stage, lap, timings, maps, bands } = ctx;
   const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones } = prepared;
 
   stage("layout");
@@ -304,6 +311,8 @@ async function planLoaded(ctx: {
   lap("solve");
 
   stage("route");
+  // The sweep's workers start now, while this thread routes and checks the plan (BandPool.start).
+  bands.start(bandThreads(grid.width * grid.height, Number.MAX_SAFE_INTEGER, hooks.threads) - 1);
   // The constant-altitude comparison needs only the final strips, the DEM and the site: it
   // is made on the other core from here on (or from before the solve, when the solve kept
   // the strips as laid out), while this thread routes, checks and assesses.
@@ -374,6 +383,7 @@ async function planLoaded(ctx: {
     // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
     nadirBy: "distance",
     ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
+    bandPool: bands,
     ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
     inSite,
     ...(breachGsdCm !== undefined ? { countGsdAtLeastCm: breachGsdCm } : {}),
