@@ -103,9 +103,12 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     const effects = { lowGsdCm: 2.0, highGsdCm: 2.6, minImages: 3 };
     const alone = computeCoverage(grid, inSite, ex, camera, { threads: 2, nadirBy: "distance", effects });
     const pool = bandPool();
-    const pooled = computeCoverage(grid, inSite, ex, camera, { threads: 2, nadirBy: "distance", effects, bandPool: pool });
+    // Started ahead of the pass (as the plan does at its route stage): the pass takes that worker.
+    pool.start(1);
     expect(pool.workers.length).toBe(1);
     const worker = pool.workers[0];
+    const pooled = computeCoverage(grid, inSite, ex, camera, { threads: 2, nadirBy: "distance", effects, bandPool: pool });
+    expect(pool.workers).toEqual([worker]);
     for (const k of ["images", "gsdCm", "nadirStrip", "flags"] as const) {
       expect(Buffer.from(pooled[k]!.buffer).equals(Buffer.from(alone[k]!.buffer)), k).toBe(true);
     }
