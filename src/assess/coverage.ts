@@ -64,6 +64,15 @@ export interface CoverageOptions {
 const BAND_ROWS = 8 * BLOCK;
 
 /**
+ * Threads the footprint sweep of a grid `width` x `height` cells uses (bandThreads over its
+ * bands), for computeCoverage and for starting its workers ahead (BandPool.start).
+ * @example sweepThreads(grid.width, grid.height, opts.threads)
+ */
+export function sweepThreads(width: number, height: number, requested?: number): number {
+  return bandThreads(width * height, Math.ceil(height / BAND_ROWS), requested);
+}
+
+/**
  * GSD and image count per cell of `grid` where `inSite` is 1.
  * @example
  * const { gsdCm, images, nadirStrip } = computeCoverage(grid, inSite, exposures, camera);
@@ -79,7 +88,7 @@ export function computeCoverage(
   const { x0, y0, dx, dy } = grid.transform;
   const n = width * height;
   const bands = Math.ceil(height / BAND_ROWS);
-  const threads = bandThreads(n, bands, opts.threads);
+  const threads = sweepThreads(width, height, opts.threads);
   // Shared memory only when other threads read or write it.
   const buffer = (bytes: number): ArrayBufferLike => (threads > 1 ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
 

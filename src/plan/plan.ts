@@ -36,7 +36,8 @@ import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
 import { assessPlan, siteMaskFor } from "../assess/assess.js";
-import { bandPool, bandThreads, type BandPool } from "../assess/bandThreads.js";
+import { bandPool, type BandPool } from "../assess/bandThreads.js";
+import { sweepThreads } from "../assess/coverage.js";
 import { photoPhaseOn, type AssessedLeg } from "../assess/exposures.js";
 import type { Assessment, FlagPolygons } from "../assess/types.js";
 import { flagPolygons, flagPolygonsInBackground } from "../assess/flagPolygons.js";
@@ -312,7 +313,7 @@ async function planLoaded(ctx: {
 
   stage("route");
   // The sweep's workers start now, while this thread routes and checks the plan (BandPool.start).
-  bands.start(bandThreads(grid.width * grid.height, Number.MAX_SAFE_INTEGER, hooks.threads) - 1);
+  bands.start(sweepThreads(grid.width, grid.height, hooks.threads) - 1);
   // The constant-altitude comparison needs only the final strips, the DEM and the site: it
   // is made on the other core from here on (or from before the solve, when the solve kept
   // the strips as laid out), while this thread routes, checks and assesses.
