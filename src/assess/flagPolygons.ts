@@ -37,6 +37,8 @@ export function flagPolygons(
   cellAreaM2: number,
 ): FlagPolygons {
   const out: FlagPolygons = {};
+  // A plan that flags nothing (the usual aim) has no layer to trace: no pass over the cells.
+  if (noneFlagged(flags)) return out;
   const { x0, y0, dx, dy } = transform;
   // One pass for all kinds: flag-byte histogram (cell counts) and the OR of each row and
   // column (bounding boxes), instead of one scan of the grid per kind.
@@ -89,6 +91,24 @@ export function flagPolygons(
   return out;
 }
 
+/** Zero bytes that noneFlagged compares the flags with, a slice at a time. */
+const ZEROS = new Uint8Array(1 << 16);
+
+/**
+ * Whether no cell carries a flag bit: the raster's bytes compared with zeros by the native
+ * memcmp behind Buffer.compare, stopping at the first difference (~1-9 ms over a 4 km2
+ * grid's 41 MB, against ~40 ms for flagPolygons' own pass in JavaScript).
+ * @example noneFlagged(new Uint16Array(4)) // true
+ */
+export function noneFlagged(flags: Uint16Array): boolean {
+  const bytes = Buffer.from(flags.buffer, flags.byteOffset, flags.byteLength);
+  for (let o = 0; o < bytes.length; o += ZEROS.length) {
+    const end = Math.min(bytes.length, o + ZEROS.length);
+    if (bytes.compare(ZEROS, 0, end - o, o, end) !== 0) return false;
+  }
+  return true;
+}
+
 /** Remove vertices lying on the straight line through their neighbours (closed ring in, closed ring out). */
 function dropCollinear(ring: Position[]): Position[] {
   const n = ring.length - 1; // last repeats first
@@ -124,10 +144,13 @@ const workerUrl = new URL("./flagPolygonsWorker.js", import.meta.url);
  * flagPolygons made on a worker thread from now on (the flags must be final and in shared
  * memory), its frame rebuilt there from the proj4 definition: the same polygons, while this
  * thread makes the statistics. Only where splitAllowed (by default on large grids; not
- * with one thread): otherwise NOT_IN_BACKGROUND, and the caller makes them itself.
+ * with one thread) and some cell is flagged: otherwise NOT_IN_BACKGROUND, and the caller
+ * makes them itself.
  * @example const p = flagPolygonsInBackground(job, threads); ...; (await p.result()) ?? flagPolygons(...)
  */
 export function flagPolygonsInBackground(job: FlagPolygonsJob, threads?: number): Background<FlagPolygons> {
   if (!splitAllowed(job.width * job.height, threads) || !(job.flags.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
+  // Nothing flagged: flagPolygons returns no layer at once, not worth a worker's start (~0.3 s of CPU on a busy core).
+  if (noneFlagged(job.flags)) return NOT_IN_BACKGROUND;
   return inBackground<FlagPolygons>(workerUrl, job);
 }

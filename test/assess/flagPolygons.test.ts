@@ -2,7 +2,7 @@ import { describe, it, expect } from "vitest";
 import { area as turfArea, booleanValid, booleanClockwise, kinks, polygon } from "@turf/turf";
 import proj4 from "proj4";
 import type { Position } from "geojson";
-import { flagPolygons } from "../../src/assess/flagPolygons.js";
+import { flagPolygons, noneFlagged } from "../../src/assess/flagPolygons.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_KEEP_OUT, FLAG_KINDS } from "../../src/assess/flags.js";
 
 // UTM zone 33N (EPSG:32633) by proj4, the reference library for the WGS84 step.
@@ -100,5 +100,38 @@ describe("flag polygons by d3-contour", () => {
     // The traced ring (corners cut by half a cell diagonally) encloses nearly the 240 m2 block (turf's geodesic area).
     expect(turfArea(layers.keepOut!)).toBeGreaterThan(230);
     expect(turfArea(layers.keepOut!)).toBeLessThan(241);
+  });
+});
+
+describe("nothing flagged", () => {
+  // Checked against a plain scan of the samples (the definition): any non-zero sample is a flag.
+  const scan = (f: Uint16Array) => f.every((v) => v === 0);
+
+  it("noneFlagged agrees with a scan: one flag bit anywhere, low byte or high, across its 64 KiB slices", () => {
+    const n = 100_003; // 200 006 bytes: three full slices and a partial one
+    const f = new Uint16Array(n);
+    expect(noneFlagged(f)).toBe(true);
+    for (const i of [0, 1, 32_767, 32_768, 65_535, 99_999, n - 1]) {
+      for (const bit of [1, 128, 256, 32_768]) {
+        f[i] = bit;
+        expect(noneFlagged(f)).toBe(scan(f));
+        expect(noneFlagged(f)).toBe(false);
+        f[i] = 0;
+      }
+    }
+    expect(noneFlagged(f)).toBe(true);
+  });
+
+  it("reads only the view it is given (a subarray of a larger raster)", () => {
+    const whole = new Uint16Array(1000);
+    whole[10] = FLAG_FINE;
+    whole[990] = FLAG_COARSE;
+    expect(noneFlagged(whole.subarray(11, 990))).toBe(true);
+    expect(noneFlagged(whole.subarray(10, 990))).toBe(false);
+    expect(noneFlagged(whole.subarray(11, 991))).toBe(false);
+  });
+
+  it("no flagged cell: no layer at all, as for a grid without any kind", () => {
+    expect(flagPolygons(new Uint16Array(120 * 90), 120, 90, { x0: 0, y0: 0, dx: 1, dy: -1 }, toWgs84, 1)).toEqual({});
   });
 });

@@ -36,4 +36,18 @@ describe.skipIf(!built.available)("flag polygons traced on a worker thread", () 
       expect(made).toEqual(here);
     });
   }
+
+  it("starts no worker when nothing is flagged, and one for a single flagged cell", async () => {
+    const { flagPolygonsInBackground } = (await import(built.href)) as { flagPolygonsInBackground: typeof InBackground };
+    const W = 900, H = 700;
+    const frame = frames.utm;
+    const job = (flags: Uint16Array) => ({ flags, width: W, height: H, transform: { x0: 0, y0: 0, dx: 0.5, dy: -0.5 }, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2: 0.25 });
+    const flags = new Uint16Array(new SharedArrayBuffer(2 * W * H));
+    // No worker ran: result() gives undefined and the caller traces (nothing) itself.
+    expect(await flagPolygonsInBackground(job(flags), 2).result()).toBeUndefined();
+    flags[W * H - 1] = 2;
+    const made = await flagPolygonsInBackground(job(flags), 2).result();
+    expect(made).toBeDefined();
+    expect(made!.fine?.properties.areaM2).toBe(0.25);
+  });
 });
