@@ -4,7 +4,8 @@ import { esc, jsonForScript } from "../../src/report/escape.js";
 import { contourInterval, contourLines, maskOutline } from "../../src/report/contours.js";
 import { niceFloor, niceStep } from "../../src/report/nice.js";
 import { histogram } from "../../src/report/histogram.js";
-import { parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
+import { bytePlanes, fromBytePlanes, parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
+import { deflateSync, inflateSync } from "node:zlib";
 import { renderReport } from "../../src/report/render.js";
 import { InputFileError } from "../../src/errors.js";
 import { makeReportInput } from "./fixture.js";
@@ -142,4 +143,55 @@ describe("report-data.json", () => {
     expect(() => parseReportInput("not json", "out/report-data.json")).toThrow(/out\/report-data.json/);
     expect(() => parseReportInput(JSON.stringify({ format: "gsdplan-report-data", version: 99 }))).toThrow(/version 99/);
   });
+
+  it("float arrays go in byte planes: IEEE 754 binary32 1.0 and 2.0 (0x3F800000, 0x40000000) by hand", () => {
+    // Little-endian bytes 00 00 80 3F and 00 00 00 40; planes most significant first:
+    // [3F, 40] [80, 00] [00, 00] [00, 00], each byte minus the one before it (mod 256).
+    const bytes = new Uint8Array(new Float32Array([1, 2]).buffer);
+    expect(Array.from(bytePlanes(bytes, 4))).toEqual([0x3f, 0x01, 0x40, 0x80, 0, 0, 0, 0]);
+    expect(Array.from(fromBytePlanes(bytePlanes(bytes, 4), 4))).toEqual(Array.from(bytes));
+  });
+
+  it("byte planes give back every bit: NaN payloads, -0, infinities, subnormals, odd lengths", () => {
+    const f64 = new Float64Array([0, -0, 1.5, -2.25e-310, Number.MAX_VALUE, Infinity, -Infinity, NaN, 4.9e-324, 431.2734, 431.2741]);
+    const raw64 = new Uint8Array(f64.buffer);
+    raw64[7 * 8] = 0x5a; // a NaN with its own payload bits
+    const f32 = new Float32Array([3.4e38, -1.17e-38, 1e-45, NaN, -0, 431.27, 431.28]);
+    for (const [bytes, size] of [[raw64, 8], [new Uint8Array(f32.buffer), 4], [new Uint8Array(0), 4]] as const) {
+      expect(Array.from(fromBytePlanes(bytePlanes(bytes, size), size))).toEqual(Array.from(bytes));
+    }
+  });
+
+  it("writes float arrays as planes and the others as plain bytes, and reads them back bit for bit", () => {
+    const input = makeReportInput();
+    const text = serializeReportInput(input);
+    const doc = JSON.parse(text);
+    expect(doc.version).toBe(2);
+    expect(Object.keys(doc.input.rasters.gsdCm).sort()).toEqual(["$typed", "length", "planes"]);
+    expect(Object.keys(doc.input.legs[1].profile.altitudeM).sort()).toEqual(["$typed", "length", "planes"]);
+    expect(Object.keys(doc.input.rasters.images).sort()).toEqual(["$typed", "deflate", "length"]);
+    const back = parseReportInput(text);
+    const bits = (a: Float32Array | Float64Array) => Array.from(new Uint8Array(a.buffer, a.byteOffset, a.byteLength));
+    expect(bits(back.legs[1].profile.groundM)).toEqual(bits(input.legs[1].profile.groundM));
+    expect(bits(back.dem.heights)).toEqual(bits(input.dem.heights));
+  });
+
+  it("still reads version 1 files, every typed array as plain deflated bytes", () => {
+    const text = serializeReportInput(makeReportInput());
+    const v1 = JSON.stringify({ ...JSON.parse(text), version: 1 }, (_k, v: unknown) => {
+      const t = v as { $typed?: string; length?: number; planes?: string };
+      if (t && typeof t === "object" && t.planes !== undefined) {
+        const size = t.$typed === "Float64Array" ? 8 : 4;
+        const bytes = fromBytePlanes(new Uint8Array(inflate(t.planes)), size);
+        return { $typed: t.$typed, length: t.length, deflate: deflateSync(bytes).toString("base64") };
+      }
+      return v;
+    });
+    expect(v1).not.toContain('"planes"');
+    expect(parseReportInput(v1)).toEqual(parseReportInput(text));
+  });
 });
+
+function inflate(base64: string): Buffer {
+  return inflateSync(Buffer.from(base64, "base64"));
+}
