@@ -4,6 +4,7 @@ import { union } from "@turf/union";
 import type { XY } from "../layout/types.js";
 import type { ReportBlock, ReportLeg, TakeoffFrom } from "./model.js";
 import { convexHull } from "./hull.js";
+import { rectUnion, type Rect } from "./rectUnion.js";
 
 /**
  * The block a leg belongs to: its own `block` when the plan wrote it, else the block whose
@@ -76,8 +77,50 @@ export function blockExtents(legs: readonly ReportLeg[], blocks: readonly Report
 /** A strip band's half width as a share of the strip spacing (see blockExtents). */
 export const BAND_HALF_WIDTH = 0.51;
 
-/** The union of the legs' bands (turf's union, a planar polygon clipper), or null when no leg has length. */
+/**
+ * The union of the legs' bands, or null when no leg has length: for parallel legs (a
+ * block's strips) as rectangles in the strips' frame (rectUnion.ts), else by turf's union
+ * (a general planar polygon clipper).
+ */
 function bandUnion(legs: readonly ReportLeg[], halfWidthM: number): XY[][][] | null {
+  return parallelBandUnion(legs, halfWidthM) ?? clippedBandUnion(legs, halfWidthM);
+}
+
+/** Legs whose directions differ by less than this sine (about 2e-7 degrees) count as parallel. */
+const PARALLEL_SINE = 1e-9;
+
+/**
+ * The bands of parallel legs as rectangles along (u) and across (v) the first leg with
+ * length, united by rectUnion and mapped back; null when the legs are not all parallel
+ * (or none has length). The legs of one strip share its first leg's offset across, so a
+ * strip cut in pieces is one band however its pieces' ends were rounded.
+ */
+function parallelBandUnion(legs: readonly ReportLeg[], halfWidthM: number): XY[][][] | null {
+  const first = legs.find((l) => Math.hypot(l.to[0] - l.from[0], l.to[1] - l.from[1]) > 0);
+  if (!first) return null;
+  const [ox, oy] = first.from;
+  const len = Math.hypot(first.to[0] - first.from[0], first.to[1] - first.from[1]);
+  const ux = (first.to[0] - first.from[0]) / len, uy = (first.to[1] - first.from[1]) / len;
+  // Left normal of the first leg.
+  const nx = -uy, ny = ux;
+  const stripV = new Map<number, number>();
+  const rects: Rect[] = [];
+  for (const l of legs) {
+    const dx = l.to[0] - l.from[0], dy = l.to[1] - l.from[1];
+    const ll = Math.hypot(dx, dy);
+    if (!(ll > 0)) continue;
+    if (Math.abs(ux * dy - uy * dx) / ll > PARALLEL_SINE) return null;
+    const a = (l.from[0] - ox) * ux + (l.from[1] - oy) * uy;
+    const b = (l.to[0] - ox) * ux + (l.to[1] - oy) * uy;
+    let v = stripV.get(l.strip);
+    if (v === undefined) stripV.set(l.strip, (v = (l.from[0] - ox) * nx + (l.from[1] - oy) * ny));
+    rects.push({ u0: Math.min(a, b), u1: Math.max(a, b), v0: v - halfWidthM, v1: v + halfWidthM });
+  }
+  return rectUnion(rects).map((poly) => poly.map((ring) => ring.map(([u, v]) => [ox + u * ux + v * nx, oy + u * uy + v * ny] as XY)));
+}
+
+/** The union of the legs' bands by turf's union (a planar polygon clipper), or null when no leg has length. */
+function clippedBandUnion(legs: readonly ReportLeg[], halfWidthM: number): XY[][][] | null {
   // About the first leg's start: local-frame coordinates run to millions of metres, and the
   // clipper's intersections are better conditioned near the origin.
   const [ox, oy] = legs[0].from;

@@ -15,7 +15,10 @@ import { parseReportInput, serializeReportInput } from "../../src/report/seriali
 import { renderReport } from "../../src/report/render.js";
 import { InputFileError } from "../../src/errors.js";
 import { convexHull } from "../../src/report/hull.js";
-import { BAND_HALF_WIDTH, stripBand } from "../../src/report/blocks.js";
+import { BAND_HALF_WIDTH, blockExtents, stripBand } from "../../src/report/blocks.js";
+import { union } from "@turf/union";
+import type { Feature, MultiPolygon, Polygon } from "geojson";
+import type { ReportLeg } from "../../src/report/model.js";
 import { fmtMinSec } from "../../src/report/format.js";
 import type { ReportInput } from "../../src/report/model.js";
 import type { XY } from "../../src/layout/types.js";
@@ -365,6 +368,64 @@ describe("convex hull (Andrew's monotone chain) against turf's convex", () => {
       }),
       { numRuns: 200, seed: 14 },
     );
+  });
+});
+
+describe("block extents against turf's union of the strip bands", () => {
+  // The reference: @turf/union (a general planar polygon clipper) over the same bands
+  // (stripBand, checked above); the outline must enclose the same ground.
+  const leg = (strip: number, from: XY, to: XY): ReportLeg =>
+    ({ kind: "strip", strip, from, to, lengthM: Math.hypot(to[0] - from[0], to[1] - from[1]), waypoints: [], block: 1 }) as unknown as ReportLeg;
+  const turfRegion = (legs: ReportLeg[], h: number): Feature<Polygon | MultiPolygon> =>
+    union(featureCollection(legs.map((l) => stripBand(l.from, l.to, h)!).map((b) => turfPolygon([[...b, b[0]]]))))!;
+  const area = (polys: XY[][][]) => polys.reduce((s, p) => s + p.reduce((t, r, i) => t + (i === 0 ? 1 : -1) * Math.abs(signedArea(r.slice(0, -1))), 0), 0);
+  const evenOdd = (polys: XY[][][], x: number, y: number) => {
+    let inside = false;
+    for (const poly of polys)
+      for (const ring of poly)
+        for (let i = 0, j = ring.length - 2; i < ring.length - 1; j = i++) {
+          const [xi, yi] = ring[i], [xj, yj] = ring[j];
+          if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) inside = !inside;
+        }
+    return inside;
+  };
+
+  for (const headingDeg of [0, 37, 90, 151.3]) {
+    it(`parallel strips at ${headingDeg} degrees, ragged ends, one cut in two and one missing: the same ground`, () => {
+      const spacing = 40;
+      const t = (headingDeg * Math.PI) / 180;
+      const [ux, uy] = [Math.sin(t), Math.cos(t)];
+      const [nx, ny] = [-uy, ux];
+      // UTM-sized coordinates, as the plan's local frame has them.
+      const at = (s: number, k: number): XY => [512_345.6 + s * ux + k * spacing * nx, 5_201_234.5 + s * uy + k * spacing * ny];
+      const legs: ReportLeg[] = [];
+      for (let k = 0; k < 9; k++) {
+        if (k === 6) continue; // a strip dropped: two separate pieces of ground
+        const s0 = 13 * ((k * 7) % 5), s1 = 600 - 17 * ((k * 3) % 4);
+        if (k === 3) legs.push(leg(k + 1, at(s0, k), at(250, k)), leg(k + 1, at(330, k), at(s1, k)));
+        else legs.push(leg(k + 1, k % 2 ? at(s1, k) : at(s0, k), k % 2 ? at(s0, k) : at(s1, k)));
+      }
+      const h = spacing * BAND_HALF_WIDTH;
+      const [ours] = blockExtents(legs, [{ index: 1, strips: [1, 2, 3, 4, 5, 6, 7, 8, 9] } as never], spacing).map((e) => e.polygons);
+      const ref = turfRegion(legs, h);
+      const refPolys = (ref.geometry.type === "Polygon" ? [ref.geometry.coordinates] : ref.geometry.coordinates) as XY[][][];
+      expect(ours.length).toBe(refPolys.length);
+      expect(ours.reduce((n, p) => n + p.length, 0)).toBe(refPolys.reduce((n, p) => n + p.length, 0));
+      // Areas to a millionth (the clipper rounds its intersections; ours are the band corners).
+      expect(area(ours) / area(refPolys)).toBeCloseTo(1, 6);
+      const [cx, cy] = at(300, 4);
+      for (let i = 0; i < 500; i++) {
+        const x = cx + (((i * 7919) % 997) / 997 - 0.5) * 800, y = cy + (((i * 104729) % 991) / 991 - 0.5) * 800;
+        expect(evenOdd(ours, x, y)).toBe(booleanPointInPolygon(point([x, y]), ref));
+      }
+    });
+  }
+
+  it("legs that are not parallel (a bend) still get the clipper's union", () => {
+    const legs = [leg(1, [0, 0], [100, 0]), leg(1, [100, 0], [160, 80])];
+    const [ours] = blockExtents(legs, [{ index: 1, strips: [1] } as never], 20).map((e) => e.polygons);
+    const ref = turfRegion(legs, 20 * BAND_HALF_WIDTH);
+    expect(area(ours)).toBeCloseTo(area([ref.geometry.coordinates as XY[][]]), 6);
   });
 });
 
