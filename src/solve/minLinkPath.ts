@@ -219,11 +219,26 @@ export function minLinkPath(
     frontier = next;
   }
 
-  // Back-track from the last station: vertex heights closest to the preference.
+  return backTrack(s, lo, hi, gMin, gMax, prefM, pieces, union[n - 1]!, provFrom, provEnd);
+}
+
+/**
+ * From the last station back to the first through the pieces' provenance: vertex heights
+ * closest to the preference. Apart from minLinkPath's search, so the engine compiles each
+ * on its own feedback: compiled as one function while the search ran, the back-tracking's
+ * untried arithmetic sent the search's optimised code back to the interpreter once the
+ * search ended, and the whole function was compiled twice more (~250 ms of compiler time
+ * at 4 km2, node --trace-opt / --trace-deopt).
+ */
+function backTrack(
+  s: Float64Array, lo: Float64Array, hi: Float64Array, gMin: number, gMax: number, prefM: Float64Array | undefined,
+  pieces: Growable, lastUnion: number[], provFrom: number[], provEnd: number[],
+): MinLinkPath {
+  const n = s.length;
   const vStation: number[] = [];
   const vHeight: number[] = [];
   let m = n - 1;
-  let z = pickInUnion(union[m]!, prefM ? prefM[m] : NaN);
+  let z = pickInUnion(lastUnion, prefM ? prefM[m] : NaN);
   let p = findPiece(pieces, m, z);
   vStation.push(m);
   vHeight.push(z);
