@@ -70,17 +70,16 @@ export function flightTimeS(legs: readonly LayoutLeg[], photoSpeedMps: number, t
  */
 export function terrainAltitudeChangeM(legs: readonly LayoutLeg[], grid: DemGrid, stepM: number): number {
   let total = 0;
-  let xs = new Float64Array(0);
-  let ys = new Float64Array(0);
-  let hs = new Float64Array(0);
+  // Buffers for the longest leg, made before the loop: grown inside it, the growth (rarely
+  // taken) sent the loop's optimised code back to the interpreter each time (node --trace-deopt).
+  let most = 0;
+  for (const leg of legs) if (leg.kind === "strip") most = Math.max(most, sampleCount(leg, stepM));
+  const xs = new Float64Array(most);
+  const ys = new Float64Array(most);
+  const hs = new Float64Array(most);
   for (const leg of legs) {
     if (leg.kind !== "strip") continue;
-    const n = Math.max(2, Math.ceil(leg.lengthM / stepM) + 1);
-    if (xs.length < n) {
-      xs = new Float64Array(n);
-      ys = new Float64Array(n);
-      hs = new Float64Array(n);
-    }
+    const n = sampleCount(leg, stepM);
     for (let i = 0; i < n; i++) {
       const t = i / (n - 1);
       xs[i] = leg.from[0] + t * (leg.to[0] - leg.from[0]);
@@ -96,6 +95,11 @@ export function terrainAltitudeChangeM(legs: readonly LayoutLeg[], grid: DemGrid
     }
   }
   return total;
+}
+
+/** Samples terrainAltitudeChangeM takes along a leg: every `stepM`, both ends included. */
+function sampleCount(leg: LayoutLeg, stepM: number): number {
+  return Math.max(2, Math.ceil(leg.lengthM / stepM) + 1);
 }
 
 /**
