@@ -51,6 +51,18 @@ interface Piece {
 }
 
 /**
+ * A piece with all its fields, in one order: pieces made with their fields in other orders,
+ * or given one later, are objects of other shapes to the engine, and solvePiece's compiled
+ * code, made for the first shape it met, was thrown away at each new one (node --trace-deopt:
+ * "wrong map").
+ */
+function newPiece(
+  kind: Piece["kind"], strip: number, conflictGap: boolean, corridor: { profile: StationProfile; corners?: Int32Array }, trimmed?: StationProfile[],
+): Piece {
+  return { kind, strip, profile: corridor.profile, conflictGap, stepToM: undefined, stepFromM: undefined, corners: corridor.corners, skipped: undefined, trimmed };
+}
+
+/**
  * Waypoint altitudes for every leg of a layout: strips through the detail
  * band, transits with clearance, fewest waypoints (see minLinkPath).
  *
@@ -80,7 +92,7 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   const pending = new Map<Piece, LayoutLeg>();
   for (const leg of legs) {
     if (leg.kind === "transit") {
-      const piece: Piece = { kind: "transit", strip: leg.strip, conflictGap: false, profile: stationEnds(leg, opts) };
+      const piece = newPiece("transit", leg.strip, false, { profile: stationEnds(leg, opts) });
       pending.set(piece, leg);
       pieces.push(piece);
       continue;
@@ -97,7 +109,10 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   if (opts.routeAround) trimEndBridges(work, pieces, opts);
   for (const piece of pieces) {
     const leg = pending.get(piece);
-    if (leg) Object.assign(piece, transitCorridor(work, leg, opts));
+    if (!leg) continue;
+    const corridor = transitCorridor(work, leg, opts);
+    piece.profile = corridor.profile;
+    piece.corners = corridor.corners;
   }
   checkTargetReachable(stripProfiles, opts);
 
@@ -170,7 +185,7 @@ export function solveTransit(
   validateSolverOptions(opts);
   const work = opts.assumeGroundM !== undefined ? fillNodata(grid, opts.assumeGroundM) : grid;
   const warnings: SolveWarning[] = [];
-  const piece: Piece = { kind: "transit", strip: leg.strip, conflictGap: false, ...transitCorridor(work, leg, opts) };
+  const piece = newPiece("transit", leg.strip, false, transitCorridor(work, leg, opts));
   const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
   const r = solvePiece(piece, opts, bandWidthM, startAltM, endAltM, warnings);
   if (r.stepToM !== undefined) piece.stepToM = r.stepToM;
@@ -234,7 +249,7 @@ function trimEndBridges(work: DemGrid, pieces: Piece[], opts: SolverOptions): vo
   };
   const remake = (before: Piece, from: XY, to: XY, trimmed: StationProfile[]): Piece => {
     const leg: LayoutLeg = { kind: "transit", strip: before.strip, from, to, lengthM: Math.hypot(to[0] - from[0], to[1] - from[1]) };
-    return { kind: "transit", strip: before.strip, conflictGap: false, ...transitCorridor(work, leg, opts), trimmed: [...(before.trimmed ?? []), ...trimmed] };
+    return newPiece("transit", before.strip, false, transitCorridor(work, leg, opts), [...(before.trimmed ?? []), ...trimmed]);
   };
   for (let i = 0; i < pieces.length; i++) {
     const p = pieces[i];
@@ -309,13 +324,13 @@ function splitStrip(prof: StationProfile, strip: number, mode: SolverOptions["on
     if (!cut[i]) {
       let j = i;
       while (j + 1 < n && !cut[j + 1]) j++;
-      pieces.push({ kind: "strip", strip, profile: sliceProfile(prof, i, j), conflictGap: false });
+      pieces.push(newPiece("strip", strip, false, { profile: sliceProfile(prof, i, j) }));
       i = j + 1;
     } else {
       let j = i;
       while (j + 1 < n && cut[j + 1]) j++;
       const a = Math.max(0, i - 1), b = Math.min(n - 1, j + 1);
-      pieces.push({ kind: "transit", strip, profile: sliceProfile(prof, a, b), conflictGap: true });
+      pieces.push(newPiece("transit", strip, true, { profile: sliceProfile(prof, a, b) }));
       i = j + 1;
     }
   }
