@@ -100,10 +100,11 @@ function check(images: CogImage[], o: CogOptions): void {
 /**
  * The file as chunks in file order, for a writer that streams it to disk: an uncompressed
  * file never exists whole in memory (a 25 km2 site's gsd.tif is half a gigabyte). The
- * header, IFDs and overview tiles come first, then the full-resolution tiles a tile row at
- * a time. Overviews are reduced from the full-resolution bands as they are read, so those
- * are read once before the first chunk and again for their own tiles; an image whose
- * bands come from a reduction (geotiffRasters.ts) must allow that second reading.
+ * header and IFDs come first, then the tiles a tile row at a time, the smallest overview's
+ * first and the full resolution's last. Overviews are reduced from the full-resolution
+ * bands as they are read, so those are read once before the first chunk and again for their
+ * own tiles; an image whose bands come from a reduction (geotiffRasters.ts) must allow that
+ * second reading, and its overviews must allow being read smallest first.
  * A compressed file comes as one chunk (its tiles must all be known to lay it out).
  * The tile rows come in one buffer, filled anew for each: a chunk is valid until the next
  * one is asked for (a writer that writes each before taking the next, as fs's writeFile
@@ -123,23 +124,34 @@ export function* cogChunks(images: CogImage[], o: CogOptions): Generator<Uint8Ar
   if (images.length > 1) for (let ty = 0; ty < down; ty++) tileBand(full, ty, T);
   const L = layout(images, o, undefined);
   const rawBytes = T * T * o.samples.BYTES_PER_ELEMENT;
-  // Everything before the full-resolution image's first tile leader.
-  const head = new Uint8Array(L.tileAt[0][0] - 4);
+  // Header, IFDs and colour map: everything before the first tile's leader (the smallest
+  // overview's first tile: tiles run from the smallest image to the full resolution).
+  const last = images.length - 1;
+  const head = new Uint8Array(L.tileAt[last][0] - 4);
   writeHead(head, L, o);
-  for (let k = 1; k < images.length; k++) writeRawImage(checked(images[k], o.samples), o, head, L.tileAt[k]);
   yield head;
   const span = 4 + rawBytes + 4;
-  const base = head.length;
-  // One tile row's buffer, filled anew for each row (every byte is written: tiles, their
-  // padding, leaders and trailers): a fresh one per row left ~10 MB of garbage a row at 4 km2,
-  // which the allocator kept long after it was collected.
+  // One tile row's buffer (as wide as the full resolution's), filled anew for each tile row
+  // of every image in file order (every byte is written: tiles, their padding, leaders and
+  // trailers). The overviews' tiles went into one buffer with the header before: at 25 km2
+  // ~170 MB, held by the writer's thread until it ended, at the run's memory peak; a fresh
+  // buffer per row left ~10 MB of garbage a row at 4 km2, which the allocator kept long
+  // after it was collected.
   const chunk = new Uint8Array(across * span);
   const view = new DataView(chunk.buffer);
-  for (let ty = 0; ty < down; ty++) {
-    const at = L.tileAt[0].slice(ty * across, (ty + 1) * across).map((p) => p - base - ty * across * span);
-    writeRawTileRow(full, ty, T, o.fill, chunk, at);
-    for (const p of at) frameTile(chunk, view, p, rawBytes);
-    yield chunk;
+  for (let k = last; k >= 0; k--) {
+    const im = k === 0 ? full : checked(images[k], o.samples);
+    const imAcross = Math.ceil(im.width / T);
+    const imDown = Math.ceil(im.height / T);
+    for (let ty = 0; ty < imDown; ty++) {
+      const row = L.tileAt[k].slice(ty * imAcross, (ty + 1) * imAcross);
+      // The row's first leader starts the chunk; its tiles follow one another in the file.
+      const base = row[0] - 4;
+      const at = row.map((p) => p - base);
+      writeRawTileRow(im, ty, T, o.fill, chunk, at);
+      for (const p of at) frameTile(chunk, view, p, rawBytes);
+      yield chunk.subarray(0, imAcross * span);
+    }
   }
 }
 

@@ -247,8 +247,10 @@ function overviewImage(width: number, height: number, ready: () => boolean, rows
  * gsd.tif's images: the full resolution (`fill`) and mean overviews of the `sizes` given, from
  * block sums and counts carried from level to level (overviews.ts). Each chunk of full-resolution
  * rows is reduced while it is in the CPU cache: its first-level sums, kept only for the chunk,
- * give the first overview's means and the second level's sums; further levels are made from
- * the one before when first read, and only the current level's sums are kept.
+ * give the first overview's means and the second level's sums; the further levels' means (a
+ * twelfth of the raster's cells together) are all made, from level to level, when one of
+ * them is first read, so the overviews can be read in any order (the streaming writer reads
+ * the smallest first, in file order) and the sums are let go.
  */
 function meanPyramid(width: number, height: number, sizes: [number, number][], fill: FillBand<Float32Array>): CogImage[] {
   const T = COG_TILE_SIZE;
@@ -258,7 +260,6 @@ function meanPyramid(width: number, height: number, sizes: [number, number][], f
   const chunkSums = newBlockSums(w1, CHUNK_ROWS >> 1, 1);
   const means1 = new Float32Array(w1 * h1);
   let sums: BlockSums | undefined = sizes.length > 1 ? newBlockSums(sizes[1][0], sizes[1][1], 2) : undefined;
-  let level = 2;
   let reducedRows = 0;
   const full = bandImage(width, height, band, fill, (chunk, y0, rows) => {
     // y0 is a multiple of CHUNK_ROWS (4 or more), so the chunk's blocks start a row of both levels.
@@ -276,22 +277,21 @@ function meanPyramid(width: number, height: number, sizes: [number, number][], f
   const images = [full];
   const ready = () => reducedRows === height;
   images.push(overviewImage(w1, h1, ready, (y0, count) => means1.subarray(y0 * w1, (y0 + count) * w1)));
-  const means = new Float32Array(sizes.length > 1 ? Math.min(T, sizes[1][1]) * sizes[1][0] : 0);
+  // Levels 2 and up, made whole when the first of them is read (index k - 2 for level k).
+  let further: Float32Array[] | undefined;
+  const furtherMeans = (): Float32Array[] => {
+    if (further) return further;
+    if (!sums) throw new Error("no block sums");
+    further = [];
+    for (let k = 2; k <= sizes.length; k++) {
+      if (k > 2) sums = coarserSums(sums, k);
+      further.push(blockMeans(sums.sum, sums.count, new Float32Array(sums.sum.length)));
+    }
+    sums = undefined;
+    return further;
+  };
   sizes.slice(1).forEach(([w, h], i) => {
-    const k = i + 2;
-    images.push(
-      overviewImage(w, h, ready, (y0, count) => {
-        if (!sums) throw new Error("no block sums");
-        if (level < k) {
-          if (level !== k - 1 || y0 !== 0) throw new Error(`overview ${k} read before overview ${k - 1}`);
-          sums = coarserSums(sums, k);
-          level = k;
-        }
-        if (level !== k) throw new Error(`overview ${k} read after overview ${level}`);
-        const at = y0 * w;
-        return blockMeans(sums.sum.subarray(at), sums.count.subarray(at), means.subarray(0, count * w));
-      }),
-    );
+    images.push(overviewImage(w, h, ready, (y0, count) => furtherMeans()[i].subarray(y0 * w, (y0 + count) * w)));
   });
   return images;
 }
@@ -316,20 +316,20 @@ function uint16Pyramid(
     reduce(b, width, rows, first.subarray((y0 >> 1) * sizes[0][0]));
     reducedRows = y0 + rows;
   });
-  // Further levels are small (a sixteenth of the raster and less): made whole when first read.
-  const levels: (Uint16Array | undefined)[] = [first];
+  // Further levels are small (a twelfth of the raster together): each made whole, from the one
+  // before, when it or a smaller one is first read, so they can be read in any order.
+  const levels: Uint16Array[] = [first];
+  const level = (i: number): Uint16Array => {
+    while (levels.length <= i) {
+      const j = levels.length;
+      const [pw, ph] = sizes[j - 1];
+      levels.push(reduce(levels[j - 1], pw, ph, new Uint16Array(sizes[j][0] * sizes[j][1])));
+    }
+    return levels[i];
+  };
   const images = [full];
   sizes.forEach(([w, h], i) => {
-    images.push(
-      overviewImage(w, h, () => reducedRows === height, (y0, count) => {
-        if (levels[i] === undefined) {
-          const [pw, ph] = sizes[i - 1];
-          levels[i] = reduce(levels[i - 1]!, pw, ph, new Uint16Array(w * h));
-          levels[i - 1] = undefined;
-        }
-        return levels[i]!.subarray(y0 * w, (y0 + count) * w);
-      }),
-    );
+    images.push(overviewImage(w, h, () => reducedRows === height, (y0, count) => level(i).subarray(y0 * w, (y0 + count) * w)));
   });
   return images;
 }

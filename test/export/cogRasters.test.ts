@@ -498,12 +498,18 @@ describe.skipIf(!HAS_GDAL)("COGs read by GDAL (Debian gdal-bin 3.6)", () => {
       writeFileSync(path.join(dir, `odd-${name}`), new Uint8Array(tiffs[name]));
       expect(cogLayoutErrors(readFileSync(path.join(dir, `odd-${name}`)))).toEqual([]);
       // Streamed in chunks (how plans write them): the same bytes; gsd.tif (uncompressed) as its
-      // head then one chunk per tile row (1029 rows: 3 rows of 512-pixel tiles).
-      // A chunk is valid until the next is asked for (the tile rows share one buffer): copied as they come.
+      // header and IFDs, then one chunk per tile row of each image in file order, smallest
+      // overview first: 129, 258 and 515 rows (1, 1 and 2 rows of 512-pixel tiles), then the
+      // full resolution's 1029 (3). A chunk is valid until the next is asked for (the tile rows
+      // share one buffer): copied as they come.
       const chunks: Uint8Array[] = [];
       for (const c of assessmentGeoTiffChunks(odd, UTM33N, name)) chunks.push(c.slice());
       expect(Buffer.concat(chunks).equals(Buffer.from(tiffs[name])), name).toBe(true);
-      if (name === "gsd.tif") expect(chunks.length).toBe(1 + 3);
+      if (name === "gsd.tif") {
+        expect(chunks.length).toBe(1 + 1 + 1 + 2 + 3);
+        // No chunk wider than one full-resolution tile row (5 tiles of 512 x 512 x 4 bytes, each with its 4-byte leader and trailer).
+        expect(Math.max(...chunks.slice(1).map((c) => c.length))).toBe(5 * (512 * 512 * 4 + 8));
+      }
     }
     const sizes = overviewSizes(w0, h0, 512);
     expect(sizes).toEqual([[1053, 515], [527, 258], [264, 129]]);
