@@ -23,6 +23,7 @@ import { fmtMinSec } from "../../src/report/format.js";
 import type { ReportInput } from "../../src/report/model.js";
 import type { XY } from "../../src/layout/types.js";
 import { makeReportInput } from "./fixture.js";
+import { insideEvenOdd } from "../helpers/evenOdd.js";
 import { MAIN_K, RANGE_M, X0, Y0, makeBlocksInput } from "./blocksFixture.js";
 
 /** The <svg> element with this id, parsed as XML. */
@@ -379,16 +380,6 @@ describe("block extents against turf's union of the strip bands", () => {
   const turfRegion = (legs: ReportLeg[], h: number): Feature<Polygon | MultiPolygon> =>
     union(featureCollection(legs.map((l) => stripBand(l.from, l.to, h)!).map((b) => turfPolygon([[...b, b[0]]]))))!;
   const area = (polys: XY[][][]) => polys.reduce((s, p) => s + p.reduce((t, r, i) => t + (i === 0 ? 1 : -1) * Math.abs(signedArea(r.slice(0, -1))), 0), 0);
-  const evenOdd = (polys: XY[][][], x: number, y: number) => {
-    let inside = false;
-    for (const poly of polys)
-      for (const ring of poly)
-        for (let i = 0, j = ring.length - 2; i < ring.length - 1; j = i++) {
-          const [xi, yi] = ring[i], [xj, yj] = ring[j];
-          if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) inside = !inside;
-        }
-    return inside;
-  };
 
   for (const headingDeg of [0, 37, 90, 151.3]) {
     it(`parallel strips at ${headingDeg} degrees, ragged ends, one cut in two and one missing: the same ground`, () => {
@@ -416,7 +407,7 @@ describe("block extents against turf's union of the strip bands", () => {
       const [cx, cy] = at(300, 4);
       for (let i = 0; i < 500; i++) {
         const x = cx + (((i * 7919) % 997) / 997 - 0.5) * 800, y = cy + (((i * 104729) % 991) / 991 - 0.5) * 800;
-        expect(evenOdd(ours, x, y)).toBe(booleanPointInPolygon(point([x, y]), ref));
+        expect(insideEvenOdd(ours, x, y)).toBe(booleanPointInPolygon(point([x, y]), ref));
       }
     });
   }

@@ -3,6 +3,8 @@ import { union } from "@turf/union";
 import { booleanPointInPolygon, featureCollection, point, polygon } from "@turf/turf";
 import type { Feature, MultiPolygon, Polygon } from "geojson";
 import { rectUnion, type Rect, type Ring } from "../../src/report/rectUnion.js";
+import { insideEvenOdd } from "../helpers/evenOdd.js";
+import { seededRandom as rng } from "../geo/projCli.js";
 
 // The reference is turf's union (@turf/union, a general planar polygon clipper from the npm
 // registry): the same region, the same number of pieces and holes.
@@ -17,30 +19,6 @@ function turfUnion(rects: readonly Rect[]): number[][][][] {
   const polys = rects.map((r) => polygon([[[r.u0, r.v0], [r.u1, r.v0], [r.u1, r.v1], [r.u0, r.v1], [r.u0, r.v0]]]));
   const u = polys.length === 1 ? polys[0] : (union(featureCollection(polys)) as Feature<Polygon | MultiPolygon>);
   return u.geometry.type === "Polygon" ? [u.geometry.coordinates] : u.geometry.coordinates;
-}
-
-/** Inside the union as drawn with the even-odd rule over every ring. */
-function insideEvenOdd(polys: Ring[][], u: number, v: number): boolean {
-  let inside = false;
-  for (const poly of polys)
-    for (const ring of poly)
-      for (let i = 0, j = ring.length - 2; i < ring.length - 1; j = i++) {
-        const [ui, vi] = ring[i], [uj, vj] = ring[j];
-        if (vi > v !== vj > v && u < ((uj - ui) * (v - vi)) / (vj - vi) + ui) inside = !inside;
-      }
-  return inside;
-}
-
-/** A small deterministic generator (mulberry32), so a failure names its case. */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 describe("union of axis-aligned rectangles", () => {
