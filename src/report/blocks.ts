@@ -86,7 +86,7 @@ function bandUnion(legs: readonly ReportLeg[], halfWidthM: number): XY[][][] | n
   return parallelBandUnion(legs, halfWidthM) ?? clippedBandUnion(legs, halfWidthM);
 }
 
-/** Legs whose directions differ by less than this sine (about 2e-7 degrees) count as parallel. */
+/** Legs whose directions differ by less than this sine (about 6e-8 degrees) count as parallel. */
 const PARALLEL_SINE = 1e-9;
 
 /**
