@@ -93,10 +93,9 @@ function bandWorker(): Worker {
 export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number, slot: number) => void, pool?: BandPool): void {
   const next = new Int32Array(new SharedArrayBuffer(4));
   const done = new Int32Array(new SharedArrayBuffer(4 * threads));
-  const own: Worker[] = [];
-  const workers = pool ? pool.workers : own;
-  while (workers.length < threads - 1) workers.push(bandWorker());
-  for (let t = 1; t < threads; t++) workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
+  const workers = pool ?? bandPool();
+  workers.start(threads - 1);
+  for (let t = 1; t < threads; t++) workers.workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
   loop(input, next, bands, 0);
   let failed = false;
   for (let t = 1; t < threads; t++) {
@@ -105,7 +104,7 @@ export function runBands<I>(kind: BandKind, input: I, bands: number, threads: nu
     while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
     if (Atomics.load(done, t) !== 1) failed = true;
   }
-  for (const w of own) void w.terminate();
+  if (!pool) workers.close();
   if (failed) throw new Error(`${kind}: a worker thread failed`);
 }
 
