@@ -69,11 +69,10 @@ export function bytePlanes(bytes: Uint8Array, size: number): Uint8Array {
 }
 
 /**
- * The bytes bytePlanes regrouped, back in value order.
+ * The bytes bytePlanes regrouped, back in value order, into `out` (by default a new array).
  * @example fromBytePlanes(new Uint8Array([2, 2, 253, 2]), 2) // [1, 2, 3, 4]
  */
-export function fromBytePlanes(planes: Uint8Array, size: number): Uint8Array {
-  const out = new Uint8Array(planes.length);
+export function fromBytePlanes(planes: Uint8Array, size: number, out = new Uint8Array(planes.length)): Uint8Array {
   let p = 0;
   let prev = 0;
   for (let k = size - 1; k >= 0; k--) {
@@ -238,9 +237,10 @@ export function parseReportInput(text: string, file = "report-data.json"): Repor
         if (typeof stored !== "string") throw new Error(`typed array ${v.$typed} without its bytes`);
         const bytes = inflateSync(Buffer.from(stored, "base64"));
         if (bytes.byteLength !== v.length * Ctor.BYTES_PER_ELEMENT) throw new Error(`typed array of wrong length`);
-        // Into a fresh, aligned buffer.
+        // Into a fresh, aligned buffer (byte planes regrouped straight into it).
         const ab = new ArrayBuffer(bytes.byteLength);
-        new Uint8Array(ab).set(v.planes !== undefined ? fromBytePlanes(bytes, Ctor.BYTES_PER_ELEMENT) : bytes);
+        if (v.planes !== undefined) fromBytePlanes(bytes, Ctor.BYTES_PER_ELEMENT, new Uint8Array(ab));
+        else new Uint8Array(ab).set(bytes);
         return new Ctor(ab);
       }
       if (value && typeof value === "object" && "$number" in value) return Number((value as { $number: string }).$number);
