@@ -17,6 +17,7 @@ import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, type Assess
 import { SPLIT_MIN_CELLS, splitAllowed } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
+import { REPORT_MAP_PX } from "../report/downsample.js";
 import { reportHtmlInBackground } from "../report/background.js";
 import type { ReportInput } from "../report/model.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram, histogramOfTally } from "../report/histogram.js";
@@ -84,7 +85,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // worker holds ~85 MB at 4 km2: its copy of the input and the page's strings); on smaller
   // grids as soon as its input is ready (the demo, 34 interleaved pairs: ~0.06 s sooner done).
   let compact: Promise<ReportInput> | undefined;
-  const compactReport = () => (compact ??= (async () => compactReportInput(reportInput(run, summary, meta), 1000, await run.reportMaps?.()))());
+  const compactReport = () => (compact ??= (async () => compactReportInput(reportInput(run, summary, meta), REPORT_MAP_PX, await run.reportMaps?.()))());
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
   const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
   const tiff = (name: keyof AssessmentTiffs) => async () => {

@@ -9,6 +9,12 @@ import type { ReportGrid, ReportRasters } from "./model.js";
  * came in (the keep-out bit is 256; old 8-bit report data widens losslessly).
  */
 
+/**
+ * The report's maps at most this many pixels across: the reduction the page, report-data.json
+ * and the maps' worker (reportMapsInBackground) must all make, so the worker's maps are used.
+ */
+export const REPORT_MAP_PX = 1000;
+
 /** The block factor that brings the larger side to at most `maxPx`. */
 export function blockFactor(width: number, height: number, maxPx: number): number {
   return Math.max(1, Math.ceil(Math.max(width, height) / maxPx));

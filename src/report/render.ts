@@ -8,6 +8,7 @@ import { createHash } from "node:crypto";
 import { ASSESSMENT_FLAG_KINDS, type FlagKind } from "../assess/flags.js";
 import type { ReportInput, ReportSummary } from "./model.js";
 import { compactReportInput } from "./serialize.js";
+import { REPORT_MAP_PX } from "./downsample.js";
 import { gsdRgba, imagesRgba, pngDataUri } from "./png.js";
 import { demLayers, demLayersKey, type DemLayers } from "./demLayers.js";
 import { maskOutline } from "./contours.js";
@@ -161,7 +162,7 @@ function tableText(key: string, v: number): string {
  * @example writeFileSync(tmp, renderReport(input)); renameSync(tmp, join(out, "report.html"));
  */
 export function renderReport(input: ReportInput, layers?: DemLayers): string {
-  const inp = compactReportInput(input, 1000);
+  const inp = compactReportInput(input, REPORT_MAP_PX);
   const s = inp.summary;
   const g = s.gsdCm;
   const view = mapView(inp.dem, 1000);

@@ -14,7 +14,7 @@
 import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
 import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
-import { blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
+import { REPORT_MAP_PX, blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
 import { backgroundAllowed, inBackgroundWithInput, NOT_IN_BACKGROUND, type Background, type BackgroundWithInput } from "../background.js";
 import type { DemLayers } from "./demLayers.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
@@ -93,7 +93,7 @@ export function fromBytePlanes(planes: Uint8Array, size: number, out = new Uint8
  *
  * @example const compact = compactReportInput(input, 1000);
  */
-export function compactReportInput(input: ReportInput, maxPx = 1000, maps?: ReportMaps): ReportInput {
+export function compactReportInput(input: ReportInput, maxPx = REPORT_MAP_PX, maps?: ReportMaps): ReportInput {
   const g = input.summary.gsdCm;
   let gsdHistogram = input.gsdHistogram;
   if (!gsdHistogram) {
@@ -119,7 +119,7 @@ export interface ReportMaps {
  * The DEM and the rasters reduced to at most `maxPx` across, as the report draws them.
  * @example reportMaps(run.grid, run.assessment.rasters).dem.width // <= 1000
  */
-export function reportMaps(dem: ReportGrid, rasters: ReportRasters, maxPx = 1000): ReportMaps {
+export function reportMaps(dem: ReportGrid, rasters: ReportRasters, maxPx = REPORT_MAP_PX): ReportMaps {
   const kd = blockFactor(dem.width, dem.height, maxPx);
   const kr = blockFactor(rasters.width, rasters.height, maxPx);
   // On one grid (the plan's usual case) the DEM and the rasters are reduced in one pass.
@@ -167,7 +167,7 @@ export interface ReportMapsInBackground extends Background<ReportMapsAndLayers> 
  */
 export function reportMapsInBackground(dem: ReportGrid, threads?: number): ReportMapsInBackground {
   const none: ReportMapsInBackground = { ...NOT_IN_BACKGROUND, withRasters: () => {} };
-  if (!backgroundAllowed(dem.width * dem.height, threads) || blockFactor(dem.width, dem.height, 1000) <= 1) return none;
+  if (!backgroundAllowed(dem.width * dem.height, threads) || blockFactor(dem.width, dem.height, REPORT_MAP_PX) <= 1) return none;
   const { width, height, transform, cellSizeM, heights } = dem;
   const start = () => inBackgroundWithInput<ReportMapsAndLayers>(mapsWorkerUrl, { dem: { width, height, transform, cellSizeM, heights } satisfies ReportGrid, nice: MAPS_NICE });
   const send = (job: BackgroundWithInput<ReportMapsAndLayers>, r: ReportRasters) => {
@@ -198,7 +198,7 @@ export function reportMapsInBackground(dem: ReportGrid, threads?: number): Repor
  * @example writeFileSync(tmp, serializeReportInput(input)); renameSync(tmp, "report-data.json");
  */
 export function serializeReportInput(input: ReportInput, opts: { maxPx?: number } = {}): string {
-  const compact = compactReportInput(input, opts.maxPx ?? 1000);
+  const compact = compactReportInput(input, opts.maxPx ?? REPORT_MAP_PX);
   return JSON.stringify(
     { format: REPORT_DATA_FORMAT, version: REPORT_DATA_VERSION, input: compact },
     (_key, value: unknown) => {
