@@ -58,6 +58,8 @@ export interface CoverageOptions {
   bandPool?: BandPool;
   /** Also set the effect flags (coarse, fine, too few images, no data) in the same pass. */
   effects?: { lowGsdCm: number; highGsdCm: number; minImages: number };
+  /** The footprint rows in WebAssembly where built (the default) or in JavaScript: the same results (coverageKernel.ts). */
+  rowsIn?: "wasm" | "js";
 }
 
 /** Rows per unit of work: a multiple of BLOCK; small enough to balance two to four threads on a site, large enough that the photos' row ranges are checked few times. */
@@ -129,6 +131,7 @@ export function computeCoverage(
     blocks,
     nadirBy: opts.nadirBy ?? "image",
     bandRows: BAND_ROWS,
+    ...(opts.rowsIn ? { rowsIn: opts.rowsIn } : {}),
   };
   const { alongPx, acrossPx } = footprintPixels(camera);
   input.kAlong = (camera.ifov * alongPx) / 2;

@@ -1,5 +1,6 @@
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import { BAND_SLACK, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "./flags.js";
+import { footprintRows, type FootprintRows } from "./footprintRowsWasm.js";
 
 /**
  * The hot loop of the coverage pass, on plain typed arrays only, so the same
@@ -18,7 +19,7 @@ export interface SweepInput {
   ground: Float32Array;
   /** 1 inside the site. */
   inSite: Uint8Array;
-  /** Outputs, per cell: photos covering it, GSD (cm/px) and strip of its most nadir photo. */
+  /** Outputs, per cell: photos covering it, GSD (cm/px) and strip of its most nadir photo (0 and NaN and 0 where none). */
   images: Uint16Array;
   gsdCm: Float32Array;
   nadirStrip: Uint16Array;
@@ -50,6 +51,11 @@ export interface SweepInput {
   nadirBy: NadirBy;
   /** Rows per band (a multiple of BLOCK): the unit of work, and the size of the scratch. */
   bandRows: number;
+  /**
+   * The footprint rows in WebAssembly (footprintRowsWasm.ts) where it is built, the default,
+   * or in JavaScript (sweepRow): the same results bit for bit.
+   */
+  rowsIn?: "wasm" | "js";
 }
 
 /**
@@ -206,23 +212,72 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
   if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, r0 * inp.width, (r1 + 1) * inp.width, band);
 }
 
+/** Rows of a band the WebAssembly rows take at a time (their memory holds these cells). */
+const WASM_ROWS = 64;
+
+/** This thread's WebAssembly rows: made when first needed; null where they cannot be had. */
+let threadRows: FootprintRows | null | undefined;
+
 /**
- * sweepBand's photo loop over rows r0..r1. A function of its own so that the engine's
- * on-the-fly compilation of this loop (entered during the first band, before any band's
- * effects were made) does not hold the effects pass too: compiled together, the effects
- * call had no type feedback yet and sent every later band back to the interpreter
- * (seen with node --trace-deopt: one deoptimisation per band and thread).
+ * sweepBand's photo loop over rows r0..r1: in WebAssembly a few rows at a time, their cells
+ * copied into its memory and the results back (the copies cost ~1 % of the sweep).
  */
 function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array): void {
+  const { width, ground, inSite, images, gsdCm, nadirStrip } = inp;
+  if (inp.rowsIn !== "js") threadRows ??= footprintRows() ?? null;
+  const rows = inp.rowsIn !== "js" ? threadRows : null;
+  if (!rows) {
+    const i0 = r0 * width;
+    const i1 = (r1 + 1) * width;
+    gsdCm.fill(NaN, i0, i1);
+    // Zeros written before the first count is read: a fresh page that is first read maps the
+    // kernel's shared zero page, and the write after it copies the page and flushes the TLB of
+    // every core running one of the plan's threads (an interrupt to each, costly in a virtual
+    // machine); a page first written is only allocated.
+    images.fill(0, i0, i1);
+    nadirStrip.fill(0, i0, i1);
+    best.fill(Infinity, 0, i1 - i0);
+    photoRows(inp, r0, r1, best, undefined);
+    return;
+  }
+  setCamera(inp, rows);
+  for (let s0 = r0; s0 <= r1; s0 += WASM_ROWS) {
+    const s1 = Math.min(r1, s0 + WASM_ROWS - 1);
+    const i0 = s0 * width;
+    const i1 = (s1 + 1) * width;
+    const band = rows.band(i1 - i0);
+    band.ground.set(ground.subarray(i0, i1));
+    band.inSite.set(inSite.subarray(i0, i1));
+    // The outputs are only written (see above: nadirStrip, fresh, is not read to be copied in).
+    band.images.fill(0);
+    band.nadirStrip.fill(0);
+    band.best.fill(Infinity);
+    band.gsdCm.fill(NaN);
+    photoRows(inp, s0, s1, band.best, rows);
+    images.set(band.images, i0);
+    gsdCm.set(band.gsdCm, i0);
+    nadirStrip.set(band.nadirStrip, i0);
+  }
+}
+
+/** The figures sweepRow takes for every row, given to the WebAssembly rows once per band. */
+function setCamera(inp: SweepInput, rows: FootprintRows): void {
+  const { kAlong, kAcross } = inp;
+  const byDistance = inp.nadirBy === "distance";
+  rows.camera(kAlong, kAcross, byDistance ? 1 : 1 / (kAlong * kAlong), byDistance ? 1 : 1 / (kAcross * kAcross), byDistance, inp.gsdPerM);
+}
+
+/**
+ * The photos over rows r0..r1, each footprint row by sweepRow, or by the WebAssembly rows
+ * (`rows`, whose memory holds rows r0..r1 from its start). A function of its own so that the
+ * engine's on-the-fly compilation of this loop (entered during the first band, before any
+ * band's effects were made) does not hold the effects pass too: compiled together, the
+ * effects call had no type feedback yet and sent every later band back to the interpreter
+ * (seen with node --trace-deopt: one deoptimisation per band and thread).
+ */
+function photoRows(inp: SweepInput, r0: number, r1: number, best: Float32Array, rows: FootprintRows | undefined): void {
   const { width, x0, y0, dx, dy, ground, inSite, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
   const base0 = r0 * width;
-  gsdCm.fill(NaN, base0, (r1 + 1) * width);
-  // Zeros written before the first count is read: a fresh page that is first read maps the
-  // kernel's shared zero page, and the write after it copies the page and flushes the TLB of
-  // every core running one of the plan's threads (an interrupt to each, costly in a virtual
-  // machine); a page first written is only allocated.
-  images.fill(0, base0, (r1 + 1) * width);
-  best.fill(Infinity, 0, (r1 - r0 + 1) * width);
   const byDistance = inp.nadirBy === "distance";
   // In distance mode the weights are 1 and the division by d^2 is dropped (d2 = 1 below).
   const invKA2 = byDistance ? 1 : 1 / (kAlong * kAlong);
@@ -267,12 +322,17 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
       if (span[0] > span[1]) continue;
       const ddy = cy - ey;
       const ddx0 = x0 + (span[0] + 0.5) * dx - ex;
-      sweepRow(
-        ground, inSite, images, best, gsdCm, nadirStrip,
-        r * width + span[0], r * width + span[1], base0,
-        ez, ddx0 * ux + ddy * uy, ddx0 * vx + ddy * vy, dx * ux, dx * vx,
-        kAlong, kAcross, invKA2, invKC2, byDistance, inp.gsdPerM, st,
-      );
+      const a0 = ddx0 * ux + ddy * uy;
+      const q0 = ddx0 * vx + ddy * vy;
+      if (rows) rows.row(r * width + span[0] - base0, r * width + span[1] - base0, ez, a0, q0, dx * ux, dx * vx, st);
+      else {
+        sweepRow(
+          ground, inSite, images, best, gsdCm, nadirStrip,
+          r * width + span[0], r * width + span[1], base0,
+          ez, a0, q0, dx * ux, dx * vx,
+          kAlong, kAcross, invKA2, invKC2, byDistance, inp.gsdPerM, st,
+        );
+      }
     }
   }
 }
