@@ -1,7 +1,7 @@
 // Compiles the WebAssembly kernels (src/**/*.as.ts, AssemblyScript) into dist/ beside the
 // JavaScript tsc makes from the same folder: src/assess/footprintRows.as.ts ->
 // dist/assess/footprintRows.wasm. The code finds them from the package root
-// (src/packageRoot.ts), so the bundle (dist/bundle/) and the tests (run from src/) read the
+// (src/wasmKernel.ts), so the bundle (dist/bundle/) and the tests (run from src/) read the
 // same file; without it they fall back to the JavaScript kernels.
 //
 // Options: optimised (-O3), the smallest runtime (no garbage collector: the kernels keep

@@ -1,6 +1,4 @@
-import { readFileSync } from "node:fs";
-import { join } from "node:path";
-import { packageRoot } from "../packageRoot.js";
+import { align16, ensureMemory, wasmInstance, wasmKernel, type WasmMemory, type WasmModule } from "../wasmKernel.js";
 
 /**
  * The coverage sweep's footprint rows in WebAssembly (footprintRows.as.ts, built into
@@ -26,41 +24,21 @@ export interface BandArrays {
   nadirStrip: Uint16Array;
 }
 
-/** The engine's WebAssembly API, as much of it as is used here (the compiler's ES2022 library declares none). */
-interface WasmApi {
-  Module: new (bytes: Uint8Array) => WasmModule;
-  Instance: new (module: WasmModule, imports: object) => { exports: unknown };
-}
-/** A compiled module (opaque). */
-export type WasmModule = object;
-const WebAssembly = (globalThis as unknown as { WebAssembly: WasmApi }).WebAssembly;
-
 interface Exports {
-  memory: { buffer: ArrayBuffer; grow: (pages: number) => number };
+  memory: WasmMemory;
   heapBase: () => number;
   arrays: (g: number, s: number, i: number, b: number, d: number, t: number) => void;
   camera: (ka: number, kc: number, ika2: number, ikc2: number, distance: number, gsdPerM: number) => void;
   row: (i0: number, i1: number, ez: number, a0: number, q0: number, da: number, dq: number, strip: number) => void;
 }
 
-const WASM_PAGE = 65536;
-const align16 = (n: number) => (n + 15) & ~15;
-
-let compiled: WasmModule | null | undefined;
-
 /**
- * The compiled kernel, or null where it cannot be had (not built, or an engine without
- * WebAssembly SIMD): the sweep then runs its JavaScript rows.
+ * The compiled kernel, or null where it cannot be had (see wasmKernel): the sweep then runs
+ * its JavaScript rows.
  * @example const k = footprintRowsModule() ? footprintRows() : undefined;
  */
 export function footprintRowsModule(): WasmModule | null {
-  if (compiled !== undefined) return compiled;
-  try {
-    compiled = new WebAssembly.Module(readFileSync(join(packageRoot(), "dist", "assess", "footprintRows.wasm")));
-  } catch {
-    compiled = null;
-  }
-  return compiled;
+  return wasmKernel("assess/footprintRows.wasm");
 }
 
 /**
@@ -69,7 +47,7 @@ export function footprintRowsModule(): WasmModule | null {
  */
 export function footprintRows(module: WasmModule | null = footprintRowsModule()): FootprintRows | undefined {
   if (!module) return undefined;
-  const x = new WebAssembly.Instance(module, {}).exports as unknown as Exports;
+  const x = wasmInstance<Exports>(module);
   const base = align16(x.heapBase());
   let views: BandArrays | undefined;
   let viewsCells = -1;
@@ -83,9 +61,7 @@ export function footprintRows(module: WasmModule | null = footprintRowsModule())
       const i = align16(d + 4 * cells);
       const t = align16(i + 2 * cells);
       const s = align16(t + 2 * cells);
-      const end = s + cells;
-      const have = x.memory.buffer.byteLength;
-      if (end > have) x.memory.grow(Math.ceil((end - have) / WASM_PAGE));
+      ensureMemory(x.memory, s + cells);
       x.arrays(g, s, i, b, d, t);
       const buf = x.memory.buffer;
       views = {

@@ -5,6 +5,8 @@
  * the decoder, the window reader and the block worker (no geotiff here).
  */
 
+import { floatRows, type FloatRows } from "./floatRowsWasm.js";
+
 /** Whether this machine stores numbers little-endian (as TIFF "II" files and our outputs do). */
 export const LITTLE_ENDIAN_HOST = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 
@@ -43,19 +45,37 @@ export function blockCellsInWindow(tx: number, ty: number, tw: number, th: numbe
   return [Math.max(win.col0, tx * tw), Math.min(win.col1, (tx + 1) * tw), Math.max(win.row0, ty * th), Math.min(win.row1, (ty + 1) * th, sourceHeight)];
 }
 
+/** This thread's WebAssembly rows (floatRowsWasm.ts): made when first needed; null where they cannot be had. */
+let threadRows: FloatRows | null | undefined;
+
 /**
  * A block of Float32 samples still carrying the floating-point predictor (one sample per
  * pixel, heights as stored), placed as copyBlock places the un-predicted block: each row's
  * byte sums undone and its samples in the window written straight into the heights (`words`
  * views their bytes), then nodata and non-finite cells made NaN. The same heights and mask.
+ * The rows are un-predicted in WebAssembly where it is built (`rowsIn` "wasm", the default;
+ * `bytes` is left as it was) or here (`rowsIn` "js"; the rows' bytes are summed in place):
+ * the same results bit for bit.
  */
 export function placeFloatPredicted(
   bytes: Uint8Array, tw: number, bx0: number, by0: number,
   colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
-  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number,
+  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number, rowsIn: "wasm" | "js" = "wasm",
 ): void {
   const rowBytes = 4 * tw;
   const n = colB - colA;
+  if (rowsIn === "wasm") threadRows ??= floatRows() ?? null;
+  const kernel = rowsIn === "wasm" ? threadRows : null;
+  if (kernel && rowB > rowA) {
+    const got = kernel.rows(bytes, (rowA - by0) * rowBytes, rowB - rowA, tw, colA - bx0, colB - bx0);
+    for (let row = rowA; row < rowB; row++) {
+      const dst = (row - wr0) * outW + (colA - wc0);
+      const k = (row - rowA) * n;
+      words.set(got.subarray(k, k + n), dst);
+      markNodata(heights, valid, dst, dst + n, nd);
+    }
+    return;
+  }
   for (let row = rowA; row < rowB; row++) {
     const dst = (row - wr0) * outW + (colA - wc0);
     floatPredictorRow32(bytes, (row - by0) * rowBytes, rowBytes, 1, tw, colA - bx0, colB - bx0, words, dst);
