@@ -57,6 +57,18 @@ export function wasmInstance<T>(module: WasmModule): T {
 }
 
 /**
+ * A new instance of the kernel at `file` (see wasmKernel) with the first free byte of its
+ * memory after its own data, 16-byte aligned; undefined where the kernel cannot be had.
+ * @example const k = kernelInstance<Exports>("dem/floatRows.wasm"); if (k) k.exports.floatRows(k.base, ...)
+ */
+export function kernelInstance<T extends { heapBase: () => number }>(file: string): { exports: T; base: number } | undefined {
+  const module = wasmKernel(file);
+  if (!module) return undefined;
+  const exports = wasmInstance<T>(module);
+  return { exports, base: align16(exports.heapBase()) };
+}
+
+/**
  * Grows `memory` to hold at least `bytes` bytes.
  * @example ensureMemory(x.memory, end)
  */

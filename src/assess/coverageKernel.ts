@@ -220,7 +220,9 @@ let threadRows: FootprintRows | null | undefined;
 
 /**
  * sweepBand's photo loop over rows r0..r1: in WebAssembly a few rows at a time, their cells
- * copied into its memory and the results back (the copies cost ~1 % of the sweep).
+ * copied into its memory and the results back (the copies take under a tenth of the sweep's
+ * time at 4 km2, perf; the rows themselves ~2.2-2.6 ns a cell-photo visit against ~6.8 in
+ * JavaScript).
  */
 function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array): void {
   const { width, ground, inSite, images, gsdCm, nadirStrip } = inp;

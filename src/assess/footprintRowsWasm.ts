@@ -1,4 +1,4 @@
-import { align16, ensureMemory, wasmInstance, wasmKernel, type WasmMemory, type WasmModule } from "../wasmKernel.js";
+import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
 
 /**
  * The coverage sweep's footprint rows in WebAssembly (footprintRows.as.ts, built into
@@ -32,23 +32,18 @@ interface Exports {
   row: (i0: number, i1: number, ez: number, a0: number, q0: number, da: number, dq: number, strip: number) => void;
 }
 
-/**
- * The compiled kernel, or null where it cannot be had (see wasmKernel): the sweep then runs
- * its JavaScript rows.
- * @example const k = footprintRowsModule() ? footprintRows() : undefined;
- */
-export function footprintRowsModule(): WasmModule | null {
-  return wasmKernel("assess/footprintRows.wasm");
-}
+/** Where the kernel is, under dist/ (scripts/build-wasm.mjs). */
+export const FOOTPRINT_ROWS_WASM = "assess/footprintRows.wasm";
 
 /**
- * A new kernel instance (its own memory), or undefined without the compiled kernel.
+ * A new kernel instance (its own memory), or undefined without the compiled kernel (see
+ * wasmKernel): the sweep then runs its JavaScript rows.
  * @example const k = footprintRows(); if (k) { const a = k.band(n); a.ground.set(heights.subarray(i, i + n)); ... }
  */
-export function footprintRows(module: WasmModule | null = footprintRowsModule()): FootprintRows | undefined {
-  if (!module) return undefined;
-  const x = wasmInstance<Exports>(module);
-  const base = align16(x.heapBase());
+export function footprintRows(): FootprintRows | undefined {
+  const k = kernelInstance<Exports>(FOOTPRINT_ROWS_WASM);
+  if (!k) return undefined;
+  const { exports: x, base } = k;
   let views: BandArrays | undefined;
   let viewsCells = -1;
   return {

@@ -1,4 +1,4 @@
-import { align16, ensureMemory, wasmInstance, wasmKernel, type WasmMemory, type WasmModule } from "../wasmKernel.js";
+import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
 
 /**
  * The rows of a Float32 block with the floating-point predictor in WebAssembly
@@ -21,22 +21,18 @@ interface Exports {
   floatRows: (src: number, tw: number, rows: number, c0: number, c1: number, dst: number) => void;
 }
 
-/**
- * The compiled kernel, or null where it cannot be had (see wasmKernel).
- * @example const k = floatRowsModule() ? floatRows() : undefined;
- */
-export function floatRowsModule(): WasmModule | null {
-  return wasmKernel("dem/floatRows.wasm");
-}
+/** Where the kernel is, under dist/ (scripts/build-wasm.mjs). */
+export const FLOAT_ROWS_WASM = "dem/floatRows.wasm";
 
 /**
- * A new kernel instance (its own memory), or undefined without the compiled kernel.
+ * A new kernel instance (its own memory), or undefined without the compiled kernel (see
+ * wasmKernel): the reader then runs floatPredictorRow32.
  * @example const w = floatRows()?.rows(bytes, 0, 256, 256, 0, 256);
  */
-export function floatRows(module: WasmModule | null = floatRowsModule()): FloatRows | undefined {
-  if (!module) return undefined;
-  const x = wasmInstance<Exports>(module);
-  const base = align16(x.heapBase());
+export function floatRows(): FloatRows | undefined {
+  const k = kernelInstance<Exports>(FLOAT_ROWS_WASM);
+  if (!k) return undefined;
+  const { exports: x, base } = k;
   return {
     rows(bytes, from, rows, tw, c0, c1) {
       const len = rows * 4 * tw;

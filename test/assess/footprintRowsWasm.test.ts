@@ -3,7 +3,8 @@ import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { makeGrid } from "../../src/dem/sample.js";
 import { computeCoverage } from "../../src/assess/coverage.js";
-import { footprintRows, footprintRowsModule } from "../../src/assess/footprintRowsWasm.js";
+import { footprintRows, FOOTPRINT_ROWS_WASM } from "../../src/assess/footprintRowsWasm.js";
+import { wasmKernel } from "../../src/wasmKernel.js";
 import type { Exposure } from "../../src/assess/types.js";
 import { genericCamera } from "./helpers.js";
 
@@ -26,7 +27,7 @@ const bytes = (a: ArrayBufferView) => Buffer.from(a.buffer, a.byteOffset, a.byte
 
 describe.skipIf(!HAS_WASM)("footprint rows in WebAssembly", () => {
   it("is built and compiles on this engine (SIMD), so the sweep uses it", () => {
-    expect(footprintRowsModule()).not.toBeNull();
+    expect(wasmKernel(FOOTPRINT_ROWS_WASM)).not.toBeNull();
     expect(footprintRows()).toBeDefined();
   });
 

@@ -2,7 +2,8 @@ import { describe, it, expect } from "vitest";
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { floatPredictorRow32, placeFloatPredicted } from "../../src/dem/floatBlocks.js";
-import { floatRows, floatRowsModule } from "../../src/dem/floatRowsWasm.js";
+import { floatRows, FLOAT_ROWS_WASM } from "../../src/dem/floatRowsWasm.js";
+import { wasmKernel } from "../../src/wasmKernel.js";
 
 /**
  * The floating-point predictor's rows in WebAssembly (src/dem/floatRows.as.ts) against their
@@ -32,7 +33,7 @@ function randomBytes(n: number, seed: number): Uint8Array {
 
 describe.skipIf(!HAS_WASM)("predictor-3 rows in WebAssembly", () => {
   it("is built and compiles on this engine (SIMD), so the DEM reader uses it", () => {
-    expect(floatRowsModule()).not.toBeNull();
+    expect(wasmKernel(FLOAT_ROWS_WASM)).not.toBeNull();
     expect(floatRows()).toBeDefined();
   });
 
