@@ -45,6 +45,9 @@ export function blockCellsInWindow(tx: number, ty: number, tw: number, th: numbe
   return [Math.max(win.col0, tx * tw), Math.min(win.col1, (tx + 1) * tw), Math.max(win.row0, ty * th), Math.min(win.row1, (ty + 1) * th, sourceHeight)];
 }
 
+/** Bytes of a block's rows the WebAssembly rows take at a time (at least one row). */
+const KERNEL_BYTES = 4 << 20;
+
 /** This thread's WebAssembly rows (floatRowsWasm.ts): made when first needed; null where they cannot be had. */
 let threadRows: FloatRows | null | undefined;
 
@@ -54,25 +57,31 @@ let threadRows: FloatRows | null | undefined;
  * byte sums undone and its samples in the window written straight into the heights (`words`
  * views their bytes), then nodata and non-finite cells made NaN. The same heights and mask.
  * The rows are un-predicted in WebAssembly where it is built (`rowsIn` "wasm", the default;
- * `bytes` is left as it was) or here (`rowsIn` "js"; the rows' bytes are summed in place):
- * the same results bit for bit.
+ * `bytes` is left as it was; `kernelBytes` of rows at a time) or here (`rowsIn` "js"; the
+ * rows' bytes are summed in place): the same results bit for bit.
  */
 export function placeFloatPredicted(
   bytes: Uint8Array, tw: number, bx0: number, by0: number,
   colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
-  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number, rowsIn: "wasm" | "js" = "wasm",
+  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number, rowsIn: "wasm" | "js" = "wasm", kernelBytes = KERNEL_BYTES,
 ): void {
   const rowBytes = 4 * tw;
   const n = colB - colA;
   if (rowsIn === "wasm") threadRows ??= floatRows() ?? null;
   const kernel = rowsIn === "wasm" ? threadRows : null;
-  if (kernel && rowB > rowA) {
-    const got = kernel.rows(bytes, (rowA - by0) * rowBytes, rowB - rowA, tw, colA - bx0, colB - bx0);
-    for (let row = rowA; row < rowB; row++) {
-      const dst = (row - wr0) * outW + (colA - wc0);
-      const k = (row - rowA) * n;
-      words.set(got.subarray(k, k + n), dst);
-      markNodata(heights, valid, dst, dst + n, nd);
+  if (kernel) {
+    // A few megabytes of rows at a time: a block may be a whole strip of a large file, and the
+    // kernel's memory, once grown, stays for the thread's life.
+    const step = Math.max(1, Math.floor(kernelBytes / rowBytes));
+    for (let r0 = rowA; r0 < rowB; r0 += step) {
+      const r1 = Math.min(rowB, r0 + step);
+      const got = kernel.rows(bytes, (r0 - by0) * rowBytes, r1 - r0, tw, colA - bx0, colB - bx0);
+      for (let row = r0; row < r1; row++) {
+        const dst = (row - wr0) * outW + (colA - wc0);
+        const k = (row - r0) * n;
+        words.set(got.subarray(k, k + n), dst);
+        markNodata(heights, valid, dst, dst + n, nd);
+      }
     }
     return;
   }

@@ -77,17 +77,19 @@ describe.skipIf(!HAS_WASM)("predictor-3 rows in WebAssembly", () => {
       for (let i = row.length - 1; i > 0; i--) row[i] = (row[i] - row[i - 1]) & 255;
       bytes.set(row, r * 4 * tw);
     }
-    const place = (rowsIn: "wasm" | "js") => {
+    const place = (rowsIn: "wasm" | "js", kernelBytes?: number) => {
       const outW = 50, outH = 12;
       const h = new Float32Array(outW * outH).fill(-1);
       const valid = new Uint8Array(outW * outH).fill(7);
-      placeFloatPredicted(bytes.slice(), tw, 100, 60, 105, 138, 62, 69, 103, 60, outW, new Uint32Array(h.buffer), h, valid, -9999, rowsIn);
+      placeFloatPredicted(bytes.slice(), tw, 100, 60, 105, 138, 62, 69, 103, 60, outW, new Uint32Array(h.buffer), h, valid, -9999, rowsIn, kernelBytes);
       return { h, valid };
     };
     const js = place("js");
-    const wasm = place("wasm");
-    expect(Buffer.from(wasm.h.buffer).equals(Buffer.from(js.h.buffer))).toBe(true);
-    expect(Array.from(wasm.valid)).toEqual(Array.from(js.valid));
+    // All rows at once, and two rows (2 x 160 bytes) at a time, the last call taking one.
+    for (const wasm of [place("wasm"), place("wasm", 400)]) {
+      expect(Buffer.from(wasm.h.buffer).equals(Buffer.from(js.h.buffer))).toBe(true);
+      expect(Array.from(wasm.valid)).toEqual(Array.from(js.valid));
+    }
     // The window's cell (row 3, column 3) is the block's (3, 6): nodata, made NaN and not valid;
     // the window's (2, 5) is the block's (2, 8).
     expect(js.h[3 * 50 + 3]).toBeNaN();
