@@ -4,8 +4,9 @@ import { packageRoot } from "./packageRoot.js";
 
 /**
  * The WebAssembly kernels `npm run build` compiles into dist/ (scripts/build-wasm.mjs, from
- * the files of src/ named *.as.ts), found from the package root so that the tests (run from src/), dist/ and
- * the bundle (dist/bundle/) read the same file. Each is compiled once per thread that asks.
+ * the files of src/ named *.as.ts), found from the package root so that the tests (run from
+ * src/), dist/ and the bundle (dist/bundle/) read the same file. Each is compiled once per
+ * thread that asks.
  */
 
 /** The engine's WebAssembly API, as much of it as is used here (the compiler's ES2022 library declares none). */
@@ -31,15 +32,22 @@ export const WASM_PAGE = 65536;
 const compiled = new Map<string, WasmModule | null>();
 
 /**
+ * Whether typed arrays here read memory as WebAssembly writes it: its memory is little-endian
+ * on every machine, and the callers view the kernels' memory through typed arrays (host order).
+ */
+const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
+
+/**
  * The compiled kernel at `file` under dist/ ("assess/footprintRows.wasm"), or null where it
- * cannot be had (not built, or an engine without WebAssembly SIMD): its caller then runs
- * its JavaScript twin.
- * @example const m = wasmKernel("dem/floatRows.wasm"); const x = m && wasmInstance<FloatRowsExports>(m);
+ * cannot be had (not built, an engine without WebAssembly SIMD, or a big-endian machine): its
+ * caller then runs its JavaScript twin.
+ * @example const m = wasmKernel("dem/floatRows.wasm"); if (m) wasmInstance<{ heapBase: () => number }>(m).heapBase();
  */
 export function wasmKernel(file: string): WasmModule | null {
   let m = compiled.get(file);
   if (m !== undefined) return m;
   try {
+    if (!LITTLE_ENDIAN) throw new Error("big-endian host");
     m = new WebAssembly.Module(readFileSync(join(packageRoot(), "dist", file)));
   } catch {
     m = null;
