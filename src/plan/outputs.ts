@@ -115,7 +115,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
         return serializeReportInput(input);
       },
     },
-    { name: "report.html", data: async () => (await reportPage()).html() },
+    { name: "report.html", data: async () => (await reportPage()).bytes() },
   ];
   // On smaller grids the page starts now, once its input is ready (its failure surfaces from report.html).
   if (cells < SPLIT_MIN_CELLS) reportPage().catch(() => undefined);

@@ -9,11 +9,14 @@ const workerUrl = new URL("./renderWorker.js", import.meta.url);
  * Starts rendering report.html from `input` in a worker thread (when the compiled worker is
  * there: the built library, dist/), so the caller can write other files meanwhile; otherwise,
  * or if the worker fails, the page is rendered on this thread when awaited. The input is
- * copied to the worker (a compacted input is a few megabytes). Never rejects before it is
- * awaited: a failure surfaces from `html()`. `layers`: the DEM's layers made beforehand (demLayers.ts), if any.
- * @example const page = reportHtmlInBackground(compact); ...; await writeFile("report.html", await page.html());
+ * copied to the worker (a compacted input is a few megabytes); the page comes back as its
+ * UTF-8 bytes (`bytes`, what report.html holds) or as text (`html`). Never rejects before it
+ * is awaited: a failure surfaces from either. `layers`: the DEM's layers made beforehand
+ * (demLayers.ts), if any.
+ * @example const page = reportHtmlInBackground(compact); ...; await writeFile("report.html", await page.bytes());
  */
-export function reportHtmlInBackground(input: ReportInput, layers?: DemLayers): { html: () => Promise<string> } {
-  const page = inBackground<string>(workerUrl, { input, layers });
-  return { html: async () => (await page.result()) ?? renderReport(input, layers) };
+export function reportHtmlInBackground(input: ReportInput, layers?: DemLayers): { bytes: () => Promise<Uint8Array>; html: () => Promise<string> } {
+  const page = inBackground<Uint8Array>(workerUrl, { input, layers });
+  const bytes = async () => (await page.result()) ?? new TextEncoder().encode(renderReport(input, layers));
+  return { bytes, html: async () => new TextDecoder().decode(await bytes()) };
 }

@@ -6,7 +6,10 @@ import { renderReport } from "./render.js";
 /**
  * Worker thread that renders report.html from a (compacted) report input, so the page is
  * made on another core while the plan's rasters and report-data.json are written (see
- * reportHtmlInBackground).
+ * reportHtmlInBackground). It sends the page's UTF-8 bytes, their memory handed over rather
+ * than copied: the page as a string is two bytes a character (a few of its characters lie
+ * beyond Latin-1), which a message copies whole and the writer encodes again.
  */
 const { input, layers } = workerData as { input: ReportInput; layers?: DemLayers };
-parentPort?.postMessage(renderReport(input, layers));
+const bytes = new TextEncoder().encode(renderReport(input, layers));
+parentPort?.postMessage(bytes, [bytes.buffer]);

@@ -12,7 +12,7 @@ const built = builtModule("report/background.js", ["renderWorker.js"]);
 const builtMaps = builtModule("report/serialize.js", ["mapsWorker.js"]);
 
 describe.skipIf(!built.available)("report page rendered in a worker thread", () => {
-  it("is the page rendered on this thread, character for character", async () => {
+  it("is the page rendered on this thread, character for character and as UTF-8 bytes", async () => {
     const { reportHtmlInBackground } = (await import(built.href)) as { reportHtmlInBackground: typeof Background };
     const input = makeReportInput({ siteName: "Worker check" });
     const page = reportHtmlInBackground(input);
@@ -20,6 +20,10 @@ describe.skipIf(!built.available)("report page rendered in a worker thread", () 
     expect(html.length).toBeGreaterThan(10_000);
     expect(html).toContain("Worker check");
     expect(html).toBe(renderReport(input));
+    // Its bytes (what report.html holds) are the page's UTF-8, characters beyond Latin-1 and all.
+    const bytes = await page.bytes();
+    expect(Buffer.from(bytes).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
+    expect(/[^\u0000-\u00ff]/.test(html)).toBe(true);
   });
 });
 
