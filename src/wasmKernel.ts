@@ -1,6 +1,7 @@
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { packageRoot } from "./packageRoot.js";
+import { LITTLE_ENDIAN_HOST } from "./hostEndian.js";
 
 /**
  * The WebAssembly kernels `npm run build` compiles into dist/ (scripts/build-wasm.mjs, from
@@ -32,12 +33,6 @@ export const WASM_PAGE = 65536;
 const compiled = new Map<string, WasmModule | null>();
 
 /**
- * Whether typed arrays here read memory as WebAssembly writes it: its memory is little-endian
- * on every machine, and the callers view the kernels' memory through typed arrays (host order).
- */
-const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
-
-/**
  * The compiled kernel at `file` under dist/ ("assess/footprintRows.wasm"), or null where it
  * cannot be had (not built, an engine without WebAssembly SIMD, or a big-endian machine): its
  * caller then runs its JavaScript twin.
@@ -47,7 +42,8 @@ export function wasmKernel(file: string): WasmModule | null {
   let m = compiled.get(file);
   if (m !== undefined) return m;
   try {
-    if (!LITTLE_ENDIAN) throw new Error("big-endian host");
+    // WebAssembly memory is little-endian everywhere; the callers read it through host-order typed arrays.
+    if (!LITTLE_ENDIAN_HOST) throw new Error("big-endian host");
     m = new WebAssembly.Module(readFileSync(join(packageRoot(), "dist", file)));
   } catch {
     m = null;

@@ -7,9 +7,6 @@
 
 import { floatRows, type FloatRows } from "./floatRowsWasm.js";
 
-/** Whether this machine stores numbers little-endian (as TIFF "II" files and our outputs do). */
-export const LITTLE_ENDIAN_HOST = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
-
 /**
  * One row of a predictor-3 block of 32-bit samples (`wc` samples; `stride` samples per
  * pixel), starting at byte `o` of `bytes`: the byte differences summed in place, then

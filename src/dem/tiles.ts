@@ -5,7 +5,8 @@ import { remoteClient, remoteFailure } from "./tiffSource.js";
 import { fetchRuns, type RangeBlock, type RangeClient } from "./remote.js";
 import type { CellWindow } from "./window.js";
 import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
-import { LITTLE_ENDIAN_HOST, blockCellsInWindow, markNodata, placeFloatPredicted } from "./floatBlocks.js";
+import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
+import { blockCellsInWindow, markNodata, placeFloatPredicted } from "./floatBlocks.js";
 import { blocksInBackground, type BlockRef } from "./blocksInBackground.js";
 import { NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 

@@ -7,7 +7,8 @@
 import { inflate, inflateSync } from "node:zlib";
 import { promisify } from "node:util";
 import { BaseDecoder, addDecoder } from "geotiff";
-import { LITTLE_ENDIAN_HOST, floatPredictorRow32 } from "./floatBlocks.js";
+import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
+import { floatPredictorRow32 } from "./floatBlocks.js";
 
 interface DecoderParameters {
   tileWidth: number;

@@ -22,7 +22,8 @@
  * (no TileWidth/TileOffsets), no overview IFDs (NewSubfileType), no compression, and no
  * room for a 65536-entry colour map. libtiff (through GDAL) is not a Node dependency here.
  */
-import { LITTLE_ENDIAN_HOST, deflateTiles, swapBytes, tileBand, tileCount, type Predictor, type RowImage, type TileSamples } from "./cogTiles.js";
+import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
+import { deflateTiles, swapBytes, tileBand, tileCount, type Predictor, type RowImage, type TileSamples } from "./cogTiles.js";
 import { TAG, ifdByteSize, writeIfd, type TiffField } from "./tiffTags.js";
 
 /**

@@ -16,6 +16,7 @@
  * about a quarter at level 1 and a fifth at level 6, in a third of the time.
  */
 import { deflateSync } from "node:zlib";
+import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
 
 export type TileSamples = Float32Array | Uint16Array | Uint8Array;
 export type Predictor = 1 | 2 | 3;
@@ -31,8 +32,6 @@ export interface RowImage {
   rows(y0: number, count: number): TileSamples;
 }
 
-/** True on the usual little-endian hosts, where typed arrays hold their samples low byte first. */
-export const LITTLE_ENDIAN_HOST = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
 
 /** zlib level 1 (the fastest; see the header comment for the measurement). */
 const DEFLATE_OPTIONS = { level: 1 };
