@@ -21,6 +21,16 @@ function turfUnion(rects: readonly Rect[]): number[][][][] {
   return u.geometry.type === "Polygon" ? [u.geometry.coordinates] : u.geometry.coordinates;
 }
 
+/** The four sides, one unit wide, of an n x n square frame (its hole (n - 2) x (n - 2)). */
+function frame(n: number): Rect[] {
+  return [
+    { u0: 0, u1: n, v0: 0, v1: 1 },
+    { u0: 0, u1: n, v0: n - 1, v1: n },
+    { u0: 0, u1: 1, v0: 0, v1: n },
+    { u0: n - 1, u1: n, v0: 0, v1: n },
+  ];
+}
+
 describe("union of axis-aligned rectangles", () => {
   it("two overlapping rectangles: the L-shaped outline, counter-clockwise, by hand", () => {
     const polys = rectUnion([{ u0: 0, u1: 2, v0: 0, v1: 1 }, { u0: 1, u1: 3, v0: 0.5, v1: 2 }]);
@@ -48,12 +58,7 @@ describe("union of axis-aligned rectangles", () => {
   });
 
   it("a frame of four rectangles: one outer ring and its hole (clockwise)", () => {
-    const polys = rectUnion([
-      { u0: 0, u1: 5, v0: 0, v1: 1 },
-      { u0: 0, u1: 5, v0: 4, v1: 5 },
-      { u0: 0, u1: 1, v0: 0, v1: 5 },
-      { u0: 4, u1: 5, v0: 0, v1: 5 },
-    ]);
+    const polys = rectUnion(frame(5));
     expect(polys).toHaveLength(1);
     expect(polys[0]).toHaveLength(2);
     expect(shoelace(polys[0][0])).toBe(25);
@@ -61,13 +66,7 @@ describe("union of axis-aligned rectangles", () => {
   });
 
   it("an island inside a frame's hole stays its own polygon", () => {
-    const polys = rectUnion([
-      { u0: 0, u1: 9, v0: 0, v1: 1 },
-      { u0: 0, u1: 9, v0: 8, v1: 9 },
-      { u0: 0, u1: 1, v0: 0, v1: 9 },
-      { u0: 8, u1: 9, v0: 0, v1: 9 },
-      { u0: 4, u1: 5, v0: 4, v1: 5 },
-    ]);
+    const polys = rectUnion([...frame(9), { u0: 4, u1: 5, v0: 4, v1: 5 }]);
     expect(polys.map((p) => p.length).sort()).toEqual([1, 2]);
     const framed = polys.find((p) => p.length === 2)!;
     expect(shoelace(framed[0])).toBe(81);
