@@ -17,7 +17,7 @@ import { genericCamera } from "./helpers.js";
  */
 
 // The kernel is compiled by `npm run build` (scripts/build-wasm.mjs) into dist/.
-const HAS_WASM = existsSync(fileURLToPath(new URL("../../dist/assess/footprintRows.wasm", import.meta.url)));
+const HAS_WASM = existsSync(fileURLToPath(new URL(`../../dist/${FOOTPRINT_ROWS_WASM}`, import.meta.url)));
 if (!HAS_WASM) {
   if (process.env.CI === "true") throw new Error("dist/assess/footprintRows.wasm is required under CI=true (npm test builds it first)");
   process.stderr.write("NOTICE: dist/ not built; skipping the WebAssembly footprint rows (run npm run build)\n");

@@ -14,7 +14,7 @@ import { wasmKernel } from "../../src/wasmKernel.js";
  */
 
 // The kernel is compiled by `npm run build` (scripts/build-wasm.mjs) into dist/.
-const HAS_WASM = existsSync(fileURLToPath(new URL("../../dist/dem/floatRows.wasm", import.meta.url)));
+const HAS_WASM = existsSync(fileURLToPath(new URL(`../../dist/${FLOAT_ROWS_WASM}`, import.meta.url)));
 if (!HAS_WASM) {
   if (process.env.CI === "true") throw new Error("dist/dem/floatRows.wasm is required under CI=true (npm test builds it first)");
   process.stderr.write("NOTICE: dist/ not built; skipping the WebAssembly predictor rows (run npm run build)\n");
