@@ -34,6 +34,7 @@ export interface LatticeInput {
   dy: number;
   heights: Float32Array;
   inSite: Uint8Array;
+  /** Counts out: the grid's cells, or one band's (latticeCountsByBand; see latticeBand's imagesAt). */
   images: Uint16Array;
   blocks: BlockMinima;
   A: number;
@@ -84,9 +85,44 @@ export function latticeImageCounts(
   const { x0, y0, dx, dy } = grid.transform;
   const bands = Math.ceil(height / LATTICE_BAND_ROWS);
   const t = bandThreads(width * height, bands, threads);
-  const input = prepareLattice({ width, height, x0, y0, dx, dy }, shareable(heights, t), shareable(inSite, t), strips, altitudeAmslM, triggerM, kAlong, kAcross, t);
+  const n = width * height;
+  const images = new Uint16Array(t > 1 ? new SharedArrayBuffer(2 * n) : new ArrayBuffer(2 * n));
+  const input = prepareLattice({ width, height, x0, y0, dx, dy }, shareable(heights, t), shareable(inSite, t), strips, altitudeAmslM, triggerM, kAlong, kAcross, images);
   runBands("lattice", input, bands, t, latticeBands);
   return input.images;
+}
+
+/**
+ * The image counts of latticeImageCounts a band of rows at a time, on this thread, into one
+ * band's buffer (`images`, reused from band to band): for a pass that reads each band's counts
+ * once (the comparison's), so the grid's counts are never held whole (2 bytes a cell: 40 MB
+ * at 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and
+ * gives its cells [i0, i1): cell i's count is images[i - i0]. The same counts as
+ * latticeImageCounts.
+ * @example const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc); for (let b = 0; b < l.bands; b++) { const [i0, i1] = l.count(b); ... }
+ */
+export function latticeCountsByBand(
+  grid: Pick<DemGrid, "width" | "height" | "heights" | "transform">,
+  inSite: Uint8Array,
+  strips: readonly LatticeStrip[],
+  altitudeAmslM: number,
+  triggerM: number,
+  kAlong: number,
+  kAcross: number,
+): { bands: number; images: Uint16Array; count: (band: number) => [number, number] } {
+  const { width, height, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  const images = new Uint16Array(Math.min(height, LATTICE_BAND_ROWS) * width);
+  const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, images);
+  return {
+    bands: Math.ceil(height / LATTICE_BAND_ROWS),
+    images,
+    count: (band) => {
+      const i0 = band * LATTICE_BAND_ROWS * width;
+      latticeBand(input, band, i0);
+      return [i0, Math.min(height, (band + 1) * LATTICE_BAND_ROWS) * width];
+    },
+  };
 }
 
 function prepareLattice(
@@ -98,16 +134,14 @@ function prepareLattice(
   triggerM: number,
   kAlong: number,
   kAcross: number,
-  threads: number,
+  images: Uint16Array,
 ): LatticeInput {
   const m = strips.length;
   const col = () => new Float64Array(m);
   let preCells = 0;
   for (const s of strips) preCells += s.lattice.n + 2;
-  const n = g.width * g.height;
   const input: LatticeInput = {
-    ...g, heights, inSite,
-    images: new Uint16Array(threads > 1 ? new SharedArrayBuffer(2 * n) : new ArrayBuffer(2 * n)),
+    ...g, heights, inSite, images,
     blocks: siteGroundBlocks(heights, inSite, g.width, g.height),
     A, triggerM, kAlong, kAcross,
     fx: col(), fy: col(), ux: col(), uy: col(), s0: col(), n: new Int32Array(m), px: col(), py: col(), halfRun: col(), dMax: col(),
@@ -172,16 +206,17 @@ export function latticeBands(inp: LatticeInput, next: Int32Array, bands: number)
 }
 
 /**
- * Every strip over the rows of band `band`.
+ * Every strip over the rows of band `band`, cell i's count into images[i - imagesAt]
+ * (imagesAt 0: images holds the whole grid; else the band's first cell, images one band).
  * @example for (let b = 0; b < bands; b++) latticeBand(input, b);
  */
-export function latticeBand(inp: LatticeInput, band: number): void {
+export function latticeBand(inp: LatticeInput, band: number, imagesAt = 0): void {
   const { width, x0, y0, dx, dy, heights, inSite, images, blocks, A, triggerM, kAlong, kAcross } = inp;
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
   const span = new Int32Array(2);
   // Written before read, as in sweepBand (coverageKernel.ts).
-  images.fill(0, r0 * width, (r1 + 1) * width);
+  images.fill(0, r0 * width - imagesAt, (r1 + 1) * width - imagesAt);
   for (let j = 0; j < inp.fx.length; j++) {
     const rLo = Math.max(inp.rowLo[j], r0);
     const rHi = Math.min(inp.rowHi[j], r1);
@@ -217,7 +252,7 @@ export function latticeBand(inp: LatticeInput, band: number): void {
       const ddx = x0 + (span[0] + 0.5) * dx - inp.fx[j];
       const ddy = cy - inp.fy[j];
       countRow(
-        heights, inSite, images, pre,
+        heights, inSite, images, imagesAt, pre,
         r * width + span[0], r * width + span[1],
         A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
         inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
@@ -227,7 +262,7 @@ export function latticeBand(inp: LatticeInput, band: number): void {
 }
 
 /**
- * One row of one strip: cells i0..i1 at along a0 / across q0 stepping by da / dq. For each
+ * One row of one strip: cells i0..i1 (counts at images[i - imagesAt]) at along a0 / across q0 stepping by da / dq. For each
  * cell, the run of lattice indices k with |a - (s0 + k t)| <= reach (the footprint's own
  * test). Neighbouring cells have nearly the same run, so both ends are moved from the
  * previous cell's by that test alone: no division or rounding per cell.
@@ -236,6 +271,7 @@ function countRow(
   heights: Float32Array,
   inSite: Uint8Array,
   images: Uint16Array,
+  imagesAt: number,
   pre: Int32Array,
   i0: number,
   i1: number,
@@ -270,7 +306,8 @@ function countRow(
     while (kHi < n && s0 + (kHi + 1) * t <= hi) kHi++;
     while (kHi >= 0 && s0 + kHi * t > hi) kHi--;
     if (kHi < kLo) continue;
-    const c = images[i] + pre[kHi + 1] - pre[kLo];
-    images[i] = c > 65535 ? 65535 : c;
+    const at = i - imagesAt;
+    const c = images[at] + pre[kHi + 1] - pre[kLo];
+    images[at] = c > 65535 ? 65535 : c;
   }
 }

@@ -29,6 +29,11 @@ export function quantilesFloat32(values: Float32Array, ps: readonly number[], ma
 /** Cells to include: non-zero entries (a site mask, or counts where > 0 means seen). */
 export type CellMask = Uint8Array | Uint16Array;
 
+/** Cells to include as a bit each: cell i is bit (i & 7) of bits[i >> 3] (a set of cells kept in 1/8 of a byte mask). */
+export interface CellBits {
+  bits: Uint8Array;
+}
+
 /**
  * Order statistics (0-based ranks, smallest first) of the included values: `ranksFor`
  * gets their number and gives the ranks wanted. Ranks must lie in [0, n).
@@ -78,11 +83,12 @@ export function radixBin(bits: number): number {
 
 /**
  * orderStatistics from its first pass made by the caller (`radix`: counts of exactly the
- * values `mask` and NaN leave in): the second pass gathers the wanted bins' values and
- * selects within them. The same statistics as orderStatistics.
+ * values `mask` and NaN leave in; `mask` a byte or count per cell, or a bit per cell): the
+ * second pass gathers the wanted bins' values and selects within them. The same statistics
+ * as orderStatistics.
  * @example orderStatisticsOfRadix(v, { hist, n }, (m) => [m >> 1])
  */
-export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogram, ranksFor: (n: number) => number[], mask?: CellMask): { n: number; stats: number[] } {
+export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogram, ranksFor: (n: number) => number[], mask?: CellMask | CellBits): { n: number; stats: number[] } {
   const { hist, n } = radix;
   if (n === 0) return { n, stats: [] };
   const keys = float32Keys(values);
@@ -96,17 +102,36 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
     return new Float32Array(hist[b]);
   });
   const fill = new Int32Array(bins.length);
-  for (let i = 0; i < keys.length; i++) {
-    const v = values[i];
-    if (v !== v || (mask !== undefined && mask[i] === 0)) continue;
-    const k = slot[radixBin(keys[i])];
-    if (k >= 0) gathered[k][fill[k]++] = v;
+  if (mask !== undefined && !ArrayBuffer.isView(mask)) gatherSetBits(values, keys, mask.bits, slot, gathered, fill);
+  else {
+    for (let i = 0; i < keys.length; i++) {
+      const v = values[i];
+      if (v !== v || (mask !== undefined && mask[i] === 0)) continue;
+      const k = slot[radixBin(keys[i])];
+      if (k >= 0) gathered[k][fill[k]++] = v;
+    }
   }
   // A first pass counted on other cells than `mask` selects would select wrongly: refuse it.
   bins.forEach((b, k) => {
     if (fill[k] !== hist[b]) throw new Error(`radix histogram does not match the values: bin ${b} counted ${hist[b]}, found ${fill[k]}`);
   });
   return { n, stats: selectWithinBins(binOf, within, (bin) => gathered[slot[bin]]) };
+}
+
+/** orderStatisticsOfRadix's second pass over the cells whose bit is set, a byte (8 cells) at a time. */
+function gatherSetBits(values: Float32Array, keys: Uint32Array, bits: Uint8Array, slot: Int32Array, gathered: Float32Array[], fill: Int32Array): void {
+  const n = values.length;
+  for (let byte = 0; byte < bits.length; byte++) {
+    const set = bits[byte];
+    if (set === 0) continue;
+    for (let j = 0, i = byte << 3; j < 8 && i < n; j++, i++) {
+      if ((set & (1 << j)) === 0) continue;
+      const v = values[i];
+      if (v !== v) continue;
+      const k = slot[radixBin(keys[i])];
+      if (k >= 0) gathered[k][fill[k]++] = v;
+    }
+  }
 }
 
 /**

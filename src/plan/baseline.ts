@@ -16,7 +16,7 @@ import type { Layout } from "../layout/types.js";
 import type { CeilingReference } from "../solve/types.js";
 import { footprintPixels } from "../assess/coverage.js";
 import { photoLattice, photoPhaseOn } from "../assess/exposures.js";
-import { latticeImageCounts, type LatticeStrip } from "../assess/latticeCoverage.js";
+import { latticeCountsByBand, type LatticeStrip } from "../assess/latticeCoverage.js";
 import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf } from "../assess/quantiles.js";
@@ -82,7 +82,7 @@ export interface BaselineOptions {
   clearanceM: number;
   /** The terrain-following plan's rasters: its site mask and GSD give its own breaches. */
   planRasters: AssessmentRasters;
-  /** Threads for the image counts (see bandThreads); default the machine's choice. */
+  /** Threads the plan may use (1: the comparison in no worker thread; see baselineBackground.ts); default the machine's choice. */
   threads?: number;
   /** Also tally the seen cells' GSD on this grid in the comparison's pass, so gsdHistogram is read off it when its edges fall on the grid. */
   gsdTally?: GsdTallyGrid;
@@ -100,7 +100,7 @@ export function constantAltitudeBaseline(
   o: BaselineOptions,
 ): Baseline {
   const job = baselineJob(grid, layout, camera, requirement, o, o.planRasters.inSite);
-  return baselineOf(grid, camera, o, baselineFigures(job, o.threads), o.planRasters);
+  return baselineOf(grid, camera, o, baselineFigures(job), o.planRasters);
 }
 
 /**
@@ -178,19 +178,22 @@ export function baselineJob(
 }
 
 /**
- * The comparison's figures from its job: the altitude over the site's median ground, the
- * image counts from the photo lattices (`threads` for them, see bandThreads) and one pass
- * over the site for the rest.
+ * The comparison's figures from its job, on this thread: the altitude over the site's median
+ * ground, then the image counts from the photo lattices a band of rows at a time, each band's
+ * read at once by one pass over the site for the rest (a worker thread makes them beside the
+ * plan: baselineBackground.ts).
  * @example const f = baselineFigures(job); f.stats.withinBandPct
  */
-export function baselineFigures(job: BaselineJob, threads?: number): BaselineFigures {
+export function baselineFigures(job: BaselineJob): BaselineFigures {
   const { grid, inSite } = job;
   const medianGroundM = medianSiteGround(grid.heights, inSite);
   const A = medianGroundM + job.targetHeightM;
-  const images = latticeImageCounts(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, threads);
+  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross);
+  const images = lattice.images;
 
-  // One pass over the site: GSD, flags (the assessment's effect bits), every count, the
-  // clearance shortfall and the first radix pass of the GSD quantiles (below).
+  // One pass over the site, band by band as the counts are made: GSD, flags (the
+  // assessment's effect bits), every count, the clearance shortfall and the first radix pass
+  // of the GSD quantiles (below).
   const n = inSite.length;
   const gsdPerM = job.ifov * 100;
   const lo = job.lowGsdM * 100 * (1 - BAND_SLACK);
@@ -213,40 +216,43 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   const clearanceM = job.clearanceM;
   const tallySlots = job.gsdTally ? zeroFilled(new Float64Array(job.gsdTally.bins + 2)) : undefined;
   const tally = job.gsdTally && tallySlots ? tallyCounter(job.gsdTally, tallySlots, 0) : undefined;
-  for (let i = 0; i < n; i++) {
-    if (inSite[i] === 0) continue;
-    siteCells++;
-    const c = images[i];
-    const z = heights[i];
-    // The GSD of a seen cell (made once: the flags and the report's histogram both use it).
-    const g = c > 0 ? Math.fround((A - z) * gsdPerM) : NaN;
-    // NaN (nodata) ground fails both comparisons.
-    if (z > maxGroundM) maxGroundM = z;
-    if (A - z < clearanceM) shortCells++;
-    if (c > 0) {
-      seen++;
-      seenBits[i >> 3] |= 1 << (i & 7);
-      // NaN ground is left out, as orderStatistics leaves it out.
-      if (z === z) {
-        seenGround[radixBin(heightBits[i])]++;
-        seenWithGround++;
-      }
-      // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
-      if (tally !== undefined) tally.add(g);
-    }
-    let f: number;
-    if (valid[i] === 0) f = FLAG_NODATA;
-    else {
-      imageHist[c]++;
-      f = c < job.minImages ? FLAG_FEW_IMAGES : 0;
+  for (let band = 0; band < lattice.bands; band++) {
+    const [i0, i1] = lattice.count(band);
+    for (let i = i0; i < i1; i++) {
+      if (inSite[i] === 0) continue;
+      siteCells++;
+      const c = images[i - i0];
+      const z = heights[i];
+      // The GSD of a seen cell (made once: the flags and the report's histogram both use it).
+      const g = c > 0 ? Math.fround((A - z) * gsdPerM) : NaN;
+      // NaN (nodata) ground fails both comparisons.
+      if (z > maxGroundM) maxGroundM = z;
+      if (A - z < clearanceM) shortCells++;
       if (c > 0) {
-        if (g > hi) f |= FLAG_COARSE;
-        else if (g < lo) f |= FLAG_FINE;
-        else inBand++;
-        if (overCeiling(g, z, job.ifov, job)) breaches++;
+        seen++;
+        seenBits[i >> 3] |= 1 << (i & 7);
+        // NaN ground is left out, as orderStatistics leaves it out.
+        if (z === z) {
+          seenGround[radixBin(heightBits[i])]++;
+          seenWithGround++;
+        }
+        // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
+        if (tally !== undefined) tally.add(g);
       }
+      let f: number;
+      if (valid[i] === 0) f = FLAG_NODATA;
+      else {
+        imageHist[c]++;
+        f = c < job.minImages ? FLAG_FEW_IMAGES : 0;
+        if (c > 0) {
+          if (g > hi) f |= FLAG_COARSE;
+          else if (g < lo) f |= FLAG_FINE;
+          else inBand++;
+          if (overCeiling(g, z, job.ifov, job)) breaches++;
+        }
+      }
+      flagHist[f]++;
     }
-    flagHist[f]++;
   }
   // Kinds read off the histogram of flag values rather than bit by bit per cell.
   for (let f = 1; f < FLAG_VALUES; f++) {
@@ -257,7 +263,7 @@ export function baselineFigures(job: BaselineJob, threads?: number): BaselineFig
   // GSD falls as the ground rises (and its float32 rounding keeps that order), so the r-th
   // smallest GSD is that of the (m - 1 - r)-th lowest seen ground: no array of GSD values.
   const QS = [0, 0.05, 0.5, 0.95, 1];
-  const zs = orderStatisticsOfRadix(heights, { hist: seenGround, n: seenWithGround }, (m) => ranksOf(m, QS).map((r) => m - 1 - r), images);
+  const zs = orderStatisticsOfRadix(heights, { hist: seenGround, n: seenWithGround }, (m) => ranksOf(m, QS).map((r) => m - 1 - r), { bits: seenBits });
   const [min, p5, median, p95, max] = zs.n === 0 ? QS.map(() => NaN) : interpolate(zs.n, QS, zs.stats.map((g) => Math.fround((A - g) * gsdPerM)));
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
   const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);

@@ -87,7 +87,7 @@ export function constantAltitudeBaselineInBackground(
     finish: async (planRasters, planBreachCells) => {
       const fromWorker = await figures.result();
       madeIn = fromWorker ? "worker" : "this thread";
-      return baselineOf(grid, camera, o, fromWorker ?? baselineFigures(job, o.threads), planRasters, planBreachCells);
+      return baselineOf(grid, camera, o, fromWorker ?? baselineFigures(job), planRasters, planBreachCells);
     },
     madeIn: () => madeIn,
     startedBeforeSolve,

@@ -11,5 +11,5 @@ import { lowerThisThreadPriority } from "../threadPriority.js";
  */
 const { job, nice } = workerData as { job: BaselineJob; nice?: number };
 if (nice !== undefined) lowerThisThreadPriority(nice);
-const figures = baselineFigures(job, 1);
+const figures = baselineFigures(job);
 parentPort?.postMessage(figures, [figures.seenBits.buffer as ArrayBuffer]);

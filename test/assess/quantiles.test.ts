@@ -89,6 +89,15 @@ describe("exact quantiles by radix selection", () => {
     expect(got.stats).toEqual(ranks(sorted.length).map((r) => sorted[r]));
     // Counted without the mask: the gathered bins overflow, and the call says so.
     expect(() => orderStatisticsOfRadix(values, { hist, n: m }, ranks)).toThrow(/does not match/);
+    // The same cells as a bit each (n is not a multiple of 8: the last byte is part used).
+    const cellBits = new Uint8Array((n + 7) >> 3);
+    for (let i = 0; i < n; i++) if (mask[i]) cellBits[i >> 3] |= 1 << (i & 7);
+    expect(orderStatisticsOfRadix(values, { hist, n: m }, ranks, { bits: cellBits })).toEqual(got);
+    // The smallest value's bit left unset: its bin, gathered, comes up short, and the call says so.
+    const least = Array.from(values).findIndex((v, i) => mask[i] !== 0 && v === got.stats[0]);
+    const short = cellBits.slice();
+    short[least >> 3] &= ~(1 << (least & 7));
+    expect(() => orderStatisticsOfRadix(values, { hist, n: m }, ranks, { bits: short })).toThrow(/does not match/);
   });
 
   it("count stats: min and median of the included cells", () => {

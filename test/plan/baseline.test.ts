@@ -264,7 +264,7 @@ describe("constant-altitude baseline started before the solve", () => {
   /** An early start whose figures are a sentinel, so which figures finish used shows. */
   const sentinel = (layout: Layout) => {
     const job = baselineJob(grid, layout, camera, requirement, opts, inSite);
-    const figures = { ...baselineFigures(job, 1), altitudeAmslM: -12345 };
+    const figures = { ...baselineFigures(job), altitudeAmslM: -12345 };
     let cancelled = 0;
     return { early: { job, figures: { result: async () => figures, cancel: () => void cancelled++ } }, cancelled: () => cancelled };
   };
