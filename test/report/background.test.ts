@@ -7,6 +7,7 @@ import { demLayers } from "../../src/report/demLayers.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { compactReportInput, reportMaps, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
 import type { ReportRasters } from "../../src/report/model.js";
+import { inSharedMemory } from "../../src/background.js";
 
 const built = builtModule("report/background.js", ["renderWorker.js"]);
 const builtMaps = builtModule("report/serialize.js", ["mapsWorker.js"]);
@@ -24,6 +25,44 @@ describe.skipIf(!built.available)("report page rendered in a worker thread", () 
     const bytes = await page.bytes();
     expect(Buffer.from(bytes).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
     expect(/[^\u0000-\u00ff]/.test(html)).toBe(true);
+  });
+});
+
+describe("the page's input moved into shared memory (inSharedMemory)", () => {
+  it("holds the same values, every typed array on one SharedArrayBuffer that a message shares", () => {
+    const whole = Float64Array.from({ length: 40 }, (_, i) => 1000 + i / 3);
+    const profile = { s: whole.subarray(3, 17), status: Uint8Array.of(0, 1, 2), cause: Uint8Array.of(5) };
+    const already = new Float32Array(new SharedArrayBuffer(8)).fill(7);
+    const kept = new Map([["a", 1]]);
+    const input = { legs: [{ strip: 1, profile }, { strip: 2, profile }], heights: Float32Array.of(1.5, NaN, -2), flags: Uint16Array.of(65535, 3), already, kept, name: "x" };
+    const out = inSharedMemory(input);
+    const views = [out.legs[0].profile.s, out.legs[0].profile.status, out.legs[0].profile.cause, out.heights, out.flags];
+    const buffer = views[0].buffer;
+    expect(buffer).toBeInstanceOf(SharedArrayBuffer);
+    for (const v of views) {
+      expect(v.buffer).toBe(buffer);
+      // 8-byte aligned, so every element type can view it.
+      expect(v.byteOffset % 8).toBe(0);
+    }
+    expect(Array.from(out.legs[0].profile.s)).toEqual(Array.from(profile.s));
+    expect(out.legs[0].profile.s).toBeInstanceOf(Float64Array);
+    expect(Array.from(out.legs[0].profile.status)).toEqual([0, 1, 2]);
+    expect(Array.from(out.heights)).toEqual([1.5, NaN, -2]);
+    expect(out.flags).toBeInstanceOf(Uint16Array);
+    expect(Array.from(out.flags)).toEqual([65535, 3]);
+    // An array met twice is moved once; arrays already shared and non-plain objects are kept.
+    expect(out.legs[1].profile).not.toBe(profile);
+    expect(out.legs[1].profile.s).toBe(out.legs[0].profile.s);
+    expect(out.already).toBe(already);
+    expect(out.kept).toBe(kept);
+    expect(out.name).toBe("x");
+    // The input itself is left as it was.
+    expect(input.legs[0].profile.s.buffer).toBe(whole.buffer);
+    // A clone (what a message to a worker makes) shares the values: a write shows through.
+    const clone = structuredClone(out);
+    clone.heights[0] = 99;
+    expect(out.heights[0]).toBe(99);
+    expect(inSharedMemory({ a: 1, b: [2] })).toEqual({ a: 1, b: [2] });
   });
 });
 
