@@ -195,65 +195,33 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
   // assessment's effect bits), every count, the clearance shortfall and the first radix pass
   // of the GSD quantiles (below).
   const n = inSite.length;
-  const gsdPerM = job.ifov * 100;
-  const lo = job.lowGsdM * 100 * (1 - BAND_SLACK);
-  const hi = job.highGsdM * 100 * (1 + BAND_SLACK);
-  const { heights, valid } = grid;
-  const heightBits = float32Keys(heights);
-  let seen = 0;
-  const seenBits = zeroFilled(new Uint8Array((n + 7) >> 3));
-  const imageHist = zeroFilled(new Float64Array(65536));
-  const kindCells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
-  const flagHist = new Float64Array(FLAG_VALUES);
-  const seenGround = zeroFilled(new Uint32Array(RADIX_BINS));
-  let seenWithGround = 0;
-  let siteCells = 0;
-  let flagged = 0;
-  let inBand = 0;
-  let breaches = 0;
-  let shortCells = 0;
-  let maxGroundM = -Infinity;
-  const clearanceM = job.clearanceM;
-  const tallySlots = job.gsdTally ? zeroFilled(new Float64Array(job.gsdTally.bins + 2)) : undefined;
-  const tally = job.gsdTally && tallySlots ? tallyCounter(job.gsdTally, tallySlots, 0) : undefined;
+  const t: SiteTallies = {
+    counts: new Float64Array(TALLY_COUNTS),
+    seenBits: zeroFilled(new Uint8Array((n + 7) >> 3)),
+    imageHist: zeroFilled(new Float64Array(65536)),
+    flagHist: zeroFilled(new Float64Array(FLAG_VALUES)),
+    seenGround: zeroFilled(new Uint32Array(RADIX_BINS)),
+    tallySlots: job.gsdTally ? zeroFilled(new Float64Array(job.gsdTally.bins + 2)) : undefined,
+  };
+  t.counts[MAX_GROUND] = -Infinity;
+  const tally = job.gsdTally && t.tallySlots ? tallyCounter(job.gsdTally, t.tallySlots, 0) : undefined;
   for (let band = 0; band < lattice.bands; band++) {
     const [i0, i1] = lattice.count(band);
-    for (let i = i0; i < i1; i++) {
-      if (inSite[i] === 0) continue;
-      siteCells++;
-      const c = images[i - i0];
-      const z = heights[i];
-      // The GSD of a seen cell (made once: the flags and the report's histogram both use it).
-      const g = c > 0 ? Math.fround((A - z) * gsdPerM) : NaN;
-      // NaN (nodata) ground fails both comparisons.
-      if (z > maxGroundM) maxGroundM = z;
-      if (A - z < clearanceM) shortCells++;
-      if (c > 0) {
-        seen++;
-        seenBits[i >> 3] |= 1 << (i & 7);
-        // NaN ground is left out, as orderStatistics leaves it out.
-        if (z === z) {
-          seenGround[radixBin(heightBits[i])]++;
-          seenWithGround++;
-        }
-        // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
-        if (tally !== undefined) tally.add(g);
-      }
-      let f: number;
-      if (valid[i] === 0) f = FLAG_NODATA;
-      else {
-        imageHist[c]++;
-        f = c < job.minImages ? FLAG_FEW_IMAGES : 0;
-        if (c > 0) {
-          if (g > hi) f |= FLAG_COARSE;
-          else if (g < lo) f |= FLAG_FINE;
-          else inBand++;
-          if (overCeiling(g, z, job.ifov, job)) breaches++;
-        }
-      }
-      flagHist[f]++;
-    }
+    tallyBand(job, A, images, i0, i1, t, tally);
   }
+  const { counts, seenBits, imageHist, flagHist, seenGround } = t;
+  const seen = counts[SEEN];
+  const siteCells = counts[SITE_CELLS];
+  const inBand = counts[IN_BAND];
+  const breaches = counts[BREACHES];
+  const shortCells = counts[SHORT_CELLS];
+  const maxGroundM = counts[MAX_GROUND];
+  const seenWithGround = counts[SEEN_WITH_GROUND];
+  const { heights } = grid;
+  const gsdPerM = job.ifov * 100;
+  const clearanceM = job.clearanceM;
+  const kindCells = new Float64Array(ASSESSMENT_FLAG_KINDS.length);
+  let flagged = 0;
   // Kinds read off the histogram of flag values rather than bit by bit per cell.
   for (let f = 1; f < FLAG_VALUES; f++) {
     if (flagHist[f] === 0) continue;
@@ -277,7 +245,7 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
     ...(Number.isFinite(maxGroundM) ? { clearanceShortfall: { clearanceM, cells: shortCells, areaM2: shortCells * cellAreaM2, maxGroundM } } : {}),
     seenBits,
     seen,
-    ...(job.gsdTally && tallySlots ? { gsdTally: tallyOfSlots(job.gsdTally, tallySlots) } : {}),
+    ...(job.gsdTally && t.tallySlots ? { gsdTally: tallyOfSlots(job.gsdTally, t.tallySlots) } : {}),
     stats: {
       gsdCm: { min, p5, median, p95, max },
       withinBandPct: pct(inBand),
@@ -288,6 +256,81 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
       ceilingBreaches: { cells: breaches, areaM2: breaches * cellAreaM2 },
     },
   };
+}
+
+/** The comparison pass's tallies across bands: counts (indices below) and histograms. */
+interface SiteTallies {
+  counts: Float64Array;
+  /** A bit per cell: site cells some photo sees. */
+  seenBits: Uint8Array;
+  imageHist: Float64Array;
+  flagHist: Float64Array;
+  /** First radix pass of the seen cells' ground (quantiles.ts). */
+  seenGround: Uint32Array;
+  tallySlots?: Float64Array;
+}
+const SEEN = 0, SEEN_WITH_GROUND = 1, SITE_CELLS = 2, IN_BAND = 3, BREACHES = 4, SHORT_CELLS = 5, MAX_GROUND = 6, TALLY_COUNTS = 7;
+
+/**
+ * The comparison's pass over cells i0 .. i1 - 1 (one band; cell i's image count is
+ * images[i - i0]), added to `t`. A small function of its own, called per band: inside
+ * baselineFigures the engine compiled the loop mid-call with the code after it not yet run,
+ * and each piece of that code reached sent the whole function back to the interpreter, to be
+ * compiled again (eight compiles of it on the demo, node --trace-opt). So this function ends
+ * with its loop, its counts kept in `t` as they go (stores after the loop would send the loop,
+ * compiled in the first band and reused for the next, back at the end of each band), and the
+ * counts that data decide (cells short of clearance, in the band, above the ceiling) add 0 or
+ * 1 on every cell rather than being incremented in a branch first taken late in the pass.
+ */
+function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number, i1: number, t: SiteTallies, tally: { add: (v: number) => void } | undefined): void {
+  const { inSite } = job;
+  const { heights, valid } = job.grid;
+  const heightBits = float32Keys(heights);
+  const { counts, seenBits, imageHist, flagHist, seenGround } = t;
+  const gsdPerM = job.ifov * 100;
+  const lo = job.lowGsdM * 100 * (1 - BAND_SLACK);
+  const hi = job.highGsdM * 100 * (1 + BAND_SLACK);
+  const clearanceM = job.clearanceM;
+  const minImages = job.minImages;
+  // Under the ground and surface rules a breach is a GSD at or above one threshold (ceilingBreachGsdCm).
+  const breachGsd = ceilingBreachGsdCm(job.ifov, job);
+  for (let i = i0; i < i1; i++) {
+    if (inSite[i] === 0) continue;
+    counts[SITE_CELLS]++;
+    const c = images[i - i0];
+    const z = heights[i];
+    // The GSD of a seen cell (made once: the flags and the report's histogram both use it).
+    const g = c > 0 ? Math.fround((A - z) * gsdPerM) : NaN;
+    // NaN (nodata) ground fails both comparisons.
+    if (z > counts[MAX_GROUND]) counts[MAX_GROUND] = z;
+    counts[SHORT_CELLS] += A - z < clearanceM ? 1 : 0;
+    if (c > 0) {
+      counts[SEEN]++;
+      seenBits[i >> 3] |= 1 << (i & 7);
+      // NaN ground is left out, as orderStatistics leaves it out.
+      if (z === z) {
+        seenGround[radixBin(heightBits[i])]++;
+        counts[SEEN_WITH_GROUND]++;
+      }
+      // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
+      if (tally !== undefined) tally.add(g);
+    }
+    let f: number;
+    if (valid[i] === 0) f = FLAG_NODATA;
+    else {
+      imageHist[c]++;
+      f = c < minImages ? FLAG_FEW_IMAGES : 0;
+      if (c > 0) {
+        // NaN GSD counts as in the band, as the assessment counts it.
+        const coarse = g > hi;
+        const fine = !coarse && g < lo;
+        f |= (coarse ? FLAG_COARSE : 0) | (fine ? FLAG_FINE : 0);
+        counts[IN_BAND] += coarse || fine ? 0 : 1;
+        counts[BREACHES] += (breachGsd !== undefined ? g >= breachGsd : overCeiling(g, z, job.ifov, job)) ? 1 : 0;
+      }
+    }
+    flagHist[f]++;
+  }
 }
 
 /**
