@@ -40,23 +40,7 @@ export function flagPolygons(
   // A plan that flags nothing (the usual aim) has no layer to trace: no pass over the cells.
   if (noneFlagged(flags)) return out;
   const { x0, y0, dx, dy } = transform;
-  // One pass for all kinds: flag-byte histogram (cell counts) and the OR of each row and
-  // column (bounding boxes), instead of one scan of the grid per kind.
-  const hist = new Float64Array(FLAG_VALUES);
-  const rowOr = new Uint16Array(height);
-  const colOr = new Uint16Array(width);
-  for (let r = 0; r < height; r++) {
-    const base = r * width;
-    let ro = 0;
-    for (let c = 0; c < width; c++) {
-      const f = flags[base + c];
-      if (f === 0) continue;
-      hist[f]++;
-      ro |= f;
-      colOr[c] |= f;
-    }
-    rowOr[r] = ro;
-  }
+  const { hist, rowOr, colOr } = flagTallies(flags, width, height);
   for (const kind of ASSESSMENT_FLAG_KINDS) {
     const bit = kind.bit;
     let cells = 0;
@@ -72,12 +56,7 @@ export function flagPolygons(
     while (!(rowOr[r1] & bit)) r1--;
     const mw = c1 - c0 + 3;
     const mh = r1 - r0 + 3;
-    const mask = new Uint8Array(mw * mh);
-    for (let r = r0; r <= r1; r++) {
-      const src = r * width;
-      const dst = (r - r0 + 1) * mw + 1 - c0;
-      for (let c = c0; c <= c1; c++) if (flags[src + c] & bit) mask[dst + c] = 1;
-    }
+    const mask = kindMask(flags, width, bit, c0, c1, r0, r1);
     // d3 reads values by index only, so a typed array serves as its number[].
     const traced = contours().size([mw, mh]).contour(mask as unknown as number[], 0.5);
     const toWorld = (p: Position): Position => toWgs84(x0 + (p[0] - 1 + c0) * dx, y0 + (p[1] - 1 + r0) * dy);
@@ -89,6 +68,43 @@ export function flagPolygons(
     };
   }
   return out;
+}
+
+/**
+ * One pass for all kinds: the flag values' histogram (cell counts) and the OR of each row and
+ * column (bounding boxes), instead of one scan of the grid per kind. The long loops of
+ * flagPolygons are functions of their own that end with them: the engine compiles such a loop
+ * mid-call, and in flagPolygons the code after it, not yet run, sent the whole function back
+ * to the interpreter to be compiled again (six compiles on the demo, node --trace-opt).
+ */
+function flagTallies(flags: Uint16Array, width: number, height: number): { hist: Float64Array; rowOr: Uint16Array; colOr: Uint16Array } {
+  const out = { hist: new Float64Array(FLAG_VALUES), rowOr: new Uint16Array(height), colOr: new Uint16Array(width) };
+  const { hist, rowOr, colOr } = out;
+  for (let r = 0; r < height; r++) {
+    const base = r * width;
+    let ro = 0;
+    for (let c = 0; c < width; c++) {
+      const f = flags[base + c];
+      if (f === 0) continue;
+      hist[f]++;
+      ro |= f;
+      colOr[c] |= f;
+    }
+    rowOr[r] = ro;
+  }
+  return out;
+}
+
+/** 0/1 mask of the cells carrying `bit` in columns c0..c1, rows r0..r1, padded by one empty cell on every side. */
+function kindMask(flags: Uint16Array, width: number, bit: number, c0: number, c1: number, r0: number, r1: number): Uint8Array {
+  const mw = c1 - c0 + 3;
+  const mask = new Uint8Array(mw * (r1 - r0 + 3));
+  for (let r = r0; r <= r1; r++) {
+    const src = r * width;
+    const dst = (r - r0 + 1) * mw + 1 - c0;
+    for (let c = c0; c <= c1; c++) if (flags[src + c] & bit) mask[dst + c] = 1;
+  }
+  return mask;
 }
 
 /** Zero bytes that noneFlagged compares the flags with, a slice at a time. */
