@@ -115,7 +115,6 @@ export function minLinkPath(
     const z = clamp(prefM ? prefM[0] : (lo[0] + hi[0]) / 2, lo[0], hi[0]);
     return { vertexStation: Int32Array.of(0), vertexHeightM: Float64Array.of(z), segments: 0 };
   }
-  const eps = GATE_EPS_M;
   const pieces = new Growable();
   // Union of pieces of levels <= k at each station, flat [lo, hi, lo, hi, ...] sorted.
   const union: (number[] | null)[] = new Array(n).fill(null);
@@ -127,99 +126,132 @@ export function minLinkPath(
   union[0] = [lo[0], hi[0]];
   let frontier: number[] = [0];
 
-  const cand = new Growable();
-  const candHead = new Int32Array(n).fill(-1);
-  let candNext = new Int32Array(256);
-  const touched: number[] = [];
-  const sweep = new StabbingLines(n);
-  // Furthest station any segment reached: where a lattice search got stuck.
-  let furthest = 0;
-
-  let level = 0;
+  const level: Level = { cand: new Growable(), candHead: new Int32Array(n).fill(-1), candNext: new Int32Array(256), touched: [], sweep: new StabbingLines(n), furthest: 0 };
   while (union[n - 1] === null) {
     if (frontier.length === 0) {
-      if (failure) failure.furthestStation = furthest;
+      // Furthest station any segment reached: where a lattice search got stuck.
+      if (failure) failure.furthestStation = level.furthest;
       return null;
     }
-    level++;
-    cand.length = 0;
-    for (const p of frontier) {
-      const j = pieces.station[p];
-      const sj = s[j];
-      // Start: all segments from heights [a, b] at station j with gradient in [gMin, gMax].
-      if (!sweep.reset(pieces.lo[p], pieces.hi[p], gMin, gMax)) continue;
-      for (let m = j + 1; m < n; m++) {
-        const d = s[m] - sj;
-        if (!sweep.cut(d, lo[m] - eps, hi[m] + eps)) break;
-        if (m > furthest) furthest = m;
-        // Off the vertex lattice the gate is checked but no vertex may sit here.
-        if (vertexMask !== undefined && m !== n - 1 && vertexMask[m] === 0) continue;
-        let zMin = sweep.minAt(d), zMax = sweep.maxAt(d);
-        const u = union[m];
-        if (u !== null) {
-          // Exact pruning (see the header): segments through heights already in
-          // S_k here are continued by other sweeps, so drop them. When S_k covers
-          // one end of the reached range, dropping them is one more cut.
-          if (covers(u, Math.max(zMin, lo[m]), Math.min(zMax, hi[m]))) break;
-          let alive = true;
-          for (let i = 0; i < u.length; i += 2) {
-            const u0 = u[i], u1 = u[i + 1];
-            if (u0 <= zMin + 1e-9 && u1 > zMin && u1 < zMax) alive = sweep.cut(d, u1, Infinity);
-            else if (u1 >= zMax - 1e-9 && u0 < zMax && u0 > zMin) alive = sweep.cut(d, -Infinity, u0);
-            else continue;
-            if (!alive) break;
-            zMin = sweep.minAt(d);
-            zMax = sweep.maxAt(d);
-          }
-          if (!alive) break;
-        }
-        zMin = Math.max(zMin, lo[m]);
-        zMax = Math.min(zMax, hi[m]);
-        if (zMin > zMax) { const c = (zMin + zMax) / 2; zMin = zMax = c; }
-        const ci = cand.push(m, zMin, zMax, p);
-        if (candNext.length < cand.station.length) { const nn = new Int32Array(cand.station.length); nn.set(candNext); candNext = nn; }
-        if (candHead[m] === -1) touched.push(m);
-        candNext[ci] = candHead[m];
-        candHead[m] = ci;
-      }
-    }
-    // Merge this level's candidates into the union; what is new becomes the next
-    // frontier as maximal intervals (one piece per new stretch, not per sweep),
-    // each remembering the sweeps that reached it for the back-tracking.
-    const next: number[] = [];
-    for (const m of touched) {
-      const list: number[] = [];
-      for (let c = candHead[m]; c !== -1; c = candNext[c]) list.push(c);
-      candHead[m] = -1;
-      list.sort((a, b) => cand.lo[a] - cand.lo[b]);
-      const old = union[m] ?? [];
-      let u = old;
-      for (let i = 0; i < list.length; ) {
-        const a = cand.lo[list[i]];
-        let b = cand.hi[list[i]];
-        let k = i + 1;
-        while (k < list.length && cand.lo[list[k]] <= b) { b = Math.max(b, cand.hi[list[k]]); k++; }
-        const rest = subtract(old, a, b);
-        for (let r = 0; r < rest.length; r += 2) {
-          const pi = pieces.push(m, rest[r], rest[r + 1], provFrom.length);
-          for (let q = i; q < k; q++) {
-            const c = list[q];
-            if (cand.hi[c] >= rest[r] - 1e-9 && cand.lo[c] <= rest[r + 1] + 1e-9) provFrom.push(cand.from[c]);
-          }
-          provEnd.push(provFrom.length);
-          next.push(pi);
-          u = addInterval(u, rest[r], rest[r + 1]);
-        }
-        i = k;
-
-      }
-      union[m] = u.length ? u : union[m];
-    }
-    touched.length = 0;
-    frontier = next;
+    level.cand.length = 0;
+    for (const p of frontier) sweepFromPiece(p, pieces, s, lo, hi, gMin, gMax, union, vertexMask, level);
+    frontier = mergeLevel(level, pieces, union, provFrom, provEnd);
   }
 
   return backTrack(s, lo, hi, gMin, gMax, prefM, pieces, union[n - 1]!, provFrom, provEnd);
+}
+
+/**
+ * One level's candidates of minLinkPath, and what its sweeps share. The search's two parts
+ * (the sweeps from each piece of the frontier, the merge of what they reached) are functions
+ * of their own: as one function the search was compiled twice (while its first call ran,
+ * then for the calls after), ~90 ms of compiler time each at 4 km2 (node --trace-opt).
+ */
+interface Level {
+  cand: Growable;
+  /** Per station, the last candidate reaching it (a list through candNext), -1 for none. */
+  candHead: Int32Array;
+  candNext: Int32Array;
+  /** Stations some candidate of this level reached. */
+  touched: number[];
+  sweep: StabbingLines;
+  /** Furthest station any segment reached. */
+  furthest: number;
+}
+
+/** All segments from piece p's heights at its station, as far as the gates let them: one candidate per station reached, added to `level`. */
+function sweepFromPiece(
+  p: number,
+  pieces: Growable,
+  s: Float64Array,
+  lo: Float64Array,
+  hi: Float64Array,
+  gMin: number,
+  gMax: number,
+  union: (number[] | null)[],
+  vertexMask: Uint8Array | undefined,
+  level: Level,
+): void {
+  const n = s.length;
+  const eps = GATE_EPS_M;
+  const { cand, candHead, touched, sweep } = level;
+  const j = pieces.station[p];
+  const sj = s[j];
+  // Start: all segments from heights [a, b] at station j with gradient in [gMin, gMax].
+  if (!sweep.reset(pieces.lo[p], pieces.hi[p], gMin, gMax)) return;
+  for (let m = j + 1; m < n; m++) {
+    const d = s[m] - sj;
+    if (!sweep.cut(d, lo[m] - eps, hi[m] + eps)) break;
+    if (m > level.furthest) level.furthest = m;
+    // Off the vertex lattice the gate is checked but no vertex may sit here.
+    if (vertexMask !== undefined && m !== n - 1 && vertexMask[m] === 0) continue;
+    let zMin = sweep.minAt(d), zMax = sweep.maxAt(d);
+    const u = union[m];
+    if (u !== null) {
+      // Exact pruning (see the header): segments through heights already in
+      // S_k here are continued by other sweeps, so drop them. When S_k covers
+      // one end of the reached range, dropping them is one more cut.
+      if (covers(u, Math.max(zMin, lo[m]), Math.min(zMax, hi[m]))) break;
+      let alive = true;
+      for (let i = 0; i < u.length; i += 2) {
+        const u0 = u[i], u1 = u[i + 1];
+        if (u0 <= zMin + 1e-9 && u1 > zMin && u1 < zMax) alive = sweep.cut(d, u1, Infinity);
+        else if (u1 >= zMax - 1e-9 && u0 < zMax && u0 > zMin) alive = sweep.cut(d, -Infinity, u0);
+        else continue;
+        if (!alive) break;
+        zMin = sweep.minAt(d);
+        zMax = sweep.maxAt(d);
+      }
+      if (!alive) break;
+    }
+    zMin = Math.max(zMin, lo[m]);
+    zMax = Math.min(zMax, hi[m]);
+    if (zMin > zMax) { const c = (zMin + zMax) / 2; zMin = zMax = c; }
+    const ci = cand.push(m, zMin, zMax, p);
+    if (level.candNext.length < cand.station.length) { const nn = new Int32Array(cand.station.length); nn.set(level.candNext); level.candNext = nn; }
+    if (candHead[m] === -1) touched.push(m);
+    level.candNext[ci] = candHead[m];
+    candHead[m] = ci;
+  }
+}
+
+/**
+ * Merges a level's candidates into the union; what is new becomes the next frontier (returned)
+ * as maximal intervals (one piece per new stretch, not per sweep), each remembering the
+ * sweeps that reached it for the back-tracking.
+ */
+function mergeLevel(level: Level, pieces: Growable, union: (number[] | null)[], provFrom: number[], provEnd: number[]): number[] {
+  const { cand, candHead, candNext, touched } = level;
+  const next: number[] = [];
+  for (const m of touched) {
+    const list: number[] = [];
+    for (let c = candHead[m]; c !== -1; c = candNext[c]) list.push(c);
+    candHead[m] = -1;
+    list.sort((a, b) => cand.lo[a] - cand.lo[b]);
+    const old = union[m] ?? [];
+    let u = old;
+    for (let i = 0; i < list.length; ) {
+      const a = cand.lo[list[i]];
+      let b = cand.hi[list[i]];
+      let k = i + 1;
+      while (k < list.length && cand.lo[list[k]] <= b) { b = Math.max(b, cand.hi[list[k]]); k++; }
+      const rest = subtract(old, a, b);
+      for (let r = 0; r < rest.length; r += 2) {
+        const pi = pieces.push(m, rest[r], rest[r + 1], provFrom.length);
+        for (let q = i; q < k; q++) {
+          const c = list[q];
+          if (cand.hi[c] >= rest[r] - 1e-9 && cand.lo[c] <= rest[r + 1] + 1e-9) provFrom.push(cand.from[c]);
+        }
+        provEnd.push(provFrom.length);
+        next.push(pi);
+        u = addInterval(u, rest[r], rest[r + 1]);
+      }
+      i = k;
+    }
+    union[m] = u.length ? u : union[m];
+  }
+  touched.length = 0;
+  return next;
 }
 
 /**
