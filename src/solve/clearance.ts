@@ -46,8 +46,11 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
   const r2 = radiusM * radiusM;
   const rIn = Math.max(0, radiusM - 1e-6), rOut = radiusM + 1e-6;
   const rIn2 = rIn * rIn, rOut2 = rOut * rOut;
-  // Boundary blocks of the current station, scanned after the interior ones.
-  let edge = new Int32Array(256);
+  // Boundary blocks of the current station, scanned after the interior ones: room for every
+  // block the disc's box spans, so the growth below is never taken (code first reached late
+  // sent the stations' loop, compiled meanwhile, back to the interpreter: node --trace-deopt).
+  const blocksAcross = Math.ceil((2 * rOut) / Math.min(adx, ady) / kb) + 3;
+  let edge = new Int32Array(blocksAcross * blocksAcross);
   for (let i = 0; i < xs.length; i++) {
     const px = xs[i], py = ys[i];
     // Point in cell-centre index coordinates.
@@ -75,14 +78,17 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
       const hOut = Math.sqrt(rOut2 - dyNear * dyNear) / adx;
       const bcA = Math.max(0, Math.floor((pcx - hOut) / kb)), bcB = Math.min(pw - 1, Math.floor((pcx + hOut) / kb));
       // Interior blocks: whole column extent within the chord at the farthest row.
-      let iA = bcB + 1, iB = bcB;
+      // (No arithmetic in the rarely taken branch below: first taken after the engine compiled
+      // this loop, an operation without type feedback sent it back to the interpreter.)
+      const noneA = bcB + 1;
+      let iA = noneA, iB = bcB;
       if (dyFar * dyFar <= rIn2) {
         const hIn = Math.sqrt(rIn2 - dyFar * dyFar) / adx;
         iA = Math.ceil((pcx - hIn) / kb);
         iB = Math.floor((pcx + hIn + 1) / kb) - 1;
         if (iA < bcA) iA = bcA;
         if (iB > bcB) iB = bcB;
-        if (iA > iB) { iA = bcB + 1; iB = bcB; }
+        if (iA > iB) { iA = noneA; iB = bcB; }
       }
       const base = br * pw;
       for (let bc = iA; bc <= iB; bc++) {
@@ -93,49 +99,59 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
       if (nEdge + (bcB - bcA + 1) > edge.length) { const e = new Int32Array(2 * edge.length + bcB - bcA + 1); e.set(edge); edge = e; }
       for (let bc = bcA; bc <= bcB; bc++) if (bc < iA || bc > iB) edge[nEdge++] = base + bc;
     }
-    if (bad) {
-      // A block wholly inside the disc holds nodata: so does the disc (extremaInRadius's NaN).
-      out[i] = NaN;
-      continue;
-    }
-    // Boundary blocks that can still matter: those holding nodata (the disc may reach
-    // it) and those whose maximum beats the interior's, highest first, so the scan
-    // stops at the first block that cannot beat the best value found so far.
-    let nKeep = 0;
-    for (let e = 0; e < nEdge; e++) {
-      const b = edge[e];
-      const m = pmax[b];
-      if (m !== m || m > best) {
-        // Insertion by maximum, descending, NaN first (few blocks: the disc's uphill rim).
-        let j = nKeep++;
-        while (j > 0 && before(m, pmax[edge[j - 1]])) { edge[j] = edge[j - 1]; j--; }
-        edge[j] = b;
-      }
-    }
-    for (let e = 0; e < nKeep && !bad; e++) {
-      const b = edge[e];
-      const m = pmax[b];
-      if (m === m && m <= best) break;
-      const br = Math.floor(b / pw), bc = b - br * pw;
-      const cA = bc * kb, cB = Math.min(w - 1, cA + kb - 1);
-      for (let r = br * kb; r <= Math.min(h - 1, br * kb + kb - 1) && !bad; r++) {
-        // extremaInRadius's chord for this row, to the same rounding.
-        const ddy = y0 + (r + 0.5) * dy - py;
-        const rem = r2 - ddy * ddy;
-        if (rem < 0) continue;
-        const half = Math.sqrt(rem);
-        const ca = Math.max(cA, Math.ceil((px - half - x0) / dx - 0.5));
-        const cb = Math.min(cB, Math.floor((px + half - x0) / dx - 0.5));
-        const rb = r * w;
-        for (let c = ca; c <= cb; c++) {
-          const z = heights[rb + c];
-          if (z > best) best = z;
-          else if (z !== z) { bad = true; break; }
-        }
-      }
-    }
-    out[i] = bad ? NaN : best;
+    // A block wholly inside the disc holds nodata: so does the disc (extremaInRadius's NaN).
+    out[i] = bad ? NaN : edgeMax(grid, pooled, kb, edge, nEdge, best, px, py, r2);
   }
+}
+
+/**
+ * The disc's maximum from its interior's (`best`) and its boundary blocks (edge[0 .. nEdge),
+ * pooled cells of `pooled`, kb cells a side): those that can still matter are those holding
+ * nodata (the disc may reach it) and those whose maximum beats the interior's, scanned cell by
+ * cell with extremaInRadius's own row chords, highest first, so the scan stops at the first
+ * block that cannot beat the best value found so far; NaN where the disc meets nodata. Apart
+ * from maxGroundInRadius: many stations need no such scan, and code first reached after the
+ * engine compiled the stations' loop sent it back to the interpreter (node --trace-deopt).
+ */
+function edgeMax(grid: DemGrid, pooled: DemGrid, kb: number, edge: Int32Array, nEdge: number, best: number, px: number, py: number, r2: number): number {
+  const pmax = pooled.heights;
+  const pw = pooled.width;
+  const { width: w, height: h, heights } = grid;
+  const { x0, y0, dx, dy } = grid.transform;
+  let nKeep = 0;
+  for (let e = 0; e < nEdge; e++) {
+    const b = edge[e];
+    const m = pmax[b];
+    if (m !== m || m > best) {
+      // Insertion by maximum, descending, NaN first (few blocks: the disc's uphill rim).
+      let j = nKeep++;
+      while (j > 0 && before(m, pmax[edge[j - 1]])) { edge[j] = edge[j - 1]; j--; }
+      edge[j] = b;
+    }
+  }
+  for (let e = 0; e < nKeep; e++) {
+    const b = edge[e];
+    const m = pmax[b];
+    if (m === m && m <= best) break;
+    const br = Math.floor(b / pw), bc = b - br * pw;
+    const cA = bc * kb, cB = Math.min(w - 1, cA + kb - 1);
+    for (let r = br * kb; r <= Math.min(h - 1, br * kb + kb - 1); r++) {
+      // extremaInRadius's chord for this row, to the same rounding.
+      const ddy = y0 + (r + 0.5) * dy - py;
+      const rem = r2 - ddy * ddy;
+      if (rem < 0) continue;
+      const half = Math.sqrt(rem);
+      const ca = Math.max(cA, Math.ceil((px - half - x0) / dx - 0.5));
+      const cb = Math.min(cB, Math.floor((px + half - x0) / dx - 0.5));
+      const rb = r * w;
+      for (let c = ca; c <= cb; c++) {
+        const z = heights[rb + c];
+        if (z > best) best = z;
+        else if (z !== z) return NaN;
+      }
+    }
+  }
+  return best;
 }
 
 /** Sort order of boundary blocks: NaN (nodata) first, then by maximum, descending. */
