@@ -50,7 +50,7 @@ export function tallyEdge(g: GsdTallyGrid, j: number): number {
  * (a few comparisons and one multiplication); `edges`: the grid's (tallyEdges), when made already.
  * @example const t = tallyCounter(grid, new Float64Array(grid.bins + 2), 0); t.add(2.51); tallyOfSlots(grid, slots, 0)
  */
-export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number, edges: Float64Array = tallyEdges(g)): { add: (v: number) => void } {
+export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number, edges: Float64Array = tallyEdges(g)): BinCounter {
   return binCounter(edges, slots, at);
 }
 
@@ -62,31 +62,53 @@ export function tallyCounter(g: GsdTallyGrid, slots: Float64Array, at: number, e
  * edges[j] <= v < edges[j + 1].
  * @example const slots = new Float64Array(4); binCounter(Float64Array.of(2, 2.5, 3), slots, 0).add(2.7) // slots [0, 0, 1, 0]
  */
-export function binCounter(edges: Float64Array, slots: Float64Array, at: number): { add: (v: number) => void } {
-  const n = edges.length - 1;
-  const lo = edges[0];
-  const hi = edges[n];
-  // Multiplying by the inverse step may slip a bin where dividing would not: the edge
-  // check below corrects either.
-  const inv = n / (hi - lo);
-  const last = n - 1;
-  const base = at + 1;
-  const overAt = base + Math.max(n, 0);
-  return {
-    add: (v: number) => {
-      // NaN fails every comparison and is skipped, as are the infinities.
-      if (v < lo) {
-        if (v > -Infinity) slots[at]++;
-      } else if (v < hi) {
-        // Index by multiplication, then correct the slip of one at an edge.
-        let b = ((v - lo) * inv) | 0;
-        if (b > last) b = last;
-        if (v < edges[b]) b--;
-        else if (v >= edges[b + 1]) b++;
-        slots[base + b]++;
-      } else if (v < Infinity) slots[overAt]++;
-    },
-  };
+export function binCounter(edges: Float64Array, slots: Float64Array, at: number): BinCounter {
+  return new BinCounter(edges, slots, at);
+}
+
+/**
+ * binCounter's counter. A class, so every counter's `add` is one function: the passes over
+ * the cells make a counter per band of rows, and a closure made per counter was another call
+ * target each time, which sent the pass's compiled code back to the interpreter at every new
+ * band (node --trace-deopt: "wrong call target").
+ */
+export class BinCounter {
+  private readonly lo: number;
+  private readonly hi: number;
+  private readonly inv: number;
+  private readonly last: number;
+  private readonly base: number;
+  private readonly overAt: number;
+  constructor(
+    private readonly edges: Float64Array,
+    private readonly slots: Float64Array,
+    private readonly at: number,
+  ) {
+    const n = edges.length - 1;
+    this.lo = edges[0];
+    this.hi = edges[n];
+    // Multiplying by the inverse step may slip a bin where dividing would not: the edge
+    // check in add corrects either.
+    this.inv = n / (this.hi - this.lo);
+    this.last = n - 1;
+    this.base = at + 1;
+    this.overAt = this.base + Math.max(n, 0);
+  }
+
+  add(v: number): void {
+    const { lo, hi, slots, edges } = this;
+    // NaN fails every comparison and is skipped, as are the infinities.
+    if (v < lo) {
+      if (v > -Infinity) slots[this.at]++;
+    } else if (v < hi) {
+      // Index by multiplication, then correct the slip of one at an edge.
+      let b = ((v - lo) * this.inv) | 0;
+      if (b > this.last) b = this.last;
+      if (v < edges[b]) b--;
+      else if (v >= edges[b + 1]) b++;
+      slots[this.base + b]++;
+    } else if (v < Infinity) slots[this.overAt]++;
+  }
 }
 
 /**

@@ -74,6 +74,7 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   radixHist: Uint32Array;
   /** Seen cells with a GSD of at least atLeastCm, per slot (atLeastCm Infinity: none asked for). */
   atLeastCm: number;
+  /** Per slot at slot * SLOT_STRIDE. */
   atLeast: Float64Array;
   /** The seen cells' GSD on this grid, per slot (gsdTally.ts tallyCounter's layout), if asked for. */
   tallyGrid?: GsdTallyGrid;
@@ -113,7 +114,11 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const bs = slot * S;
   const rh = slot * RADIX_BINS;
   const gsdBits = float32Keys(gsdCm);
-  let atLeast = 0;
+  // Counted in place as the loop goes (each thread's count on a cache line of its own): a
+  // store after the loop, not yet run when the engine compiled the loop in the first band,
+  // sent it back to the interpreter at each band's end (node --trace-deopt).
+  const atLeast = job.atLeast;
+  const at = slot * SLOT_STRIDE;
   const tally = job.tallyGrid && job.tally ? tallyCounter(job.tallyGrid, job.tally, slot * (job.tallyGrid.bins + 2), job.tallyEdges) : undefined;
   const { stripHist, stripBelow, stripAbove } = job;
   const spanLo = job.spanLo ?? 0;
@@ -136,11 +141,13 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
       else stripHist[sh + s * span + b]++;
     }
     if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
-    if (g >= atLeastCm) atLeast++;
+    atLeast[at] += g >= atLeastCm ? 1 : 0;
     if (tally !== undefined) tally.add(g);
   }
-  job.atLeast[slot] += atLeast;
 }
+
+/** Float64 entries between two threads' counts written cell by cell: 64 bytes, one cache line each. */
+const SLOT_STRIDE = 8;
 
 /** The pass's counters of each strip's first radix pass over the bins of `spanCm`, if asked for and not too many. */
 function stripSpanJob(spanCm: [number, number] | undefined, strips: number, threads: number): Pick<StatsPassJob, "spanLo" | "span" | "stripHist" | "stripBelow" | "stripAbove"> {
@@ -211,7 +218,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     inBandSeen: new Float64Array(buffer(threads, 8 * threads * S)),
     radixHist: new Uint32Array(buffer(threads, 4 * threads * RADIX_BINS)),
     atLeastCm: input.gsdAtLeastCm ?? Infinity,
-    atLeast: new Float64Array(buffer(threads, 8 * threads)),
+    atLeast: new Float64Array(buffer(threads, 8 * SLOT_STRIDE * threads)),
     ...(input.gsdTally ? { tallyGrid: input.gsdTally, tallyEdges: tallyEdges(input.gsdTally), tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
     ...stripSpanJob(input.stripSpanCm, S, threads),
   };

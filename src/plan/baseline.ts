@@ -21,7 +21,7 @@ import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_I
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf } from "../assess/quantiles.js";
 import { histogramCounter, histogramOfTally } from "../report/histogram.js";
-import { tallyCounter, tallyOfSlots, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
+import { tallyCounter, tallyOfSlots, type BinCounter, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 import type { Histogram } from "../report/model.js";
 import { zeroFilled } from "../zeroFill.js";
 
@@ -282,7 +282,7 @@ const SEEN = 0, SEEN_WITH_GROUND = 1, SITE_CELLS = 2, IN_BAND = 3, BREACHES = 4,
  * counts that data decide (cells short of clearance, in the band, above the ceiling) add 0 or
  * 1 on every cell rather than being incremented in a branch first taken late in the pass.
  */
-function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number, i1: number, t: SiteTallies, tally: { add: (v: number) => void } | undefined): void {
+function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number, i1: number, t: SiteTallies, tally: BinCounter | undefined): void {
   const { inSite } = job;
   const { heights, valid } = job.grid;
   const heightBits = float32Keys(heights);
