@@ -181,13 +181,15 @@ export function isoPolygons(values: Float32Array | Uint8Array, dx: number, dy: n
   const polygons: number[][][] = [];
   const boxes: number[] = [];
   const holes: number[][] = [];
-  isoRings(values, dx, dy, value, ranges, (ring) => {
+  const rings: number[][] = [];
+  isoRings(values, dx, dy, value, ranges, rings);
+  for (const ring of rings) {
     if (smooth) smoothRing(ring, values, dx, dy, value);
     if (ringArea(ring) > 0) {
       polygons.push([ring]);
       boxes.push(...ringBox(ring));
     } else holes.push(ring);
-  });
+  }
   // Each hole goes to the first polygon whose outer ring does not leave it outside. A ring
   // whose bounding box (widened by far more than rounding) misses the hole's first vertex
   // leaves it outside for certain (d3-contour's test answers -1 there too), so only the
@@ -246,80 +248,27 @@ function ringBox(r: number[]): [number, number, number, number] {
 }
 
 /**
- * Marching squares with the segments stitched into rings, each handed to `callback` as it
+ * Marching squares with the segments stitched into rings, each added to `rings` as it
  * closes. A pair of rows wholly below the level has no segment, one wholly at or above it
  * only its two frame segments: those rows are passed over without reading their cells
- * (they add nothing, so the rings and their order stay d3-contour's).
+ * (they add nothing, so the rings and their order stay d3-contour's). (The rings go into an
+ * array, not to a callback: a callback made per call was a new call target each time, and
+ * sent the compiled marching back to the interpreter at every level: node --trace-deopt.)
  */
-function isoRings(values: Float32Array | Uint8Array, dx: number, dy: number, value: number, ranges: RowRanges, callback: (ring: number[]) => void): void {
-  const byStart = new Map<number, Fragment>();
-  const byEnd = new Map<number, Fragment>();
-  const rowStep = (dx + 1) * 4;
-  const stitch = (c: number, x: number, y: number) => {
-    const seg = CASES[c];
-    for (let k = 0; k < seg.length; k += 4) {
-      const sx = seg[k] + x, sy = seg[k + 1] + y, ex = seg[k + 2] + x, ey = seg[k + 3] + y;
-      const startIndex = sx * 2 + sy * rowStep;
-      const endIndex = ex * 2 + ey * rowStep;
-      let f: Fragment | undefined, g: Fragment | undefined;
-      if ((f = byEnd.get(startIndex))) {
-        if ((g = byStart.get(endIndex))) {
-          byEnd.delete(f.end);
-          byStart.delete(g.start);
-          if (f === g) {
-            pushPoint(f, ex, ey);
-            callback(ringPoints(f));
-          } else {
-            // f's points, then g's: f and g are dropped, so their pieces are linked in place.
-            f.last.next = g.first;
-            const m: Fragment = { start: f.start, end: g.end, first: f.first, last: g.last };
-            byStart.set(f.start, m);
-            byEnd.set(g.end, m);
-          }
-        } else {
-          byEnd.delete(f.end);
-          pushPoint(f, ex, ey);
-          byEnd.set((f.end = endIndex), f);
-        }
-      } else if ((f = byStart.get(endIndex))) {
-        if ((g = byEnd.get(startIndex))) {
-          byStart.delete(f.start);
-          byEnd.delete(g.end);
-          if (f === g) {
-            pushPoint(f, ex, ey);
-            callback(ringPoints(f));
-          } else {
-            g.last.next = f.first;
-            const m: Fragment = { start: g.start, end: f.end, first: g.first, last: f.last };
-            byStart.set(g.start, m);
-            byEnd.set(f.end, m);
-          }
-        } else {
-          byStart.delete(f.start);
-          unshiftPoint(f, sx, sy);
-          byStart.set((f.start = startIndex), f);
-        }
-      } else {
-        const piece: Piece = { pts: [sx, sy, ex, ey], reversed: false, next: null };
-        const m: Fragment = { start: startIndex, end: endIndex, first: piece, last: piece };
-        byStart.set(startIndex, m);
-        byEnd.set(endIndex, m);
-      }
-    }
-  };
-  const at = (i: number) => (values[i] >= value ? 1 : 0);
+function isoRings(values: Float32Array | Uint8Array, dx: number, dy: number, value: number, ranges: RowRanges, rings: number[][]): void {
+  const st: Stitching = { byStart: new Map<number, Fragment>(), byEnd: new Map<number, Fragment>(), rowStep: (dx + 1) * 4, rings };
   let x: number, y: number, t0: number, t1: number, t2: number, t3: number, c: number;
 
   // The first row (y = -1: the row above the grid counts as below).
   x = y = -1;
-  t1 = at(0);
-  if ((c = t1 << 1)) stitch(c, x, y);
+  t1 = values[0] >= value ? 1 : 0;
+  if ((c = t1 << 1)) stitch(st, c, x, y);
   while (++x < dx - 1) {
     t0 = t1;
-    t1 = at(x + 1);
-    if ((c = t0 | (t1 << 1))) stitch(c, x, y);
+    t1 = values[x + 1] >= value ? 1 : 0;
+    if ((c = t0 | (t1 << 1))) stitch(st, c, x, y);
   }
-  if ((c = t1)) stitch(c, x, y);
+  if ((c = t1)) stitch(st, c, x, y);
 
   // The rows between.
   const rowMin = ranges.min;
@@ -330,14 +279,14 @@ function isoRings(values: Float32Array | Uint8Array, dx: number, dy: number, val
     if (rowMax[y] < value && rowMax[y + 1] < value) continue;
     if (rowMin[y] >= value && rowMin[y + 1] >= value) {
       // Cases 6 and 9 at the frame (x = -1 and x = dx - 1), 15 (nothing) between.
-      stitch(6, -1, y);
-      stitch(9, dx - 1, y);
+      stitch(st, 6, -1, y);
+      stitch(st, 9, dx - 1, y);
       continue;
     }
     x = -1;
     t1 = values[down] >= value ? 1 : 0;
     t2 = values[up] >= value ? 1 : 0;
-    if ((c = (t1 << 1) | (t2 << 2))) stitch(c, x, y);
+    if ((c = (t1 << 1) | (t2 << 2))) stitch(st, c, x, y);
     // The hot loop: the corner tests written out, a stitch only where the level crosses.
     for (x = 0; x < dx - 1; x++) {
       t0 = t1;
@@ -345,21 +294,89 @@ function isoRings(values: Float32Array | Uint8Array, dx: number, dy: number, val
       t3 = t2;
       t2 = values[up + x + 1] >= value ? 1 : 0;
       c = t0 | (t1 << 1) | (t2 << 2) | (t3 << 3);
-      if (c !== 0 && c !== 15) stitch(c, x, y);
+      if (c !== 0 && c !== 15) stitch(st, c, x, y);
     }
-    if ((c = t1 | (t2 << 3))) stitch(c, x, y);
+    if ((c = t1 | (t2 << 3))) stitch(st, c, x, y);
   }
 
   // The last row (the row below the grid counts as below).
   x = -1;
-  t2 = at(y * dx);
-  if ((c = t2 << 2)) stitch(c, x, y);
+  t2 = values[y * dx] >= value ? 1 : 0;
+  if ((c = t2 << 2)) stitch(st, c, x, y);
   while (++x < dx - 1) {
     t3 = t2;
-    t2 = at(y * dx + x + 1);
-    if ((c = (t2 << 2) | (t3 << 3))) stitch(c, x, y);
+    t2 = values[y * dx + x + 1] >= value ? 1 : 0;
+    if ((c = (t2 << 2) | (t3 << 3))) stitch(st, c, x, y);
   }
-  if ((c = t2 << 3)) stitch(c, x, y);
+  if ((c = t2 << 3)) stitch(st, c, x, y);
+}
+
+/** isoRings's fragments in the making (start and end point keys) and the rings closed so far. */
+interface Stitching {
+  byStart: Map<number, Fragment>;
+  byEnd: Map<number, Fragment>;
+  rowStep: number;
+  rings: number[][];
+}
+
+/**
+ * The segments of marching-squares case `c` in the square at (x, y), joined to the fragments
+ * they meet; a ring that closes goes to st.rings. A function of its own, not a closure made in
+ * each isoRings call: a new closure per call was a new call target for the compiled marching
+ * loop each time (node --trace-deopt: "wrong call target").
+ */
+function stitch(st: Stitching, c: number, x: number, y: number): void {
+  const { byStart, byEnd, rowStep, rings } = st;
+  const seg = CASES[c];
+  for (let k = 0; k < seg.length; k += 4) {
+    const sx = seg[k] + x, sy = seg[k + 1] + y, ex = seg[k + 2] + x, ey = seg[k + 3] + y;
+    const startIndex = sx * 2 + sy * rowStep;
+    const endIndex = ex * 2 + ey * rowStep;
+    let f: Fragment | undefined, g: Fragment | undefined;
+    if ((f = byEnd.get(startIndex))) {
+      if ((g = byStart.get(endIndex))) {
+        byEnd.delete(f.end);
+        byStart.delete(g.start);
+        if (f === g) {
+          pushPoint(f, ex, ey);
+          rings.push(ringPoints(f));
+        } else {
+          // f's points, then g's: f and g are dropped, so their pieces are linked in place.
+          f.last.next = g.first;
+          const m: Fragment = { start: f.start, end: g.end, first: f.first, last: g.last };
+          byStart.set(f.start, m);
+          byEnd.set(g.end, m);
+        }
+      } else {
+        byEnd.delete(f.end);
+        pushPoint(f, ex, ey);
+        byEnd.set((f.end = endIndex), f);
+      }
+    } else if ((f = byStart.get(endIndex))) {
+      if ((g = byEnd.get(startIndex))) {
+        byStart.delete(f.start);
+        byEnd.delete(g.end);
+        if (f === g) {
+          pushPoint(f, ex, ey);
+          rings.push(ringPoints(f));
+        } else {
+          g.last.next = f.first;
+          const m: Fragment = { start: g.start, end: f.end, first: g.first, last: f.last };
+          byStart.set(g.start, m);
+          byEnd.set(f.end, m);
+        }
+      } else {
+        byStart.delete(f.start);
+        unshiftPoint(f, sx, sy);
+        byStart.set((f.start = startIndex), f);
+      }
+    } else {
+      const piece: Piece = { pts: [sx, sy, ex, ey], reversed: false, next: null };
+      const m: Fragment = { start: startIndex, end: endIndex, first: piece, last: piece };
+      byStart.set(startIndex, m);
+      byEnd.set(endIndex, m);
+    }
+  }
 }
 
 /** A value for smoothing: NaN (and a read past the grid's end) counts as -Infinity. */
