@@ -3,7 +3,7 @@ import { builtModule } from "../helpers/dist.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { assessPlan } from "../../src/assess/assess.js";
 import { rasteriseSite } from "../../src/assess/siteMask.js";
-import { latticeImageCounts } from "../../src/assess/latticeCoverage.js";
+import { latticeCountsByBand, latticeImageCounts } from "../../src/assess/latticeCoverage.js";
 import { photoLattice, type AssessedLeg } from "../../src/assess/exposures.js";
 import { baselineFigures, baselineJob, constantAltitudeBaseline } from "../../src/plan/baseline.js";
 import { straightTransitLeg } from "../../src/route/flights.js";
@@ -170,6 +170,36 @@ describe("constant-altitude baseline computed directly", () => {
       expect(images[row * W + col], `cell ${col},${row}`).toBe(count);
       if (inSite[row * W + col]) expect(count).toBeGreaterThanOrEqual(8);
     }
+  });
+});
+
+describe("image counts a band of rows at a time (latticeCountsByBand)", () => {
+  it("are latticeImageCounts' counts, band after band, every cell of the grid once", () => {
+    const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
+    const layout = layoutAt(33);
+    const inSite = rasteriseSite(site, W, H, grid.transform);
+    const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
+    const A = 400;
+    const kAlong = (camera.ifov * 3648) / 2, kAcross = (camera.ifov * 5472) / 2;
+    const whole = latticeImageCounts(grid, inSite, strips, A, triggerM, kAlong, kAcross, 1);
+    const byBand = latticeCountsByBand(grid, inSite, strips, A, triggerM, kAlong, kAcross);
+    // 800 rows: several bands, the last one part filled.
+    expect(byBand.bands).toBeGreaterThan(2);
+    let next = 0;
+    let differ = 0;
+    let seen = 0;
+    for (let b = 0; b < byBand.bands; b++) {
+      const [i0, i1] = byBand.count(b);
+      expect(i0).toBe(next);
+      for (let i = i0; i < i1; i++) {
+        if (byBand.images[i - i0] !== whole[i]) differ++;
+        if (whole[i] > 0) seen++;
+      }
+      next = i1;
+    }
+    expect(next).toBe(W * H);
+    expect(differ).toBe(0);
+    expect(seen).toBeGreaterThan(100_000);
   });
 });
 
