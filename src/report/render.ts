@@ -217,11 +217,7 @@ export function renderReport(input: ReportInput, layers?: DemLayers): string {
   );
 
   // 2. GSD and image maps
-  const outBand = new Uint8Array(r.width * r.height);
-  for (let i = 0; i < outBand.length; i++) {
-    const v = r.gsdCm[i];
-    outBand[i] = r.inSite[i] && v === v && (v < g.low || v > g.high) ? 1 : 0;
-  }
+  const outBand = outOfBandMask(r, g.low, g.high);
   const gsdUri = pngDataUri(r.width, r.height, gsdRgba(r, g.target, g.low, g.high));
   const gsdMap = mapSvg(
     small,
@@ -235,11 +231,9 @@ export function renderReport(input: ReportInput, layers?: DemLayers): string {
       smallOverlays,
     hatchPattern("hatch-outband", "#111", 45, 6) + zoneDefs("gsd"),
   );
-  let maxImages = 0;
-  for (let i = 0; i < r.images.length; i++) if (r.inSite[i] && r.images[i] > maxImages) maxImages = r.images[i];
+  const maxImages = maxSiteImages(r);
   const minImages = inp.minImages;
-  const fewMask = new Uint8Array(r.width * r.height);
-  if (minImages !== undefined) for (let i = 0; i < fewMask.length; i++) fewMask[i] = r.inSite[i] && r.images[i] < minImages ? 1 : 0;
+  const fewMask = minImages !== undefined ? fewImagesMask(r, minImages) : new Uint8Array(r.width * r.height);
   const imgMap = mapSvg(
     small,
     "map-images",
@@ -258,13 +252,10 @@ export function renderReport(input: ReportInput, layers?: DemLayers): string {
   let flagDefs = "";
   // The bits present anywhere first, so a mask is made only for a kind the map shows.
   const flags = r.flags;
-  let bitsPresent = 0;
-  for (let i = 0; i < flags.length; i++) bitsPresent |= flags[i];
+  const bitsPresent = flagBitsPresent(flags);
   for (const k of ASSESSMENT_FLAG_KINDS) {
     if (!(bitsPresent & k.bit)) continue;
-    const mask = new Uint8Array(r.width * r.height);
-    const bit = k.bit;
-    for (let i = 0; i < mask.length; i++) if (flags[i] & bit) mask[i] = 1;
+    const mask = flagBitMask(flags, k.bit);
     const st = FLAG_STYLE[k.key];
     flagDefs += hatchPattern(`hatch-flag-${k.key}`, st.colour, st.angle, 7);
     flagLayers += `<g class="flag-layer" data-kind="${esc(k.key)}">${outlinePath(small, r.transform, maskOutline(mask, r.width, r.height), `fill="url(#hatch-flag-${k.key})" stroke="${st.colour}" stroke-width="1.2"`)}</g>`;
@@ -473,6 +464,50 @@ ${warnings.length ? `<h3>Warnings</h3><ul class="warnings">${warnings.map((w) =>
 <script>${script}</script>
 </body></html>
 `;
+}
+
+// The maps' per-cell passes, each a function that ends with its loop (a bare return after it
+// needs no type feedback): as loops of renderReport each was compiled mid-call with the
+// page's code after it not yet run, and sent the whole function back to the interpreter
+// (seven compiles of it on the demo, node --trace-opt).
+
+/** 1 where a site cell's GSD lies outside [low, high]. */
+function outOfBandMask(r: ReportInput["rasters"], low: number, high: number): Uint8Array {
+  const out = new Uint8Array(r.width * r.height);
+  for (let i = 0; i < out.length; i++) {
+    const v = r.gsdCm[i];
+    out[i] = r.inSite[i] && v === v && (v < low || v > high) ? 1 : 0;
+  }
+  return out;
+}
+
+/** The largest image count over the site (0 for none). */
+function maxSiteImages(r: ReportInput["rasters"]): number {
+  const { images, inSite } = r;
+  let most = 0;
+  for (let i = 0; i < images.length; i++) if (inSite[i] && images[i] > most) most = images[i];
+  return most;
+}
+
+/** 1 where a site cell has fewer than minImages images. */
+function fewImagesMask(r: ReportInput["rasters"], minImages: number): Uint8Array {
+  const out = new Uint8Array(r.width * r.height);
+  for (let i = 0; i < out.length; i++) out[i] = r.inSite[i] && r.images[i] < minImages ? 1 : 0;
+  return out;
+}
+
+/** The OR of every cell's flags. */
+function flagBitsPresent(flags: ReportInput["rasters"]["flags"]): number {
+  let any = 0;
+  for (let i = 0; i < flags.length; i++) any |= flags[i];
+  return any;
+}
+
+/** 1 where a cell carries `bit`. */
+function flagBitMask(flags: ReportInput["rasters"]["flags"], bit: number): Uint8Array {
+  const mask = new Uint8Array(flags.length);
+  for (let i = 0; i < mask.length; i++) if (flags[i] & bit) mask[i] = 1;
+  return mask;
 }
 
 /**
