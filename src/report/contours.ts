@@ -49,19 +49,36 @@ export function contourInterval(minM: number, maxM: number): number {
 }
 
 /**
- * Contour lines of the heights at multiples of `intervalM`.
- *
- * @example const lines = contourLines(dem, 10);
+ * The least and greatest height (NaN left out), for contourLines and map.ts contourLayer,
+ * which made this pass each. A function of its own: as contourLayer's first loop it was
+ * compiled mid-call with the labelling after it not yet run, which then sent the whole
+ * function back to the interpreter (node --trace-deopt). The range is written as the loop
+ * goes, so nothing but the return follows the loop here either.
  */
-export function contourLines(grid: Pick<ReportGrid, "width" | "height" | "heights">, intervalM: number): ContourLine[] {
-  const { width: w, height: h, heights } = grid;
+export function heightRange(heights: ArrayLike<number>): Float64Array {
+  const range = Float64Array.of(Infinity, -Infinity);
   let lo = Infinity;
   let hi = -Infinity;
   for (let i = 0; i < heights.length; i++) {
-    const v = heights[i];
-    if (v < lo) lo = v;
-    if (v > hi) hi = v;
+    const z = heights[i];
+    if (z < lo) lo = z;
+    if (z > hi) hi = z;
+    range[0] = lo;
+    range[1] = hi;
   }
+  return range;
+}
+
+/**
+ * Contour lines of the heights at multiples of `intervalM`; `range`: the heights' least and
+ * greatest (heightRange), when the caller has it already.
+ *
+ * @example const lines = contourLines(dem, 10);
+ */
+export function contourLines(grid: Pick<ReportGrid, "width" | "height" | "heights">, intervalM: number, range: ArrayLike<number> = heightRange(grid.heights)): ContourLine[] {
+  const { width: w, height: h, heights } = grid;
+  const lo = range[0];
+  const hi = range[1];
   if (!(hi > lo)) return [];
   const levels: number[] = [];
   for (let v = Math.ceil(lo / intervalM) * intervalM; v <= hi; v += intervalM) levels.push(+v.toPrecision(12));

@@ -8,7 +8,7 @@ import type { GeoTransform } from "../dem/grid.js";
 import type { XY } from "../layout/types.js";
 import type { ReportBlock, ReportGrid, ReportLeg } from "./model.js";
 import { TAKEOFF_FROM_WORDS } from "./blocks.js";
-import { contourInterval, contourLines, type Polyline } from "./contours.js";
+import { contourInterval, contourLines, heightRange, type Polyline } from "./contours.js";
 import { tableColour, viridisTable256 } from "./colour.js";
 import { esc } from "./escape.js";
 import { fmt } from "./format.js";
@@ -74,10 +74,11 @@ export function outlinePath(v: MapView, t: GeoTransform, rings: Polyline[], attr
  * separate layer so they can sit above the flight lines.
  */
 export function contourLayer(v: MapView, dem: ReportGrid): { svg: string; labels: string; intervalM: number } {
-  const [lo, hi] = heightRange(dem.heights);
+  const range = heightRange(dem.heights);
+  const [lo, hi] = range;
   if (!(hi > lo)) return { svg: "", labels: "", intervalM: 0 };
   const intervalM = contourInterval(lo, hi);
-  const levels = contourLines(dem, intervalM);
+  const levels = contourLines(dem, intervalM, range);
   const indexStep = intervalM * 5;
   const isIndexLevel = (z: number) => Math.abs(z / indexStep - Math.round(z / indexStep)) < 1e-6;
   // Label the index contours; where there are fewer than three of them, every line, so
@@ -132,26 +133,6 @@ export function contourLayer(v: MapView, dem: ReportGrid): { svg: string; labels
     `<g stroke-width="0.6" stroke-opacity="0.55">${minor}</g>` +
     `<g stroke-width="1.2" stroke-opacity="0.8">${major}</g></g>`;
   return { svg, labels: `<g class="contour-labels">${labels}</g>`, intervalM };
-}
-
-/**
- * The least and greatest height (NaN left out). A function of its own: as contourLayer's
- * first loop it was compiled mid-call with the labelling after it not yet run, which then
- * sent the whole function back to the interpreter (node --trace-deopt). The range is written
- * as the loop goes, so nothing but the return follows the loop here either.
- */
-function heightRange(heights: ArrayLike<number>): Float64Array {
-  const range = Float64Array.of(Infinity, -Infinity);
-  let lo = Infinity;
-  let hi = -Infinity;
-  for (let i = 0; i < heights.length; i++) {
-    const z = heights[i];
-    if (z < lo) lo = z;
-    if (z > hi) hi = z;
-    range[0] = lo;
-    range[1] = hi;
-  }
-  return range;
 }
 
 /** The site outline (local-frame metres). */
