@@ -8,14 +8,15 @@ import { Worker } from "node:worker_threads";
  * assessment (the footprint sweep, coverageKernel.ts) and of the
  * constant-altitude comparison (the lattice counts, latticeCoverage.ts) write
  * each cell from one band only, so threads taking whole bands never write the
- * same cell. The bands go to whichever thread asks next (a shared counter);
+ * same cell. The `auto` heading choice's candidates are taken the same way, one
+ * candidate a band (layout/headingTerrain.ts). The bands go to whichever thread asks next (a shared counter);
  * the main thread works too, then waits on the workers' flags (Atomics.wait
  * is allowed on Node's main thread), which keeps the callers plain
  * synchronous functions.
  */
 
 /** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
-export type BandKind = "sweep" | "lattice" | "stats";
+export type BandKind = "sweep" | "lattice" | "stats" | "heading";
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
 const workerUrl = new URL("./coverageWorker.js", import.meta.url);

@@ -3,6 +3,7 @@ import type { BandJob } from "./bandThreads.js";
 import { sweepBands, type SweepInput } from "./coverageKernel.js";
 import { latticeBands, type LatticeInput } from "./latticeCoverage.js";
 import { statsPassBands, type StatsPassJob } from "./stats.js";
+import { headingTerrainBands, type HeadingTerrainJob } from "../layout/headingTerrain.js";
 
 /**
  * Worker thread of banded passes (bandThreads.ts): for each job it is sent, runs the band
@@ -13,7 +14,8 @@ parentPort?.on("message", ({ kind, input, next, bands, done, slot }: BandJob) =>
   try {
     if (kind === "sweep") sweepBands(input as SweepInput, next, bands);
     else if (kind === "lattice") latticeBands(input as LatticeInput, next, bands);
-    else statsPassBands(input as StatsPassJob, next, bands, slot);
+    else if (kind === "stats") statsPassBands(input as StatsPassJob, next, bands, slot);
+    else headingTerrainBands(input as HeadingTerrainJob, next, bands);
     Atomics.store(done, slot, 1);
   } catch {
     Atomics.store(done, slot, 2);

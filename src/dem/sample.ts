@@ -34,7 +34,7 @@ export function toColRow(grid: DemGrid, x: number, y: number): [number, number] 
  * @example sampleBilinear(grid, [x], [y])[0]
  */
 export function sampleBilinear(
-  grid: DemGrid,
+  grid: Pick<DemGrid, "width" | "height" | "heights" | "transform">,
   xs: ArrayLike<number>,
   ys: ArrayLike<number>,
   out: Float64Array = new Float64Array(xs.length),

@@ -6,7 +6,8 @@
  * height needs little changing; flying up and down the slope needs a lot.
  */
 import type { DemGrid } from "../dem/grid.js";
-import { sampleBilinear } from "../dem/sample.js";
+import { bandThreads, runBands, type BandPool } from "../assess/bandThreads.js";
+import { altitudeChangeOf, headingTerrainBands, headingTerrainJob } from "./headingTerrain.js";
 import type { LayoutLeg, Site } from "./types.js";
 import { stripLegsAtHeading, type StripLineOptions } from "./strip-lines.js";
 
@@ -30,6 +31,10 @@ export interface HeadingCostOptions {
   terrainStepM?: number;
   /** Candidate step, degrees (default 5). */
   headingStepDeg?: number;
+  /** Worker threads to share the candidates' terrain terms with (bandThreads.ts); default: this thread alone. */
+  bandPool?: BandPool;
+  /** Threads to use with bandPool (default: bandThreads' own). */
+  threads?: number;
 }
 
 export interface HeadingCandidate {
@@ -69,37 +74,7 @@ export function flightTimeS(legs: readonly LayoutLeg[], photoSpeedMps: number, t
  * @example terrainAltitudeChangeM(layout.legs, grid, 5)
  */
 export function terrainAltitudeChangeM(legs: readonly LayoutLeg[], grid: DemGrid, stepM: number): number {
-  let total = 0;
-  // Buffers for the longest leg, made before the loop: grown inside it, the growth (rarely
-  // taken) sent the loop's optimised code back to the interpreter each time (node --trace-deopt).
-  let most = 0;
-  for (const leg of legs) if (leg.kind === "strip") most = Math.max(most, sampleCount(leg, stepM));
-  const xs = new Float64Array(most);
-  const ys = new Float64Array(most);
-  const hs = new Float64Array(most);
-  for (const leg of legs) {
-    if (leg.kind !== "strip") continue;
-    const n = sampleCount(leg, stepM);
-    for (let i = 0; i < n; i++) {
-      const t = i / (n - 1);
-      xs[i] = leg.from[0] + t * (leg.to[0] - leg.from[0]);
-      ys[i] = leg.from[1] + t * (leg.to[1] - leg.from[1]);
-    }
-    sampleBilinear(grid, xs.subarray(0, n), ys.subarray(0, n), hs);
-    let prev = NaN;
-    for (let i = 0; i < n; i++) {
-      const z = hs[i];
-      if (Number.isNaN(z)) continue;
-      if (!Number.isNaN(prev)) total += Math.abs(z - prev);
-      prev = z;
-    }
-  }
-  return total;
-}
-
-/** Samples terrainAltitudeChangeM takes along a leg: every `stepM`, both ends included. */
-function sampleCount(leg: LayoutLeg, stepM: number): number {
-  return Math.max(2, Math.ceil(leg.lengthM / stepM) + 1);
+  return altitudeChangeOf(headingTerrainJob(grid, [legs], stepM, false), 0);
 }
 
 /**
@@ -112,10 +87,11 @@ function sampleCount(leg: LayoutLeg, stepM: number): number {
 export function chooseHeading(site: Site, opts: StripLineOptions & HeadingCostOptions): { candidates: HeadingCandidate[]; reason: string } {
   const stepDeg = opts.headingStepDeg ?? 5;
   const climb = opts.maxClimbMps ?? DEFAULT_MAX_CLIMB_MPS;
-  const candidates: HeadingCandidate[] = [];
-  for (let hd = 0; hd < 180 - 1e-9; hd += stepDeg) {
-    candidates.push(scoreHeading(site, hd, opts));
-  }
+  const laidOut: { headingDeg: number; legs: LayoutLeg[] }[] = [];
+  for (let hd = 0; hd < 180 - 1e-9; hd += stepDeg) laidOut.push({ headingDeg: hd, legs: stripLegsAtHeading(site, hd, opts).legs });
+  // The terrain terms of all candidates in one job, shared with the band workers when given.
+  const change = opts.grid ? altitudeChanges(laidOut.map((c) => c.legs), opts.grid, terrainStep(opts), opts) : undefined;
+  const candidates = laidOut.map((c, j) => candidate(c.headingDeg, c.legs, change ? change[j] : 0, opts));
   // Ties (a square over flat ground) go to the smaller heading, so the choice is stable.
   // (Scores are compared to the microsecond so float noise does not break ties.)
   candidates.sort((p, q) => Math.round(p.score * 1e6) - Math.round(q.score * 1e6) || p.headingDeg - q.headingDeg);
@@ -127,12 +103,34 @@ export function chooseHeading(site: Site, opts: StripLineOptions & HeadingCostOp
  * @example scoreHeading(site, 90, opts).score
  */
 export function scoreHeading(site: Site, headingDeg: number, opts: StripLineOptions & HeadingCostOptions): HeadingCandidate {
-  const climb = opts.maxClimbMps ?? DEFAULT_MAX_CLIMB_MPS;
   const { legs } = stripLegsAtHeading(site, headingDeg, opts);
+  return candidate(headingDeg, legs, opts.grid ? terrainAltitudeChangeM(legs, opts.grid, terrainStep(opts)) : 0, opts);
+}
+
+/** A heading's figures from its legs and their terrain term. */
+function candidate(headingDeg: number, legs: readonly LayoutLeg[], altitudeChangeM: number, opts: HeadingCostOptions): HeadingCandidate {
+  const climb = opts.maxClimbMps ?? DEFAULT_MAX_CLIMB_MPS;
   const flight = flightTimeS(legs, opts.photoSpeedMps, opts.transitSpeedMps, opts.turnCostS);
-  const step = opts.terrainStepM ?? (opts.grid ? Math.min(opts.grid.cellSizeM[0], opts.grid.cellSizeM[1]) : 0);
-  const altitudeChangeM = opts.grid ? terrainAltitudeChangeM(legs, opts.grid, step) : 0;
   return { headingDeg: round6(headingDeg), flightTimeS: flight, altitudeChangeM, score: flight + altitudeChangeM / climb };
+}
+
+/** The terrain term's sampling step: as given, else the DEM's cell. */
+function terrainStep(opts: HeadingCostOptions): number {
+  return opts.terrainStepM ?? (opts.grid ? Math.min(opts.grid.cellSizeM[0], opts.grid.cellSizeM[1]) : 0);
+}
+
+/**
+ * terrainAltitudeChangeM of each candidate's legs: the candidates shared between this thread
+ * and the band workers of `opts.bandPool` when one is given and the heights are in shared
+ * memory (the DEM window's are: dem/window.ts), else all on this thread. At 0.5 m cells the
+ * term samples every cell along every strip of every candidate (~6 M samples at 4 km2, ~40 M
+ * at 25 km2), the most of the layout's time.
+ */
+function altitudeChanges(candidates: readonly (readonly LayoutLeg[])[], grid: DemGrid, stepM: number, opts: HeadingCostOptions): Float64Array {
+  const threads = opts.bandPool && grid.heights.buffer instanceof SharedArrayBuffer ? bandThreads(grid.width * grid.height, candidates.length, opts.threads) : 1;
+  const job = headingTerrainJob(grid, candidates, stepM, threads > 1);
+  runBands("heading", job, candidates.length, threads, headingTerrainBands, opts.bandPool);
+  return job.altitudeChangeM;
 }
 
 function headingReason(c: HeadingCandidate[], withTerrain: boolean, climbMps: number): string {

@@ -31,6 +31,9 @@ export interface LayoutOptions {
   holeMarginM?: number;
   /** Where no leg may go along a segment (see StripLineOptions.keepOut): strips are cut there. */
   keepOut?: StripLineOptions["keepOut"];
+  /** Band workers to share the `auto` choice's terrain terms with, and threads (HeadingCostOptions). */
+  bandPool?: HeadingCostOptions["bandPool"];
+  threads?: number;
 }
 
 /**
@@ -61,6 +64,8 @@ export function layoutStrips(site: Site, opts: LayoutOptions): Layout {
     turnCostS: opts.turnCostS,
     grid: opts.grid,
     maxClimbMps: opts.maxClimbMps,
+    ...(opts.bandPool ? { bandPool: opts.bandPool } : {}),
+    ...(opts.threads !== undefined ? { threads: opts.threads } : {}),
   };
   const lineOpts = { spacingM: opts.spacingM, footprintAlongM: opts.footprintAlongM, holeMarginM: opts.holeMarginM, takeoff: opts.takeoff, keepOut: opts.keepOut };
 

@@ -163,9 +163,11 @@ export async function planMission(options: PlanOptions, hooks: PlanHooks = {}): 
   // out and solves; the rasters' part once they are final (reportMapsInBackground). A plan
   // that fails stops that worker (it waits for the rasters).
   const maps = reportMapsInBackground(prepared.grid, hooks.threads);
-  // The assessment's band workers, started at the route stage (planLoaded) so they are up when
-  // the sweep begins; ended here whatever happens.
+  // The assessment's band workers, started now: they share the `auto` heading choice's terrain
+  // terms in a moment (a worker takes 50-200 ms to start, about what that choice takes at
+  // 4 km2), then sweep and tally the assessment's bands; ended here whatever happens.
   const bands = bandPool();
+  bands.start(sweepThreads(prepared.grid.width, prepared.grid.height, hooks.threads) - 1);
   try {
     return await planLoaded({ options, hooks, prepared, warnings, stage, lap, timings, maps, bands });
   } catch (e) {
@@ -192,13 +194,15 @@ async function planLoaded(ctx: {
   const { camera, requirement, targetHeightM, footprint: fp, spacingM, triggerM, frame, grid, nativeGrid, site, speed, keepOut, keepOutZones } = prepared;
 
   stage("layout");
-  const fullLayout = missionLayout(prepared, options);
+  // The assessment's band workers share the `auto` heading choice's terrain terms.
+  const layoutThreads = { bandPool: bands, ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}) };
+  const fullLayout = missionLayout(prepared, options, layoutThreads);
   // Cross strips (crossStrips.ts): a second family at the heading plus 90 degrees, numbered
   // after the first, blocked, solved and flown like it. Its flights follow all of the first
   // family's, so the first family stays a complete plan on its own if the day ends early.
   // A line site's strips follow the line: a family across them would not cross the site.
   if (options.crossStrips && site.line) throw new InputError("crossStrips", true, "false with a line site (its strips follow the line)");
-  const crossLayout = options.crossStrips ? secondFamily(fullLayout, missionLayout(prepared, crossStripOptions(options, fullLayout, frame, keepOut))) : null;
+  const crossLayout = options.crossStrips ? secondFamily(fullLayout, missionLayout(prepared, crossStripOptions(options, fullLayout, frame, keepOut), layoutThreads)) : null;
   // Stations at the DEM's cell, at most 1 m apart: the hard bounds reach one station step
   // past each station (see corridorAlong), which on a coarse DEM must stay small. (2 m was
   // tried: on the 1" ridges the solver's zones then drift from the photos' ground, and the
@@ -312,8 +316,6 @@ async function planLoaded(ctx: {
   lap("solve");
 
   stage("route");
-  // The sweep's workers start now, while this thread routes and checks the plan (BandPool.start).
-  bands.start(sweepThreads(grid.width, grid.height, hooks.threads) - 1);
   // The constant-altitude comparison needs only the final strips, the DEM and the site: it
   // is made on the other core from here on (or from before the solve, when the solve kept
   // the strips as laid out), while this thread routes, checks and assesses.
@@ -467,10 +469,11 @@ function breachCounts(bs: readonly Breach[]): string {
 
 /**
  * The strips over a prepared mission: heading, spacing and trigger from the camera,
- * cut at the keep-out zones; a take-off point inside a zone is refused.
+ * cut at the keep-out zones; a take-off point inside a zone is refused. With `threads`, the
+ * `auto` heading's terrain terms are shared with its band workers (heading.ts).
  * @example const layout = missionLayout(await prepareMission(options), options);
  */
-export function missionLayout(m: PreparedMission, options: PlanOptions): Layout {
+export function missionLayout(m: PreparedMission, options: PlanOptions, threads?: { bandPool: BandPool; threads?: number }): Layout {
   const takeoffXY: XY | undefined = options.takeoff ? m.frame.fromWgs84(options.takeoff[0], options.takeoff[1]) : undefined;
   const keepOut = m.keepOut;
   if (keepOut && takeoffXY) assertTakeoffOutside(keepOut, takeoffXY, options.takeoff);
@@ -494,6 +497,7 @@ export function missionLayout(m: PreparedMission, options: PlanOptions): Layout 
     grid: m.grid,
     maxClimbMps: options.aircraft.maxClimbMps,
     ...(keepOut ? { keepOut: (a: XY, b: XY) => keepOutStretches(keepOut, a, b) } : {}),
+    ...(threads ? { bandPool: threads.bandPool, ...(threads.threads !== undefined ? { threads: threads.threads } : {}) } : {}),
   });
   if (m.site.line) assertLineInRange(layout, options.aircraft.maxRangeM);
   if (keepOut && !layout.legs.some((l) => l.kind === "strip")) {
