@@ -71,7 +71,8 @@ function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null): { r
   const inSite = new Uint8Array(w * h);
   const gsdCm = new Float32Array(w * h);
   const heights = z ? new Float32Array(w * h) : null;
-  const src = { gsd: r.gsdCm, images: r.images, flags: r.flags, inSite: r.inSite, z };
+  // Old 8-bit flags (report data from before the keep-out bit) widened once, so the row loops take one array type.
+  const src = { gsd: r.gsdCm, images: r.images, flags: r.flags instanceof Uint16Array ? r.flags : Uint16Array.from(r.flags), inSite: r.inSite, z };
   // One row of blocks at a time, read row by row (see meanBlocks): per block column the
   // flag OR, whether any cell is in the site, the least in-site image count and the GSD
   // (and height) sums.
@@ -115,54 +116,71 @@ function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null): { r
   return { rasters, heights };
 }
 
-/** One input row of reduceRasters into its block columns' accumulators. */
+/**
+ * One input row of reduceRasters into its block columns' accumulators: a small loop per
+ * raster (each over one array type, the GSD's and the heights' the same loop), where one loop
+ * over all of them, with the heights optional and the flags of either width, ran at ~3x the
+ * time (the maps' worker at 4 km2). Each block still takes its cells in the same order.
+ */
 function reduceRasterRow(
-  src: { gsd: Float32Array; images: Uint16Array; flags: Uint8Array | Uint16Array; inSite: Uint8Array; z: Float32Array | null },
+  src: { gsd: Float32Array; images: Uint16Array; flags: Uint16Array; inSite: Uint8Array; z: Float32Array | null },
   base: number,
   W: number,
   k: number,
   w: number,
   acc: { flags: Int32Array; any: Uint8Array; minImages: Int32Array; sum: Float64Array; cnt: Int32Array; zSum: Float64Array; zCnt: Int32Array },
 ): void {
-  const { gsd, images, flags, inSite, z } = src;
+  orBlocks(src.flags, base, W, k, w, acc.flags);
+  siteMinBlocks(src.inSite, src.images, base, W, k, w, acc.any, acc.minImages);
+  finiteSumBlocks(src.gsd, base, W, k, w, acc.sum, acc.cnt);
+  if (src.z !== null) finiteSumBlocks(src.z, base, W, k, w, acc.zSum, acc.zCnt);
+}
+
+/** Each block column's OR of the row's flags. */
+function orBlocks(flags: Uint16Array, base: number, W: number, k: number, w: number, out: Int32Array): void {
   let c = 0;
   for (let bc = 0; bc < w; bc++) {
     const end = Math.min(W, c + k);
-    let f = acc.flags[bc];
-    let any = acc.any[bc];
-    let minImg = acc.minImages[bc];
-    let s = acc.sum[bc];
-    let m = acc.cnt[bc];
-    let zs = acc.zSum[bc];
-    let zm = acc.zCnt[bc];
+    let f = out[bc];
+    for (; c < end; c++) f |= flags[base + c];
+    out[bc] = f;
+  }
+}
+
+/** Each block column: whether any of the row's cells is in the site, and the least image count of those that are. */
+function siteMinBlocks(inSite: Uint8Array, images: Uint16Array, base: number, W: number, k: number, w: number, any: Uint8Array, minImages: Int32Array): void {
+  let c = 0;
+  for (let bc = 0; bc < w; bc++) {
+    const end = Math.min(W, c + k);
+    let a = any[bc];
+    let m = minImages[bc];
     for (; c < end; c++) {
-      const i = base + c;
-      f |= flags[i];
-      if (inSite[i] !== 0) {
-        any = 1;
-        const im = images[i];
-        if (im < minImg) minImg = im;
-      }
-      const v = gsd[i];
-      if (v === v) {
-        s += v;
+      if (inSite[base + c] === 0) continue;
+      a = 1;
+      const im = images[base + c];
+      if (im < m) m = im;
+    }
+    any[bc] = a;
+    minImages[bc] = m;
+  }
+}
+
+/** Each block column's sum and count of the row's finite values, added left to right. */
+function finiteSumBlocks(v: Float32Array, base: number, W: number, k: number, w: number, sum: Float64Array, cnt: Int32Array): void {
+  let c = 0;
+  for (let bc = 0; bc < w; bc++) {
+    const end = Math.min(W, c + k);
+    let s = sum[bc];
+    let m = cnt[bc];
+    for (; c < end; c++) {
+      const x = v[base + c];
+      if (x === x) {
+        s += x;
         m++;
       }
-      if (z !== null) {
-        const zv = z[i];
-        if (zv === zv) {
-          zs += zv;
-          zm++;
-        }
-      }
     }
-    acc.flags[bc] = f;
-    acc.any[bc] = any;
-    acc.minImages[bc] = minImg;
-    acc.sum[bc] = s;
-    acc.cnt[bc] = m;
-    acc.zSum[bc] = zs;
-    acc.zCnt[bc] = zm;
+    sum[bc] = s;
+    cnt[bc] = m;
   }
 }
 
