@@ -9,6 +9,6 @@ import { assessmentGeoTiffChunks, type CogFileJob } from "./geotiffRasters.js";
  * writeOutputSet writes such a file on the main thread; posts true when the file is whole.
  * A failure ends the worker without the message.
  */
-const { rasters, crs, name, path } = workerData as CogFileJob;
-await writeFile(path, assessmentGeoTiffChunks(rasters as AssessmentRasters, crs, name));
+const { rasters, crs, name, path, window } = workerData as CogFileJob;
+await writeFile(path, assessmentGeoTiffChunks(rasters as AssessmentRasters, crs, name, window));
 parentPort?.postMessage(true);

@@ -1,7 +1,8 @@
 /**
  * gsd.tif (Float32, cm/px), images.tif (UInt16 image count) and flags.tif
- * (UInt16 bitmask, see assess/flags.ts) on the assessment grid, as cloud-optimized
- * GeoTIFFs (cog.ts: 512 x 512 tiles, overviews, GDAL's COG layout).
+ * (UInt16 bitmask, see assess/flags.ts) on the assessment grid, or a window of it (the plan
+ * writes the site's box: RasterWindow), as cloud-optimized GeoTIFFs (cog.ts: 512 x 512
+ * tiles, overviews, GDAL's COG layout).
  *
  * Overviews (each half the size of the one before, until the image fits one tile):
  *   gsd.tif     mean of the full-resolution cells with a value in the block (a GSD
@@ -64,6 +65,48 @@ const GSD_COMPRESSION = { compression: "none", predictor: 1 } as const;
 
 type Grid = { width: number; height: number; transform: GeoTransform };
 
+/**
+ * The cells a file holds: columns c0 .. c0 + width - 1 and rows r0 .. r0 + height - 1 of the
+ * rasters (default: all of them). The plan writes the site's box (siteWindow), not the DEM
+ * window's margin, where every cell would be nodata.
+ */
+export interface RasterWindow {
+  c0: number;
+  r0: number;
+  width: number;
+  height: number;
+}
+
+/**
+ * The window of whole cells that holds the box [minX, minY, maxX, maxY] (in the rasters'
+ * frame), clipped to the rasters: every cell whose centre can lie in a polygon with that box,
+ * and the polygon's corners. Undefined when the box misses the rasters.
+ * @example siteWindow({ width: 100, height: 80, transform: { x0: 0, y0: 80, dx: 1, dy: -1 } }, [10.2, 5, 20.5, 30]) // { c0: 10, r0: 50, width: 11, height: 26 }
+ */
+export function siteWindow(r: Grid, box: readonly [number, number, number, number]): RasterWindow | undefined {
+  const { x0, y0, dx, dy } = r.transform;
+  const cA = Math.max(0, Math.floor((box[0] - x0) / dx));
+  const cB = Math.min(r.width - 1, Math.floor((box[2] - x0) / dx));
+  const rA = Math.max(0, Math.floor((box[3] - y0) / dy));
+  const rB = Math.min(r.height - 1, Math.floor((box[1] - y0) / dy));
+  if (!(cA <= cB && rA <= rB)) return undefined;
+  return { c0: cA, r0: rA, width: cB - cA + 1, height: rB - rA + 1 };
+}
+
+/** The grid of `win` (its first cell's corner as the origin). */
+function windowGrid(t: GeoTransform, win: RasterWindow): Grid {
+  return { width: win.width, height: win.height, transform: { x0: t.x0 + win.c0 * t.dx, y0: t.y0 + win.r0 * t.dy, dx: t.dx, dy: t.dy } };
+}
+
+/** `win`, or the whole of the rasters, checked to lie within them. */
+function checkedWindow(r: Pick<AssessmentRasters, "width" | "height">, win: RasterWindow | undefined): RasterWindow {
+  if (!win) return { c0: 0, r0: 0, width: r.width, height: r.height };
+  const ok = [win.c0, win.r0, win.width, win.height].every(Number.isInteger) && win.c0 >= 0 && win.r0 >= 0 && win.width > 0 && win.height > 0 &&
+    win.c0 + win.width <= r.width && win.r0 + win.height <= r.height;
+  if (!ok) throw new Error(`raster window ${JSON.stringify(win)} is not within the ${r.width} x ${r.height} rasters`);
+  return win;
+}
+
 /** Band description, unit and further band metadata items, as GDAL_METADATA holds them. */
 export interface BandMetadata {
   description?: string;
@@ -81,12 +124,12 @@ export interface BandMetadata {
  *   const tiffs = assessmentGeoTiffs(assessment.rasters, dem.crs);
  *   await writeOutputSet(out, Object.entries(tiffs).map(([name, data]) => ({ name, data })));
  */
-export function assessmentGeoTiffs(r: AssessmentRasters, crs: RasterCrs): AssessmentTiffs {
+export function assessmentGeoTiffs(r: AssessmentRasters, crs: RasterCrs, window?: RasterWindow): AssessmentTiffs {
   const made = new Map<keyof AssessmentTiffs, WeakRef<ArrayBuffer>>();
   const get = (which: keyof AssessmentTiffs) => {
     let tif = made.get(which)?.deref();
     if (!tif) {
-      tif = assessmentGeoTiff(r, crs, which);
+      tif = assessmentGeoTiff(r, crs, which, window);
       made.set(which, new WeakRef(tif));
     }
     return tif;
@@ -109,8 +152,8 @@ export function assessmentGeoTiffs(r: AssessmentRasters, crs: RasterCrs): Assess
  *
  * @example assessmentGeoTiff(assessment.rasters, dem.crs, "gsd.tif")
  */
-export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): ArrayBuffer {
-  const c = assessmentCog(r, crs, which);
+export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs, window?: RasterWindow): ArrayBuffer {
+  const c = assessmentCog(r, crs, which, window);
   return writeCog(c.images, c.options);
 }
 
@@ -120,10 +163,10 @@ export function assessmentGeoTiff(r: AssessmentRasters, crs: RasterCrs, which: k
  * Each chunk is valid until the next is asked for (cogChunks): write it, or copy it, first.
  * @example await writeFile("gsd.tif", assessmentGeoTiffChunks(assessment.rasters, dem.crs, "gsd.tif"))
  */
-export function assessmentGeoTiffChunks(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): Iterable<Uint8Array> {
+export function assessmentGeoTiffChunks(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs, window?: RasterWindow): Iterable<Uint8Array> {
   return {
     [Symbol.iterator]: () => {
-      const c = assessmentCog(r, crs, which);
+      const c = assessmentCog(r, crs, which, window);
       return cogChunks(c.images, c.options);
     },
   };
@@ -141,14 +184,22 @@ interface CogFile {
  * overview is reduced from each band right then: no full-size copy of the raster is made;
  * each further overview comes from the one before.
  */
-function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs): CogFile {
-  const { width, height, inSite } = r;
-  const grid = { width, height, transform: r.transform };
+function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof AssessmentTiffs, window?: RasterWindow): CogFile {
+  const { inSite } = r;
+  const win = checkedWindow(r, window);
+  const grid = windowGrid(r.transform, win);
+  const { width, height } = grid;
+  const W = r.width;
+  // Row y of the file is row win.r0 + y of the rasters, from column win.c0.
+  const at = (y: number) => (win.r0 + y) * W + win.c0;
   const sizes = overviewSizes(width, height, COG_TILE_SIZE);
   if (which === "gsd.tif") {
     const g = r.gsdCm;
-    const levels = meanPyramid(width, height, sizes, (base, band) => {
-      for (let j = 0; j < band.length; j++) band[j] = inSite[base + j] === 1 ? g[base + j] : NaN;
+    const levels = meanPyramid(width, height, sizes, (y, band) => {
+      for (let o = 0, rows = band.length / width; o < rows; o++) {
+        const base = at(y + o) - o * width;
+        for (let j = o * width; j < (o + 1) * width; j++) band[j] = inSite[base + j] === 1 ? g[base + j] : NaN;
+      }
     });
     return cogFile(levels, Float32Array, grid, crs, {
       nodata: NaN,
@@ -159,11 +210,14 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
   if (which === "images.tif") {
     const v = r.images;
     const cap = IMAGES_NODATA - 1;
-    const levels = uint16Pyramid(width, height, sizes, (base, band) => {
+    const levels = uint16Pyramid(width, height, sizes, (y, band) => {
       // Counts saturate just below nodata.
-      for (let j = 0; j < band.length; j++) {
-        const c = v[base + j];
-        band[j] = inSite[base + j] === 1 ? (c < cap ? c : cap) : IMAGES_NODATA;
+      for (let o = 0, rows = band.length / width; o < rows; o++) {
+        const base = at(y + o) - o * width;
+        for (let j = o * width; j < (o + 1) * width; j++) {
+          const c = v[base + j];
+          band[j] = inSite[base + j] === 1 ? (c < cap ? c : cap) : IMAGES_NODATA;
+        }
       }
     }, (values, w, h, out) => nearestOverview(values, w, h, IMAGES_NODATA, out));
     return cogFile(levels, Uint16Array, grid, crs, {
@@ -174,11 +228,14 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
     });
   }
   const f = r.flags;
-  const levels = uint16Pyramid(width, height, sizes, (base, band) => {
+  const levels = uint16Pyramid(width, height, sizes, (y, band) => {
     // No cell can be both coarser and finer, so no cell is 255; should one be, it keeps its other bits.
-    for (let j = 0; j < band.length; j++) {
-      const x = f[base + j];
-      band[j] = inSite[base + j] !== 1 ? FLAGS_NODATA : x === FLAGS_NODATA ? x & ~FLAG_FINE : x;
+    for (let o = 0, rows = band.length / width; o < rows; o++) {
+      const base = at(y + o) - o * width;
+      for (let j = o * width; j < (o + 1) * width; j++) {
+        const x = f[base + j];
+        band[j] = inSite[base + j] !== 1 ? FLAGS_NODATA : x === FLAGS_NODATA ? x & ~FLAG_FINE : x;
+      }
     }
   }, (values, w, h, out) => orOverview(values, w, h, FLAGS_NODATA, FLAG_FINE, out));
   const items: Record<string, string> = {};
@@ -192,8 +249,8 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
   });
 }
 
-/** Fills `band` with the full-resolution cells from index `base` on (row-major), nodata in place. */
-type FillBand<T> = (base: number, band: T) => void;
+/** Fills `band` with the file's full-resolution rows from row `y` on (whole rows, row-major), nodata in place. */
+type FillBand<T> = (y: number, band: T) => void;
 
 /** Rows made and reduced at a time (a multiple of 4, so a chunk's 2 x 2 blocks, and theirs, are the raster's). */
 const CHUNK_ROWS = 8;
@@ -223,7 +280,7 @@ function bandImage<T extends Float32Array | Uint16Array>(width: number, height: 
       for (let r = 0; r < count; r += CHUNK_ROWS) {
         const rows = Math.min(CHUNK_ROWS, count - r);
         const chunk = band.subarray(r * width, (r + rows) * width) as T;
-        fill((y0 + r) * width, chunk);
+        fill(y0 + r, chunk);
         if (!reduced) reduce(chunk, y0 + r, rows);
       }
       return band.subarray(0, count * width) as T;
@@ -609,6 +666,7 @@ const cogFileWorkerUrl = new URL("./cogFileWorker.js", import.meta.url);
 /** What the file-writing worker gets: the arrays its file reads (in shared memory), the CRS, the file and where to write it. */
 export interface CogFileJob {
   rasters: Pick<AssessmentRasters, "width" | "height" | "transform" | "inSite"> & Partial<Pick<AssessmentRasters, "gsdCm" | "images" | "flags">>;
+  window?: RasterWindow;
   crs: RasterCrs;
   name: keyof AssessmentTiffs;
   path: string;
@@ -622,10 +680,10 @@ export interface CogFileJob {
  * true once the file is whole, undefined when no worker ran or it failed.
  * @example (await assessmentGeoTiffFileInBackground(rasters, crs, "gsd.tif", "out/gsd.tif").result()) ?? writeOnThisThread()
  */
-export function assessmentGeoTiffFileInBackground(r: AssessmentRasters, crs: RasterCrs, name: keyof AssessmentTiffs, filePath: string): Background<true> {
+export function assessmentGeoTiffFileInBackground(r: AssessmentRasters, crs: RasterCrs, name: keyof AssessmentTiffs, filePath: string, window?: RasterWindow): Background<true> {
   const { width, height, transform, inSite } = r;
   const own = name === "gsd.tif" ? { gsdCm: r.gsdCm } : name === "images.tif" ? { images: r.images } : { flags: r.flags };
   if (![inSite, ...Object.values(own)].every((a) => a.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
-  const job: CogFileJob = { rasters: { width, height, transform, inSite, ...own }, crs: plainCrs(crs), name, path: filePath };
+  const job: CogFileJob = { rasters: { width, height, transform, inSite, ...own }, crs: plainCrs(crs), name, path: filePath, ...(window ? { window } : {}) };
   return inBackground<true>(cogFileWorkerUrl, job);
 }

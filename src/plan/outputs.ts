@@ -13,7 +13,7 @@ import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
-import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, type AssessmentTiffs } from "../export/geotiffRasters.js";
+import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, siteWindow, type AssessmentTiffs } from "../export/geotiffRasters.js";
 import { SPLIT_MIN_CELLS, splitAllowed } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
@@ -23,6 +23,7 @@ import type { ReportInput } from "../report/model.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram, histogramOfTally } from "../report/histogram.js";
 import type { LocalFrame } from "../geo/frame.js";
 import type { DemGrid } from "../dem/grid.js";
+import type { MultiPolygon, Polygon } from "geojson";
 import { undulationFor, type PlanRun } from "./plan.js";
 import { planSummary, type PlanSummary } from "./summary.js";
 
@@ -67,6 +68,10 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     ? { epsg: native.crs.epsg, proj4: native.crs.proj4, geographic: native.crs.geographic, name: native.crs.name }
     : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
   const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
+  // The files hold the site's box, not the DEM window's margin (every cell of it nodata):
+  // at 4 km2 gsd.tif 120 -> 88 MB. The box is taken on the local grid, whose cells are the
+  // native grid's when the rasters are written on that.
+  const window = siteWindow(run.assessment.rasters, vertexBox(run.site.local));
   // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
   // memory). On large grids (threads allowed) it is made and written by a worker thread of its
   // own, started before the other files (writeOutputSet's background files), while the rest
@@ -90,7 +95,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     if (name !== "gsd.tif") await reportPage();
-    return assessmentGeoTiffChunks(rasters, crs, name);
+    return assessmentGeoTiffChunks(rasters, crs, name, window);
   };
   const files: OutputFile[] = [
     { name: "waypoints.csv", data: waypointsCsv(rows) },
@@ -101,7 +106,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     {
       name: "gsd.tif",
       data: tiff("gsd.tif"),
-      ...(gsdInBackground ? { background: async (filePath: string) => (await assessmentGeoTiffFileInBackground(rasters, crs, "gsd.tif", filePath).result()) === true } : {}),
+      ...(gsdInBackground ? { background: async (filePath: string) => (await assessmentGeoTiffFileInBackground(rasters, crs, "gsd.tif", filePath, window).result()) === true } : {}),
     },
     { name: "images.tif", data: tiff("images.tif") },
     { name: "flags.tif", data: tiff("flags.tif") },
@@ -273,4 +278,20 @@ export function flightRows(run: PlanRun): FlightRow[] {
       resumesStrip: f.resumesStrip ?? null,
     };
   });
+}
+
+/** The box [minX, minY, maxX, maxY] of a polygon's or multipolygon's vertices (its bounding box: its edges are straight). */
+function vertexBox(g: Polygon | MultiPolygon): [number, number, number, number] {
+  const box: [number, number, number, number] = [Infinity, Infinity, -Infinity, -Infinity];
+  for (const poly of g.type === "Polygon" ? [g.coordinates] : g.coordinates) {
+    for (const ring of poly) {
+      for (const [x, y] of ring) {
+        if (x < box[0]) box[0] = x;
+        if (y < box[1]) box[1] = y;
+        if (x > box[2]) box[2] = x;
+        if (y > box[3]) box[3] = y;
+      }
+    }
+  }
+  return box;
 }

@@ -482,7 +482,7 @@ export function hillsPlanSuite(c: HillsCase): void {
         { name: "images.tif", type: "UInt16", nodata: 65535 },
         { name: "flags.tif", type: "UInt16", nodata: 255 },
       ];
-      let grid: { transform: { x0: number; y0: number; dx: number; dy: number }; crs: { epsg: number | null } };
+      let grid: { width: number; height: number; transform: { x0: number; y0: number; dx: number; dy: number }; crs: { epsg: number | null } };
       beforeAll(() => {
         grid = JSON.parse(readFileSync(path.join(out, "report-data.json"), "utf8")).input.dem;
       });
@@ -502,8 +502,16 @@ export function hillsPlanSuite(c: HillsCase): void {
         expect(t.dy).toBeCloseTo(-c.cellSizeM, 9);
         expect(dx).toBeCloseTo(t.dx / c.demUnitToM, 9);
         expect(dy).toBeCloseTo(t.dy / c.demUnitToM, 9);
-        expect(x0).toBeCloseTo(t.x0 / c.demUnitToM, 6);
-        expect(y0).toBeCloseTo(t.y0 / c.demUnitToM, 6);
+        // The files hold the site's box of that window: whole cells in from its corner, within it.
+        const c0 = (x0 - t.x0 / c.demUnitToM) / dx;
+        const r0 = (y0 - t.y0 / c.demUnitToM) / dy;
+        expect(Math.abs(c0 - Math.round(c0))).toBeLessThan(1e-6);
+        expect(Math.abs(r0 - Math.round(r0))).toBeLessThan(1e-6);
+        const [w, h] = info.size;
+        expect(Math.round(c0)).toBeGreaterThanOrEqual(0);
+        expect(Math.round(r0)).toBeGreaterThanOrEqual(0);
+        expect(Math.round(c0) + w).toBeLessThanOrEqual(grid.width);
+        expect(Math.round(r0) + h).toBeLessThanOrEqual(grid.height);
         expect(grid.crs.epsg).toBe(c.frameEpsg);
         expect(summary.frame.epsg).toBe(c.frameEpsg);
         // The rasters are in the DEM's own CRS; GDAL names it by its EPSG code when the GeoKeys carry it.
