@@ -200,24 +200,7 @@ function meanBlocks(src: Float32Array, W: number, H: number, k: number): Float32
     sum.fill(0);
     cnt.fill(0);
     const rEnd = Math.min(H, br * k + k);
-    for (let r0 = br * k; r0 < rEnd; r0++) {
-      const base = r0 * W;
-      let c = 0;
-      for (let bc = 0; bc < w; bc++) {
-        const end = Math.min(W, c + k);
-        let s = sum[bc];
-        let m = cnt[bc];
-        for (; c < end; c++) {
-          const v = src[base + c];
-          if (v === v) {
-            s += v;
-            m++;
-          }
-        }
-        sum[bc] = s;
-        cnt[bc] = m;
-      }
-    }
+    for (let r0 = br * k; r0 < rEnd; r0++) finiteSumBlocks(src, r0 * W, W, k, w, sum, cnt);
     const o = br * w;
     for (let bc = 0; bc < w; bc++) out[o + bc] = cnt[bc] ? sum[bc] / cnt[bc] : NaN;
   }
