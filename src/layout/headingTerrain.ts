@@ -37,9 +37,12 @@ export function headingTerrainJob(grid: HeadingTerrainJob["grid"], candidates: r
   let count = 0;
   for (const legs of candidates) for (const leg of legs) if (leg.kind === "strip") count++;
   const col = () => new Float64Array(count);
-  const { width, height, heights, transform } = grid;
   const job: HeadingTerrainJob = {
-    grid: { width, height, heights, transform },
+    // The grid object itself, not a copy of its fields: sampleBilinear's other callers pass
+    // DemGrid objects, and an object of another shape sent its compiled code back to the
+    // interpreter ("wrong map", node --trace-deopt). A worker gets a structured clone (the
+    // heights, in shared memory, are not copied).
+    grid,
     stepM,
     legAt: new Int32Array(candidates.length + 1),
     fromX: col(), fromY: col(), toX: col(), toY: col(), lengthM: col(),
