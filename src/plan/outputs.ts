@@ -69,7 +69,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     : { epsg: run.grid.crs.epsg, proj4: run.grid.crs.proj4, geographic: false, name: run.grid.crs.name };
   const rasters = native ? { ...run.assessment.rasters, transform: native.transform } : run.assessment.rasters;
   // The files hold the site's box, not the DEM window's margin (every cell of it nodata):
-  // at 4 km2 gsd.tif 120 -> 88 MB. The box is taken on the local grid, whose cells are the
+  // at 4 km2 gsd.tif 126 -> 89 MB. The box is taken on the local grid, whose cells are the
   // native grid's when the rasters are written on that.
   const window = siteWindow(run.assessment.rasters, vertexBox(run.site.local));
   // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
