@@ -78,15 +78,27 @@ export function paintCauseZones(
       const ahead = k + 1 < m ? p.s[k + 1] - p.s[k] : back;
       // Symmetric half-length covering half of the larger gap keeps neighbouring zones touching.
       const halfAlong = Math.max(back, ahead) / 2;
-      const px = p.x[k];
-      const py = p.y[k];
-      orientedRectRowRange(py, ux, uy, halfAlong, zoneHalfAcrossM, y0, dy, height, rows);
-      for (let r = rows[0]; r <= rows[1]; r++) {
-        orientedRectColSpan(y0 + (r + 0.5) * dy, px, py, ux, uy, halfAlong, zoneHalfAcrossM, x0, dx, width, span);
-        const base = r * width;
-        for (let c = span[0]; c <= span[1]; c++) if (inSite[base + c] === 1) flags[base + c] |= bits;
-      }
+      paintZone(flags, inSite, width, height, x0, y0, dx, dy, p.x[k], p.y[k], ux, uy, halfAlong, zoneHalfAcrossM, bits, rows, span);
     }
+  }
+}
+
+/**
+ * OR `bits` into the site cells of one station's zone (the rectangle around (px, py)). A
+ * function of its own, called per flagged station: as the innermost loops of
+ * paintCauseZones it ran in the interpreter until the whole function was compiled in
+ * mid-call, then compiled again for its next call (three compiles and ~20 MB of boxed
+ * numbers on the demo: node --trace-opt, the sampling heap profiler).
+ */
+function paintZone(
+  flags: Uint16Array, inSite: Uint8Array, width: number, height: number, x0: number, y0: number, dx: number, dy: number,
+  px: number, py: number, ux: number, uy: number, halfAlong: number, halfAcross: number, bits: number, rows: Int32Array, span: Int32Array,
+): void {
+  orientedRectRowRange(py, ux, uy, halfAlong, halfAcross, y0, dy, height, rows);
+  for (let r = rows[0]; r <= rows[1]; r++) {
+    orientedRectColSpan(y0 + (r + 0.5) * dy, px, py, ux, uy, halfAlong, halfAcross, x0, dx, width, span);
+    const base = r * width;
+    for (let c = span[0]; c <= span[1]; c++) if (inSite[base + c] === 1) flags[base + c] |= bits;
   }
 }
 
