@@ -106,6 +106,9 @@ export function zoneExtremaOnAxis(
   let lo = 0, hi = 0, eLo = 0, eHi = 0;
   const extX = Math.abs(ax) * HA + Math.abs(bx) * HC;
   const extY = Math.abs(ay) * HA + Math.abs(by) * HC;
+  // The band, and the zone of the station at hand (its point set per station).
+  const band: ZoneBand = { groups, gStride, lStride, l0, l1, edgeLanes };
+  const zone: ZoneRect = { px: NaN, py: NaN, ax, ay, bx, by, HA, HC };
   const one = (i: number) => extremaInOrientedRect(grid, xs.subarray(i, i + 1), ys.subarray(i, i + 1), ux, uy, HA, HC, outMax.subarray(i, i + 1), outMin.subarray(i, i + 1));
   for (let i = 0; i < n; i++) {
     const px = xs[i], py = ys[i];
@@ -130,24 +133,59 @@ export function zoneExtremaOnAxis(
     const z0 = heights[pr * w + pc];
     if (z0 !== z0) bad = true;
     else { if (z0 > acc[0]) acc[0] = z0; if (z0 < acc[1]) acc[1] = z0; }
-    // The rectangle test itself, for one cell (false: a nodata cell inside the zone).
-    const test = (k: number): boolean => testCell(grid, k, px, py, ax, ay, bx, by, HA, HC, acc);
-    // Groups near the window's ends: every band cell of them.
-    const testGroup = (j: number): boolean => {
-      const base = groups[j] * gStride;
-      for (let l = l0; l <= l1; l++) if (!test(base + l * lStride)) return false;
-      return true;
-    };
-    for (let j = eLo; j < lo && !bad; j++) if (!testGroup(j)) bad = true;
-    for (let j = hi; j < eHi && !bad; j++) if (!testGroup(j)) bad = true;
-    // Lanes near the across edges: their cells in the groups of this zone.
-    for (let q = 0; q < edgeLanes.length && !bad; q++) {
-      const off = edgeLanes[q] * lStride;
-      for (let j = eLo; j < eHi && !bad; j++) if (!test(groups[j] * gStride + off)) bad = true;
+    if (!bad) {
+      zone.px = px;
+      zone.py = py;
+      bad = !settleEdges(grid, band, zone, eLo, lo, hi, eHi, acc);
     }
     outMax[i] = bad ? NaN : acc[0];
     outMin[i] = bad ? NaN : acc[1];
   }
+  return true;
+}
+
+/** The band's cells as zoneExtremaOnAxis walks them: groups (lines along), lanes (lines across) and the edge lanes. */
+interface ZoneBand {
+  groups: readonly number[];
+  gStride: number;
+  lStride: number;
+  l0: number;
+  l1: number;
+  edgeLanes: readonly number[];
+}
+
+/** One station's zone: its point, the leg's unit vectors along and across, and the half sizes. */
+interface ZoneRect {
+  px: number;
+  py: number;
+  ax: number;
+  ay: number;
+  bx: number;
+  by: number;
+  HA: number;
+  HC: number;
+}
+
+/**
+ * The cells of one station's zone that the sliding window does not settle, by the rectangle
+ * test itself (testCell, folding into acc): every band cell of the groups near the window's
+ * ends (eLo..lo-1 and hi..eHi-1), then the edge lanes' cells in the zone's groups; false at
+ * the first nodata cell inside the zone. A function of its own, not closures made per station.
+ */
+function settleEdges(grid: DemGrid, b: ZoneBand, z: ZoneRect, eLo: number, lo: number, hi: number, eHi: number, acc: Float64Array): boolean {
+  for (let j = eLo; j < lo; j++) if (!testGroup(grid, b, z, j, acc)) return false;
+  for (let j = hi; j < eHi; j++) if (!testGroup(grid, b, z, j, acc)) return false;
+  for (let q = 0; q < b.edgeLanes.length; q++) {
+    const off = b.edgeLanes[q] * b.lStride;
+    for (let j = eLo; j < eHi; j++) if (!testCell(grid, b.groups[j] * b.gStride + off, z.px, z.py, z.ax, z.ay, z.bx, z.by, z.HA, z.HC, acc)) return false;
+  }
+  return true;
+}
+
+/** Every band cell of group j by the rectangle test (false: a nodata cell inside the zone). */
+function testGroup(grid: DemGrid, b: ZoneBand, z: ZoneRect, j: number, acc: Float64Array): boolean {
+  const base = b.groups[j] * b.gStride;
+  for (let l = b.l0; l <= b.l1; l++) if (!testCell(grid, base + l * b.lStride, z.px, z.py, z.ax, z.ay, z.bx, z.by, z.HA, z.HC, acc)) return false;
   return true;
 }
 
