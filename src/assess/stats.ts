@@ -240,9 +240,8 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
         all += c;
         if (f !== 0) flagged += c;
         if (f & (FLAG_COARSE | FLAG_FINE | FLAG_FEW_IMAGES)) effect += c;
-        ASSESSMENT_FLAG_KINDS.forEach((kind, k) => {
-          if (f & kind.bit) cells[k] += c;
-        });
+        // A plain loop: a callback made per nonzero bin was ~14 MB of garbage at 4 km2.
+        for (let k = 0; k < ASSESSMENT_FLAG_KINDS.length; k++) if (f & ASSESSMENT_FLAG_KINDS[k].bit) cells[k] += c;
       }
     }
     return { cells, all, flagged, effect };
