@@ -40,36 +40,9 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
   let bw = Math.max(1, Math.ceil(quadsW / BLOCK0));
   let bh = Math.max(1, Math.ceil(quadsH / BLOCK0));
   const l0 = newLevel(BLOCK0, bw, bh);
-  l0.max.fill(-Infinity);
-  l0.min.fill(Infinity);
-  // Row by row (the heights are read in memory order): each row's run of centres in a
-  // block (c0..c1, neighbouring blocks sharing the edge column) folds into the block
-  // rows holding that row: bj = floor(r / 8), and the one above at a shared edge row.
-  for (let r = 0; r < height; r++) {
-    const base = r * width;
-    const bjA = Math.floor(r / BLOCK0);
-    const below = bjA < bh && r <= Math.min(bjA * BLOCK0 + BLOCK0, height - 1) ? bjA : -1;
-    const above = r % BLOCK0 === 0 && r > 0 && bjA - 1 < bh ? bjA - 1 : -1;
-    for (let bi = 0; bi < bw; bi++) {
-      const c0 = bi * BLOCK0;
-      const c1 = Math.min(c0 + BLOCK0, width - 1);
-      let mx = -Infinity;
-      let mn = Infinity;
-      let bad = 0;
-      let unk = 0;
-      for (let c = c0; c <= c1; c++) {
-        const v = z[base + c];
-        if (v !== v) bad = 1;
-        else {
-          if (v > mx) mx = v;
-          if (v < mn) mn = v;
-        }
-        if (!known[base + c]) unk = 1;
-      }
-      if (below >= 0) fold(l0, below * bw + bi, mx, mn, bad, unk);
-      if (above >= 0) fold(l0, above * bw + bi, mx, mn, bad, unk);
-    }
-  }
+  // Block row by block row: block (bi, bj) holds the centres of rows bj * 8 .. bj * 8 + 8 and
+  // columns bi * 8 .. bi * 8 + 8 (neighbours share an edge row and column), within the grid.
+  for (let bj = 0; bj < bh; bj++) level0Row(z, known, width, bj * BLOCK0, Math.min(bj * BLOCK0 + BLOCK0, height - 1), l0, bj * bw);
   levels.push(l0);
   while (bw > 1 || bh > 1) {
     const prev = levels[levels.length - 1];
@@ -104,11 +77,38 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
   return { quadsW, quadsH, levels };
 }
 
-function fold(lv: PyramidLevel, b: number, mx: number, mn: number, bad: number, unk: number): void {
-  if (mx > lv.max[b]) lv.max[b] = mx;
-  if (mn < lv.min[b]) lv.min[b] = mn;
-  lv.unusable[b] |= bad;
-  lv.unknown[b] |= unk;
+/**
+ * One row of level-0 blocks (from block index `at`), over centre rows r0..r1: each block's
+ * max and min of the heights with a value, whether one is missing and whether the DEM has no
+ * data at one. Each block read whole (its 9 x 9 centres stay in the cache across the row):
+ * folding every centre row into the blocks as it was read took ~2x the time (4557 x 4558
+ * cells: ~75 ms).
+ */
+function level0Row(z: Float32Array, known: Uint8Array, width: number, r0: number, r1: number, lv: PyramidLevel, at: number): void {
+  for (let bi = 0; bi < lv.bw; bi++) {
+    const c0 = bi * BLOCK0;
+    const c1 = Math.min(c0 + BLOCK0, width - 1);
+    let mx = -Infinity;
+    let mn = Infinity;
+    let bad = 0;
+    let unk = 0;
+    for (let r = r0; r <= r1; r++) {
+      const base = r * width;
+      for (let c = c0; c <= c1; c++) {
+        const v = z[base + c];
+        if (v !== v) bad = 1;
+        else {
+          if (v > mx) mx = v;
+          if (v < mn) mn = v;
+        }
+        if (!known[base + c]) unk = 1;
+      }
+    }
+    lv.max[at + bi] = mx;
+    lv.min[at + bi] = mn;
+    lv.unusable[at + bi] = bad;
+    lv.unknown[at + bi] = unk;
+  }
 }
 
 function newLevel(size: number, bw: number, bh: number): PyramidLevel {
