@@ -5,18 +5,18 @@ import { Worker } from "node:worker_threads";
 
 /**
  * Bands of grid rows shared between threads: the per-cell passes of the
- * assessment (the footprint sweep, coverageKernel.ts) and of the
- * constant-altitude comparison (the lattice counts, latticeCoverage.ts) write
- * each cell from one band only, so threads taking whole bands never write the
- * same cell. The `auto` heading choice's candidates are taken the same way, one
- * candidate a band (layout/headingTerrain.ts). The bands go to whichever thread asks next (a shared counter);
+ * assessment (the footprint sweep, coverageKernel.ts, and its statistics'
+ * pass) write each cell from one band only, so threads taking whole bands
+ * never write the same cell. The `auto` heading choice's candidates are taken
+ * the same way, one candidate a band (layout/headingTerrain.ts). The bands go
+ * to whichever thread asks next (a shared counter);
  * the main thread works too, then waits on the workers' flags (Atomics.wait
  * is allowed on Node's main thread), which keeps the callers plain
  * synchronous functions.
  */
 
 /** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
-export type BandKind = "sweep" | "lattice" | "stats" | "heading";
+export type BandKind = "sweep" | "stats" | "heading";
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
 const workerUrl = new URL("./coverageWorker.js", import.meta.url);
@@ -89,7 +89,7 @@ function bandWorker(): Worker {
  * workers 1 .. threads - 1), for loops that keep per-thread tallies. The workers are those of
  * `pool` (started there when missing, kept for its next pass), else started for this pass and
  * ended afterwards (see BandPool).
- * @example runBands("lattice", input, bands, threads, latticeBands);
+ * @example runBands("sweep", input, bands, threads, sweepBands);
  */
 export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number, slot: number) => void, pool?: BandPool): void {
   const next = new Int32Array(new SharedArrayBuffer(4));

@@ -1,7 +1,6 @@
 import { parentPort } from "node:worker_threads";
 import type { BandJob } from "./bandThreads.js";
 import { sweepBands, type SweepInput } from "./coverageKernel.js";
-import { latticeBands, type LatticeInput } from "./latticeCoverage.js";
 import { statsPassBands, type StatsPassJob } from "./stats.js";
 import { headingTerrainBands, type HeadingTerrainJob } from "../layout/headingTerrain.js";
 
@@ -13,7 +12,6 @@ import { headingTerrainBands, type HeadingTerrainJob } from "../layout/headingTe
 parentPort?.on("message", ({ kind, input, next, bands, done, slot }: BandJob) => {
   try {
     if (kind === "sweep") sweepBands(input as SweepInput, next, bands);
-    else if (kind === "lattice") latticeBands(input as LatticeInput, next, bands);
     else if (kind === "stats") statsPassBands(input as StatsPassJob, next, bands, slot);
     else headingTerrainBands(input as HeadingTerrainJob, next, bands);
     Atomics.store(done, slot, 1);

@@ -1,6 +1,5 @@
 import type { DemGrid } from "../dem/grid.js";
 import { blockRowMin, minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
-import { bandThreads, runBands, shareable } from "./bandThreads.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
 
@@ -24,7 +23,7 @@ export interface LatticeStrip {
   lattice: PhotoLattice;
 }
 
-/** Everything a band of rows needs, as plain typed arrays (shared with worker threads). */
+/** Everything a band of rows needs, as plain typed arrays. */
 export interface LatticeInput {
   width: number;
   height: number;
@@ -34,7 +33,7 @@ export interface LatticeInput {
   dy: number;
   heights: Float32Array;
   inSite: Uint8Array;
-  /** Counts out: the grid's cells, or one band's (latticeCountsByBand; see latticeBand's imagesAt). */
+  /** Counts out: one band's cells (latticeCountsByBand; see latticeBand's imagesAt). */
   images: Uint16Array;
   blocks: BlockMinima;
   A: number;
@@ -64,41 +63,14 @@ export interface LatticeInput {
 const LATTICE_BAND_ROWS = 8 * BLOCK;
 
 /**
- * Number of photos whose footprint (projected to the cell's own ground) covers
- * each site cell's centre, for photos at `altitudeAmslM` on the lattices of
- * `strips`, every `triggerM`. Half footprints per metre of height: kAlong and
- * kAcross (ifov * pixels / 2). Cells outside the site or without ground get 0.
- * Bands of rows are shared between `threads` (see runBands) on large grids.
- * @example const images = latticeImageCounts(grid, inSite, strips, 412.5, 8.8, 0.36, 0.54);
- */
-export function latticeImageCounts(
-  grid: Pick<DemGrid, "width" | "height" | "heights" | "transform">,
-  inSite: Uint8Array,
-  strips: readonly LatticeStrip[],
-  altitudeAmslM: number,
-  triggerM: number,
-  kAlong: number,
-  kAcross: number,
-  threads?: number,
-): Uint16Array {
-  const { width, height, heights } = grid;
-  const { x0, y0, dx, dy } = grid.transform;
-  const bands = Math.ceil(height / LATTICE_BAND_ROWS);
-  const t = bandThreads(width * height, bands, threads);
-  const n = width * height;
-  const images = new Uint16Array(t > 1 ? new SharedArrayBuffer(2 * n) : new ArrayBuffer(2 * n));
-  const input = prepareLattice({ width, height, x0, y0, dx, dy }, shareable(heights, t), shareable(inSite, t), strips, altitudeAmslM, triggerM, kAlong, kAcross, images);
-  runBands("lattice", input, bands, t, latticeBands);
-  return input.images;
-}
-
-/**
- * The image counts of latticeImageCounts a band of rows at a time, on this thread, into one
- * band's buffer (`images`, reused from band to band): for a pass that reads each band's counts
- * once (the comparison's), so the grid's counts are never held whole (2 bytes a cell: 40 MB
- * at 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and
- * gives its cells [i0, i1): cell i's count is images[i - i0]. The same counts as
- * latticeImageCounts.
+ * Number of photos whose footprint (projected to the cell's own ground) covers each site
+ * cell's centre, for photos at `altitudeAmslM` on the lattices of `strips`, every `triggerM`
+ * (half footprints per metre of height: kAlong and kAcross, ifov * pixels / 2; cells outside
+ * the site or without ground get 0), a band of rows at a time, on this thread, into one band's
+ * buffer (`images`, reused from band to band): for a pass that reads each band's counts once
+ * (the comparison's), so the grid's counts are never held whole (2 bytes a cell: 40 MB at
+ * 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and gives
+ * its cells [i0, i1): cell i's count is images[i - i0].
  * @example const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc); for (let b = 0; b < l.bands; b++) { const [i0, i1] = l.count(b); ... }
  */
 export function latticeCountsByBand(
@@ -198,19 +170,11 @@ function prepareLattice(
 }
 
 /**
- * Bands taken from the shared counter until none is left (this thread's share).
- * @example latticeBands(input, new Int32Array(new SharedArrayBuffer(4)), bands);
- */
-export function latticeBands(inp: LatticeInput, next: Int32Array, bands: number): void {
-  for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) latticeBand(inp, b);
-}
-
-/**
  * Every strip over the rows of band `band`, cell i's count into images[i - imagesAt]
- * (imagesAt 0: images holds the whole grid; else the band's first cell, images one band).
- * @example for (let b = 0; b < bands; b++) latticeBand(input, b);
+ * (imagesAt: the band's first cell; images holds one band).
+ * @example latticeBand(input, b, b * input.bandRows * input.width)
  */
-export function latticeBand(inp: LatticeInput, band: number, imagesAt = 0): void {
+function latticeBand(inp: LatticeInput, band: number, imagesAt: number): void {
   const { width, x0, y0, dx, dy, heights, inSite, images, blocks, A, triggerM, kAlong, kAcross } = inp;
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);

@@ -121,23 +121,4 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     pool.close();
     expect(pool.workers.length).toBe(0);
   });
-
-  it("gives the same constant-altitude image counts as one thread", async () => {
-    const { latticeImageCounts } = (await import(new URL("../../dist/assess/latticeCoverage.js", import.meta.url).href)) as typeof import("../../src/assess/latticeCoverage.js");
-    const grid = makeGrid({ width: 1300, height: 1100, x0: 0, y0: 550, cellM: 0.5, heights: (x, y) => 150 + 18 * Math.sin(x / 37) * Math.cos(y / 51) });
-    const inSite = new Uint8Array(grid.width * grid.height).fill(1);
-    const h = (25 * Math.PI) / 180;
-    const strips = Array.from({ length: 16 }, (_, j) => {
-      const from: [number, number] = [-60 + j * 40 * Math.cos(h), -80 - j * 40 * Math.sin(h) + 300];
-      const present = new Uint8Array(40).fill(1);
-      present[7] = 0;
-      return { from, lattice: { ux: Math.sin(h), uy: Math.cos(h), lengthM: 800, s0: 1.5, n: 39, present } };
-    });
-    const camera = genericCamera();
-    const args = [strips, 250, 20, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2] as const;
-    const one = latticeImageCounts(grid, inSite, ...args, 1);
-    const two = latticeImageCounts(grid, inSite, ...args, 2);
-    expect(one.reduce((a, b) => a + b, 0)).toBeGreaterThan(1_000_000);
-    expect(Buffer.from(two.buffer).equals(Buffer.from(one.buffer))).toBe(true);
-  });
 });

@@ -3,7 +3,7 @@ import { builtModule } from "../helpers/dist.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { assessPlan } from "../../src/assess/assess.js";
 import { rasteriseSite } from "../../src/assess/siteMask.js";
-import { latticeCountsByBand, latticeImageCounts } from "../../src/assess/latticeCoverage.js";
+import { latticeCountsByBand } from "../../src/assess/latticeCoverage.js";
 import { photoLattice, type AssessedLeg } from "../../src/assess/exposures.js";
 import { baselineFigures, baselineJob, constantAltitudeBaseline } from "../../src/plan/baseline.js";
 import { straightTransitLeg } from "../../src/route/flights.js";
@@ -72,6 +72,17 @@ function assessedLegs(layout: Layout, altitudeAmslM: number): AssessedLeg[] {
   }));
 }
 
+/** latticeCountsByBand's counts of the whole grid, band after band. */
+function latticeCountsWhole(...args: Parameters<typeof latticeCountsByBand>): Uint16Array {
+  const l = latticeCountsByBand(...args);
+  const whole = new Uint16Array(args[0].width * args[0].height);
+  for (let b = 0; b < l.bands; b++) {
+    const [i0, i1] = l.count(b);
+    whole.set(l.images.subarray(0, i1 - i0), i0);
+  }
+  return whole;
+}
+
 describe("constant-altitude baseline computed directly", () => {
   for (const headingDeg of [0, 33, 90]) {
     it(`matches the footprint sweep cell by cell over hills (heading ${headingDeg})`, () => {
@@ -103,7 +114,7 @@ describe("constant-altitude baseline computed directly", () => {
       expect(b.planCeilingBreaches.cells).toBe(0);
       // Image counts: the same for every cell.
       const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
-      const images = latticeImageCounts(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
+      const images = latticeCountsWhole(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
       let differ = 0;
       for (let i = 0; i < W * H; i++) if (inSite[i] && images[i] !== swept.rasters.images[i]) differ++;
       expect(differ).toBe(0);
@@ -148,7 +159,7 @@ describe("constant-altitude baseline computed directly", () => {
     // trigger = 4), 3 or 5 at exact edges; across, 65 % side overlap puts it in 2 or 3 strips.
     // The site's interior therefore sees 8 to 15 photos, never fewer than 8.
     const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
-    const images = latticeImageCounts(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
+    const images = latticeCountsWhole(grid, inSite, strips, b.altitudeAmslM, triggerM, (camera.ifov * 3648) / 2, (camera.ifov * 5472) / 2);
     // Brute force at a few cells: count photos whose footprint (half 90 m * ifov * px / 2) holds the cell centre.
     const halfAlong = (90 * camera.ifov * 3648) / 2;
     const halfAcross = (90 * camera.ifov * 5472) / 2;
@@ -174,14 +185,17 @@ describe("constant-altitude baseline computed directly", () => {
 });
 
 describe("image counts a band of rows at a time (latticeCountsByBand)", () => {
-  it("are latticeImageCounts' counts, band after band, every cell of the grid once", () => {
+  it("are the footprint sweep's counts, band after band, every cell of the grid once", () => {
     const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: hills });
     const layout = layoutAt(33);
     const inSite = rasteriseSite(site, W, H, grid.transform);
     const strips = layout.legs.map((l) => ({ from: l.from, lattice: photoLattice(assessedLegs(layout, 0)[l.strip - 1], triggerM)! }));
     const A = 400;
     const kAlong = (camera.ifov * 3648) / 2, kAcross = (camera.ifov * 5472) / 2;
-    const whole = latticeImageCounts(grid, inSite, strips, A, triggerM, kAlong, kAcross, 1);
+    // The assessment's footprint sweep of the same photos at altitude A: every photo tested per cell.
+    const whole = assessPlan(grid, site, assessedLegs(layout, A), camera, requirement, {
+      triggerM, minImages: 3, zoneHalfAcrossM: spacingM / 2, toWgs84: (x, y) => [x, y], nadirBy: "distance", polygons: false, threads: 1,
+    }).rasters.images;
     const byBand = latticeCountsByBand(grid, inSite, strips, A, triggerM, kAlong, kAcross);
     // 800 rows: several bands, the last one part filled.
     expect(byBand.bands).toBeGreaterThan(2);
