@@ -370,23 +370,10 @@ function stitch(st: Stitching, c: number, x: number, y: number): void {
         byEnd.set((f.end = endIndex), f);
       }
     } else if ((f = byStart.get(endIndex))) {
-      if ((g = byEnd.get(startIndex))) {
-        byStart.delete(f.start);
-        byEnd.delete(g.end);
-        if (f === g) {
-          pushPoint(f, ex, ey);
-          rings.push(ringPoints(f));
-        } else {
-          g.last.next = f.first;
-          const m: Fragment = { start: g.start, end: f.end, first: g.first, last: f.last };
-          byStart.set(g.start, m);
-          byEnd.set(f.end, m);
-        }
-      } else {
-        byStart.delete(f.start);
-        unshiftPoint(f, sx, sy);
-        byStart.set((f.start = startIndex), f);
-      }
+      // No fragment ends at the segment's start (the branch above): it only extends f backwards.
+      byStart.delete(f.start);
+      unshiftPoint(f, sx, sy);
+      byStart.set((f.start = startIndex), f);
     } else {
       const piece: Piece = { pts: [sx, sy, ex, ey], reversed: false, next: null };
       const m: Fragment = { start: startIndex, end: endIndex, first: piece, last: piece };
