@@ -239,15 +239,7 @@ export function gridConvergenceDeg(frame: Pick<LocalFrame, "fromWgs84" | "toWgs8
 
 /** Centre of the site's bounding box, local frame. */
 function siteCentre(site: PlanRun["site"]["local"]): [number, number] {
-  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
-  const polys = site.type === "Polygon" ? [site.coordinates] : site.coordinates;
-  for (const poly of polys)
-    for (const [x, y] of poly[0]) {
-      x0 = Math.min(x0, x);
-      x1 = Math.max(x1, x);
-      y0 = Math.min(y0, y);
-      y1 = Math.max(y1, y);
-    }
+  const [x0, y0, x1, y1] = vertexBox(site);
   return [(x0 + x1) / 2, (y0 + y1) / 2];
 }
 
@@ -280,17 +272,18 @@ export function flightRows(run: PlanRun): FlightRow[] {
   });
 }
 
-/** The box [minX, minY, maxX, maxY] of a polygon's or multipolygon's vertices (its bounding box: its edges are straight). */
+/**
+ * The bounding box [minX, minY, maxX, maxY] of a polygon or multipolygon: of its outer rings'
+ * vertices (edges are straight, holes lie inside).
+ */
 function vertexBox(g: Polygon | MultiPolygon): [number, number, number, number] {
   const box: [number, number, number, number] = [Infinity, Infinity, -Infinity, -Infinity];
   for (const poly of g.type === "Polygon" ? [g.coordinates] : g.coordinates) {
-    for (const ring of poly) {
-      for (const [x, y] of ring) {
-        if (x < box[0]) box[0] = x;
-        if (y < box[1]) box[1] = y;
-        if (x > box[2]) box[2] = x;
-        if (y > box[3]) box[3] = y;
-      }
+    for (const [x, y] of poly[0]) {
+      if (x < box[0]) box[0] = x;
+      if (y < box[1]) box[1] = y;
+      if (x > box[2]) box[2] = x;
+      if (y > box[3]) box[3] = y;
     }
   }
   return box;
