@@ -10,6 +10,7 @@
 import type { MultiPolygon, Polygon, Position } from "geojson";
 import { featureCollection, polygon as turfPolygon } from "@turf/helpers";
 import { intersect } from "@turf/intersect";
+import { ringBox } from "../geo/ringBox.js";
 import { InputError } from "../errors.js";
 import type { LocalFrame } from "../geo/frame.js";
 import { normaliseLonDeg } from "../geo/longitude.js";
@@ -291,16 +292,7 @@ function checkNoOverlap(polys: number[][][][], source: string): void {
   if (polys.length < 2 || polys.length > 200) return;
   const features = polys.map((rings) => turfPolygon(rings.map(closeRing)));
   // Outer-ring boxes first: the clipping is costly on big outlines and most pairs lie apart.
-  const boxes = polys.map((rings) => {
-    const b = [Infinity, Infinity, -Infinity, -Infinity];
-    for (const [x, y] of rings[0]) {
-      if (x < b[0]) b[0] = x;
-      if (y < b[1]) b[1] = y;
-      if (x > b[2]) b[2] = x;
-      if (y > b[3]) b[3] = y;
-    }
-    return b;
-  });
+  const boxes = polys.map((rings) => ringBox(rings[0]));
   for (let i = 0; i < features.length; i++) {
     for (let j = i + 1; j < features.length; j++) {
       const [a, b] = [boxes[i], boxes[j]];

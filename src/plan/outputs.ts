@@ -24,6 +24,7 @@ import { REPORT_GSD_BINS, gsdBinEdges, histogram, histogramOfTally } from "../re
 import type { LocalFrame } from "../geo/frame.js";
 import type { DemGrid } from "../dem/grid.js";
 import type { MultiPolygon, Polygon } from "geojson";
+import { ringBox } from "../geo/ringBox.js";
 import { undulationFor, type PlanRun } from "./plan.js";
 import { planSummary, type PlanSummary } from "./summary.js";
 
@@ -277,14 +278,5 @@ export function flightRows(run: PlanRun): FlightRow[] {
  * vertices (edges are straight, holes lie inside).
  */
 function vertexBox(g: Polygon | MultiPolygon): [number, number, number, number] {
-  const box: [number, number, number, number] = [Infinity, Infinity, -Infinity, -Infinity];
-  for (const poly of g.type === "Polygon" ? [g.coordinates] : g.coordinates) {
-    for (const [x, y] of poly[0]) {
-      if (x < box[0]) box[0] = x;
-      if (y < box[1]) box[1] = y;
-      if (x > box[2]) box[2] = x;
-      if (y > box[3]) box[3] = y;
-    }
-  }
-  return box;
+  return ringBox((g.type === "Polygon" ? [g.coordinates] : g.coordinates).flatMap((poly) => poly[0]));
 }
