@@ -1,6 +1,7 @@
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
+import { workerResourceLimits } from "./workerHeap.js";
 
 /**
  * Work started on a worker thread now and awaited later, so one core does it while this
@@ -146,7 +147,7 @@ function align8(n: number): number {
 /** The worker and its handle; undefined when the compiled worker module is missing. */
 function started<T>(workerUrl: URL, data: unknown): BackgroundWithInput<T> | undefined {
   if (!existsSync(fileURLToPath(workerUrl))) return undefined;
-  const w = new Worker(workerUrl, { workerData: data });
+  const w = new Worker(workerUrl, { workerData: data, resourceLimits: workerResourceLimits });
   w.unref();
   const made = new Promise<T | undefined>((resolve) => {
     w.once("message", (m: T) => {

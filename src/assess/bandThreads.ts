@@ -2,6 +2,7 @@ import { existsSync } from "node:fs";
 import { availableParallelism } from "node:os";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
+import { workerResourceLimits } from "../workerHeap.js";
 
 /**
  * Bands of grid rows shared between threads: the per-cell passes of the
@@ -76,7 +77,7 @@ export function bandPool(): BandPool {
 
 /** A band worker (coverageWorker.ts), waiting for jobs. */
 function bandWorker(): Worker {
-  const w = new Worker(workerUrl);
+  const w = new Worker(workerUrl, { resourceLimits: workerResourceLimits });
   // runBands waits on the flags, not on the event loop: a worker never keeps the process alive.
   w.unref();
   return w;
