@@ -72,15 +72,23 @@ export interface PlanToFolderOptions {
  * @example const summary = await planToFolder(resolvePlanOptions(data, {}, dir), { outDir: "out" });
  */
 export async function planToFolder(options: PlanOptions, o: PlanToFolderOptions): Promise<PlanSummary> {
+  const { files, summary } = await plannedOutputs(options, o);
+  await writeOutputSet(o.outDir, o.amendFiles ? o.amendFiles(files, summary) : files, { force: Boolean(o.force) });
+  return summary;
+}
+
+/**
+ * The plan and its output set, made in a function of its own so that the run is let go when
+ * it returns: its DEM window is not held while the files are written (plan/outputs.ts).
+ */
+async function plannedOutputs(options: PlanOptions, o: PlanToFolderOptions): Promise<ReturnType<typeof planOutputs>> {
   const run = await planMission(options, { ...(o.onStage ? { onStage: o.onStage } : {}), ...(o.threads !== undefined ? { threads: o.threads } : {}), now: () => performance.now() });
   o.onStage?.("write");
-  const { files, summary } = planOutputs(run, {
+  return planOutputs(run, {
     ...(o.planFile ? { planFile: o.planFile } : {}),
     toolVersion: packageVersion(),
     generatedAt: new Date().toISOString(),
   });
-  await writeOutputSet(o.outDir, o.amendFiles ? o.amendFiles(files, summary) : files, { force: Boolean(o.force) });
-  return summary;
 }
 
 /**

@@ -7,18 +7,20 @@ import path from "node:path";
 import type { OutputFile } from "../export/atomicDir.js";
 import { waypointsCsv } from "../export/waypointsCsv.js";
 import { flightsCsv, type FlightRow } from "../export/flightsCsv.js";
-import { heightReferences } from "../export/rows.js";
+import { heightReferences, type WaypointRow } from "../export/rows.js";
 import { farthestWaypointM } from "../route/flights.js";
 import { exposuresFromLegs, type AssessedLeg } from "../assess/exposures.js";
 import { planGeoJson } from "../export/geojson.js";
 import { planKml } from "../export/kml.js";
 import { planGpx } from "../export/gpx.js";
-import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, siteWindow, type AssessmentTiffs } from "../export/geotiffRasters.js";
+import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, siteWindow, type AssessmentTiffs, type RasterCrs, type RasterWindow } from "../export/geotiffRasters.js";
 import { SPLIT_MIN_CELLS, splitAllowed } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
 import { compactReportInput, serializeReportInput } from "../report/serialize.js";
 import { REPORT_MAP_PX } from "../report/downsample.js";
 import { reportHtmlInBackground } from "../report/background.js";
+import type { DemLayers } from "../report/demLayers.js";
+import type { AssessmentRasters } from "../assess/types.js";
 import type { ReportInput } from "../report/model.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram, histogramOfTally } from "../report/histogram.js";
 import type { LocalFrame } from "../geo/frame.js";
@@ -42,19 +44,42 @@ export const OUTPUT_NAMES = [
   "report.html",
 ] as const;
 
+type OutputMeta = { planFile?: string; toolVersion?: string; generatedAt?: string };
+
 /**
  * Builds every output of a run (rasters lazily, so they are encoded one at a time).
+ *
+ * The files' makers keep only what they write (the waypoints, the flights, the assessment's
+ * rasters, the report's input once reduced), not the run: a caller that lets go of the run
+ * once this returns (as planToFolder does) lets the DEM window's cells go with it while the
+ * files are written, the run's memory peak (99 MB at 4 km2). The report's input is made now
+ * and reduced as soon as the report's maps are in (report/serialize.ts compactReportInput).
  * @example await writeOutputSet(out, planOutputs(run).files)
  */
-export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion?: string; generatedAt?: string } = {}): { files: OutputFile[]; summary: PlanSummary } {
+export function planOutputs(run: PlanRun, meta: OutputMeta = {}): { files: OutputFile[]; summary: PlanSummary } {
   const summary = planSummary(run);
-  const flights = run.flights.flights.map((f) => f.legs);
+  const report = reducedReport(reportInput(run, summary, meta), run.reportMaps);
+  return { files: outputFiles(writtenParts(run), summary, report), summary };
+}
+
+/** What the files other than the report's are made from: a few fields of the run, not the run itself. */
+interface WrittenParts {
+  rows: WaypointRow[];
+  flights: FlightRow[];
+  exportInput: PlanExportInput;
+  rasters: AssessmentRasters;
+  crs: RasterCrs;
+  window: RasterWindow | undefined;
+  threads: number | undefined;
+}
+
+function writtenParts(run: PlanRun): WrittenParts {
   const heights = { datum: run.verticalDatum, undulationM: undulationFor(run.verticalDatum), takeoffGroundM: run.takeoff.groundM };
   const rows = run.rows;
   const exportInput: PlanExportInput = {
     name: run.site.name,
     site: run.site,
-    flights,
+    flights: run.flights.flights.map((f) => f.legs),
     rows,
     toWgs84: run.frame.toWgs84,
     heights,
@@ -73,6 +98,27 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // at 4 km2 gsd.tif 126 -> 89 MB. The box is taken on the local grid, whose cells are the
   // native grid's when the rasters are written on that.
   const window = siteWindow(run.assessment.rasters, vertexBox(run.site.local));
+  return { rows, flights: flightRows(run), exportInput, rasters, crs, window, threads: run.threads };
+}
+
+/** The report's input reduced (and the DEM's layers, when made beforehand), once the report's maps are in. */
+type ReducedReport = Promise<{ input: ReportInput; layers: DemLayers | undefined }>;
+
+/**
+ * Starts reducing `input` (its DEM and rasters to the report's maps): the full-resolution DEM
+ * it holds is let go once that is done. Never rejects before it is awaited.
+ */
+function reducedReport(input: ReportInput, maps: PlanRun["reportMaps"]): ReducedReport {
+  const made = (async () => {
+    const m = await maps?.();
+    return { input: compactReportInput(input, REPORT_MAP_PX, m), layers: m?.layers };
+  })();
+  made.catch(() => undefined);
+  return made;
+}
+
+function outputFiles(parts: WrittenParts, summary: PlanSummary, report: ReducedReport): OutputFile[] {
+  const { rows, rasters, crs, window } = parts;
   // gsd.tif is streamed to disk chunk by chunk (the uncompressed file is never whole in
   // memory). On large grids (threads allowed) it is made and written by a worker thread of its
   // own, started before the other files (writeOutputSet's background files), while the rest
@@ -83,27 +129,28 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   // beside gsd.tif's and the page's took the same time and more memory at 4 km2, and on the
   // demo the page's worker gained more from the core it left free (below).
   const cells = rasters.width * rasters.height;
-  const gsdInBackground = splitAllowed(cells, run.threads);
-  // Both report files come from one compacted input, made when first asked for (after
-  // gsd.tif's worker has started). The page is rendered in a worker thread, so it is made on
-  // the other core while the rasters and report-data.json are written here: on large grids
-  // started by the first small raster, after gsd.tif when that is made here (the page's
-  // worker holds ~85 MB at 4 km2: its copy of the input and the page's strings); on smaller
-  // grids as soon as its input is ready (the demo, 34 interleaved pairs: ~0.06 s sooner done).
-  let compact: Promise<ReportInput> | undefined;
-  const compactReport = () => (compact ??= (async () => compactReportInput(reportInput(run, summary, meta), REPORT_MAP_PX, await run.reportMaps?.()))());
+  const gsdInBackground = splitAllowed(cells, parts.threads);
+  // Both report files come from one reduced input. The page is rendered in a worker thread,
+  // so it is made on the other core while the rasters and report-data.json are written here:
+  // on large grids started by the first small raster, after gsd.tif when that is made here
+  // (the page's worker holds ~85 MB at 4 km2: its copy of the input and the page's strings);
+  // on smaller grids as soon as its input is ready (the demo, 34 interleaved pairs: ~0.06 s
+  // sooner done).
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
-  const reportPage = () => (page ??= (async () => reportHtmlInBackground(await compactReport(), (await run.reportMaps?.())?.layers))());
+  const reportPage = () => (page ??= (async () => {
+    const { input, layers } = await report;
+    return reportHtmlInBackground(input, layers);
+  })());
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     if (name !== "gsd.tif") await reportPage();
     return assessmentGeoTiffChunks(rasters, crs, name, window);
   };
   const files: OutputFile[] = [
     { name: "waypoints.csv", data: waypointsCsv(rows) },
-    { name: "flights.csv", data: () => flightsCsv(flightRows(run)) },
-    { name: "plan.geojson", data: () => JSON.stringify(planGeoJson(exportInput)) + "\n" },
-    { name: "plan.kml", data: () => planKml(exportInput) },
-    { name: "plan.gpx", data: () => planGpx(exportInput) },
+    { name: "flights.csv", data: () => flightsCsv(parts.flights) },
+    { name: "plan.geojson", data: () => JSON.stringify(planGeoJson(parts.exportInput)) + "\n" },
+    { name: "plan.kml", data: () => planKml(parts.exportInput) },
+    { name: "plan.gpx", data: () => planGpx(parts.exportInput) },
     {
       name: "gsd.tif",
       data: tiff("gsd.tif"),
@@ -115,7 +162,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
     {
       name: "report-data.json",
       data: async () => {
-        const input = await compactReport();
+        const { input } = await report;
         // The page renders on its worker meanwhile, if no raster started it (its failure surfaces from report.html).
         reportPage().catch(() => undefined);
         return serializeReportInput(input);
@@ -125,7 +172,7 @@ export function planOutputs(run: PlanRun, meta: { planFile?: string; toolVersion
   ];
   // On smaller grids the page starts now, once its input is ready (its failure surfaces from report.html).
   if (cells < SPLIT_MIN_CELLS) reportPage().catch(() => undefined);
-  return { files, summary };
+  return files;
 }
 
 /**
