@@ -1,6 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
 import type { Camera } from "../camera/types.js";
-import type { Exposure } from "./types.js";
+import type { Exposure, StripRaster } from "./types.js";
 import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBands, type NadirBy, type SeenByBand, type SweepInput } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable, type BandPool } from "./bandThreads.js";
 
@@ -29,8 +29,8 @@ export interface Coverage {
   gsdCm: Float32Array;
   /** Number of photos whose footprint covers the cell centre. */
   images: Uint16Array;
-  /** Strip number of the most nadir photo, 0 where none. */
-  nadirStrip: Uint16Array;
+  /** Strip number of the most nadir photo, 0 where none (one byte a cell when every strip number is below 256). */
+  nadirStrip: StripRaster;
   /** Effect flags (coarse, fine, too few images, no data; 0 outside the site), when `effects` was given. */
   flags?: Uint16Array;
   /** Seen site cells per band of rows and nadir strip, counted with the effects (see SeenByBand). */
@@ -106,7 +106,7 @@ export function computeCoverage(
     inSite: shareable(inSite, threads),
     images: new Uint16Array(buffer(2 * n)),
     gsdCm: new Float32Array(buffer(4 * n)),
-    nadirStrip: new Uint16Array(buffer(2 * n)),
+    nadirStrip: strips <= 256 ? new Uint8Array(buffer(n)) : new Uint16Array(buffer(2 * n)),
     ...(opts.effects
       ? {
           flags: new Uint16Array(buffer(2 * n)),

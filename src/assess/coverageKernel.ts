@@ -1,3 +1,4 @@
+import type { StripRaster } from "./types.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import { BAND_SLACK, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "./flags.js";
 import { footprintRows, type FootprintRows } from "./footprintRowsWasm.js";
@@ -22,7 +23,7 @@ export interface SweepInput {
   /** Outputs, per cell: photos covering it, GSD (cm/px) and strip of its most nadir photo (0 and NaN and 0 where none). */
   images: Uint16Array;
   gsdCm: Float32Array;
-  nadirStrip: Uint16Array;
+  nadirStrip: StripRaster;
   /** Effect flags (coarse, fine, too few images, no data), written band by band when given. */
   flags?: Uint16Array;
   /**
@@ -353,7 +354,7 @@ function sweepRow(
   images: Uint16Array,
   best: Float32Array,
   gsdCm: Float32Array,
-  nadirStrip: Uint16Array,
+  nadirStrip: StripRaster,
   i0: number,
   i1: number,
   off: number,

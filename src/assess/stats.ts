@@ -1,4 +1,4 @@
-import type { AssessmentStats, GsdStats } from "./types.js";
+import type { AssessmentStats, GsdStats, StripRaster } from "./types.js";
 import type { SeenByBand } from "./coverageKernel.js";
 import { bandThreads, runBands, shareable, type BandPool } from "./bandThreads.js";
 import { splitAllowed } from "../background.js";
@@ -25,7 +25,7 @@ export interface StatsInput {
   /** DEM data mask (DemGrid.valid). */
   valid: Uint8Array;
   /** Strip of the most nadir photo per cell, 0 where none. */
-  nadirStrip: Uint16Array;
+  nadirStrip: StripRaster;
   cellAreaM2: number;
   /** Highest strip number that can occur in nadirStrip (saves a pass over the grid when known). */
   maxStrip?: number;

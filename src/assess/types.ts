@@ -13,6 +13,12 @@ export interface Exposure {
   strip: number;
 }
 
+/**
+ * Strip numbers per cell: one byte a cell when every strip number is below 256 (a site of
+ * up to 255 strips, 20 MB less at 4 km2 while the assessment runs), else two.
+ */
+export type StripRaster = Uint8Array | Uint16Array;
+
 /** Rasters on the (metric, working) DEM window's grid, row-major. */
 export interface AssessmentRasters {
   width: number;
@@ -27,7 +33,7 @@ export interface AssessmentRasters {
   /** 1 for cells whose centre lies inside the site. */
   inSite: Uint8Array;
   /** Strip number of the most nadir exposure seeing the cell; 0 where none (kept only with the assessment option keepNadirStrip). */
-  nadirStrip?: Uint16Array;
+  nadirStrip?: StripRaster;
 }
 
 export interface GsdStats {

@@ -195,3 +195,41 @@ describe("most nadir photo", () => {
     }
   });
 });
+
+describe("nadir strip raster width", () => {
+  // One byte a cell while every strip number is below 256, two beyond; the same strips
+  // either way. A strip number is only a label: the same photos numbered 300 up give the
+  // same GSD and counts, and each cell's strip moves by the same 299.
+  const grid = makeGrid({ width: 300, height: 260, x0: 0, y0: 130, cellM: 0.5, heights: (x, y) => H0 + 8 * Math.sin(x / 17) * Math.cos(y / 23) });
+  const inSite = new Uint8Array(grid.width * grid.height).fill(1);
+  const photos = (first: number): Exposure[] => {
+    const ex: Exposure[] = [];
+    for (let j = 0; j < 4; j++) for (let k = 0; k < 7; k++) ex.push({ x: 20 + j * 35, y: -5 + k * 22, altitudeAmslM: H0 + AGL - 10 * (j % 2), ux: 0, uy: 1, strip: first + j });
+    return ex;
+  };
+  it("is a Uint8Array up to strip 255 and a Uint16Array beyond, with the same strips", () => {
+    for (const rowsIn of ["js", "wasm"] as const) {
+      const low = computeCoverage(grid, inSite, photos(1), camera, { threads: 1, nadirBy: "distance", rowsIn });
+      const edge = computeCoverage(grid, inSite, photos(252), camera, { threads: 1, nadirBy: "distance", rowsIn });
+      const high = computeCoverage(grid, inSite, photos(300), camera, { threads: 1, nadirBy: "distance", rowsIn });
+      expect(low.nadirStrip).toBeInstanceOf(Uint8Array);
+      expect(edge.nadirStrip).toBeInstanceOf(Uint8Array);
+      expect(high.nadirStrip).toBeInstanceOf(Uint16Array);
+      expect(Buffer.from(high.gsdCm.buffer).equals(Buffer.from(low.gsdCm.buffer))).toBe(true);
+      expect(Buffer.from(high.images.buffer).equals(Buffer.from(low.images.buffer))).toBe(true);
+      let seen = 0;
+      const strips = new Set<number>();
+      for (let i = 0; i < inSite.length; i++) {
+        const s = low.nadirStrip[i];
+        expect(edge.nadirStrip[i]).toBe(s === 0 ? 0 : s + 251);
+        expect(high.nadirStrip[i]).toBe(s === 0 ? 0 : s + 299);
+        if (s) {
+          seen++;
+          strips.add(s);
+        }
+      }
+      expect(seen).toBeGreaterThan(10_000);
+      expect([...strips].sort()).toEqual([1, 2, 3, 4]);
+    }
+  });
+});
