@@ -174,6 +174,11 @@ async function child(planFile, outDir) {
     const { files } = planOutputs(run, { generatedAt: new Date(0).toISOString() });
     return { figures, timings: run.timings, maxRssAfterPlanBytes, prepS: (performance.now() - tOut) / 1000, files, ownS, ownCpuS };
   })();
+  // As `gsdplan plan` does (cli/planCommand.ts): the run, let go, is collected before the
+  // files are written (counted in the export stage).
+  const tGc = performance.now();
+  (await load("cli/fullGc.js")).collectGarbage();
+  const gcS = (performance.now() - tGc) / 1000;
   const fileS = {};
   const fileCpuS = {};
   const timed = files.map((f) => ({
@@ -195,7 +200,7 @@ async function child(planFile, outDir) {
   const makeS = Object.values(fileS).reduce((a, b) => a + b, 0);
   const reportS = Object.entries(fileS).filter(([n]) => REPORT_FILES.has(n)).reduce((a, [, v]) => a + v, 0);
   // File writes and renames count as export; the report model is built in planOutputs (prep).
-  const exportS = prepS + (writeAllS - makeS) + (makeS - reportS);
+  const exportS = prepS + gcS + (writeAllS - makeS) + (makeS - reportS);
   const tEnd = performance.now();
   const reportCpuS = Object.entries(fileCpuS).filter(([n]) => REPORT_FILES.has(n)).reduce((a, [, v]) => a + v, 0);
   stagesCpuS.export = cpuNow() - cpuMark - reportCpuS;

@@ -9,6 +9,7 @@ import type { PlanSummary } from "../plan/summary.js";
 import { InputError } from "../errors.js";
 import { constants, existsSync } from "node:fs";
 import { summaryText } from "./summaryText.js";
+import { collectGarbage } from "./fullGc.js";
 import { packageVersion } from "../packageRoot.js";
 import { stageProgress } from "./progress.js";
 
@@ -41,6 +42,7 @@ export async function runPlanCommand(
     force: Boolean(opts.force),
     ...(file ? { planFile: file.file } : {}),
     onStage: (s) => progress.stage(s),
+    afterRun: collectGarbage,
   });
   progress.done();
   if (opts.json) process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
@@ -64,6 +66,12 @@ export interface PlanToFolderOptions {
   amendFiles?: (files: OutputFile[], summary: PlanSummary) => OutputFile[];
   /** Threads for the assessment's coverage passes (see PlanHooks.threads). */
   threads?: number;
+  /**
+   * Called once the run is let go (the output set built), before the files are written:
+   * `gsdplan plan` collects garbage there (fullGc.ts), so the DEM window is not held
+   * through the writing.
+   */
+  afterRun?: () => void;
 }
 
 /**
@@ -73,6 +81,7 @@ export interface PlanToFolderOptions {
  */
 export async function planToFolder(options: PlanOptions, o: PlanToFolderOptions): Promise<PlanSummary> {
   const { files, summary } = await plannedOutputs(options, o);
+  o.afterRun?.();
   await writeOutputSet(o.outDir, o.amendFiles ? o.amendFiles(files, summary) : files, { force: Boolean(o.force) });
   return summary;
 }
