@@ -2,6 +2,7 @@ import { closeSync, openSync, readSync } from "node:fs";
 import { inflateSync } from "node:zlib";
 import { parentPort, workerData } from "node:worker_threads";
 import { blockCellsInWindow, placeFloatPredicted } from "./floatBlocks.js";
+import { blockChunk } from "./inflateChunk.js";
 import type { BlockJob } from "./blocksInBackground.js";
 
 /**
@@ -20,7 +21,7 @@ try {
   for (const b of job.blocks) {
     const compressed = Buffer.allocUnsafe(b.length);
     if (readSync(fd, compressed, 0, b.length, b.offset) !== b.length) throw new Error("short read");
-    const bytes = inflateSync(compressed);
+    const bytes = inflateSync(compressed, blockChunk(b.need));
     if (bytes.byteLength < b.need) throw new Error("short block");
     const { tw, th } = job;
     const [colA, colB, rowA, rowB] = blockCellsInWindow(b.tx, b.ty, tw, th, job.win, job.sourceHeight);

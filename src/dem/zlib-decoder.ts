@@ -9,6 +9,7 @@ import { promisify } from "node:util";
 import { BaseDecoder, addDecoder } from "geotiff";
 import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
 import { floatPredictorRow32 } from "./floatBlocks.js";
+import { blockChunk } from "./inflateChunk.js";
 
 interface DecoderParameters {
   tileWidth: number;
@@ -74,19 +75,33 @@ function undoFloatPredictor32(block: ArrayBuffer, rows: number, rowBytes: number
  */
 class NodeZlibDecoder extends BaseDecoder {
   override decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
-    return ownBuffer(inflateSync(new Uint8Array(buffer)));
+    return ownBuffer(inflateSync(new Uint8Array(buffer), inflateOptions(this.parameters as unknown as DecoderParameters)));
   }
   /**
    * Inflates on libuv's thread pool (zlib's asynchronous form), so the blocks in flight
    * inflate on the other cores while this thread undoes predictors and places blocks.
    */
   override async decode(buffer: ArrayBufferLike): Promise<ArrayBufferLike> {
-    const out = ownBuffer(await inflateAsync(new Uint8Array(buffer)));
+    const out = ownBuffer(await inflateAsync(new Uint8Array(buffer), inflateOptions(this.parameters as unknown as DecoderParameters)));
     return undoPredictor(out as ArrayBuffer, this.parameters as unknown as DecoderParameters);
   }
 }
 
 const inflateAsync = promisify(inflate);
+
+/**
+ * zlib's output chunk as large as the block: the inflated bytes come in one buffer, instead
+ * of 16 KB chunks (zlib's default) joined into another. A DEM window is thousands of blocks,
+ * and those chunks, freed in between longer-lived allocations, stayed in the allocator's
+ * arenas: at 4 km2 the process held 10-30 MB less after the load with block-sized chunks.
+ */
+export function inflateOptions(p: Pick<DecoderParameters, "tileWidth" | "tileHeight" | "bitsPerSample" | "planarConfiguration">): { chunkSize?: number } {
+  const bits = typeof p.bitsPerSample === "number" ? [p.bitsPerSample] : Array.from(p.bitsPerSample ?? []);
+  const samples = p.planarConfiguration === 2 ? 1 : bits.length;
+  const bytes = p.tileWidth * p.tileHeight * samples * ((bits[0] ?? 0) / 8);
+  return blockChunk(bytes);
+}
+
 
 /** The bytes of a zlib result as an ArrayBuffer of their own (Node may hand back a view into a larger one). */
 function ownBuffer(out: Buffer): ArrayBufferLike {
