@@ -254,7 +254,7 @@ function planFigures(run) {
       width: g.width,
       height: g.height,
       cells,
-      // Float32 heights, the figure the DEM-window benchmark uses (the valid mask adds 1 byte/cell).
+      // Float32 heights, the figure the DEM-window benchmark uses (the window holds nothing else a cell).
       bytes: cells * 4,
       west: g.transform.x0,
       north: g.transform.y0,

@@ -129,7 +129,7 @@ function assessWithPool(
   opts.onRasters?.(rasters);
   // The coverage pass counted the seen cells for strips 0 .. the highest photo's strip.
   const maxStrip = seenByBand.strips - 1;
-  const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, bandPool, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}),
+  const stats = assessmentStats({ gsdCm, images, flags, inSite, ground: grid.heights, nadirStrip, cellAreaM2, maxStrip, seenByBand, threads: opts.threads, bandPool, gsdAtLeastCm: opts.countGsdAtLeastCm, ...(opts.gsdTally ? { gsdTally: opts.gsdTally } : {}),
     // Each strip's first radix pass in the statistics' pass, over an eighth of the band's low
     // edge to eight times its high edge (three octaves either side, ~800 bins): a strip whose
     // wanted ranks (its extremes among them) lie beyond has its quantiles made by more passes.

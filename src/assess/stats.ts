@@ -22,8 +22,8 @@ export interface StatsInput {
   images: Uint16Array;
   flags: Uint16Array;
   inSite: Uint8Array;
-  /** DEM data mask (DemGrid.valid). */
-  valid: Uint8Array;
+  /** The DEM's heights (DemGrid.heights): a cell has data where its height is a number. */
+  ground: Float32Array;
   /** Strip of the most nadir photo per cell, 0 where none. */
   nadirStrip: StripRaster;
   cellAreaM2: number;
@@ -63,7 +63,7 @@ const MAX_STRIP_BINS = 1 << 24;
  * The statistics' pass over the cells, as plain typed arrays (in shared memory when several
  * threads take its bands): the cells' rasters and each thread's tallies at its slot.
  */
-export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "flags" | "inSite" | "valid" | "nadirStrip"> {
+export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "flags" | "inSite" | "ground" | "nadirStrip"> {
   strips: number;
   /** Cells per band (the last band may hold fewer). */
   bandCells: number;
@@ -107,7 +107,7 @@ export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: numbe
  * strip; the first radix pass of the site's GSD quantiles (quantiles.ts).
  */
 function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number): void {
-  const { gsdCm, images, flags, inSite, valid, nadirStrip, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
+  const { gsdCm, images, flags, inSite, ground, nadirStrip, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
   const S = job.strips;
   const fh = slot * S * FLAG_VALUES;
   const ih = slot * 65536;
@@ -126,7 +126,8 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const sh = slot * S * span;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) continue;
-    if (valid[i] === 1) imageHist[ih + images[i]]++;
+    const z = ground[i];
+    if (z === z) imageHist[ih + images[i]]++;
     const s = nadirStrip[i];
     const f = flags[i];
     flagHist[fh + s * FLAG_VALUES + f]++;
@@ -190,11 +191,11 @@ function pct(part: number, whole: number): number {
 
 /**
  * @example
- * const stats = assessmentStats({ gsdCm, images, flags, inSite, valid: grid.valid, nadirStrip, cellAreaM2: 0.25 });
+ * const stats = assessmentStats({ gsdCm, images, flags, inSite, ground: grid.heights, nadirStrip, cellAreaM2: 0.25 });
  * stats.gsdCm.median; stats.flagged.byKind.coarse.areaM2;
  */
 export function assessmentStats(input: StatsInput): AssessmentStats {
-  const { gsdCm, images, flags, inSite, valid, nadirStrip, cellAreaM2 } = input;
+  const { gsdCm, images, flags, inSite, ground, nadirStrip, cellAreaM2 } = input;
   const n = inSite.length;
   let maxStrip = input.maxStrip ?? -1;
   if (maxStrip < 0) for (let i = 0; i < n; i++) if (inSite[i] === 1 && nadirStrip[i] > maxStrip) maxStrip = nadirStrip[i];
@@ -211,7 +212,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   const threads = banded && splitAllowed(n, input.threads) ? bandThreads(n, bands, input.threads) : 1;
   const job: StatsPassJob = {
     gsdCm: shareable(gsdCm, threads), images: shareable(images, threads), flags: shareable(flags, threads),
-    inSite: shareable(inSite, threads), valid: shareable(valid, threads), nadirStrip: shareable(nadirStrip, threads),
+    inSite: shareable(inSite, threads), ground: shareable(ground, threads), nadirStrip: shareable(nadirStrip, threads),
     strips: S, bandCells: banded ? banded.bandCells : n,
     flagHist: new Float64Array(buffer(threads, 8 * threads * S * FLAG_VALUES)),
     imageHist: new Float64Array(buffer(threads, 8 * threads * 65536)),

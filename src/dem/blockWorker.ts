@@ -25,7 +25,7 @@ try {
     if (bytes.byteLength < b.need) throw new Error("short block");
     const { tw, th } = job;
     const [colA, colB, rowA, rowB] = blockCellsInWindow(b.tx, b.ty, tw, th, job.win, job.sourceHeight);
-    placeFloatPredicted(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), tw, b.tx * tw, b.ty * th, colA, colB, rowA, rowB, job.wc0, job.wr0, job.outW, words, job.heights, job.valid, job.nd);
+    placeFloatPredicted(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), tw, b.tx * tw, b.ty * th, colA, colB, rowA, rowB, job.wc0, job.wr0, job.outW, words, job.heights, job.nd);
   }
 } catch {
   ok = false;

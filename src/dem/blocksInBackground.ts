@@ -15,7 +15,7 @@ export interface BlockRef {
   need: number;
 }
 
-/** What the worker needs: the file, its blocks, the window's placing, and the window's shared heights and mask. */
+/** What the worker needs: the file, its blocks, the window's placing, and the window's shared heights. */
 export interface BlockJob {
   path: string;
   blocks: BlockRef[];
@@ -27,18 +27,17 @@ export interface BlockJob {
   wr0: number;
   outW: number;
   heights: Float32Array;
-  valid: Uint8Array;
   nd: number;
 }
 
 const workerUrl = new URL("./blockWorker.js", import.meta.url);
 
 /**
- * Starts the worker on `job` (heights and mask in shared memory): result() is true when it
+ * Starts the worker on `job` (heights in shared memory): result() is true when it
  * placed every block, false or undefined when the caller must decode them itself.
  * @example const bg = blocksInBackground(job); ...; if (!(await bg.result())) for (const b of job.blocks) ...
  */
 export function blocksInBackground(job: BlockJob): Background<boolean> {
-  if (!(job.heights.buffer instanceof SharedArrayBuffer) || !(job.valid.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
+  if (!(job.heights.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;
   return inBackground<boolean>(workerUrl, job);
 }

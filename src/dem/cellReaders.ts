@@ -1,10 +1,9 @@
 import type { DemSource } from "./source.js";
 import type { CellWindow } from "./window.js";
 
-/** Heights in metres (NaN where nodata) and the valid mask of a window, row-major. */
+/** Heights in metres (NaN where nodata) of a window, row-major. */
 export interface CellBlock {
   heights: Float32Array;
-  valid: Uint8Array;
 }
 
 /** Reads a window of a source that is not one GeoTIFF (a mosaic). */

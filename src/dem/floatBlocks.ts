@@ -52,7 +52,7 @@ let threadRows: FloatRows | null | undefined;
  * A block of Float32 samples still carrying the floating-point predictor (one sample per
  * pixel, heights as stored), placed as copyBlock places the un-predicted block: each row's
  * byte sums undone and its samples in the window written straight into the heights (`words`
- * views their bytes), then nodata and non-finite cells made NaN. The same heights and mask.
+ * views their bytes), then nodata and non-finite cells made NaN. The same heights.
  * The rows are un-predicted in WebAssembly where it is built (`rowsIn` "wasm", the default;
  * `bytes` is left as it was; `kernelBytes` of rows at a time) or here (`rowsIn` "js"; the
  * rows' bytes are summed in place): the same results bit for bit.
@@ -60,7 +60,7 @@ let threadRows: FloatRows | null | undefined;
 export function placeFloatPredicted(
   bytes: Uint8Array, tw: number, bx0: number, by0: number,
   colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
-  words: Uint32Array, heights: Float32Array, valid: Uint8Array, nd: number, rowsIn: "wasm" | "js" = "wasm", kernelBytes = KERNEL_BYTES,
+  words: Uint32Array, heights: Float32Array, nd: number, rowsIn: "wasm" | "js" = "wasm", kernelBytes = KERNEL_BYTES,
 ): void {
   const rowBytes = 4 * tw;
   const n = colB - colA;
@@ -77,7 +77,7 @@ export function placeFloatPredicted(
         const dst = (row - wr0) * outW + (colA - wc0);
         const k = (row - r0) * n;
         words.set(got.subarray(k, k + n), dst);
-        markNodata(heights, valid, dst, dst + n, nd);
+        markNodata(heights, dst, dst + n, nd);
       }
     }
     return;
@@ -85,19 +85,14 @@ export function placeFloatPredicted(
   for (let row = rowA; row < rowB; row++) {
     const dst = (row - wr0) * outW + (colA - wc0);
     floatPredictorRow32(bytes, (row - by0) * rowBytes, rowBytes, 1, tw, colA - bx0, colB - bx0, words, dst);
-    markNodata(heights, valid, dst, dst + n, nd);
+    markNodata(heights, dst, dst + n, nd);
   }
 }
 
-/** Cells d0..d1-1 of the window: NaN and not valid where the height is nodata or not finite, valid elsewhere. */
-export function markNodata(heights: Float32Array, valid: Uint8Array, d0: number, d1: number, nd: number): void {
+/** Cells d0..d1-1 of the window: NaN where the height is nodata or not finite. */
+export function markNodata(heights: Float32Array, d0: number, d1: number, nd: number): void {
   for (let d = d0; d < d1; d++) {
     const h = heights[d];
-    if (h === nd || h - h !== 0) {
-      heights[d] = NaN;
-      valid[d] = 0;
-    } else {
-      valid[d] = 1;
-    }
+    if (h === nd || h - h !== 0) heights[d] = NaN;
   }
 }

@@ -163,7 +163,6 @@ export function verticalFacts(path: string, members: readonly DemSource[]): { un
 async function readMosaicCells(spec: MosaicSpec, mosaic: DemSource, win: CellWindow): Promise<CellBlock> {
   const w = win.col1 - win.col0, h = win.row1 - win.row0;
   const heights = new Float32Array(w * h).fill(NaN);
-  const valid = new Uint8Array(w * h);
   const meets = (a: MosaicMember["covers"], b: MosaicMember["covers"]) => a.col0 < b.col1 && a.col1 > b.col0 && a.row0 < b.row1 && a.row1 > b.row0;
   const touching = spec.members.filter((m) => meets(m.covers, win));
   // A member that shares no cell of the window with another is decoded straight into the
@@ -174,13 +173,13 @@ async function readMosaicCells(spec: MosaicSpec, mosaic: DemSource, win: CellWin
   for (let i = 0; i < touching.length; i += atOnce) {
     const group = touching.slice(i, i + atOnce);
     // Read together, written in order: the later member wins where they overlap.
-    const parts = await Promise.all(group.map((m, k) => readMember(m, mosaic, win, alone[i + k] ? { heights, valid } : null)));
-    for (const write of parts) write?.(heights, valid);
+    const parts = await Promise.all(group.map((m, k) => readMember(m, mosaic, win, alone[i + k] ? { heights } : null)));
+    for (const write of parts) write?.(heights);
   }
-  return { heights, valid };
+  return { heights };
 }
 
-type Writer = (heights: Float32Array, valid: Uint8Array) => void;
+type Writer = (heights: Float32Array) => void;
 
 /**
  * Reads what one member has under the window; returns how to write it (null: nothing, or
@@ -201,18 +200,17 @@ async function readMember(m: MosaicMember, mosaic: DemSource, win: CellWindow, o
     if (!(mw.col1 > mw.col0 && mw.row1 > mw.row0)) return null;
     if (out && !transparent.length && !cellReaderOf(src)) {
       const at = { stride: w, col: mw.col0 + place.dCol - win.col0, row: mw.row0 + place.dRow - win.row0 };
-      if (await decodeWindowDirect(src, demHandles(src).image, mw, out.heights, out.valid, at)) return null;
+      if (await decodeWindowDirect(src, demHandles(src).image, mw, out.heights, at)) return null;
     }
     const g = await readCells(src, mw);
-    return (heights, valid) => {
+    return (heights) => {
       for (let r = mw.row0; r < mw.row1; r++) {
         let s = (r - mw.row0) * g.width;
         let d = (r + place.dRow - win.row0) * w + (mw.col0 + place.dCol - win.col0);
         for (let c = mw.col0; c < mw.col1; c++, s++, d++) {
           const z = g.heights[s];
-          if (!g.valid[s] || (transparent.length && transparent.includes(z))) continue;
+          if (z !== z || (transparent.length && transparent.includes(z))) continue;
           heights[d] = z;
-          valid[d] = 1;
         }
       }
     };
@@ -248,8 +246,8 @@ async function resampleMember(place: Extract<Placement, { kind: "resample" }>, s
   const { col0: s0, col1: s1, row0: q0, row1: q1 } = place.src;
   const w = win.col1 - win.col0, h = win.row1 - win.row0;
   const lattice = new CentreLattice(mt, win.col0, win.row0, w, h, same ? null : mosaic.crs.proj4, same ? null : place.crs.proj4);
-  const gh = g.heights, gv = g.valid;
-  return (heights, valid) => {
+  const gh = g.heights;
+  return (heights) => {
     for (let r = win.row0; r < win.row1; r++) {
       for (let c = win.col0; c < win.col1; c++) {
         const [x, y] = lattice.at(c, r);
@@ -269,12 +267,13 @@ async function resampleMember(place: Extract<Placement, { kind: "resample" }>, s
         if (ci < mw.col0 || ci1 >= mw.col1 || ri < mw.row0 || ri1 >= mw.row1) continue;
         const k00 = (ri - mw.row0) * gw + (ci - mw.col0), k01 = (ri - mw.row0) * gw + (ci1 - mw.col0);
         const k10 = (ri1 - mw.row0) * gw + (ci - mw.col0), k11 = (ri1 - mw.row0) * gw + (ci1 - mw.col0);
-        if (!(gv[k00] && gv[k01] && gv[k10] && gv[k11])) continue;
+        // A neighbour without data (NaN) leaves the sum NaN: the cell is left to the members below.
+        const z00 = gh[k00], z01 = gh[k01], z10 = gh[k10], z11 = gh[k11];
+        if (z00 !== z00 || z01 !== z01 || z10 !== z10 || z11 !== z11) continue;
         if (transparent.length && (transparent.includes(gh[k00]) || transparent.includes(gh[k01]) || transparent.includes(gh[k10]) || transparent.includes(gh[k11]))) continue;
         const z = (1 - ay) * ((1 - ax) * gh[k00] + ax * gh[k01]) + ay * ((1 - ax) * gh[k10] + ax * gh[k11]);
         const d = (r - win.row0) * w + (c - win.col0);
         heights[d] = z;
-        valid[d] = 1;
       }
     }
   };

@@ -49,8 +49,7 @@ export function toMetricGrid(grid: DemGrid, targetProj4: string, opts: ToMetricO
   const lattice = new CentreLattice({ x0, y0, dx: cellM, dy: -cellM }, 0, 0, width, height, targetProj4, grid.crs.proj4);
 
   const heights = new Float32Array(width * height);
-  const valid = new Uint8Array(width * height);
-  const sw = grid.width, sh = grid.height, src = grid.heights, sv = grid.valid;
+  const sw = grid.width, sh = grid.height, src = grid.heights;
   for (let row = 0; row < height; row++) {
     for (let col = 0; col < width; col++) {
       const [sx, sy] = lattice.at(col, row);
@@ -74,12 +73,8 @@ export function toMetricGrid(grid: DemGrid, targetProj4: string, opts: ToMetricO
       const fx = sw > 1 ? c - ci : 0, fy = sh > 1 ? r - ri : 0;
       const ci1 = sw > 1 ? ci + 1 : ci, ri1 = sh > 1 ? ri + 1 : ri;
       const a = ri * sw + ci, b = ri * sw + ci1, d = ri1 * sw + ci, e = ri1 * sw + ci1;
-      if (!(sv[a] && sv[b] && sv[d] && sv[e])) {
-        heights[o] = NaN;
-        continue;
-      }
+      // A neighbour without data (NaN) makes the cell nodata (NaN) through the sum.
       heights[o] = (1 - fy) * ((1 - fx) * src[a] + fx * src[b]) + fy * ((1 - fx) * src[d] + fx * src[e]);
-      valid[o] = 1;
     }
   }
 
@@ -88,7 +83,6 @@ export function toMetricGrid(grid: DemGrid, targetProj4: string, opts: ToMetricO
     width,
     height,
     heights,
-    valid,
     transform: { x0, y0, dx: cellM, dy: -cellM },
     crs,
     cellSizeM: [cellM, cellM],

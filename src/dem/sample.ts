@@ -335,8 +335,6 @@ export function makeGrid(opts: {
     if (opts.heights.length !== width * height) throw new Error("makeGrid: heights length must be width * height");
     heights = opts.heights;
   }
-  const valid = new Uint8Array(width * height);
-  for (let i = 0; i < valid.length; i++) valid[i] = heights[i] === heights[i] ? 1 : 0;
   const crs: CrsInfo = opts.crsProj4
     ? { proj4: opts.crsProj4, epsg: opts.epsg ?? null, name: "custom", geographic: false, linearUnitM: 1 }
     : { ...DEFAULT_CRS, epsg: opts.epsg === undefined ? DEFAULT_CRS.epsg : opts.epsg };
@@ -344,7 +342,6 @@ export function makeGrid(opts: {
     width,
     height,
     heights,
-    valid,
     transform: { x0, y0, dx: cellM, dy: -cellM },
     crs,
     cellSizeM: [cellM, cellM],

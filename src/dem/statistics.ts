@@ -87,11 +87,11 @@ async function estimate(source: DemSource, maxSamples: number): Promise<DemStati
 
 async function accumulate(source: DemSource, win: CellWindow, acc: { min: number; max: number; sum: number; valid: number; cells: number }): Promise<void> {
   const g = await readCells(source, win);
-  const h = g.heights, v = g.valid;
+  const h = g.heights;
   let min = acc.min, max = acc.max, sum = 0, valid = 0;
   for (let i = 0; i < h.length; i++) {
-    if (!v[i]) continue;
     const x = h[i];
+    if (x !== x) continue;
     if (x < min) min = x;
     if (x > max) max = x;
     sum += x;

@@ -38,14 +38,13 @@ export interface OutputPlace {
  * window-sized grid, or at `place` in a larger one (a mosaic's). Returns false, having
  * written nothing, when the file's layout needs geotiff's general reader (big-endian,
  * mixed sample sizes, JPEG/LERC), so the caller can fall back to it.
- * @example if (!(await decodeWindowDirect(dem, image, win, heights, valid))) { ... }
+ * @example if (!(await decodeWindowDirect(dem, image, win, heights))) { ... }
  */
 export async function decodeWindowDirect(
   source: DemSource,
   image: GeoTIFFImage,
   win: CellWindow,
   heights: Float32Array,
-  valid: Uint8Array,
   place: OutputPlace = { stride: win.col1 - win.col0, col: 0, row: 0 },
   threads?: number,
 ): Promise<boolean> {
@@ -108,11 +107,11 @@ export async function decodeWindowDirect(
   const place1 = (tx: number, ty: number, data: ArrayBuffer) => {
     const [colA, colB, rowA, rowB] = blockCellsInWindow(tx, ty, tw, th, win, source.height);
     if (words && stillPredicted.has(data)) {
-      placeFloatPredicted(new Uint8Array(data), tw, tx * tw, ty * th, colA, colB, rowA, rowB, wc0, wr0, outW, words, heights, valid, nd);
+      placeFloatPredicted(new Uint8Array(data), tw, tx * tw, ty * th, colA, colB, rowA, rowB, wc0, wr0, outW, words, heights, nd);
       return;
     }
     const raw = rawView(source.sampleFormat, source.bitsPerSample, data);
-    copyBlock(raw, tw, tx * tw, ty * th, pixStride, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, valid, k, c, nd);
+    copyBlock(raw, tw, tx * tw, ty * th, pixStride, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, k, c, nd);
   };
 
   const client = remoteClient(source);
@@ -136,7 +135,7 @@ export async function decodeWindowDirect(
       if (length === 0) jobs.push([tx, ty]);
       else theirs.push({ offset: Number(await fd.loadValueIndexed(`${tag}Offsets`, index)), length, tx, ty, need: blockBytes(ty) });
     }
-    inWorker = blocksInBackground({ path: source.path, blocks: theirs, tw, th, win: { col0: win.col0, col1: win.col1, row0: win.row0, row1: win.row1 }, sourceHeight: source.height, wc0, wr0, outW, heights, valid, nd });
+    inWorker = blocksInBackground({ path: source.path, blocks: theirs, tw, th, win: { col0: win.col0, col1: win.col1, row0: win.row0, row1: win.row1 }, sourceHeight: source.height, wc0, wr0, outW, heights, nd });
     if (inWorker === NOT_IN_BACKGROUND) jobs.push(...theirs.map((b) => [b.tx, b.ty] as [number, number]));
   }
   const decodeHere = async (list: [number, number][]) => {
@@ -232,11 +231,11 @@ async function damagedBlock(source: DemSource, image: GeoTIFFImage, tx: number, 
 function copyBlock(
   raw: Raw, tw: number, bx0: number, by0: number, pixStride: number, sampleOff: number,
   colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
-  heights: Float32Array, valid: Uint8Array, k: number, c: number, nd: number,
+  heights: Float32Array, k: number, c: number, nd: number,
 ): void {
   const identity = k === 1 && c === 0;
   if (identity && pixStride === 1 && raw instanceof Float32Array) {
-    copyFloat32Rows(raw, tw, bx0, by0, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, valid, nd);
+    copyFloat32Rows(raw, tw, bx0, by0, sampleOff, colA, colB, rowA, rowB, wc0, wr0, outW, heights, nd);
     return;
   }
   for (let row = rowA; row < rowB; row++) {
@@ -248,30 +247,25 @@ function copyBlock(
       // Nodata: the declared value, and any height that is not a finite Float32 (NaN,
       // +-Inf, or a Float64 beyond Float32 range): never a ground height (see toMetres).
       const h = heights[dst];
-      if (r === nd || h - h !== 0) {
-        heights[dst] = NaN;
-        valid[dst] = 0;
-      } else {
-        valid[dst] = 1;
-      }
+      if (r === nd || h - h !== 0) heights[dst] = NaN;
     }
   }
 }
 
 /**
  * copyBlock for the usual DEM (Float32 samples, one band, heights as stored): each row
- * copied at once, then nodata and non-finite cells made NaN: the same heights and mask.
+ * copied at once, then nodata and non-finite cells made NaN: the same heights.
  */
 function copyFloat32Rows(
   raw: Float32Array, tw: number, bx0: number, by0: number, sampleOff: number,
   colA: number, colB: number, rowA: number, rowB: number, wc0: number, wr0: number, outW: number,
-  heights: Float32Array, valid: Uint8Array, nd: number,
+  heights: Float32Array, nd: number,
 ): void {
   const n = colB - colA;
   for (let row = rowA; row < rowB; row++) {
     const src = (row - by0) * tw + (colA - bx0) + sampleOff;
     const dst = (row - wr0) * outW + (colA - wc0);
     heights.set(raw.subarray(src, src + n), dst);
-    markNodata(heights, valid, dst, dst + n, nd);
+    markNodata(heights, dst, dst + n, nd);
   }
 }

@@ -90,16 +90,14 @@ export async function readCells(source: DemSource, win: CellWindow, threads?: nu
   const width = win.col1 - win.col0;
   const height = win.row1 - win.row0;
   let heights: Float32Array;
-  let valid: Uint8Array;
   const custom = cellReaderOf(source);
   if (custom) {
-    ({ heights, valid } = await custom(win));
+    ({ heights } = await custom(win));
   } else {
     const { image } = demHandles(source);
     // Shared memory: the assessment's and the comparison's worker threads read them in place (no copy).
     heights = new Float32Array(new SharedArrayBuffer(4 * width * height));
-    valid = new Uint8Array(new SharedArrayBuffer(width * height));
-    if (!(await decodeWindowDirect(source, image, win, heights, valid, undefined, threads))) {
+    if (!(await decodeWindowDirect(source, image, win, heights, undefined, threads))) {
       // General path for layouts the direct decoder does not take (big-endian, JPEG, LERC...).
       let rasters: ArrayLike<number>[];
       try {
@@ -111,7 +109,7 @@ export async function readCells(source: DemSource, win: CellWindow, threads?: nu
       } catch (e) {
         throw remoteFailure(source) ?? e;
       }
-      ({ heights, valid } = toMetres(rasters[0], source));
+      heights = toMetres(rasters[0], source);
     }
   }
 
@@ -122,7 +120,6 @@ export async function readCells(source: DemSource, win: CellWindow, threads?: nu
     width,
     height,
     heights,
-    valid,
     transform,
     crs: source.crs,
     cellSizeM: cellSizeMetres(dx, dy, source.crs.geographic, source.crs.linearUnitM, centreLat),
@@ -133,14 +130,13 @@ export async function readCells(source: DemSource, win: CellWindow, threads?: nu
 
 /**
  * Raw samples to heights in metres: (raw * scale + offset) * metres per vertical unit,
- * NaN and valid = 0 where raw equals the nodata value or the height is not finite
+ * NaN where raw equals the nodata value or the height is not finite
  * (NaN, +-Inf): both are nodata, never ground. A Float32 input is
  * converted in place (no second window-sized array).
  */
-export function toMetres(raw: ArrayLike<number>, source: Pick<DemSource, "nodata" | "scale" | "offset" | "verticalUnitM" | "sampleFormat" | "bitsPerSample">): { heights: Float32Array; valid: Uint8Array } {
+export function toMetres(raw: ArrayLike<number>, source: Pick<DemSource, "nodata" | "scale" | "offset" | "verticalUnitM" | "sampleFormat" | "bitsPerSample">): Float32Array {
   const n = raw.length;
   const heights = raw instanceof Float32Array ? raw : new Float32Array(n);
-  const valid = new Uint8Array(n);
   const k = source.scale * source.verticalUnitM;
   const c = source.offset * source.verticalUnitM;
   // Compare in the stored precision: a Float32 nodata of -3.4e38 is not the double -3.4e38.
@@ -154,9 +150,8 @@ export function toMetres(raw: ArrayLike<number>, source: Pick<DemSource, "nodata
     // of a broken conversion; passing it on would break every bound computed from it.
     const h = heights[i];
     if (r === nd || h - h !== 0) heights[i] = NaN;
-    else valid[i] = 1;
   }
-  return { heights, valid };
+  return heights;
 }
 
 function fmtBox(b: Bounds): string {

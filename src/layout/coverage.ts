@@ -60,7 +60,7 @@ export function siteCoverage(site: Site, grid: DemGrid): SiteCoverage {
       for (let x = first; x < crossings[k + 1]; x += step) {
         inside++;
         const col = Math.floor((x - x0) / dx);
-        if (col < 0 || row < 0 || col >= grid.width || row >= grid.height || grid.valid[row * grid.width + col] !== 1) missing++;
+        if (col < 0 || row < 0 || col >= grid.width || row >= grid.height || !(grid.heights[row * grid.width + col] === grid.heights[row * grid.width + col])) missing++;
       }
     }
   }

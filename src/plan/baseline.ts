@@ -108,7 +108,7 @@ export function constantAltitudeBaseline(
  * worker thread can make them (baselineBackground.ts) while the plan is still assessed.
  */
 export interface BaselineJob {
-  grid: Pick<DemGrid, "width" | "height" | "heights" | "valid" | "transform" | "cellSizeM">;
+  grid: Pick<DemGrid, "width" | "height" | "heights" | "transform" | "cellSizeM">;
   inSite: Uint8Array;
   strips: LatticeStrip[];
   ifov: number;
@@ -165,9 +165,9 @@ export function baselineJob(
     if (lattice) strips.push({ from: l.from, lattice });
   }
   const { alongPx, acrossPx } = footprintPixels(camera);
-  const { width, height, heights, valid, transform, cellSizeM } = grid;
+  const { width, height, heights, transform, cellSizeM } = grid;
   return {
-    grid: { width, height, heights, valid, transform, cellSizeM },
+    grid: { width, height, heights, transform, cellSizeM },
     inSite, strips,
     ifov: camera.ifov, kAlong: (camera.ifov * alongPx) / 2, kAcross: (camera.ifov * acrossPx) / 2,
     lowGsdM: requirement.lowGsdM, highGsdM: requirement.highGsdM,
@@ -284,7 +284,7 @@ const SEEN = 0, SEEN_WITH_GROUND = 1, SITE_CELLS = 2, IN_BAND = 3, BREACHES = 4,
  */
 function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number, i1: number, t: SiteTallies, tally: BinCounter | undefined): void {
   const { inSite } = job;
-  const { heights, valid } = job.grid;
+  const { heights } = job.grid;
   const heightBits = float32Keys(heights);
   const { counts, seenBits, imageHist, flagHist, seenGround } = t;
   const gsdPerM = job.ifov * 100;
@@ -316,7 +316,7 @@ function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number,
       if (tally !== undefined) tally.add(g);
     }
     let f: number;
-    if (valid[i] === 0) f = FLAG_NODATA;
+    if (z !== z) f = FLAG_NODATA;
     else {
       imageHist[c]++;
       f = c < minImages ? FLAG_FEW_IMAGES : 0;

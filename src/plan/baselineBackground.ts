@@ -101,7 +101,7 @@ export function constantAltitudeBaselineInBackground(
  * @example sameBaselineJob(early.job, baselineJob(grid, solvedLayout, camera, req, o, inSite))
  */
 export function sameBaselineJob(a: BaselineJob, b: BaselineJob): boolean {
-  if (a.grid.heights !== b.grid.heights || a.grid.valid !== b.grid.valid || a.inSite !== b.inSite) return false;
+  if (a.grid.heights !== b.grid.heights || a.inSite !== b.inSite) return false;
   if (a.grid.width !== b.grid.width || a.grid.height !== b.grid.height) return false;
   const ta = a.grid.transform, tb = b.grid.transform;
   if (ta.x0 !== tb.x0 || ta.y0 !== tb.y0 || ta.dx !== tb.dx || ta.dy !== tb.dy) return false;

@@ -4,6 +4,7 @@
  * window). Builds the solver's `routeAround`, drops strip pieces no way reaches,
  * and refuses a take-off point from which nothing can be reached.
  */
+import { dataMask, hasNodata } from "../dem/dataMask.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import type { Layout, LayoutLeg, XY } from "../layout/types.js";
@@ -36,7 +37,7 @@ export function planObstacles(grid: DemGrid, layout: Layout, options: PlanOption
   // With keep-out zones a way around one may swing out towards the window's edge: the
   // known ground is then always the bound.
   const unknown = options.assumeGroundM === undefined && (keepOut !== null || needsUnknown(grid, layout, options, stationStepM))
-    ? unknownObstacles(grid.valid, grid.width, grid.height, grid.transform, unknownBufferM(grid, options, stationStepM))
+    ? unknownObstacles(dataMask(grid.heights), grid.width, grid.height, grid.transform, unknownBufferM(grid, options, stationStepM))
     : null;
   if (!unknown && !keepOut) return { detour: null };
   const detour = makeDetour([...(keepOut?.buffered ?? []), ...(unknown?.zones ?? [])], unknown?.bounds);
@@ -53,7 +54,7 @@ function unknownBufferM(grid: DemGrid, options: PlanOptions, stationStepM: numbe
 }
 
 function needsUnknown(grid: DemGrid, layout: Layout, options: PlanOptions, stationStepM: number): boolean {
-  for (let i = 0; i < grid.valid.length; i++) if (grid.valid[i] === 0) return true;
+  if (hasNodata(grid.heights)) return true;
   const diagM = Math.hypot(grid.cellSizeM[0], grid.cellSizeM[1]);
   const clearM = unknownBufferM(grid, options, stationStepM);
   const { x0, y0, dx, dy } = grid.transform;

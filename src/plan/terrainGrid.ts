@@ -37,7 +37,6 @@ export async function terrainOnGrid(spec: string | readonly string[], open: Open
     const { width: W, height: H } = surface;
     const t = surface.transform;
     const heights = new Float32Array(W * H).fill(NaN);
-    const valid = new Uint8Array(W * H);
     const s = source.transform;
     const same = sameCrs(source.crs, surface.crs);
     const oc = (t.x0 - s.x0) / s.dx, or = (t.y0 - s.y0) / s.dy;
@@ -54,7 +53,6 @@ export async function terrainOnGrid(spec: string | readonly string[], open: Open
           const from = (r - r0) * part.width;
           const to = (r - dRow) * W + (c0 - dCol);
           heights.set(part.heights.subarray(from, from + part.width), to);
-          valid.set(part.valid.subarray(from, from + part.width), to);
         }
       }
     } else {
@@ -70,10 +68,7 @@ export async function terrainOnGrid(spec: string | readonly string[], open: Open
         sampleBilinear(win, xs, ys, out);
         for (let c = 0; c < W; c++) {
           const z = out[c];
-          if (z === z) {
-            heights[r * W + c] = z;
-            valid[r * W + c] = 1;
-          }
+          if (z === z) heights[r * W + c] = z;
         }
       }
       const why = !same ? `another CRS (${source.crs.epsg !== null ? `EPSG:${source.crs.epsg}` : source.crs.name})` : "other cells";
@@ -89,7 +84,7 @@ export async function terrainOnGrid(spec: string | readonly string[], open: Open
           "their heights are compared as they are. Give both models on one datum.",
       );
     }
-    return { grid: { ...surface, heights, valid }, resampled, warnings };
+    return { grid: { ...surface, heights }, resampled, warnings };
   } finally {
     await source.close();
   }

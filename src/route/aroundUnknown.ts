@@ -26,7 +26,7 @@ export interface UnknownObstacles {
 /**
  * The unknown ground of a nodata mask (1 = data) as buffered obstacles, or null
  * when the mask has no unknown ground at all.
- * @example unknownObstacles(grid.valid, grid.width, grid.height, grid.transform, 18.8)?.zones.length
+ * @example unknownObstacles(dataMask(grid.heights), grid.width, grid.height, grid.transform, 18.8)?.zones.length
  */
 export function unknownObstacles(mask: Uint8Array, width: number, height: number, transform: GeoTransform, clearM: number): UnknownObstacles | null {
   const g = unknownGround(mask, width, height, transform);
@@ -45,7 +45,7 @@ export interface AroundUnknown extends Detour {
  * A router around the unknown ground of a nodata mask (1 = data), or null when
  * the mask has no unknown ground at all.
  * @example
- * const around = aroundUnknownGround(grid.valid, grid.width, grid.height, grid.transform, 18.8);
+ * const around = aroundUnknownGround(dataMask(grid.heights), grid.width, grid.height, grid.transform, 18.8);
  * around?.route([0, 0], [200, 0]) // null, or [[0, 0], ..., [200, 0]]
  */
 export function aroundUnknownGround(mask: Uint8Array, width: number, height: number, transform: GeoTransform, clearM: number): AroundUnknown | null {

@@ -69,7 +69,7 @@ interface Found {
  * mid-call, then was compiled again for the next call (node --trace-opt).
  */
 function scanRow(s: TakeoffSearch, centre: XY, r: number, row: number, c0: number, c1: number, stride: number, found: Found): void {
-  const { width, heights, valid } = s.grid;
+  const { width, heights } = s.grid;
   const { x0, y0, dx, dy } = s.grid.transform;
   const [cw, ch] = s.grid.cellSizeM;
   for (let col = c0; col <= c1; col += stride) {
@@ -81,7 +81,7 @@ function scanRow(s: TakeoffSearch, centre: XY, r: number, row: number, c0: numbe
     // The key below is at least the offset (slope >= 0): a cell this far cannot win.
     if (offsetM >= found.key) continue;
     let ok = true;
-    for (let a = -1; a <= 1 && ok; a++) for (let b = -1; b <= 1 && ok; b++) ok = valid[i + a * width + b] === 1;
+    for (let a = -1; a <= 1 && ok; a++) for (let b = -1; b <= 1 && ok; b++) ok = heights[i + a * width + b] === heights[i + a * width + b];
     if (!ok) continue;
     const n = i - width, so = i + width;
     // Horn: dz/dx and dz/dy from the weighted 3 x 3 differences (rows run with dy).

@@ -201,15 +201,12 @@ export function pooledMax(grid: DemGrid, k: number): DemGrid {
       heights[base + bc] = cur;
     }
   }
-  const valid = new Uint8Array(w * h);
-  for (let i = 0; i < valid.length; i++) valid[i] = heights[i] === heights[i] ? 1 : 0;
   const t = grid.transform;
   const pooled: DemGrid = {
     ...grid,
     width: w,
     height: h,
     heights,
-    valid,
     transform: { x0: t.x0, y0: t.y0, dx: t.dx * k, dy: t.dy * k },
     cellSizeM: [grid.cellSizeM[0] * k, grid.cellSizeM[1] * k],
   };

@@ -187,7 +187,7 @@ function terrainOf(opts: SolverOptions): DemGrid | undefined {
   if (!filled) {
     const heights = t.heights.slice();
     for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = h;
-    filled = { ...t, heights, valid: new Uint8Array(heights.length).fill(1) };
+    filled = { ...t, heights };
     byHeight.set(h, filled);
   }
   return filled;

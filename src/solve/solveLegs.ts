@@ -1,3 +1,4 @@
+import { hasNodata } from "../dem/dataMask.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import type { LayoutLeg, XY } from "../layout/types.js";
@@ -589,12 +590,10 @@ export function floorClosure(s: Float64Array, lo: Float64Array, gMin: number, gM
 
 /** A copy of the grid with nodata replaced by `heightM` (the user's --assume-ground). */
 function fillNodata(grid: DemGrid, heightM: number): DemGrid {
-  let any = false;
-  for (let i = 0; i < grid.valid.length; i++) if (!grid.valid[i]) { any = true; break; }
-  if (!any) return grid;
+  if (!hasNodata(grid.heights)) return grid;
   const heights = grid.heights.slice();
   for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = heightM;
-  return { ...grid, heights, valid: new Uint8Array(heights.length).fill(1) };
+  return { ...grid, heights };
 }
 
 /** The vertex lattice spacing in use: the option, else DEFAULT_VERTEX_STEP_M, never finer than the stations. */

@@ -131,7 +131,6 @@ export async function readPaddedWindow(source: DemSource, rows: readonly VerifyR
   const height = row1 - row0;
   if (width * height > 400_000_000) throw new InputFileError(source.path, `the waypoints span ${width} x ${height} DEM cells; verify reads at most 4e8 cells (split the list by flight)`);
   const heights = new Float32Array(width * height).fill(NaN);
-  const valid = new Uint8Array(width * height);
   const c0 = Math.max(0, col0);
   const c1 = Math.min(source.width, col1);
   const r0 = Math.max(0, row0);
@@ -143,7 +142,6 @@ export async function readPaddedWindow(source: DemSource, rows: readonly VerifyR
       const from = (r - r0) * inner.width;
       const to = (r - row0) * width + (c0 - col0);
       heights.set(inner.heights.subarray(from, from + inner.width), to);
-      valid.set(inner.valid.subarray(from, from + inner.width), to);
     }
   }
   const transform = { x0: x0 + col0 * dx, y0: y0 + row0 * dy, dx, dy };
@@ -151,7 +149,6 @@ export async function readPaddedWindow(source: DemSource, rows: readonly VerifyR
     width,
     height,
     heights,
-    valid,
     transform,
     crs: source.crs,
     cellSizeM: inner?.cellSizeM ?? [Math.abs(dx) * (source.crs.geographic ? NaN : source.crs.linearUnitM), Math.abs(dy) * (source.crs.geographic ? NaN : source.crs.linearUnitM)],

@@ -30,10 +30,11 @@ export interface PyramidLevel {
 }
 
 /**
- * Builds the pyramid over heights `z` (NaN = no height) and the DEM's data mask.
- * @example buildPyramid(grid.heights, grid.valid, grid.width, grid.height).levels[0].size // 8
+ * Builds the pyramid over heights `z` (NaN = no height) and the DEM's own heights `demZ`
+ * (NaN where it has no data; `z` itself unless ground is assumed).
+ * @example buildPyramid(grid.heights, grid.heights, grid.width, grid.height).levels[0].size // 8
  */
-export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, height: number): Pyramid {
+export function buildPyramid(z: Float32Array, demZ: Float32Array, width: number, height: number): Pyramid {
   const quadsW = Math.max(0, width - 1);
   const quadsH = Math.max(0, height - 1);
   const levels: PyramidLevel[] = [];
@@ -42,7 +43,7 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
   const l0 = newLevel(BLOCK0, bw, bh);
   // Block row by block row: block (bi, bj) holds the centres of rows bj * 8 .. bj * 8 + 8 and
   // columns bi * 8 .. bi * 8 + 8 (neighbours share an edge row and column), within the grid.
-  for (let bj = 0; bj < bh; bj++) level0Row(z, known, width, bj * BLOCK0, Math.min(bj * BLOCK0 + BLOCK0, height - 1), l0, bj * bw);
+  for (let bj = 0; bj < bh; bj++) level0Row(z, demZ, width, bj * BLOCK0, Math.min(bj * BLOCK0 + BLOCK0, height - 1), l0, bj * bw);
   levels.push(l0);
   while (bw > 1 || bh > 1) {
     const prev = levels[levels.length - 1];
@@ -84,7 +85,7 @@ export function buildPyramid(z: Float32Array, known: Uint8Array, width: number, 
  * folding every centre row into the blocks as it was read took ~2x the time (4557 x 4558
  * cells: ~75 ms).
  */
-function level0Row(z: Float32Array, known: Uint8Array, width: number, r0: number, r1: number, lv: PyramidLevel, at: number): void {
+function level0Row(z: Float32Array, demZ: Float32Array, width: number, r0: number, r1: number, lv: PyramidLevel, at: number): void {
   for (let bi = 0; bi < lv.bw; bi++) {
     const c0 = bi * BLOCK0;
     const c1 = Math.min(c0 + BLOCK0, width - 1);
@@ -101,7 +102,8 @@ function level0Row(z: Float32Array, known: Uint8Array, width: number, r0: number
           if (v > mx) mx = v;
           if (v < mn) mn = v;
         }
-        if (!known[base + c]) unk = 1;
+        const o = demZ[base + c];
+        if (o !== o) unk = 1;
       }
     }
     lv.max[at + bi] = mx;

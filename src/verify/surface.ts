@@ -16,8 +16,8 @@ export interface Surface {
   height: number;
   /** Heights used by the checks (metres, the DEM's datum); NaN where unknown and not assumed. */
   z: Float32Array;
-  /** 1 where the DEM has data. */
-  known: Uint8Array;
+  /** The DEM's own heights (NaN where it has no data, assumed ground or not): a cell is known where its own height is a number. */
+  demZ: Float32Array;
   /** True when unknown centres carry an assumed height in `z`. */
   assumed: boolean;
   pyramid: Pyramid;
@@ -30,12 +30,12 @@ export interface Surface {
  */
 export function makeSurface(grid: DemGrid, assumeGroundM: number | null): Surface {
   let z = grid.heights;
-  const known = grid.valid;
+  const demZ = grid.heights;
   if (assumeGroundM !== null) {
     z = new Float32Array(grid.heights);
-    for (let i = 0; i < z.length; i++) if (!known[i] || z[i] !== z[i]) z[i] = assumeGroundM;
+    for (let i = 0; i < z.length; i++) if (z[i] !== z[i]) z[i] = assumeGroundM;
   }
-  return { width: grid.width, height: grid.height, z, known, assumed: assumeGroundM !== null, pyramid: buildPyramid(z, known, grid.width, grid.height), grid };
+  return { width: grid.width, height: grid.height, z, demZ, assumed: assumeGroundM !== null, pyramid: buildPyramid(z, demZ, grid.width, grid.height), grid };
 }
 
 /**
@@ -56,8 +56,9 @@ export function quadUsable(s: Surface, i: number, j: number): boolean {
 export function quadKnown(s: Surface, i: number, j: number): boolean {
   if (i < 0 || j < 0 || i >= s.width - 1 || j >= s.height - 1) return false;
   const k = j * s.width + i;
-  const v = s.known;
-  return v[k] === 1 && v[k + 1] === 1 && v[k + s.width] === 1 && v[k + s.width + 1] === 1;
+  const v = s.demZ;
+  const a = v[k], b = v[k + 1], c = v[k + s.width], d = v[k + s.width + 1];
+  return a === a && b === b && c === c && d === d;
 }
 
 /**

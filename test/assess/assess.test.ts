@@ -94,7 +94,7 @@ describe("assessPlan on flat ground", () => {
         if (f[i] !== 0) wrong++;
         continue;
       }
-      if (!grid.valid[i]) {
+      if (Number.isNaN(grid.heights[i])) {
         nodata++;
         if (f[i] !== FLAG_NODATA) wrong++;
         continue;

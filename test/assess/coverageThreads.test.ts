@@ -54,7 +54,7 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     expect(direct.filter((c) => c > 0).length).toBeGreaterThan(10);
     // The statistics taken from the table equal those that count the cells themselves, ...
     const { assessmentStats } = (await import(new URL("../../dist/assess/stats.js", import.meta.url).href)) as typeof import("../../src/assess/stats.js");
-    const statsIn = { gsdCm: oneD.gsdCm, images: oneD.images, flags: oneD.flags!, inSite, valid: grid.valid, nadirStrip: oneD.nadirStrip, cellAreaM2: 0.25, maxStrip: strips - 1 };
+    const statsIn = { gsdCm: oneD.gsdCm, images: oneD.images, flags: oneD.flags!, inSite, ground: grid.heights, nadirStrip: oneD.nadirStrip, cellAreaM2: 0.25, maxStrip: strips - 1 };
     const st = assessmentStats(statsIn);
     // ... whether the pass over the cells runs on one thread or takes the bands on three.
     expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 1 })).toEqual(st);
@@ -112,7 +112,7 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     for (const k of ["images", "gsdCm", "nadirStrip", "flags"] as const) {
       expect(Buffer.from(pooled[k]!.buffer).equals(Buffer.from(alone[k]!.buffer)), k).toBe(true);
     }
-    const statsIn = (c: typeof alone) => ({ gsdCm: c.gsdCm, images: c.images, flags: c.flags!, inSite, valid: grid.valid, nadirStrip: c.nadirStrip, cellAreaM2: 0.25, maxStrip: c.seenByBand!.strips - 1, seenByBand: c.seenByBand });
+    const statsIn = (c: typeof alone) => ({ gsdCm: c.gsdCm, images: c.images, flags: c.flags!, inSite, ground: grid.heights, nadirStrip: c.nadirStrip, cellAreaM2: 0.25, maxStrip: c.seenByBand!.strips - 1, seenByBand: c.seenByBand });
     const own = assessmentStats({ ...statsIn(alone), threads: 2 });
     expect(own.perStrip.length).toBe(12);
     // The statistics' pass takes its bands on the same worker, which stays in the pool until closed.

@@ -10,6 +10,7 @@
  * over their vertices (Lozano-Pérez and Wesley, CACM 1979), so an exhaustive search over every
  * outline vertex (test/route helpers) gives the reference length.
  */
+import { dataMask } from "../../src/dem/dataMask.js";
 import { describe, it, expect, beforeAll } from "vitest";
 import { execFileSync } from "node:child_process";
 import { readFileSync } from "node:fs";
@@ -130,7 +131,7 @@ describe("the detours are shortest paths around the buffered unknown ground", ()
     const g = run.grid;
     // As plan.ts buffers: safety radius + one station step (1 m) + one cell diagonal.
     const clearM = run.options.clearance.safetyRadiusM + 1 + Math.hypot(g.cellSizeM[0], g.cellSizeM[1]);
-    const around = aroundUnknownGround(g.valid, g.width, g.height, g.transform, clearM)!;
+    const around = aroundUnknownGround(dataMask(g.heights), g.width, g.height, g.transform, clearM)!;
     const index = around.router.index;
     const legs = run.flights.flights.flatMap((f) => f.legs);
     const routed = legs.filter((l) => l.kind === "transit" && l.lengthM > Math.hypot(l.to[0] - l.from[0], l.to[1] - l.from[1]) + 1);

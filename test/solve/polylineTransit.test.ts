@@ -7,6 +7,7 @@
  * path is linear in distance, so a point inserted on it keeps its height and the leg's time
  * (distance / speed, summed piecewise).
  */
+import { dataMask } from "../../src/dem/dataMask.js";
 import { describe, it, expect } from "vitest";
 import { makeGrid } from "../../src/dem/sample.js";
 import { solveTransit } from "../../src/solve/solveLegs.js";
@@ -68,7 +69,7 @@ describe("solveTransit along a polyline", () => {
 describe("solveTransit around a nodata hole", () => {
   // Buffer: safety radius 15 m + station step 1 m + cell diagonal (as plan.ts).
   const clearM = 15 + 1 + Math.SQRT2;
-  const around = aroundUnknownGround(grid.valid, grid.width, grid.height, grid.transform, clearM)!;
+  const around = aroundUnknownGround(dataMask(grid.heights), grid.width, grid.height, grid.transform, clearM)!;
   const straight = leg([20.5, 60.5], [180.5, 60.5]);
 
   it("straight across, it guesses and warns (no way around given)", () => {

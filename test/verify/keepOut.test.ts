@@ -43,7 +43,6 @@ function utmGrid(): DemGrid {
   return {
     width, height,
     heights: new Float32Array(width * height).fill(450),
-    valid: new Uint8Array(width * height).fill(1),
     transform: { x0: 600000, y0: 5260600, dx: 2, dy: -2 },
     crs: { proj4: UTM33, epsg: 32633, name: "WGS 84 / UTM zone 33N", geographic: false, linearUnitM: 1 },
     cellSizeM: [2, 2],
@@ -59,7 +58,6 @@ function geoGrid(): DemGrid {
   return {
     width, height,
     heights: new Float32Array(width * height).fill(450),
-    valid: new Uint8Array(width * height).fill(1),
     transform: { x0: 16.322, y0: 47.4925, dx, dy: -dx },
     crs: { proj4: "+proj=longlat +datum=WGS84 +no_defs", epsg: 4326, name: "WGS 84", geographic: true, linearUnitM: NaN },
     cellSizeM: [21, 31],

@@ -5,9 +5,9 @@ import { BLOCK0, buildPyramid } from "../../src/verify/pyramid.js";
  * The pyramid against its definition, cell by cell: a level-0 block (bi, bj) holds the
  * centres of columns 8 bi .. 8 bi + 8 and rows 8 bj .. 8 bj + 8 within the grid (its quads'
  * corners, neighbouring blocks sharing an edge); its max and min are those of the heights
- * with a value, `unusable` says one is missing and `unknown` that the data mask has a 0.
+ * with a value, `unusable` says one is missing and `unknown` that the DEM's own heights miss one.
  */
-function bruteLevel0(z: Float32Array, known: Uint8Array, width: number, height: number) {
+function bruteLevel0(z: Float32Array, demZ: Float32Array, width: number, height: number) {
   const bw = Math.max(1, Math.ceil((width - 1) / BLOCK0));
   const bh = Math.max(1, Math.ceil((height - 1) / BLOCK0));
   const out = { max: [] as number[], min: [] as number[], unusable: [] as number[], unknown: [] as number[] };
@@ -19,7 +19,7 @@ function bruteLevel0(z: Float32Array, known: Uint8Array, width: number, height: 
           const v = z[r * width + c];
           if (Number.isNaN(v)) bad = 1;
           else { mx = Math.max(mx, v); mn = Math.min(mn, v); }
-          if (known[r * width + c] === 0) unk = 1;
+          if (Number.isNaN(demZ[r * width + c])) unk = 1;
         }
       }
       out.max.push(mx); out.min.push(mn); out.unusable.push(bad); out.unknown.push(unk);
@@ -33,16 +33,17 @@ describe("the verifier's block pyramid (verify/pyramid.ts)", () => {
     it(`on ${width} x ${height} centres with holes and assumed ground: level 0 as defined, each level up the 2 x 2 merge`, () => {
       const n = width * height;
       const z = new Float32Array(n);
-      const known = new Uint8Array(n).fill(1);
+      const demZ = new Float32Array(n);
       let s = 11;
       for (let i = 0; i < n; i++) {
         s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
         z[i] = 300 + (s % 1000) / 10;
         if (s % 401 === 0) z[i] = NaN; // no height
-        if (s % 307 === 0) known[i] = 0; // a height assumed where the DEM has none
+        // The DEM's own height: none where z has none, nor where z carries an assumed one.
+        demZ[i] = s % 307 === 0 ? NaN : z[i];
       }
-      const p = buildPyramid(z, known, width, height);
-      const want = bruteLevel0(z, known, width, height);
+      const p = buildPyramid(z, demZ, width, height);
+      const want = bruteLevel0(z, demZ, width, height);
       const l0 = p.levels[0];
       expect(Array.from(l0.max)).toEqual(want.max.map((v) => Math.fround(v)));
       expect(Array.from(l0.min)).toEqual(want.min.map((v) => Math.fround(v)));
