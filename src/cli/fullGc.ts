@@ -5,8 +5,8 @@ let collect: (() => void) | undefined;
 
 /**
  * A full garbage collection now. For the one point of a plan run where it pays: when the
- * plan is made and its output set built, the run (its DEM window: 99 MB of heights and
- * mask at 4 km2) is garbage, but the engine collects its old generation only under
+ * plan is made and its output set built, the run (its DEM window: 79 MB of heights at
+ * 4 km2) is garbage, but the engine collects its old generation only under
  * pressure, which the outputs do not make: at 4 km2 the window was still held while the
  * files were written in 2 of 4 runs, and the process's peak rose 40-45 MB above the plan's
  * own; with this collection the outputs stayed under the plan's peak in 4 of 4. It takes a

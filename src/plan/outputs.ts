@@ -52,7 +52,7 @@ type OutputMeta = { planFile?: string; toolVersion?: string; generatedAt?: strin
  * The files' makers keep only what they write (the waypoints, the flights, the assessment's
  * rasters, the report's input once reduced), not the run: a caller that lets go of the run
  * once this returns (as planToFolder does) lets the DEM window's cells go with it while the
- * files are written, the run's memory peak (99 MB at 4 km2). The report's input is made now
+ * files are written, the run's memory peak (79 MB at 4 km2). The report's input is made now
  * and reduced as soon as the report's maps are in (report/serialize.ts compactReportInput).
  * @example await writeOutputSet(out, planOutputs(run).files)
  */
