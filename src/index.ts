@@ -5,8 +5,8 @@
  * @example
  * import { loadPlanFile, resolvePlanOptions, planMission, planOutputs, writeOutputSet } from "gsdplan";
  * const file = await loadPlanFile("site/plan.yaml");
- * const run = await planMission(resolvePlanOptions(file.data, {}, file.dir));
- * await writeOutputSet("out", planOutputs(run).files);
+ * const { files } = planOutputs(await planMission(resolvePlanOptions(file.data, {}, file.dir)));
+ * await writeOutputSet("out", files);
  */
 export * from "./errors.js";
 export { STANDARD_CAUTIONS } from "./cautions.js";
@@ -19,6 +19,7 @@ export { toMetricGrid } from "./dem/reproject.js";
 export { demStatistics } from "./dem/statistics.js";
 export { inspectDem, type DemReport } from "./dem/inspect.js";
 export { sampleBilinear, extremaInRadius, extremaInOrientedRect, cellCentre, toColRow, makeGrid } from "./dem/sample.js";
+export { dataMask, hasNodata } from "./dem/dataMask.js";
 
 // geo and camera
 export * from "./geo/index.js";
