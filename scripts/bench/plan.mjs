@@ -154,7 +154,7 @@ async function child(planFile, outDir) {
   // The plan, its figures and its output set are made in a function of their own, which lets
   // go of the run when it returns, as `gsdplan plan` does (cli/planCommand.ts planToFolder):
   // while the files are written the run's DEM window is no longer held (plan/outputs.ts).
-  const { figures, timings, maxRssAfterPlanBytes, prepS, files, ownS, ownCpuS } = await (async () => {
+  const { figures, timings, maxRssAfterPlanBytes, prepS, files, runReleased, ownS, ownCpuS } = await (async () => {
     const run = await planMission(options, { now: () => performance.now(), onStage: (st) => { log(st); cpuLap(st); } });
     cpuLap("export");
     log("outputs");
@@ -171,13 +171,15 @@ async function child(planFile, outDir) {
     // Export and report: planOutputs builds rows, summary and the report model; each file's
     // content is made lazily inside writeOutputSet, so wrap each maker with a timer.
     const tOut = performance.now();
-    const { files } = planOutputs(run, { generatedAt: new Date(0).toISOString() });
-    return { figures, timings: run.timings, maxRssAfterPlanBytes, prepS: (performance.now() - tOut) / 1000, files, ownS, ownCpuS };
+    const { files, runReleased } = planOutputs(run, { generatedAt: new Date(0).toISOString() });
+    return { figures, timings: run.timings, maxRssAfterPlanBytes, prepS: (performance.now() - tOut) / 1000, files, runReleased, ownS, ownCpuS };
   })();
-  // As `gsdplan plan` does (cli/planCommand.ts): the run, let go, is collected before the
-  // files are written (counted in the export stage).
+  // As `gsdplan plan` does (cli/planCommand.ts): the run, let go (its report's input reduced:
+  // runReleased), is collected before the files are written (counted in the export stage).
   const tGc = performance.now();
-  (await load("cli/fullGc.js")).collectGarbage();
+  const { collectGarbage } = await load("cli/fullGc.js");
+  await runReleased;
+  collectGarbage();
   const gcS = (performance.now() - tGc) / 1000;
   const fileS = {};
   const fileCpuS = {};

@@ -67,7 +67,8 @@ export interface PlanToFolderOptions {
   /** Threads for the assessment's coverage passes (see PlanHooks.threads). */
   threads?: number;
   /**
-   * Called once the run is let go (the output set built), before the files are written:
+   * Called once the run is let go (the output set built and the report's input reduced:
+   * planOutputs' runReleased), before the files are written:
    * `gsdplan plan` collects garbage there (fullGc.ts), so the DEM window is not held
    * through the writing.
    */
@@ -80,8 +81,13 @@ export interface PlanToFolderOptions {
  * @example const summary = await planToFolder(resolvePlanOptions(data, {}, dir), { outDir: "out" });
  */
 export async function planToFolder(options: PlanOptions, o: PlanToFolderOptions): Promise<PlanSummary> {
-  const { files, summary } = await plannedOutputs(options, o);
-  o.afterRun?.();
+  const { files, summary, runReleased } = await plannedOutputs(options, o);
+  // The report's input reduced first (usually done by now: the maps come in during the
+  // assessment), so the collection finds the run's DEM window unreferenced.
+  if (o.afterRun) {
+    await runReleased;
+    o.afterRun();
+  }
   await writeOutputSet(o.outDir, o.amendFiles ? o.amendFiles(files, summary) : files, { force: Boolean(o.force) });
   return summary;
 }

@@ -53,13 +53,15 @@ type OutputMeta = { planFile?: string; toolVersion?: string; generatedAt?: strin
  * rasters, the report's input once reduced), not the run: a caller that lets go of the run
  * once this returns (as planToFolder does) lets the DEM window's cells go with it while the
  * files are written, the run's memory peak (79 MB at 4 km2). The report's input is made now
- * and reduced as soon as the report's maps are in (report/serialize.ts compactReportInput).
+ * and reduced as soon as the report's maps are in (report/serialize.ts compactReportInput);
+ * `runReleased` settles once it is (it never rejects: a failure surfaces from the report's
+ * files), from when the output set holds nothing of the run's DEM window.
  * @example await writeOutputSet(out, planOutputs(run).files)
  */
-export function planOutputs(run: PlanRun, meta: OutputMeta = {}): { files: OutputFile[]; summary: PlanSummary } {
+export function planOutputs(run: PlanRun, meta: OutputMeta = {}): { files: OutputFile[]; summary: PlanSummary; runReleased: Promise<void> } {
   const summary = planSummary(run);
   const report = reducedReport(reportInput(run, summary, meta), run.reportMaps);
-  return { files: outputFiles(writtenParts(run), summary, report), summary };
+  return { files: outputFiles(writtenParts(run), summary, report), summary, runReleased: report.then(() => undefined, () => undefined) };
 }
 
 /** What the files other than the report's are made from: a few fields of the run, not the run itself. */

@@ -25,11 +25,12 @@ describe("a plan's output set", () => {
       return { cells, heights: new WeakRef(run.grid.heights), ...planOutputs(run, { generatedAt: "2026-01-01T00:00:00.000Z" }) };
     })();
     expect(made.cells).toBeGreaterThan(1_000_000);
-    // The report's input is reduced on the next turn of the event loop: a few collections.
-    for (let k = 0; k < 5 && made.heights.deref(); k++) {
-      await new Promise((r) => setTimeout(r, 10));
-      collectGarbage();
-    }
+    // Once the report's input is reduced (runReleased), one collection clears the window. A
+    // weak reference's target is kept alive until the running job's microtasks are done
+    // (ECMAScript, AddToKeptObjects / ClearKeptObjects): a timer ends them first.
+    await made.runReleased;
+    await new Promise((r) => setTimeout(r, 0));
+    collectGarbage();
     expect(made.heights.deref()).toBeUndefined();
     const out = mkdtempSync(path.join(tmpdir(), "gsdplan-letgo-"));
     await writeOutputSet(out, made.files);
