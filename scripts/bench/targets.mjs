@@ -3,7 +3,8 @@
 // heading left to `auto`, a 25 km2 site (generated here from the 16000 x 16000 benchmark
 // DEM, not committed), and `gsdplan demo`; then CPU and peak RSS against area over the
 // 1, 4 and 25 km2 cases (least-squares lines and their largest residuals). Every case is run
-// three times and gives its medians (medianOfRuns; the demo its run of median wall time).
+// three times, round by round (interleavedRuns), and gives its medians (medianOf; the demo its
+// run of median wall time).
 //
 // Usage: npm run build && node scripts/bench/targets.mjs   (or section 7 of npm run bench)
 import { mkdtempSync, rmSync } from "node:fs";
@@ -36,24 +37,37 @@ export const TARGETS = {
  * @example const t = benchTargets({ log: console.error }); t.plan25.wallS
  */
 export function benchTargets({ reuse = {}, timeoutS = 600, repeats = REPEATS, log = () => {} } = {}) {
-  const plan1 = medianOfRuns(repeats, reuse[1], () => (log("7: 1 km2 plan"), benchPlan({ areaKm2: 1, timeoutS })));
-  const plan4 = medianOfRuns(repeats, reuse[4], () => (log("7: 4 km2 plan"), benchPlan({ areaKm2: 4, timeoutS })));
-  const oblique = medianOfRuns(repeats, undefined, () => {
-    log("7: 3.2 km2 site, heading auto (oblique strips)");
-    return benchPlan({ areaKm2: 3.2, label: "3.2 km2 oblique", timeoutS, rotateDeg: 35, aspect: 2 });
-  });
   // The 25 km2 site in the middle of the 16000 x 16000 DEM (8 km x 8 km), whole: at the 1 and
   // 4 km2 sites' centre it would be cut to 20.25 km2 by the DEM's edge, and its strips near that
   // edge would cost the solve extra work (stations whose disc leaves the DEM) the smaller sites
   // never meet, which the fits against area would read as growth.
   const large = rasterInfo(demLarge());
   const centre = { cx: large.x0 + (large.size[0] * large.dx) / 2, cy: large.y0 + (large.size[1] * large.dy) / 2 };
-  const plan25 = medianOfRuns(repeats, undefined, () => {
-    log("7: 25 km2 site (5 km x 5 km at 0.5 m, in the middle of the 16000 x 16000 DEM)");
-    return benchPlan({ areaKm2: 25, dem: large.file, ...centre, timeoutS });
-  });
-  log("7: gsdplan demo");
-  const demo = benchDemo(timeoutS, repeats);
+  const demoDir = mkdtempSync(join(tmpdir(), "gsdplan-bench-demo-"));
+  let runs;
+  try {
+    runs = interleavedRuns(repeats, {
+      plan1: { first: reuse[1], run: () => (log("7: 1 km2 plan"), benchPlan({ areaKm2: 1, timeoutS })) },
+      plan4: { first: reuse[4], run: () => (log("7: 4 km2 plan"), benchPlan({ areaKm2: 4, timeoutS })) },
+      oblique: {
+        run: () => {
+          log("7: 3.2 km2 site, heading auto (oblique strips)");
+          return benchPlan({ areaKm2: 3.2, label: "3.2 km2 oblique", timeoutS, rotateDeg: 35, aspect: 2 });
+        },
+      },
+      plan25: {
+        run: () => {
+          log("7: 25 km2 site (5 km x 5 km at 0.5 m, in the middle of the 16000 x 16000 DEM)");
+          return benchPlan({ areaKm2: 25, dem: large.file, ...centre, timeoutS });
+        },
+      },
+      demo: { run: () => (log("7: gsdplan demo"), demoRun(demoDir, timeoutS)) },
+    });
+  } finally {
+    rmSync(demoDir, { recursive: true, force: true });
+  }
+  const [plan1, plan4, oblique, plan25] = [runs.plan1, runs.plan4, runs.oblique, runs.plan25].map(medianOf);
+  const demo = demoOf(runs.demo);
   const cases = [plan1, plan4, plan25].filter((c) => c && !c.error && !c.timedOut);
   // Each figure of a repeated case is its median over the runs (`medians`).
   const fig = (c, k) => c.medians?.[k] ?? (k === "solveCpuS" ? solveCpuS(c) : c[k]);
@@ -79,19 +93,35 @@ export function benchTargets({ reuse = {}, timeoutS = 600, repeats = REPEATS, lo
 const REPEATS = 3;
 
 /**
- * `n` runs of a case (`first`, if given, is one of them): the run of median wall time,
- * with `runs` (each run's wall, CPU, main-thread solve CPU and peak RSS) and `medians` (the
- * median of each of those). A failed or timed-out run is returned as it is.
- * @example medianOfRuns(3, undefined, () => benchPlan({ areaKm2: 1 })).medians.cpuS
+ * `n` runs of each case, round by round (each case once a round, in the order given; a case's
+ * `first`, if given, is its first run): this VM's speed drifts by 30 % and more within minutes
+ * (the same build's 4 km2 plan took 4.05 s and 6.7 s in one series), and the fits compare the
+ * cases with one another, so no case should have all its runs in one stretch. A case whose run
+ * fails or times out is not run again: its list ends with that run.
+ * @example interleavedRuns(3, { a: { run: () => benchPlan({ areaKm2: 1 }) } }).a.length // 3
  */
-export function medianOfRuns(n, first, run) {
-  const all = first ? [first] : [];
-  while (all.length < n) {
-    const r = run();
-    if (!r || r.error || r.timedOut) return r;
-    all.push(r);
+export function interleavedRuns(n, cases) {
+  const runs = Object.fromEntries(Object.entries(cases).map(([k, c]) => [k, c.first ? [c.first] : []]));
+  const bad = (r) => !r || r.error || r.timedOut;
+  for (let round = 0; round < n; round++) {
+    for (const [k, c] of Object.entries(cases)) {
+      const list = runs[k];
+      if (list.length > round || list.some(bad)) continue;
+      list.push(c.run());
+    }
   }
-  if (all.some((r) => !r || r.error || r.timedOut)) return all.find((r) => !r || r.error || r.timedOut);
+  return runs;
+}
+
+/**
+ * A case's runs summed up: the run of median wall time, with `runs` (each run's wall, CPU,
+ * main-thread solve CPU and peak RSS) and `medians` (the median of each of those). A failed
+ * or timed-out run is returned as it is.
+ * @example medianOf(interleavedRuns(3, cases).plan1).medians.cpuS
+ */
+export function medianOf(all) {
+  const failed = all.find((r) => !r || r.error || r.timedOut);
+  if (failed !== undefined || all.length === 0) return failed;
   const runs = all.map((r) => ({ wallS: r.wallS, cpuS: r.cpuS, solveCpuS: solveCpuS(r), peakRssBytes: r.peakRssBytes }));
   const median = (xs) => [...xs].sort((a, b) => a - b)[(xs.length - 1) >> 1];
   const medians = Object.fromEntries(Object.keys(runs[0]).map((k) => [k, median(runs.map((r) => r[k]))]));
@@ -99,18 +129,16 @@ export function medianOfRuns(n, first, run) {
   return { ...mid, runs, medians };
 }
 
-/** `gsdplan plan` on the bundled demo (what `gsdplan demo` runs), from the live build. */
-function benchDemo(timeoutS, repeats) {
-  const dir = mkdtempSync(join(tmpdir(), "gsdplan-bench-demo-"));
-  try {
-    const runs = Array.from({ length: repeats }, () => timedRun(process.execPath, [join(root, "dist", "bundle", "main.js"), "plan", join(root, "fixtures", "demo", "corrie-vane-plan.yaml"), "--out", join(dir, "out"), "--force", "--quiet"], { timeoutS }))
-      .map((r) => ({ wallS: r.seconds, cpuS: r.cpuS, peakRssBytes: r.peakRssBytes }));
-    // The run of median wall time, as medianOfRuns gives the plan cases.
-    const mid = [...runs].sort((a, b) => a.wallS - b.wallS)[(runs.length - 1) >> 1];
-    return { ...mid, runs };
-  } finally {
-    rmSync(dir, { recursive: true, force: true });
-  }
+/** One run of `gsdplan plan` on the bundled demo (what `gsdplan demo` runs), from the live build. */
+function demoRun(dir, timeoutS) {
+  const r = timedRun(process.execPath, [join(root, "dist", "bundle", "main.js"), "plan", join(root, "fixtures", "demo", "corrie-vane-plan.yaml"), "--out", join(dir, "out"), "--force", "--quiet"], { timeoutS });
+  return { wallS: r.seconds, cpuS: r.cpuS, peakRssBytes: r.peakRssBytes };
+}
+
+/** The demo's runs: the run of median wall time, as medianOf gives the plan cases, and all runs. */
+function demoOf(runs) {
+  const mid = [...runs].sort((a, b) => a.wallS - b.wallS)[(runs.length - 1) >> 1];
+  return { ...mid, runs };
 }
 
 /**
