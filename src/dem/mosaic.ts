@@ -270,8 +270,8 @@ async function resampleMember(place: Extract<Placement, { kind: "resample" }>, s
         // A neighbour without data (NaN) leaves the sum NaN: the cell is left to the members below.
         const z00 = gh[k00], z01 = gh[k01], z10 = gh[k10], z11 = gh[k11];
         if (z00 !== z00 || z01 !== z01 || z10 !== z10 || z11 !== z11) continue;
-        if (transparent.length && (transparent.includes(gh[k00]) || transparent.includes(gh[k01]) || transparent.includes(gh[k10]) || transparent.includes(gh[k11]))) continue;
-        const z = (1 - ay) * ((1 - ax) * gh[k00] + ax * gh[k01]) + ay * ((1 - ax) * gh[k10] + ax * gh[k11]);
+        if (transparent.length && (transparent.includes(z00) || transparent.includes(z01) || transparent.includes(z10) || transparent.includes(z11))) continue;
+        const z = (1 - ay) * ((1 - ax) * z00 + ax * z01) + ay * ((1 - ax) * z10 + ax * z11);
         const d = (r - win.row0) * w + (c - win.col0);
         heights[d] = z;
       }

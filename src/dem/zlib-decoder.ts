@@ -102,7 +102,6 @@ export function inflateOptions(p: Pick<DecoderParameters, "tileWidth" | "tileHei
   return blockChunk(bytes);
 }
 
-
 /** The bytes of a zlib result as an ArrayBuffer of their own (Node may hand back a view into a larger one). */
 function ownBuffer(out: Buffer): ArrayBufferLike {
   if (out.byteOffset === 0 && out.byteLength === out.buffer.byteLength) return out.buffer;

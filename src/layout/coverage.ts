@@ -60,7 +60,9 @@ export function siteCoverage(site: Site, grid: DemGrid): SiteCoverage {
       for (let x = first; x < crossings[k + 1]; x += step) {
         inside++;
         const col = Math.floor((x - x0) / dx);
-        if (col < 0 || row < 0 || col >= grid.width || row >= grid.height || !(grid.heights[row * grid.width + col] === grid.heights[row * grid.width + col])) missing++;
+        // Outside the grid, or nodata (NaN) there.
+        const z = col < 0 || row < 0 || col >= grid.width || row >= grid.height ? NaN : grid.heights[row * grid.width + col];
+        if (z !== z) missing++;
       }
     }
   }

@@ -135,7 +135,7 @@ function outputFiles(parts: WrittenParts, summary: PlanSummary, report: ReducedR
   // Both report files come from one reduced input. The page is rendered in a worker thread,
   // so it is made on the other core while the rasters and report-data.json are written here:
   // on large grids started by the first small raster, after gsd.tif when that is made here
-  // (the page's worker holds ~85 MB at 4 km2: its copy of the input and the page's strings);
+  // (the page's worker holds ~55-75 MB at 4 km2: its heap, the page's strings; workerHeap.ts);
   // on smaller grids as soon as its input is ready (the demo, 34 interleaved pairs: ~0.06 s
   // sooner done).
   let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;

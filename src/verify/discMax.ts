@@ -15,7 +15,7 @@
  * and R / sy rows (sx, sy: metres per column and per row), so geographic grids
  * (cells of different east and north size) take the same path.
  */
-import type { Surface } from "./surface.js";
+import { quadKnown, type Surface } from "./surface.js";
 import { maxTrigArc } from "./trigMax.js";
 import { grown } from "./grow.js";
 
@@ -111,7 +111,7 @@ export function discMaxIndex(s: Surface, c0: number, r0: number, ac: number, ar:
  * @example touchesUnknownIndex(s, 120.3, 88.7, 15, 15) // false away from nodata
  */
 export function touchesUnknownIndex(s: Surface, c0: number, r0: number, ac: number, ar: number): boolean {
-  const { width: w, height: h, demZ } = s;
+  const { width: w, height: h } = s;
   // Quads the ellipse meets lie in its bounding box of quads; a quad meets the ellipse when
   // its closest point to the centre (in the ellipse's scaled metric) is inside it.
   const i1 = Math.floor(c0 - ac);
@@ -124,9 +124,7 @@ export function touchesUnknownIndex(s: Surface, c0: number, r0: number, ac: numb
     for (let i = i1; i <= Math.min(i2, w - 2); i++) {
       const du = (c0 < i ? i - c0 : c0 > i + 1 ? c0 - i - 1 : 0) / ac;
       if (du * du + dv * dv > 1) continue;
-      const q = j * w + i;
-      const a = demZ[q], b = demZ[q + 1], c = demZ[q + w], d = demZ[q + w + 1];
-      if (a !== a || b !== b || c !== c || d !== d) return true;
+      if (!quadKnown(s, i, j)) return true;
     }
   }
   return false;

@@ -16,11 +16,10 @@ export interface Surface {
   height: number;
   /** Heights used by the checks (metres, the DEM's datum); NaN where unknown and not assumed. */
   z: Float32Array;
-  /** The DEM's own heights (NaN where it has no data, assumed ground or not): a cell is known where its own height is a number. */
-  demZ: Float32Array;
   /** True when unknown centres carry an assumed height in `z`. */
   assumed: boolean;
   pyramid: Pyramid;
+  /** The DEM window: its heights are the DEM's own (NaN where it has no data), whatever ground `z` assumes. */
   grid: DemGrid;
 }
 
@@ -30,12 +29,11 @@ export interface Surface {
  */
 export function makeSurface(grid: DemGrid, assumeGroundM: number | null): Surface {
   let z = grid.heights;
-  const demZ = grid.heights;
   if (assumeGroundM !== null) {
     z = new Float32Array(grid.heights);
     for (let i = 0; i < z.length; i++) if (z[i] !== z[i]) z[i] = assumeGroundM;
   }
-  return { width: grid.width, height: grid.height, z, demZ, assumed: assumeGroundM !== null, pyramid: buildPyramid(z, demZ, grid.width, grid.height), grid };
+  return { width: grid.width, height: grid.height, z, assumed: assumeGroundM !== null, pyramid: buildPyramid(z, grid.heights, grid.width, grid.height), grid };
 }
 
 /**
@@ -56,7 +54,8 @@ export function quadUsable(s: Surface, i: number, j: number): boolean {
 export function quadKnown(s: Surface, i: number, j: number): boolean {
   if (i < 0 || j < 0 || i >= s.width - 1 || j >= s.height - 1) return false;
   const k = j * s.width + i;
-  const v = s.demZ;
+  // The DEM's own heights (NaN where it has no data), whatever ground is assumed in `z`.
+  const v = s.grid.heights;
   const a = v[k], b = v[k + 1], c = v[k + s.width], d = v[k + s.width + 1];
   return a === a && b === b && c === c && d === d;
 }
