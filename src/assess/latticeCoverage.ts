@@ -70,7 +70,8 @@ const LATTICE_BAND_ROWS = 8 * BLOCK;
  * buffer (`images`, reused from band to band): for a pass that reads each band's counts once
  * (the comparison's), so the grid's counts are never held whole (2 bytes a cell: 40 MB at
  * 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and gives
- * its cells [i0, i1): cell i's count is images[i - i0].
+ * its cells [i0, i1): cell i's count is images[i - i0]. `blocks`: the site's lowest ground per
+ * block (siteGroundBlocks'), when the caller has it already.
  * @example const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc); for (let b = 0; b < l.bands; b++) { const [i0, i1] = l.count(b); ... }
  */
 export function latticeCountsByBand(
@@ -81,11 +82,12 @@ export function latticeCountsByBand(
   triggerM: number,
   kAlong: number,
   kAcross: number,
+  blocks: BlockMinima = siteGroundBlocks(grid.heights, inSite, grid.width, grid.height),
 ): { bands: number; images: Uint16Array; count: (band: number) => [number, number] } {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const images = new Uint16Array(Math.min(height, LATTICE_BAND_ROWS) * width);
-  const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, images);
+  const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, images, blocks);
   return {
     bands: Math.ceil(height / LATTICE_BAND_ROWS),
     images,
@@ -107,6 +109,7 @@ function prepareLattice(
   kAlong: number,
   kAcross: number,
   images: Uint16Array,
+  blocks: BlockMinima,
 ): LatticeInput {
   const m = strips.length;
   const col = () => new Float64Array(m);
@@ -114,14 +117,13 @@ function prepareLattice(
   for (const s of strips) preCells += s.lattice.n + 2;
   const input: LatticeInput = {
     ...g, heights, inSite, images,
-    blocks: siteGroundBlocks(heights, inSite, g.width, g.height),
+    blocks,
     A, triggerM, kAlong, kAcross,
     fx: col(), fy: col(), ux: col(), uy: col(), s0: col(), n: new Int32Array(m), px: col(), py: col(), halfRun: col(), dMax: col(),
     rowLo: new Int32Array(m).fill(1), rowHi: new Int32Array(m),
     pre: new Int32Array(preCells), preAt: new Int32Array(m),
     bandRows: LATTICE_BAND_ROWS,
   };
-  const { blocks } = input;
   const rows = new Int32Array(2);
   let at = 0;
   strips.forEach(({ from, lattice: lat }, j) => {

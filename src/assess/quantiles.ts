@@ -84,11 +84,11 @@ export function radixBin(bits: number): number {
 /**
  * orderStatistics from its first pass made by the caller (`radix`: counts of exactly the
  * values `mask` and NaN leave in; `mask` a byte or count per cell, or a bit per cell): the
- * second pass gathers the wanted bins' values and selects within them. The same statistics
- * as orderStatistics.
+ * second pass gathers the wanted bins' values and selects within them (with `blocks`, from
+ * the blocks that can hold them only). The same statistics as orderStatistics.
  * @example orderStatisticsOfRadix(v, { hist, n }, (m) => [m >> 1])
  */
-export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogram, ranksFor: (n: number) => number[], mask?: CellMask | CellBits): { n: number; stats: number[] } {
+export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogram, ranksFor: (n: number) => number[], mask?: CellMask | CellBits, blocks?: BinBlocks): { n: number; stats: number[] } {
   const { hist, n } = radix;
   if (n === 0) return { n, stats: [] };
   const keys = float32Keys(values);
@@ -102,7 +102,8 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
     return new Float32Array(hist[b]);
   });
   const fill = new Int32Array(bins.length);
-  if (mask !== undefined && !ArrayBuffer.isView(mask)) gatherSetBits(values, keys, mask.bits, slot, gathered, fill);
+  if (blocks) gatherInBlocks(values, keys, mask, blocks, bins, slot, gathered, fill);
+  else if (mask !== undefined && !ArrayBuffer.isView(mask)) gatherSetBits(values, keys, mask.bits, slot, gathered, fill);
   else {
     for (let i = 0; i < keys.length; i++) {
       const v = values[i];
@@ -116,6 +117,53 @@ export function orderStatisticsOfRadix(values: Float32Array, radix: RadixHistogr
     if (fill[k] !== hist[b]) throw new Error(`radix histogram does not match the values: bin ${b} counted ${hist[b]}, found ${fill[k]}`);
   });
   return { n, stats: selectWithinBins(binOf, within, (bin) => gathered[slot[bin]]) };
+}
+
+/**
+ * Where the included values of a grid (`width` x `height`, row-major) can lie, block by
+ * block: square blocks of `size` cells a side, `bw` to a row of blocks, block b's values all
+ * in first-pass bins binLo[b] .. binHi[b] (none when binLo[b] > binHi[b]). Given to
+ * orderStatisticsOfRadix, its second pass reads only the blocks that can hold a wanted bin
+ * (a bin is 1/128 of an octave: 2 m of ground between 256 and 512 m, so a median's bin lies
+ * in the blocks along one contour band of a hilly site, not in all of them).
+ */
+export interface BinBlocks {
+  width: number;
+  height: number;
+  size: number;
+  bw: number;
+  binLo: Int32Array;
+  binHi: Int32Array;
+}
+
+/**
+ * orderStatisticsOfRadix's second pass block by block (see BinBlocks), over the blocks whose
+ * bins take in one of `wanted`, the cells `mask` (a byte or a bit a cell) includes.
+ */
+function gatherInBlocks(values: Float32Array, keys: Uint32Array, mask: CellMask | CellBits | undefined, blocks: BinBlocks, wanted: readonly number[], slot: Int32Array, gathered: Float32Array[], fill: Int32Array): void {
+  const { width, height, size, bw, binLo, binHi } = blocks;
+  const bits = mask !== undefined && !ArrayBuffer.isView(mask) ? mask.bits : undefined;
+  const bytes = mask !== undefined && ArrayBuffer.isView(mask) ? mask : undefined;
+  for (let b = 0; b < binLo.length; b++) {
+    const lo = binLo[b];
+    const hi = binHi[b];
+    let read = false;
+    for (let j = 0; j < wanted.length; j++) if (wanted[j] >= lo && wanted[j] <= hi) read = true;
+    if (!read) continue;
+    const br = (b / bw) | 0;
+    const c0 = (b - br * bw) * size;
+    const c1 = Math.min(width, c0 + size);
+    const r1 = Math.min(height, br * size + size);
+    for (let r = br * size; r < r1; r++) {
+      for (let i = r * width + c0; i < r * width + c1; i++) {
+        if (bits !== undefined ? (bits[i >> 3] & (1 << (i & 7))) === 0 : bytes !== undefined && bytes[i] === 0) continue;
+        const v = values[i];
+        if (v !== v) continue;
+        const k = slot[radixBin(keys[i])];
+        if (k >= 0) gathered[k][fill[k]++] = v;
+      }
+    }
+  }
 }
 
 /** orderStatisticsOfRadix's second pass over the cells whose bit is set, a byte (8 cells) at a time. */

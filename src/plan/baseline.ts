@@ -19,7 +19,8 @@ import { photoLattice, photoPhaseOn } from "../assess/exposures.js";
 import { latticeCountsByBand, type LatticeStrip } from "../assess/latticeCoverage.js";
 import { ASSESSMENT_FLAG_KINDS, BAND_SLACK, FLAG_VALUES, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "../assess/flags.js";
 import type { AssessmentRasters, GsdStats } from "../assess/types.js";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, quantilesFloat32, radixBin, ranksOf } from "../assess/quantiles.js";
+import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, radixBin, ranksOf } from "../assess/quantiles.js";
+import { medianOfSiteGround, siteGround } from "../assess/siteGround.js";
 import { histogramCounter, histogramOfTally } from "../report/histogram.js";
 import { tallyCounter, tallyOfSlots, type BinCounter, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 import type { Histogram } from "../report/model.js";
@@ -186,9 +187,10 @@ export function baselineJob(
  */
 export function baselineFigures(job: BaselineJob): BaselineFigures {
   const { grid, inSite } = job;
-  const medianGroundM = medianSiteGround(grid.heights, inSite);
+  const ground = siteGround(grid.heights, inSite, grid.width, grid.height);
+  const medianGroundM = medianOfSiteGround(grid.heights, inSite, ground);
   const A = medianGroundM + job.targetHeightM;
-  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross);
+  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, ground.blocks);
   const images = lattice.images;
 
   // One pass over the site, band by band as the counts are made: GSD, flags (the
@@ -204,10 +206,10 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
     tallySlots: job.gsdTally ? zeroFilled(new Float64Array(job.gsdTally.bins + 2)) : undefined,
   };
   t.counts[MAX_GROUND] = -Infinity;
-  const tally = job.gsdTally && t.tallySlots ? tallyCounter(job.gsdTally, t.tallySlots, 0) : undefined;
+  const k = tallyConstants(job, A, t);
   for (let band = 0; band < lattice.bands; band++) {
     const [i0, i1] = lattice.count(band);
-    tallyBand(job, A, images, i0, i1, t, tally);
+    for (let r = i0; r < i1; r += grid.width) tallyRow(k, t, images, r, Math.min(i1, r + grid.width), i0);
   }
   const { counts, seenBits, imageHist, flagHist, seenGround } = t;
   const seen = counts[SEEN];
@@ -231,7 +233,7 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
   // GSD falls as the ground rises (and its float32 rounding keeps that order), so the r-th
   // smallest GSD is that of the (m - 1 - r)-th lowest seen ground: no array of GSD values.
   const QS = [0, 0.05, 0.5, 0.95, 1];
-  const zs = orderStatisticsOfRadix(heights, { hist: seenGround, n: seenWithGround }, (m) => ranksOf(m, QS).map((r) => m - 1 - r), { bits: seenBits });
+  const zs = orderStatisticsOfRadix(heights, { hist: seenGround, n: seenWithGround }, (m) => ranksOf(m, QS).map((r) => m - 1 - r), { bits: seenBits }, ground.bins);
   const [min, p5, median, p95, max] = zs.n === 0 ? QS.map(() => NaN) : interpolate(zs.n, QS, zs.stats.map((g) => Math.fround((A - g) * gsdPerM)));
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
   const pct = (part: number) => (siteCells > 0 ? (100 * part) / siteCells : 0);
@@ -271,46 +273,85 @@ interface SiteTallies {
 }
 const SEEN = 0, SEEN_WITH_GROUND = 1, SITE_CELLS = 2, IN_BAND = 3, BREACHES = 4, SHORT_CELLS = 5, MAX_GROUND = 6, TALLY_COUNTS = 7;
 
+/** What the comparison's pass reads besides the cells: its constants, made once (tallyConstants). */
+interface TallyConstants {
+  job: BaselineJob;
+  inSite: Uint8Array;
+  heights: Float32Array;
+  heightBits: Uint32Array;
+  A: number;
+  gsdPerM: number;
+  /** The detail band's ends with their slack, cm/px. */
+  lo: number;
+  hi: number;
+  clearanceM: number;
+  minImages: number;
+  /** Under the ground and surface rules a breach is a GSD at or above one threshold (ceilingBreachGsdCm). */
+  breachGsd: number | undefined;
+  tally: BinCounter | undefined;
+}
+
+function tallyConstants(job: BaselineJob, A: number, t: SiteTallies): TallyConstants {
+  return {
+    job, inSite: job.inSite, heights: job.grid.heights, heightBits: float32Keys(job.grid.heights), A, gsdPerM: job.ifov * 100,
+    lo: job.lowGsdM * 100 * (1 - BAND_SLACK), hi: job.highGsdM * 100 * (1 + BAND_SLACK),
+    clearanceM: job.clearanceM, minImages: job.minImages, breachGsd: ceilingBreachGsdCm(job.ifov, job),
+    tally: job.gsdTally && t.tallySlots ? tallyCounter(job.gsdTally, t.tallySlots, 0) : undefined,
+  };
+}
+
 /**
- * The comparison's pass over cells i0 .. i1 - 1 (one band; cell i's image count is
- * images[i - i0]), added to `t`. A small function of its own, called per band: inside
- * baselineFigures the engine compiled the loop mid-call with the code after it not yet run,
- * and each piece of that code reached sent the whole function back to the interpreter, to be
- * compiled again (eight compiles of it on the demo, node --trace-opt). So this function ends
- * with its loop, its counts kept in `t` as they go (stores after the loop would send the loop,
- * compiled in the first band and reused for the next, back at the end of each band), and the
- * counts that data decide (cells short of clearance, in the band, above the ceiling) add 0 or
- * 1 on every cell rather than being incremented in a branch first taken late in the pass.
+ * The comparison's pass over cells i0 .. i1 - 1 (one row; cell i's image count is
+ * images[i - imagesAt]), added to `t`. A small function of its own, called row by row, so the
+ * engine compiles it whole after its first calls, the code after its loop included (a loop
+ * compiled mid-call, as it was when this ran band by band inside baselineFigures, was sent
+ * back to the interpreter by each piece of code after it first reached: node --trace-opt).
+ * The row's counts are kept in locals and added to `t` at its end, and the histograms of
+ * values that neighbouring cells share (the seen ground's radix bins, the image counts, the
+ * flag values, the seen cells' bits) are added a run of equal values at a time: an entry
+ * incremented cell after cell makes each increment wait for the one before (~5 cycles each).
+ * The counts that data decide (cells short of clearance, in the band, above the ceiling) add 0
+ * or 1 on every cell rather than being incremented in a branch first taken late in the pass.
  */
-function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number, i1: number, t: SiteTallies, tally: BinCounter | undefined): void {
-  const { inSite } = job;
-  const { heights } = job.grid;
-  const heightBits = float32Keys(heights);
+function tallyRow(k: TallyConstants, t: SiteTallies, images: Uint16Array, i0: number, i1: number, imagesAt: number): void {
+  const { inSite, heights, heightBits, A, gsdPerM, lo, hi, clearanceM, minImages, breachGsd, tally, job } = k;
   const { counts, seenBits, imageHist, flagHist, seenGround } = t;
-  const gsdPerM = job.ifov * 100;
-  const lo = job.lowGsdM * 100 * (1 - BAND_SLACK);
-  const hi = job.highGsdM * 100 * (1 + BAND_SLACK);
-  const clearanceM = job.clearanceM;
-  const minImages = job.minImages;
-  // Under the ground and surface rules a breach is a GSD at or above one threshold (ceilingBreachGsdCm).
-  const breachGsd = ceilingBreachGsdCm(job.ifov, job);
+  let siteCells = 0, seen = 0, seenWithGround = 0, inBand = 0, breaches = 0, shortCells = 0;
+  let maxGround = counts[MAX_GROUND];
+  // Runs of one value: the seen ground's radix bin, the image count, the flag value; the
+  // byte of seen bits being filled.
+  let groundBin = 0, groundRun = 0;
+  let imagesOf = 0, imagesRun = 0;
+  let flagOf = 0, flagRun = 0;
+  let byteAt = i0 >> 3, byte = 0;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) continue;
-    counts[SITE_CELLS]++;
-    const c = images[i - i0];
+    siteCells++;
+    const c = images[i - imagesAt];
     const z = heights[i];
     // The GSD of a seen cell (made once: the flags and the report's histogram both use it).
     const g = c > 0 ? Math.fround((A - z) * gsdPerM) : NaN;
     // NaN (nodata) ground fails both comparisons.
-    if (z > counts[MAX_GROUND]) counts[MAX_GROUND] = z;
-    counts[SHORT_CELLS] += A - z < clearanceM ? 1 : 0;
+    if (z > maxGround) maxGround = z;
+    shortCells += A - z < clearanceM ? 1 : 0;
     if (c > 0) {
-      counts[SEEN]++;
-      seenBits[i >> 3] |= 1 << (i & 7);
+      seen++;
+      if (i >> 3 !== byteAt) {
+        seenBits[byteAt] |= byte;
+        byteAt = i >> 3;
+        byte = 0;
+      }
+      byte |= 1 << (i & 7);
       // NaN ground is left out, as orderStatistics leaves it out.
       if (z === z) {
-        seenGround[radixBin(heightBits[i])]++;
-        counts[SEEN_WITH_GROUND]++;
+        const bin = radixBin(heightBits[i]);
+        if (bin === groundBin) groundRun++;
+        else {
+          seenGround[groundBin] += groundRun;
+          groundBin = bin;
+          groundRun = 1;
+        }
+        seenWithGround++;
       }
       // The GSD as the report's histogram of the comparison counts it (baselineOf, seenGsdChunks).
       if (tally !== undefined) tally.add(g);
@@ -318,19 +359,40 @@ function tallyBand(job: BaselineJob, A: number, images: Uint16Array, i0: number,
     let f: number;
     if (z !== z) f = FLAG_NODATA;
     else {
-      imageHist[c]++;
+      if (c === imagesOf) imagesRun++;
+      else {
+        imageHist[imagesOf] += imagesRun;
+        imagesOf = c;
+        imagesRun = 1;
+      }
       f = c < minImages ? FLAG_FEW_IMAGES : 0;
       if (c > 0) {
         // NaN GSD counts as in the band, as the assessment counts it.
         const coarse = g > hi;
         const fine = !coarse && g < lo;
         f |= (coarse ? FLAG_COARSE : 0) | (fine ? FLAG_FINE : 0);
-        counts[IN_BAND] += coarse || fine ? 0 : 1;
-        counts[BREACHES] += (breachGsd !== undefined ? g >= breachGsd : overCeiling(g, z, job.ifov, job)) ? 1 : 0;
+        inBand += coarse || fine ? 0 : 1;
+        breaches += (breachGsd !== undefined ? g >= breachGsd : overCeiling(g, z, job.ifov, job)) ? 1 : 0;
       }
     }
-    flagHist[f]++;
+    if (f === flagOf) flagRun++;
+    else {
+      flagHist[flagOf] += flagRun;
+      flagOf = f;
+      flagRun = 1;
+    }
   }
+  seenBits[byteAt] |= byte;
+  seenGround[groundBin] += groundRun;
+  imageHist[imagesOf] += imagesRun;
+  flagHist[flagOf] += flagRun;
+  counts[SITE_CELLS] += siteCells;
+  counts[SEEN] += seen;
+  counts[SEEN_WITH_GROUND] += seenWithGround;
+  counts[IN_BAND] += inBand;
+  counts[BREACHES] += breaches;
+  counts[SHORT_CELLS] += shortCells;
+  counts[MAX_GROUND] = maxGround;
 }
 
 /**
@@ -447,8 +509,4 @@ export function ceilingBreachGsdCm(ifov: number, o: Pick<BaselineOptions, "ceili
 function overCeiling(gsdCm: number, groundM: number, ifov: number, o: Pick<BaselineOptions, "ceiling" | "takeoffGroundM">): boolean {
   const hM = gsdCm / 100 / ifov;
   return o.ceiling.reference === "takeoff" ? groundM + hM > o.takeoffGroundM + o.ceiling.heightM + 0.01 : hM > o.ceiling.heightM + 0.01;
-}
-
-function medianSiteGround(heights: Float32Array, inSite: Uint8Array): number {
-  return quantilesFloat32(heights, [0.5], inSite)[0];
 }

@@ -181,6 +181,21 @@ describe("constant-altitude baseline computed directly", () => {
       expect(images[row * W + col], `cell ${col},${row}`).toBe(count);
       if (inSite[row * W + col]) expect(count).toBeGreaterThanOrEqual(8);
     }
+    // The image counts' figures: the least and the median (type 7) of the site cells' counts,
+    // sorted here; also for a site three cells wide, whose rows are a run or two of one count.
+    const countStats = (mask: Uint8Array) => {
+      const sorted = Array.from(images).filter((_, i) => mask[i]).sort((p, q) => p - q);
+      const mid = (sorted.length - 1) / 2;
+      return { min: sorted[0], median: (sorted[Math.floor(mid)] + sorted[Math.ceil(mid)]) / 2 };
+    };
+    expect(b.stats.images).toEqual(countStats(inSite));
+    const narrow = new Uint8Array(W * H);
+    for (let row = 150; row < 650; row++) narrow.fill(1, row * W + 450, row * W + 453);
+    expect(narrow.every((v, i) => !v || inSite[i])).toBe(true);
+    const nb = constantAltitudeBaseline(grid, layout, camera, requirement, {
+      targetHeightM, triggerM, minImages: 3, ceiling: { heightM: 120, reference: "ground" }, takeoffGroundM: 0, clearanceM: 30, planRasters: { ...plan, inSite: narrow },
+    });
+    expect(nb.stats.images).toEqual(countStats(narrow));
   });
 });
 
