@@ -1,5 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
 import { discOffGrid, extremaInRadius } from "../dem/sample.js";
+import { discBlocks } from "./discBlocks.js";
 import type { SolverOptions } from "./types.js";
 
 /**
@@ -50,7 +51,13 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
   // block the disc's box spans, so the growth below is never taken (code first reached late
   // sent the stations' loop, compiled meanwhile, back to the interpreter: node --trace-deopt).
   const blocksAcross = Math.ceil((2 * rOut) / Math.min(adx, ady) / kb) + 3;
-  let edge = new Int32Array(blocksAcross * blocksAcross);
+  // The disc's blocks by the station's place within its block (discBlocks.ts), for stations
+  // whose blocks lie on the pooled grid; the others are classed row by row below.
+  const disc = discBlocks(pooled, kb, pw, adx, ady, radiusM);
+  const { inside, insideAt, rim, rimAt, bins, reach } = disc;
+  let mostRim = 0;
+  for (let p = 0; p < bins * bins; p++) mostRim = Math.max(mostRim, rimAt[p + 1] - rimAt[p]);
+  let edge = new Int32Array(Math.max(blocksAcross * blocksAcross, mostRim));
   for (let i = 0; i < xs.length; i++) {
     const px = xs[i], py = ys[i];
     // Point in cell-centre index coordinates.
@@ -69,6 +76,23 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
     let best = heights[pr * w + pc];
     let bad = best !== best;
     let nEdge = 0;
+    const bcS = Math.floor(pcx / kb), brS = Math.floor(pcy / kb);
+    if (brS - reach >= 0 && brS + reach < ph && bcS - reach >= 0 && bcS + reach < pw) {
+      let ix = Math.floor(((pcx - bcS * kb) / kb) * bins);
+      let iy = Math.floor(((pcy - brS * kb) / kb) * bins);
+      ix = ix < 0 ? 0 : ix >= bins ? bins - 1 : ix;
+      iy = iy < 0 ? 0 : iy >= bins ? bins - 1 : iy;
+      const p = iy * bins + ix;
+      const base = brS * pw + bcS;
+      for (let j = insideAt[p]; j < insideAt[p + 1]; j++) {
+        const m = pmax[base + inside[j]];
+        if (m !== m) { bad = true; break; }
+        if (m > best) best = m;
+      }
+      for (let j = rimAt[p]; j < rimAt[p + 1]; j++) edge[nEdge++] = base + rim[j];
+      out[i] = bad ? NaN : edgeMax(grid, pooled, kb, edge, nEdge, best, px, py, r2);
+      continue;
+    }
     const rowA = Math.max(0, Math.floor((pcy - radiusM / ady) / kb)), rowB = Math.min(ph - 1, Math.floor((pcy + radiusM / ady) / kb));
     for (let br = rowA; br <= rowB && !bad; br++) {
       const r0 = br * kb, r1 = Math.min(h - 1, r0 + kb - 1);
