@@ -88,23 +88,30 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   stripAbove?: Uint32Array;
 }
 
-/**
- * Takes bands of the statistics' pass from the counter until none is left, tallying at `slot`
- * (runBands' loop, on the calling thread or a worker).
- * @example runBands("stats", job, bands, threads, statsPassBands);
- */
 export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: number, slot: number): void {
   for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
     const i0 = b * job.bandCells;
-    statsPassCells(job, i0, Math.min(job.inSite.length, i0 + job.bandCells), slot);
+    const i1 = Math.min(job.inSite.length, i0 + job.bandCells);
+    for (let c = i0; c < i1; c += PASS_CHUNK) statsPassCells(job, c, Math.min(i1, c + PASS_CHUNK), slot);
   }
 }
+
+/**
+ * Cells statsPassCells takes a call: its counts are kept in locals and added to the tallies
+ * at the end of each call, so the engine compiles it whole after its first calls, the code
+ * after its loop included (a loop compiled mid-call with that code not yet run was sent back
+ * to the interpreter when it first ran: node --trace-deopt).
+ */
+const PASS_CHUNK = 8192;
 
 /**
  * Cells i0..i1-1: a histogram of flag values per strip (strip 0: cells no photo sees) gives
  * every count (flag kinds are read off the 512 bins afterwards instead of testing 9 bits per
  * cell); image counts of site cells with data (their min and median); seen cells in band per
- * strip; the first radix pass of the site's GSD quantiles (quantiles.ts).
+ * strip; the first radix pass of the site's GSD quantiles (quantiles.ts). Neighbouring cells
+ * mostly fall in the same entries (strip and flags, radix bin, image count), and an entry
+ * incremented cell after cell makes each increment wait for the one before (~5 cycles): so
+ * each histogram is added to a run of one entry at a time.
  */
 function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number): void {
   const { gsdCm, images, flags, inSite, ground, nadirStrip, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
@@ -114,40 +121,82 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const bs = slot * S;
   const rh = slot * RADIX_BINS;
   const gsdBits = float32Keys(gsdCm);
-  // Counted in place as the loop goes (each thread's count on a cache line of its own): a
-  // store after the loop, not yet run when the engine compiled the loop in the first band,
-  // sent it back to the interpreter at each band's end (node --trace-deopt).
-  const atLeast = job.atLeast;
-  const at = slot * SLOT_STRIDE;
   const tally = job.tallyGrid && job.tally ? tallyCounter(job.tallyGrid, job.tally, slot * (job.tallyGrid.bins + 2), job.tallyEdges) : undefined;
   const { stripHist, stripBelow, stripAbove } = job;
   const spanLo = job.spanLo ?? 0;
   const span = job.span ?? 0;
   const sh = slot * S * span;
+  // Runs of one entry: image count, strip and flag value, radix bin, strip and bin, strip in band.
+  let imageAt = ih, imageRun = 0;
+  let flagAt = fh, flagRun = 0;
+  let radixAt = rh, radixRun = 0;
+  let stripBinAt = sh, stripBinRun = 0;
+  let inBandAt = bs, inBandRun = 0;
+  let atLeast = 0;
   for (let i = i0; i < i1; i++) {
     if (inSite[i] === 0) continue;
     const z = ground[i];
-    if (z === z) imageHist[ih + images[i]]++;
+    if (z === z) {
+      const k = ih + images[i];
+      if (k === imageAt) imageRun++;
+      else {
+        imageHist[imageAt] += imageRun;
+        imageAt = k;
+        imageRun = 1;
+      }
+    }
     const s = nadirStrip[i];
     const f = flags[i];
-    flagHist[fh + s * FLAG_VALUES + f]++;
+    const fk = fh + s * FLAG_VALUES + f;
+    if (fk === flagAt) flagRun++;
+    else {
+      flagHist[flagAt] += flagRun;
+      flagAt = fk;
+      flagRun = 1;
+    }
     const g = gsdCm[i];
     if (g !== g) continue;
     const bin = radixBin(gsdBits[i]);
-    radixHist[rh + bin]++;
+    if (rh + bin === radixAt) radixRun++;
+    else {
+      radixHist[radixAt] += radixRun;
+      radixAt = rh + bin;
+      radixRun = 1;
+    }
     if (stripHist !== undefined && stripBelow !== undefined && stripAbove !== undefined) {
       const b = bin - spanLo;
       if (b < 0) stripBelow[bs + s]++;
       else if (b >= span) stripAbove[bs + s]++;
-      else stripHist[sh + s * span + b]++;
+      else {
+        const sk = sh + s * span + b;
+        if (sk === stripBinAt) stripBinRun++;
+        else {
+          stripHist[stripBinAt] += stripBinRun;
+          stripBinAt = sk;
+          stripBinRun = 1;
+        }
+      }
     }
-    if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) inBandSeen[bs + s]++;
-    atLeast[at] += g >= atLeastCm ? 1 : 0;
+    if ((f & (FLAG_COARSE | FLAG_FINE)) === 0) {
+      if (bs + s === inBandAt) inBandRun++;
+      else {
+        inBandSeen[inBandAt] += inBandRun;
+        inBandAt = bs + s;
+        inBandRun = 1;
+      }
+    }
+    atLeast += g >= atLeastCm ? 1 : 0;
     if (tally !== undefined) tally.add(g);
   }
+  imageHist[imageAt] += imageRun;
+  flagHist[flagAt] += flagRun;
+  radixHist[radixAt] += radixRun;
+  if (stripHist !== undefined) stripHist[stripBinAt] += stripBinRun;
+  inBandSeen[inBandAt] += inBandRun;
+  job.atLeast[slot * SLOT_STRIDE] += atLeast;
 }
 
-/** Float64 entries between two threads' counts written cell by cell: 64 bytes, one cache line each. */
+/** Float64 entries between two threads' counts (each thread adds to its own as it goes): 64 bytes, one cache line each. */
 const SLOT_STRIDE = 8;
 
 /** The pass's counters of each strip's first radix pass over the bins of `spanCm`, if asked for and not too many. */
