@@ -15,11 +15,12 @@
  * stations adds) and none of the per-station square roots and divisions that classed the
  * blocks row by row (~2/3 of its time on the solver's 0.5 m grids). Distances are in metres
  * (cells need not be square) and are compared with 1e-6 m more margin than the per-station
- * rule's (rounding).
+ * rule's (rounding); the nearest and farthest distance along each axis are worked out once
+ * per part and block offset, so classing a part's blocks is a sum and a comparison each.
  */
 
 /** Parts a block side is cut into (the station's place within its block, per axis). */
-const BINS = 16;
+const BINS = 8;
 
 /** A disc's blocks per part: offsets (block row * pooled width + block column) from the station's own block. */
 export interface DiscBlocks {
@@ -51,40 +52,59 @@ export function discBlocks(owner: object, k: number, pooledWidth: number, adx: n
   if (hit) return hit;
   const rIn = Math.max(0, radiusM - 2e-6);
   const rOut = radiusM + 2e-6;
+  const rIn2 = rIn * rIn;
+  const rOut2 = rOut * rOut;
   const reach = Math.ceil(radiusM / Math.min(adx, ady) / k) + 2;
-  const inside: number[] = [];
-  const rim: number[] = [];
-  const insideAt = new Int32Array(BINS * BINS + 1);
-  const rimAt = new Int32Array(BINS * BINS + 1);
-  // A part's station positions, in cell-centre units from its block's first centre, widened a
-  // little for the rounding of the station's own place.
-  const eps = 1e-9;
+  const side = 2 * reach + 1;
+  // The nearest and farthest squared distance, in metres, between a part's station positions
+  // and a block's cell centres, along each axis apart (the sums give them in the plane):
+  // near[part axis index * side + block offset + reach].
+  const axis = (cellM: number) => {
+    const near = new Float64Array(BINS * side);
+    const far = new Float64Array(BINS * side);
+    // A part's station positions, in cell-centre units from its block's first centre, widened
+    // a little for the rounding of the station's own place.
+    const eps = 1e-9;
+    for (let b = 0; b < BINS; b++) {
+      const s0 = (b * k) / BINS - eps, s1 = ((b + 1) * k) / BINS + eps;
+      for (let d = -reach; d <= reach; d++) {
+        const c0 = d * k, c1 = d * k + k - 1;
+        const n = Math.max(0, c0 - s1, s0 - c1) * cellM;
+        const f = Math.max(Math.abs(c1 - s0), Math.abs(s1 - c0)) * cellM;
+        near[b * side + d + reach] = n * n;
+        far[b * side + d + reach] = f * f;
+      }
+    }
+    return { near, far };
+  };
+  const x = axis(adx);
+  const y = axis(ady);
+  const parts = BINS * BINS;
+  const inside = new Int32Array(parts * side * side);
+  const rim = new Int32Array(parts * side * side);
+  const insideAt = new Int32Array(parts + 1);
+  const rimAt = new Int32Array(parts + 1);
+  let nIn = 0;
+  let nRim = 0;
   for (let iy = 0; iy < BINS; iy++) {
-    const sy0 = (iy * k) / BINS - eps, sy1 = ((iy + 1) * k) / BINS + eps;
     for (let ix = 0; ix < BINS; ix++) {
-      const sx0 = (ix * k) / BINS - eps, sx1 = ((ix + 1) * k) / BINS + eps;
       const p = iy * BINS + ix;
-      insideAt[p] = inside.length;
-      rimAt[p] = rim.length;
-      for (let dbr = -reach; dbr <= reach; dbr++) {
-        // The block's cell centres, in the same units.
-        const cy0 = dbr * k, cy1 = dbr * k + k - 1;
-        const nearY = Math.max(0, cy0 - sy1, sy0 - cy1) * ady;
-        const farY = Math.max(Math.abs(cy1 - sy0), Math.abs(sy1 - cy0)) * ady;
-        for (let dbc = -reach; dbc <= reach; dbc++) {
-          const cx0 = dbc * k, cx1 = dbc * k + k - 1;
-          const nearX = Math.max(0, cx0 - sx1, sx0 - cx1) * adx;
-          const farX = Math.max(Math.abs(cx1 - sx0), Math.abs(sx1 - cx0)) * adx;
-          const offset = dbr * pooledWidth + dbc;
-          if (Math.hypot(farX, farY) <= rIn) inside.push(offset);
-          else if (Math.hypot(nearX, nearY) <= rOut) rim.push(offset);
+      insideAt[p] = nIn;
+      rimAt[p] = nRim;
+      for (let r = 0; r < side; r++) {
+        const nearY = y.near[iy * side + r];
+        const farY = y.far[iy * side + r];
+        for (let c = 0; c < side; c++) {
+          const offset = (r - reach) * pooledWidth + (c - reach);
+          if (x.far[ix * side + c] + farY <= rIn2) inside[nIn++] = offset;
+          else if (x.near[ix * side + c] + nearY <= rOut2) rim[nRim++] = offset;
         }
       }
     }
   }
-  insideAt[BINS * BINS] = inside.length;
-  rimAt[BINS * BINS] = rim.length;
-  const d: DiscBlocks = { k, bins: BINS, inside: Int32Array.from(inside), insideAt, rim: Int32Array.from(rim), rimAt, reach };
+  insideAt[parts] = nIn;
+  rimAt[parts] = nRim;
+  const d: DiscBlocks = { k, bins: BINS, inside: inside.slice(0, nIn), insideAt, rim: rim.slice(0, nRim), rimAt, reach };
   byRadius.set(key, d);
   return d;
 }
