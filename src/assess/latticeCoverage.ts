@@ -2,6 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import { blockRowMin, minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
+import { latticeRows, type LatticeRows } from "./latticeRowsWasm.js";
 
 /**
  * Image counts of photos that are all taken at one altitude, strip by strip
@@ -71,7 +72,8 @@ const LATTICE_BAND_ROWS = 8 * BLOCK;
  * (the comparison's), so the grid's counts are never held whole (2 bytes a cell: 40 MB at
  * 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and gives
  * its cells [i0, i1): cell i's count is images[i - i0]. `blocks`: the site's lowest ground per
- * block (siteGroundBlocks'), when the caller has it already.
+ * block (siteGroundBlocks'), when the caller has it already; `rowsIn`: "js" counts with the
+ * JavaScript rows even where the WebAssembly ones are built (for the tests that compare them).
  * @example const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc); for (let b = 0; b < l.bands; b++) { const [i0, i1] = l.count(b); ... }
  */
 export function latticeCountsByBand(
@@ -83,18 +85,28 @@ export function latticeCountsByBand(
   kAlong: number,
   kAcross: number,
   blocks: BlockMinima = siteGroundBlocks(grid.heights, inSite, grid.width, grid.height),
+  rowsIn?: "wasm" | "js",
 ): { bands: number; images: Uint16Array; count: (band: number) => [number, number] } {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
-  const images = new Uint16Array(Math.min(height, LATTICE_BAND_ROWS) * width);
-  const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, images, blocks);
+  const bandCells = Math.min(height, LATTICE_BAND_ROWS) * width;
+  const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, new Uint16Array(0), blocks);
+  // The rows in WebAssembly where the kernel is built (latticeRows.as.ts; the same counts), the
+  // band's ground and mask copied into its memory and its counts read from there.
+  const kernel = rowsIn === "js" ? undefined : latticeRows(input.pre, bandCells);
+  input.images = kernel ? kernel.images : new Uint16Array(bandCells);
   return {
     bands: Math.ceil(height / LATTICE_BAND_ROWS),
-    images,
+    images: input.images,
     count: (band) => {
       const i0 = band * LATTICE_BAND_ROWS * width;
-      latticeBand(input, band, i0);
-      return [i0, Math.min(height, (band + 1) * LATTICE_BAND_ROWS) * width];
+      const i1 = Math.min(height, (band + 1) * LATTICE_BAND_ROWS) * width;
+      if (kernel) {
+        kernel.ground.set(heights.subarray(i0, i1));
+        kernel.inSite.set(inSite.subarray(i0, i1));
+      }
+      latticeBand(input, band, i0, kernel);
+      return [i0, i1];
     },
   };
 }
@@ -176,7 +188,7 @@ function prepareLattice(
  * (imagesAt: the band's first cell; images holds one band).
  * @example latticeBand(input, b, b * input.bandRows * input.width)
  */
-function latticeBand(inp: LatticeInput, band: number, imagesAt: number): void {
+function latticeBand(inp: LatticeInput, band: number, imagesAt: number, kernel: LatticeRows | undefined): void {
   const { width, x0, y0, dx, dy, heights, inSite, images, blocks, A, triggerM, kAlong, kAcross } = inp;
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
@@ -217,12 +229,20 @@ function latticeBand(inp: LatticeInput, band: number, imagesAt: number): void {
       // Along from the strip's start and across from its line, of the first cell; steps per column.
       const ddx = x0 + (span[0] + 0.5) * dx - inp.fx[j];
       const ddy = cy - inp.fy[j];
-      countRow(
-        heights, inSite, images, imagesAt, pre,
-        r * width + span[0], r * width + span[1],
-        A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
-        inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
-      );
+      if (kernel) {
+        kernel.row(
+          r * width + span[0] - imagesAt, r * width + span[1] - imagesAt, inp.preAt[j],
+          A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
+          inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
+        );
+      } else {
+        countRow(
+          heights, inSite, images, imagesAt, pre,
+          r * width + span[0], r * width + span[1],
+          A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
+          inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
+        );
+      }
     }
   }
 }
