@@ -2,7 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import { blockRowMin, minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
 import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
-import { latticeRows, type LatticeRows } from "./latticeRowsWasm.js";
+import { latticeRows, type KernelTallies, type LatticeRows } from "./latticeRowsWasm.js";
 
 /**
  * Image counts of photos that are all taken at one altitude, strip by strip
@@ -73,7 +73,9 @@ const LATTICE_BAND_ROWS = 8 * BLOCK;
  * 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and gives
  * its cells [i0, i1): cell i's count is images[i - i0]. `blocks`: the site's lowest ground per
  * block (siteGroundBlocks'), when the caller has it already; `rowsIn`: "js" counts with the
- * JavaScript rows even where the WebAssembly ones are built (for the tests that compare them).
+ * JavaScript rows even where the WebAssembly ones are built (for the tests that compare them);
+ * `tally`: the kernel also makes the comparison's pass over the cells (plan/baseline.ts), its
+ * tallies given as `tallies` (absent where the JavaScript rows count).
  * @example const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc); for (let b = 0; b < l.bands; b++) { const [i0, i1] = l.count(b); ... }
  */
 export function latticeCountsByBand(
@@ -86,14 +88,15 @@ export function latticeCountsByBand(
   kAcross: number,
   blocks: BlockMinima = siteGroundBlocks(grid.heights, inSite, grid.width, grid.height),
   rowsIn?: "wasm" | "js",
-): { bands: number; images: Uint16Array; count: (band: number) => [number, number] } {
+  tally?: { bins: number },
+): { bands: number; images: Uint16Array; count: (band: number) => [number, number]; tallies?: KernelTallies } {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const bandCells = Math.min(height, LATTICE_BAND_ROWS) * width;
   const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, new Uint16Array(0), blocks);
   // The rows in WebAssembly where the kernel is built (latticeRows.as.ts; the same counts), the
   // band's ground and mask copied into its memory and its counts read from there.
-  const kernel = rowsIn === "js" ? undefined : latticeRows(input.pre, bandCells);
+  const kernel = rowsIn === "js" ? undefined : latticeRows(input.pre, bandCells, tally ? { gridCells: width * height, bins: tally.bins } : undefined);
   input.images = kernel ? kernel.images : new Uint16Array(bandCells);
   return {
     bands: Math.ceil(height / LATTICE_BAND_ROWS),
@@ -108,6 +111,7 @@ export function latticeCountsByBand(
       latticeBand(input, band, i0, kernel);
       return [i0, i1];
     },
+    ...(kernel?.tallies ? { tallies: kernel.tallies } : {}),
   };
 }
 

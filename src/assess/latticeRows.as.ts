@@ -98,3 +98,162 @@ export function row(i0: i32, i1: i32, preAt: i32, A: f64, a0: f64, q0: f64, da: 
     store<u16>(p, c > 65535 ? 65535 : c);
   }
 }
+
+// The comparison's pass over a band's cells (plan/baseline.ts tallyRow, its twin): with the
+// band's counts made above, each site cell's GSD at the one altitude, flags, clearance
+// shortfall, image-count and flag histograms, the seen cells' bits and the first radix pass
+// of their ground, and their GSD tallied on the report's grid. The figures equal tallyRow's:
+// the GSD is rounded to float32 from the same float64 product, every comparison is the same,
+// and the histograms and counts are sums of whole numbers (their order does not matter).
+
+let A: f64 = 0;
+let gsdPerM: f64 = 0;
+let bandLo: f64 = 0;
+let bandHi: f64 = 0;
+let clearanceM: f64 = 0;
+let minImages: i32 = 0;
+let byThreshold: bool = true;
+let breachGsd: f64 = 0;
+let ifov: f64 = 0;
+let takeoffLimitM: f64 = 0;
+let tallyBins: i32 = -1;
+let tallyLo: f64 = 0;
+let tallyHi: f64 = 0;
+let tallyInv: f64 = 0;
+let RG: usize = 0;
+let IH: usize = 0;
+let FH: usize = 0;
+let TS: usize = 0;
+let TE: usize = 0;
+let SB: usize = 0;
+
+/** Counts of the pass: site cells, seen, seen with ground, in band, above the ceiling, short of clearance; and the highest ground. */
+let siteCells: f64 = 0;
+let seen: f64 = 0;
+let seenWithGround: f64 = 0;
+let inBand: f64 = 0;
+let breaches: f64 = 0;
+let shortCells: f64 = 0;
+let maxGround: f64 = -Infinity;
+
+/**
+ * The pass's figures and where its tallies lie: radix bins of the seen ground (u32 x 65536),
+ * image counts (f64 x 65536), flag values (f64 x 512), the GSD tally's slots (f64 x bins + 2:
+ * under, bins, over) and edges (f64 x bins + 1; bins -1: no tally), the seen cells' bits.
+ * byTheThreshold: the ground and surface rules (a breach is a GSD at or above `breach`); else
+ * the take-off rule (ground + GSD / 100 / ifov above `takeoffLimit`).
+ */
+export function tallies(
+  altitude: f64, gsdPerMetre: f64, lo: f64, hi: f64, clearance: f64, fewBelow: i32,
+  byTheThreshold: i32, breach: f64, ifovRad: f64, takeoffLimit: f64,
+  bins: i32, radix: usize, imageHist: usize, flagHist: usize, slots: usize, edges: usize, seenBits: usize,
+): void {
+  A = altitude;
+  gsdPerM = gsdPerMetre;
+  bandLo = lo;
+  bandHi = hi;
+  clearanceM = clearance;
+  minImages = fewBelow;
+  byThreshold = byTheThreshold != 0;
+  breachGsd = breach;
+  ifov = ifovRad;
+  takeoffLimitM = takeoffLimit;
+  tallyBins = bins;
+  RG = radix;
+  IH = imageHist;
+  FH = flagHist;
+  TS = slots;
+  TE = edges;
+  SB = seenBits;
+  if (bins > 0) {
+    tallyLo = load<f64>(TE);
+    tallyHi = load<f64>(TE + (<usize>bins << 3));
+    tallyInv = <f64>bins / (tallyHi - tallyLo);
+  }
+  siteCells = 0;
+  seen = 0;
+  seenWithGround = 0;
+  inBand = 0;
+  breaches = 0;
+  shortCells = 0;
+  maxGround = -Infinity;
+}
+
+/** The pass's count k (the order of the list above: 0 site cells .. 5 short of clearance, 6 the highest ground). */
+export function tallyCount(k: i32): f64 {
+  return k == 0 ? siteCells : k == 1 ? seen : k == 2 ? seenWithGround : k == 3 ? inBand : k == 4 ? breaches : k == 5 ? shortCells : maxGround;
+}
+
+/** The GSD into the tally (BinCounter.add, gsdTally.ts): bin j holds edges[j] <= v < edges[j + 1]; NaN and infinities left out. */
+function tallyAdd(v: f64): void {
+  let at: usize;
+  if (v < tallyLo) {
+    if (!(v > -Infinity)) return;
+    at = 0;
+  } else if (v < tallyHi) {
+    let b = <i32>((v - tallyLo) * tallyInv);
+    if (b > tallyBins - 1) b = tallyBins - 1;
+    if (v < load<f64>(TE + (<usize>b << 3))) b--;
+    else if (v >= load<f64>(TE + (<usize>(b + 1) << 3))) b++;
+    at = <usize>(b + 1);
+  } else {
+    if (!(v < Infinity)) return;
+    at = <usize>(tallyBins + 1);
+  }
+  const p = TS + (at << 3);
+  store<f64>(p, load<f64>(p) + 1);
+}
+
+/** tallyRow over the band's cells from .. end - 1, the band's cell 0 being the grid's cell `cellAt`. */
+export function tallyBand(from: i32, end: i32, cellAt: i32): void {
+  let byteAt: i32 = (cellAt + from) >> 3;
+  let byte: i32 = 0;
+  for (let i = from; i < end; i++) {
+    if (load<u8>(S + <usize>i) == 0) continue;
+    siteCells++;
+    const c = <i32>load<u16>(I + (<usize>i << 1));
+    const z = <f64>load<f32>(G + (<usize>i << 2));
+    const g: f64 = c > 0 ? <f64><f32>((A - z) * gsdPerM) : NaN;
+    if (z > maxGround) maxGround = z;
+    if (A - z < clearanceM) shortCells++;
+    if (c > 0) {
+      seen++;
+      const gi = cellAt + i;
+      if (gi >> 3 != byteAt) {
+        const p = SB + <usize>byteAt;
+        store<u8>(p, load<u8>(p) | byte);
+        byteAt = gi >> 3;
+        byte = 0;
+      }
+      byte |= 1 << (gi & 7);
+      if (z == z) {
+        const u = load<u32>(G + (<usize>i << 2));
+        const bin = ((u ^ ((<u32>(<i32>u >> 31)) | 0x80000000)) >>> 16);
+        const p = RG + (<usize>bin << 2);
+        store<u32>(p, load<u32>(p) + 1);
+        seenWithGround++;
+      }
+      if (tallyBins > 0) tallyAdd(g);
+    }
+    // The assessment's flag bits (assess/flags.ts): 1 coarse, 2 fine, 4 too few images, 32 no data.
+    let f: i32;
+    if (z != z) f = 32;
+    else {
+      const p = IH + (<usize>c << 3);
+      store<f64>(p, load<f64>(p) + 1);
+      f = c < minImages ? 4 : 0;
+      if (c > 0) {
+        // NaN GSD counts as in the band, as the assessment counts it.
+        const coarse = g > bandHi;
+        const fine = !coarse && g < bandLo;
+        f |= (coarse ? 1 : 0) | (fine ? 2 : 0);
+        if (!(coarse || fine)) inBand++;
+        if (byThreshold ? g >= breachGsd : z + g / 100 / ifov > takeoffLimitM) breaches++;
+      }
+    }
+    const p = FH + (<usize>f << 3);
+    store<f64>(p, load<f64>(p) + 1);
+  }
+  const p = SB + <usize>byteAt;
+  store<u8>(p, load<u8>(p) | byte);
+}

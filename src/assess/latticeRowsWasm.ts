@@ -3,8 +3,9 @@ import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmK
 /**
  * The comparison's lattice rows in WebAssembly (latticeRows.as.ts, built into
  * dist/assess/latticeRows.wasm by `npm run build`): an instance per job, its memory holding
- * the strips' prefix counts and one band of cells at a time. Counts equal
- * latticeCoverage.ts's countRow exactly.
+ * the strips' prefix counts and one band of cells at a time, and, when asked for, the tallies
+ * of the comparison's pass over the cells (plan/baseline.ts). Counts equal
+ * latticeCoverage.ts's countRow exactly, the pass's figures tallyRow's.
  */
 export interface LatticeRows {
   /** The band's arrays, for up to the `cells` given at the start: copy ground and mask in, read counts out. */
@@ -13,6 +14,25 @@ export interface LatticeRows {
   images: Uint16Array;
   /** countRow over band cells i0..i1 (inclusive, indices in the band); preAt: the strip's first prefix count. */
   row(i0: number, i1: number, preAt: number, A: number, a0: number, q0: number, da: number, dq: number, s0: number, t: number, n: number, kAlong: number, kAcross: number): void;
+  /** The pass's tallies, when asked for at the start. */
+  tallies?: KernelTallies;
+}
+
+/** The comparison's pass in the kernel: its tallies' views, set up once, then run band by band. */
+export interface KernelTallies {
+  /** Radix bins of the seen ground, image counts, flag values, the GSD tally's slots (under, bins, over) and edges, the seen cells' bits. */
+  seenGround: Uint32Array;
+  imageHist: Float64Array;
+  flagHist: Float64Array;
+  slots: Float64Array;
+  edges: Float64Array;
+  seenBits: Uint8Array;
+  /** The pass's figures (see latticeRows.as.ts tallies); byThreshold false: the take-off rule, against takeoffLimitM. */
+  setup(A: number, gsdPerM: number, lo: number, hi: number, clearanceM: number, minImages: number, byThreshold: boolean, breachGsd: number, ifov: number, takeoffLimitM: number): void;
+  /** tallyRow over the band's cells from .. end - 1, the band's cell 0 being the grid's cell `cellAt`. */
+  band(from: number, end: number, cellAt: number): void;
+  /** Count k: 0 site cells, 1 seen, 2 seen with ground, 3 in band, 4 above the ceiling, 5 short of clearance, 6 the highest ground. */
+  count(k: number): number;
 }
 
 interface Exports {
@@ -20,27 +40,44 @@ interface Exports {
   heapBase: () => number;
   arrays: (g: number, s: number, i: number, p: number) => void;
   row: LatticeRows["row"];
+  tallies: (A: number, gsdPerM: number, lo: number, hi: number, clearanceM: number, minImages: number, byThreshold: number, breachGsd: number, ifov: number, takeoffLimitM: number,
+    bins: number, radix: number, imageHist: number, flagHist: number, slots: number, edges: number, seenBits: number) => void;
+  tallyBand: (from: number, end: number, cellAt: number) => void;
+  tallyCount: (k: number) => number;
 }
 
 /** Where the kernel is, under dist/ (scripts/build-wasm.mjs). */
 export const LATTICE_ROWS_WASM = "assess/latticeRows.wasm";
 
+/** Entries of the radix and image-count tallies; flag values. */
+const RADIX_BINS = 65536;
+const IMAGE_COUNTS = 65536;
+const FLAG_VALUES = 512;
+
 /**
  * A new kernel instance holding `pre` (every strip's prefix counts) and room for a band of
- * `cells` cells, or undefined without the compiled kernel (see wasmKernel): the comparison
- * then counts with its JavaScript rows.
+ * `cells` cells (and, with `tally`, the pass's tallies for a grid of `gridCells` cells and a
+ * GSD tally of `bins` bins, 0: none), or undefined without the compiled kernel (see
+ * wasmKernel): the comparison then counts with its JavaScript rows.
  * @example const k = latticeRows(pre, bandCells); if (k) { k.ground.set(heights.subarray(i, i + n)); ...; k.row(...) }
  */
-export function latticeRows(pre: Int32Array, cells: number): LatticeRows | undefined {
+export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells: number; bins: number }): LatticeRows | undefined {
   const k = kernelInstance<Exports>(LATTICE_ROWS_WASM);
   if (!k) return undefined;
   const { exports: x, base } = k;
-  // Layout: the prefix counts, then the band's 4-byte, 2-byte and 1-byte arrays, each 16-byte aligned.
+  // Layout: the prefix counts, the band's 4-byte, 2-byte and 1-byte arrays, then the tallies, each 16-byte aligned.
   const p = base;
   const g = align16(p + 4 * pre.length);
   const i = align16(g + 4 * cells);
   const s = align16(i + 2 * cells);
-  ensureMemory(x.memory, s + cells);
+  const rg = align16(s + cells);
+  const ih = align16(rg + 4 * RADIX_BINS);
+  const fh = align16(ih + 8 * IMAGE_COUNTS);
+  const bins = tally ? tally.bins : 0;
+  const ts = align16(fh + 8 * FLAG_VALUES);
+  const te = align16(ts + 8 * (bins + 2));
+  const sb = align16(te + 8 * (bins + 1));
+  ensureMemory(x.memory, tally ? sb + ((tally.gridCells + 7) >> 3) : rg);
   x.arrays(g, s, i, p);
   const buf = x.memory.buffer;
   new Int32Array(buf, p, pre.length).set(pre);
@@ -49,5 +86,19 @@ export function latticeRows(pre: Int32Array, cells: number): LatticeRows | undef
     inSite: new Uint8Array(buf, s, cells),
     images: new Uint16Array(buf, i, cells),
     row: x.row,
+    ...(tally ? {
+      tallies: {
+        seenGround: new Uint32Array(buf, rg, RADIX_BINS),
+        imageHist: new Float64Array(buf, ih, IMAGE_COUNTS),
+        flagHist: new Float64Array(buf, fh, FLAG_VALUES),
+        slots: new Float64Array(buf, ts, bins + 2),
+        edges: new Float64Array(buf, te, bins + 1),
+        seenBits: new Uint8Array(buf, sb, (tally.gridCells + 7) >> 3),
+        setup: (A, gsdPerM, lo, hi, clearanceM, minImages, byThreshold, breachGsd, ifov, takeoffLimitM) =>
+          x.tallies(A, gsdPerM, lo, hi, clearanceM, minImages, byThreshold ? 1 : 0, breachGsd, ifov, takeoffLimitM, bins > 0 ? bins : -1, rg, ih, fh, ts, te, sb),
+        band: x.tallyBand,
+        count: x.tallyCount,
+      },
+    } : {}),
   };
 }

@@ -22,7 +22,7 @@ import type { AssessmentRasters, GsdStats } from "../assess/types.js";
 import { RADIX_BINS, countStatsOfHistogram, float32Keys, interpolate, orderStatisticsOfRadix, radixBin, ranksOf } from "../assess/quantiles.js";
 import { medianOfSiteGround, siteGround } from "../assess/siteGround.js";
 import { histogramCounter, histogramOfTally } from "../report/histogram.js";
-import { tallyCounter, tallyOfSlots, type BinCounter, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
+import { tallyCounter, tallyEdges, tallyOfSlots, type BinCounter, type GsdTally, type GsdTallyGrid } from "../assess/gsdTally.js";
 import type { Histogram } from "../report/model.js";
 import { zeroFilled } from "../zeroFill.js";
 
@@ -125,6 +125,8 @@ export interface BaselineJob {
   takeoffGroundM: number;
   clearanceM: number;
   gsdTally?: GsdTallyGrid;
+  /** "js": count and tally with the JavaScript rows even where the WebAssembly ones are built (the tests that compare them); the same figures. */
+  rowsIn?: "wasm" | "js";
 }
 
 /** The comparison's figures, before the plan's own rasters are there to compare. */
@@ -190,7 +192,7 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
   const ground = siteGround(grid.heights, inSite, grid.width, grid.height);
   const medianGroundM = medianOfSiteGround(grid.heights, inSite, ground);
   const A = medianGroundM + job.targetHeightM;
-  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, ground.blocks);
+  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, ground.blocks, job.rowsIn, { bins: job.gsdTally?.bins ?? 0 });
   const images = lattice.images;
 
   // One pass over the site, band by band as the counts are made: GSD, flags (the
@@ -207,9 +209,29 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
   };
   t.counts[MAX_GROUND] = -Infinity;
   const k = tallyConstants(job, A, t);
+  const kernel = lattice.tallies;
+  // With the WebAssembly rows the pass runs there too, on the band it holds (latticeRows.as.ts
+  // tallyBand, tallyRow's twin), its tallies read out at the end.
+  if (kernel) {
+    if (job.gsdTally) kernel.edges.set(tallyEdges(job.gsdTally));
+    kernel.setup(A, k.gsdPerM, k.lo, k.hi, k.clearanceM, k.minImages, k.breachGsd !== undefined, k.breachGsd ?? NaN, job.ifov, job.takeoffGroundM + job.ceiling.heightM + 0.01);
+  }
   for (let band = 0; band < lattice.bands; band++) {
     const [i0, i1] = lattice.count(band);
-    for (let r = i0; r < i1; r += grid.width) tallyRow(k, t, images, r, Math.min(i1, r + grid.width), i0);
+    // Row by row: a call the engine runs often is soon compiled by its optimising tier (a long
+    // first call would run in its baseline tier throughout).
+    for (let r = i0; r < i1; r += grid.width) {
+      if (kernel) kernel.band(r - i0, Math.min(i1, r + grid.width) - i0, i0);
+      else tallyRow(k, t, images, r, Math.min(i1, r + grid.width), i0);
+    }
+  }
+  if (kernel) {
+    t.seenBits.set(kernel.seenBits);
+    t.imageHist.set(kernel.imageHist);
+    t.flagHist.set(kernel.flagHist);
+    t.seenGround.set(kernel.seenGround);
+    if (t.tallySlots) t.tallySlots.set(kernel.slots);
+    for (const [at, c] of [[SITE_CELLS, 0], [SEEN, 1], [SEEN_WITH_GROUND, 2], [IN_BAND, 3], [BREACHES, 4], [SHORT_CELLS, 5], [MAX_GROUND, 6]]) t.counts[at] = kernel.count(c);
   }
   const { counts, seenBits, imageHist, flagHist, seenGround } = t;
   const seen = counts[SEEN];

@@ -363,3 +363,67 @@ describe("constant-altitude baseline started before the solve", () => {
     expect(sameBaselineJob(a, baselineJob(grid, { ...laidOut, legs: laidOut.legs.slice(1) }, camera, requirement, opts, inSite))).toBe(false);
   });
 });
+
+describe("the comparison's pass in WebAssembly (latticeRows.as.ts tallyBand) against its JavaScript twin (tallyRow)", () => {
+  // Both make every figure from the same counts; here on hills with a hole of nodata, under
+  // the ground rule (a breach is a GSD threshold) and the take-off rule (the ground below
+  // counts too), with and without the report's GSD tally.
+  const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: (x, y) => (Math.hypot(x - 1200, y - 5200) < 25 ? NaN : hills(x, y)) });
+  const inSite = rasteriseSite(site, W, H, grid.transform);
+  const gsdTally = { first: 150, stepCm: 0.01, bins: 300 };
+  const cases = [
+    { headingDeg: 0, ceiling: { heightM: 95, reference: "ground" as const }, takeoffGroundM: 0, gsdTally },
+    { headingDeg: 33, ceiling: { heightM: 95, reference: "takeoff" as const }, takeoffGroundM: 290, gsdTally },
+    { headingDeg: 90, ceiling: { heightM: 120, reference: "surface" as const }, takeoffGroundM: 0 },
+  ];
+  for (const c of cases) {
+    it(`gives the same figures, heading ${c.headingDeg}, ${c.ceiling.reference} rule${c.gsdTally ? ", GSD tally" : ""}`, () => {
+      const job = baselineJob(grid, layoutAt(c.headingDeg), camera, requirement, { targetHeightM, triggerM, minImages: 9, ceiling: c.ceiling, takeoffGroundM: c.takeoffGroundM, clearanceM: 80, ...(c.gsdTally ? { gsdTally: c.gsdTally } : {}) }, inSite);
+      const wasm = baselineFigures(job);
+      const js = baselineFigures({ ...job, rowsIn: "js" });
+      expect(Buffer.from(wasm.seenBits).equals(Buffer.from(js.seenBits))).toBe(true);
+      expect({ ...wasm, seenBits: undefined }).toEqual({ ...js, seenBits: undefined });
+      // Each branch of the pass taken: nodata, too few images, both sides of the band, breaches.
+      expect(js.stats.flaggedByKind.nodata.cells).toBeGreaterThan(100);
+      expect(js.stats.flaggedByKind.fewImages.cells).toBeGreaterThan(100);
+      expect(js.stats.flaggedByKind.coarse.cells).toBeGreaterThan(100);
+      expect(js.stats.flaggedByKind.fine.cells).toBeGreaterThan(100);
+      expect(js.stats.ceilingBreaches.cells).toBeGreaterThan(100);
+      if (c.gsdTally) expect(js.gsdTally!.counts.reduce((a, b) => a + b, 0)).toBeGreaterThan(1000);
+    });
+  }
+});
+
+describe("the comparison's pass in WebAssembly on exact boundaries", () => {
+  it("counts a GSD exactly at the breach threshold or at a tally edge, and ground exactly at the clearance, as its JavaScript twin does", () => {
+    // Flat ground at 300 m (the median) and three patches: at 305 m, the height above it set
+    // so the GSD there is exactly 2.5 cm/px, a tally edge; at 296 m, the ceiling set so that
+    // patch's GSD is exactly the breach threshold; at 302 m, the clearance exactly its depth
+    // under the one altitude.
+    const gsdPerM = camera.ifov * 100;
+    const height = 5 + 2.5 / gsdPerM;
+    const A = 300 + height;
+    expect(Math.fround((A - 305) * gsdPerM)).toBe(2.5);
+    const g0 = Math.fround((A - 296) * gsdPerM);
+    const below = new Float32Array([g0]);
+    new Uint32Array(below.buffer)[0]--;
+    const ceiling = { heightM: ((g0 + below[0]) / 2 / 100 / camera.ifov) - 0.01, reference: "ground" as const };
+    expect(ceilingBreachGsdCm(camera.ifov, { ceiling, takeoffGroundM: 0 })).toBe(g0);
+    const patch = (x: number, y: number, cx: number) => Math.abs(x - cx) < 10 && Math.abs(y - 5200) < 10;
+    const grid = makeGrid({ width: W, height: H, x0, y0, cellM, heights: (x, y) => (patch(x, y, 1150) ? 296 : patch(x, y, 1200) ? 305 : patch(x, y, 1250) ? 302 : 300) });
+    const inSite = rasteriseSite(site, W, H, grid.transform);
+    const job = baselineJob(grid, layoutAt(0), camera, requirement, { targetHeightM: height, triggerM, minImages: 3, ceiling, takeoffGroundM: 0, clearanceM: A - 302, gsdTally: { first: 160, stepCm: 0.01, bins: 100 } }, inSite);
+    const wasm = baselineFigures(job);
+    const js = baselineFigures({ ...job, rowsIn: "js" });
+    expect(wasm.altitudeAmslM).toBe(A);
+    expect(Buffer.from(wasm.seenBits).equals(Buffer.from(js.seenBits))).toBe(true);
+    expect({ ...wasm, seenBits: undefined }).toEqual({ ...js, seenBits: undefined });
+    // Each boundary counts its patch (40 x 40 cells): at the threshold a breach, at the edge the
+    // bin above it (2.50 <= g < 2.51: bin 90 of the tally from 1.60, where the bin found by
+    // multiplying slips to 89 and the edge test moves it up), at the clearance not short (the
+    // test is <: only the 305 m patch, above it, is short).
+    expect(js.stats.ceilingBreaches.cells).toBe(1600);
+    expect(js.gsdTally!.counts[90]).toBe(1600);
+    expect(js.clearanceShortfall!.cells).toBe(1600);
+  });
+});
