@@ -1,6 +1,7 @@
 // AssemblyScript (compiled to WebAssembly by `npm run build`, scripts/build-wasm.mjs; not
 // part of the TypeScript build): the constant-altitude comparison's image counts along one
-// row of one strip, latticeCoverage.ts's countRow.
+// row of one strip, latticeCoverage.ts's countRow, and its pass over the cells of a band
+// (below: plan/baseline.ts tallyRow).
 //
 // Why by hand: the comparison counts every site cell once per strip that can reach it (~60 M
 // cell-strip visits on a 4 km2 site at 0.5 m, the largest part of its worker's time), and no
@@ -17,7 +18,8 @@
 //
 // Memory: the caller copies a band of cells in (ground heights Float32, site mask Uint8),
 // the strips' prefix counts of photos taken (Int32) once, and reads the band's counts out
-// (Uint16), at the addresses it sets with `arrays`.
+// (Uint16), at the addresses it sets with `arrays`; the pass's tallies lie where `tallies`
+// says, read out once at the end.
 
 let G: usize = 0;
 let S: usize = 0;
