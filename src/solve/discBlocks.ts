@@ -13,7 +13,8 @@
  * The classes hold for the whole part, so they hold for each station in it: the answer is the
  * per-station branch and bound's, with a few more rim blocks (those the part's spread of
  * stations adds) and none of the per-station square roots and divisions that classed the
- * blocks row by row (~2/3 of its time on the solver's 0.5 m grids). Distances are in metres
+ * blocks row by row (at 4 km2, 0.5 m cells: the strip stations' maxima 261 -> ~205 ms, the
+ * part besides the rim blocks' scans ~140 -> 84 ms). Distances are in metres
  * (cells need not be square) and are compared with 1e-6 m more margin than the per-station
  * rule's (rounding); the nearest and farthest distance along each axis are worked out once
  * per part and block offset, so classing a part's blocks is a sum and a comparison each.
