@@ -88,6 +88,11 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   stripAbove?: Uint32Array;
 }
 
+/**
+ * Takes bands of the statistics' pass from the counter until none is left, tallying at `slot`
+ * (runBands' loop, on the calling thread or a worker), PASS_CHUNK cells a call.
+ * @example runBands("stats", job, bands, threads, statsPassBands);
+ */
 export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: number, slot: number): void {
   for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
     const i0 = b * job.bandCells;
