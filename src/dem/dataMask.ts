@@ -18,3 +18,29 @@ export function hasNodata(heights: Float32Array): boolean {
   for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) return true;
   return false;
 }
+
+const filled = new WeakMap<object, Map<number, object>>();
+
+/**
+ * The grid with its nodata (NaN) heights set to `heightM` (the user's --assume-ground-m), or
+ * the grid itself when it has none; made once per grid and height and kept while the grid
+ * is. The solver fills the same grid for every leg it solves (the surface for each strip
+ * plan and transit, a terrain model beside it): a fresh copy each time also started afresh
+ * every cache kept per grid (the clearance's pooled maxima and disc blocks), which made the
+ * demo with an assumed ground 1.4 s slower than without.
+ * @example nodataFilled(grid, 380).heights // grid.heights with NaN -> 380
+ */
+export function nodataFilled<G extends { heights: Float32Array }>(grid: G, heightM: number): G {
+  let byHeight = filled.get(grid);
+  if (!byHeight) filled.set(grid, (byHeight = new Map()));
+  let out = byHeight.get(heightM) as G | undefined;
+  if (!out) {
+    if (hasNodata(grid.heights)) {
+      const heights = grid.heights.slice();
+      for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = heightM;
+      out = { ...grid, heights };
+    } else out = grid;
+    byHeight.set(heightM, out);
+  }
+  return out;
+}

@@ -3,6 +3,7 @@ import { extremaInOrientedRect, extremaInRadius, sampleBilinear } from "../dem/s
 import { discExtremaExact, rimExtend } from "../dem/discExact.js";
 import type { Stations } from "../layout/types.js";
 import { clearanceFloorM, maxGroundInRadius, poolFor } from "./clearance.js";
+import { nodataFilled } from "../dem/dataMask.js";
 import { surfaceCeiling } from "./surfaceCeiling.js";
 import { zoneExtremaAlongLine } from "./zoneExtrema.js";
 import { zoneExtremaOnAxis } from "./zoneExtremaAxis.js";
@@ -171,26 +172,15 @@ function sameCells(a: DemGrid, b: DemGrid): boolean {
   return a.width === b.width && a.height === b.height && p.x0 === q.x0 && p.y0 === q.y0 && p.dx === q.dx && p.dy === q.dy;
 }
 
-const filledTerrain = new WeakMap<DemGrid, Map<number, DemGrid>>();
-
 /**
  * The terrain model of the options, its nodata filled with `assumeGroundM` when set
- * (as solvePlan fills the surface grid), cached per grid and height; undefined without one.
+ * (as solvePlan fills the surface grid: nodataFilled, made once per grid and height);
+ * undefined without one.
  */
 function terrainOf(opts: SolverOptions): DemGrid | undefined {
   const t = opts.terrain;
   if (!t || opts.assumeGroundM === undefined) return t;
-  const h = opts.assumeGroundM;
-  let byHeight = filledTerrain.get(t);
-  if (!byHeight) filledTerrain.set(t, (byHeight = new Map()));
-  let filled = byHeight.get(h);
-  if (!filled) {
-    const heights = t.heights.slice();
-    for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = h;
-    filled = { ...t, heights };
-    byHeight.set(h, filled);
-  }
-  return filled;
+  return nodataFilled(t, opts.assumeGroundM);
 }
 
 /**

@@ -1,4 +1,4 @@
-import { hasNodata } from "../dem/dataMask.js";
+import { nodataFilled } from "../dem/dataMask.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
 import type { LayoutLeg, XY } from "../layout/types.js";
@@ -81,7 +81,7 @@ function newPiece(
  */
 export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions): SolveResult {
   validateSolverOptions(opts);
-  const work = opts.assumeGroundM !== undefined ? fillNodata(grid, opts.assumeGroundM) : grid;
+  const work = opts.assumeGroundM !== undefined ? nodataFilled(grid, opts.assumeGroundM) : grid;
   const warnings: SolveWarning[] = [];
   const pieces: Piece[] = [];
   const stripProfiles: StationProfile[] = [];
@@ -184,7 +184,7 @@ export function solveTransit(
   grid: DemGrid, leg: LayoutLeg, opts: SolverOptions, startAltM?: number, endAltM?: number,
 ): { leg: SolvedLeg; warnings: SolveWarning[] } {
   validateSolverOptions(opts);
-  const work = opts.assumeGroundM !== undefined ? fillNodata(grid, opts.assumeGroundM) : grid;
+  const work = opts.assumeGroundM !== undefined ? nodataFilled(grid, opts.assumeGroundM) : grid;
   const warnings: SolveWarning[] = [];
   const piece = newPiece("transit", leg.strip, false, transitCorridor(work, leg, opts));
   const bandWidthM = Math.max(1, opts.band.hMaxM - opts.band.hMinM);
@@ -586,14 +586,6 @@ export function floorClosure(s: Float64Array, lo: Float64Array, gMin: number, gM
   for (let j = 1; j < n; j++) f[j] = Math.max(f[j], f[j - 1] + gMin * (s[j] - s[j - 1]));
   for (let j = n - 2; j >= 0; j--) f[j] = Math.max(f[j], f[j + 1] - gMax * (s[j + 1] - s[j]));
   return f;
-}
-
-/** A copy of the grid with nodata replaced by `heightM` (the user's --assume-ground). */
-function fillNodata(grid: DemGrid, heightM: number): DemGrid {
-  if (!hasNodata(grid.heights)) return grid;
-  const heights = grid.heights.slice();
-  for (let i = 0; i < heights.length; i++) if (heights[i] !== heights[i]) heights[i] = heightM;
-  return { ...grid, heights };
 }
 
 /** The vertex lattice spacing in use: the option, else DEFAULT_VERTEX_STEP_M, never finer than the stations. */
