@@ -71,11 +71,12 @@ const LATTICE_BAND_ROWS = 8 * BLOCK;
  * buffer (`images`, reused from band to band): for a pass that reads each band's counts once
  * (the comparison's), so the grid's counts are never held whole (2 bytes a cell: 40 MB at
  * 4 km2) and are read back from cache. `count(b)` fills `images` with band b's counts and gives
- * its cells [i0, i1): cell i's count is images[i - i0]. `blocks`: the site's lowest ground per
- * block (siteGroundBlocks'), when the caller has it already; `rowsIn`: "js" counts with the
- * JavaScript rows even where the WebAssembly ones are built (for the tests that compare them);
- * `tally`: the kernel also makes the comparison's pass over the cells (plan/baseline.ts), its
- * tallies given as `tallies` (absent where the JavaScript rows count).
+ * its cells [i0, i1): cell i's count is images[i - i0]. Options: `blocks`, the site's lowest
+ * ground per block (siteGroundBlocks'), when the caller has it already; `rowsIn`, "js" to count
+ * with the JavaScript rows even where the WebAssembly ones are built (for the tests that compare
+ * them); `tally`, for the kernel to make the comparison's pass over the cells too
+ * (plan/baseline.ts; `bins` of its GSD tally, 0 for none), its tallies given as `tallies`
+ * (absent where the JavaScript rows count).
  * @example const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc); for (let b = 0; b < l.bands; b++) { const [i0, i1] = l.count(b); ... }
  */
 export function latticeCountsByBand(
@@ -86,13 +87,13 @@ export function latticeCountsByBand(
   triggerM: number,
   kAlong: number,
   kAcross: number,
-  blocks: BlockMinima = siteGroundBlocks(grid.heights, inSite, grid.width, grid.height),
-  rowsIn?: "wasm" | "js",
-  tally?: { bins: number },
+  opts: { blocks?: BlockMinima; rowsIn?: "wasm" | "js"; tally?: { bins: number } } = {},
 ): { bands: number; images: Uint16Array; count: (band: number) => [number, number]; tallies?: KernelTallies } {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
+  const { rowsIn, tally } = opts;
   const bandCells = Math.min(height, LATTICE_BAND_ROWS) * width;
+  const blocks = opts.blocks ?? siteGroundBlocks(heights, inSite, width, height);
   const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, new Uint16Array(0), blocks);
   // The rows in WebAssembly where the kernel is built (latticeRows.as.ts; the same counts), the
   // band's ground and mask copied into its memory and its counts read from there.

@@ -192,7 +192,7 @@ export function baselineFigures(job: BaselineJob): BaselineFigures {
   const ground = siteGround(grid.heights, inSite, grid.width, grid.height);
   const medianGroundM = medianOfSiteGround(grid.heights, inSite, ground);
   const A = medianGroundM + job.targetHeightM;
-  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, ground.blocks, job.rowsIn, { bins: job.gsdTally?.bins ?? 0 });
+  const lattice = latticeCountsByBand(grid, inSite, job.strips, A, job.triggerM, job.kAlong, job.kAcross, { blocks: ground.blocks, rowsIn: job.rowsIn, tally: { bins: job.gsdTally?.bins ?? 0 } });
   const images = lattice.images;
 
   // One pass over the site, band by band as the counts are made: GSD, flags (the

@@ -55,9 +55,7 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
   // whose blocks lie on the pooled grid; the others are classed row by row below.
   const disc = discBlocks(pooled, kb, pw, adx, ady, radiusM);
   const { inside, insideAt, rim, rimAt, bins, reach } = disc;
-  let mostRim = 0;
-  for (let p = 0; p < bins * bins; p++) mostRim = Math.max(mostRim, rimAt[p + 1] - rimAt[p]);
-  let edge = new Int32Array(Math.max(blocksAcross * blocksAcross, mostRim));
+  let edge = new Int32Array(Math.max(blocksAcross * blocksAcross, disc.mostRim));
   for (let i = 0; i < xs.length; i++) {
     const px = xs[i], py = ys[i];
     // Point in cell-centre index coordinates.

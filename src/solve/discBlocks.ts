@@ -35,6 +35,8 @@ export interface DiscBlocks {
   rimAt: Int32Array;
   /** The block rows and columns any part's offsets reach, relative to the station's block. */
   reach: number;
+  /** Most rim blocks of any part (room for a station's rim list). */
+  mostRim: number;
 }
 
 const made = new WeakMap<object, Map<string, DiscBlocks>>();
@@ -105,7 +107,9 @@ export function discBlocks(owner: object, k: number, pooledWidth: number, adx: n
   }
   insideAt[parts] = nIn;
   rimAt[parts] = nRim;
-  const d: DiscBlocks = { k, bins: BINS, inside: inside.slice(0, nIn), insideAt, rim: rim.slice(0, nRim), rimAt, reach };
+  let mostRim = 0;
+  for (let p = 0; p < parts; p++) mostRim = Math.max(mostRim, rimAt[p + 1] - rimAt[p]);
+  const d: DiscBlocks = { k, bins: BINS, inside: inside.slice(0, nIn), insideAt, rim: rim.slice(0, nRim), rimAt, reach, mostRim };
   byRadius.set(key, d);
   return d;
 }

@@ -26,7 +26,7 @@ if (!HAS_WASM) {
 /** Counts of the whole grid, band after band. */
 function whole(rowsIn: "wasm" | "js", ...args: Parameters<typeof latticeCountsByBand>): Uint16Array {
   const [grid, inSite, strips, A, t, ka, kc] = args;
-  const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc, undefined, rowsIn);
+  const l = latticeCountsByBand(grid, inSite, strips, A, t, ka, kc, { rowsIn });
   const out = new Uint16Array(grid.width * grid.height);
   for (let b = 0; b < l.bands; b++) {
     const [i0, i1] = l.count(b);
