@@ -2,7 +2,7 @@ import type { MultiPolygon, Polygon } from "geojson";
 import type { Camera, Requirement } from "../camera/types.js";
 import type { DemGrid } from "../dem/grid.js";
 import { InputError } from "../errors.js";
-import { computeCoverage, type Coverage } from "./coverage.js";
+import { startCoverage, type Coverage, type CoverageOptions, type StartedCoverage } from "./coverage.js";
 import { bandPool as newBandPool, bandThreads, type BandPool } from "./bandThreads.js";
 import type { NadirBy } from "./coverageKernel.js";
 import { exposuresFromLegs, type AssessedLeg, type ExposureOptions } from "./exposures.js";
@@ -56,6 +56,19 @@ export interface AssessOptions {
   gsdTally?: GsdTallyGrid;
   /** Called once the rasters are final, before the statistics and polygons are made from them (which must not change them). */
   onRasters?: (rasters: Assessment["rasters"]) => void;
+  /**
+   * A sweep started ahead (startAssessmentSweep): taken over when it was made on the same grid,
+   * site mask, camera and sweep options and its photos are these legs' to the bit; else
+   * cancelled and the sweep made afresh.
+   */
+  early?: EarlySweep;
+}
+
+/** A footprint sweep started ahead of its assessment (startAssessmentSweep). */
+export interface EarlySweep {
+  started: StartedCoverage;
+  camera: Camera;
+  options: CoverageOptions;
 }
 
 /**
@@ -83,16 +96,7 @@ export function assessPlan(
   requirement: Pick<Requirement, "lowGsdM" | "highGsdM">,
   opts: AssessOptions,
 ): Assessment {
-  const minImages = opts.minImages ?? 2;
-  if (!Number.isInteger(minImages) || minImages < 1 || minImages > 65535) {
-    throw new InputError("minImages", minImages, "a whole number from 1 to 65535", "minimum image count out of range");
-  }
-  if (!(opts.zoneHalfAcrossM >= 0) || !Number.isFinite(opts.zoneHalfAcrossM)) {
-    throw new InputError("zoneHalfAcrossM", opts.zoneHalfAcrossM, "a finite number of metres >= 0");
-  }
-  if (!(requirement.lowGsdM > 0 && requirement.highGsdM >= requirement.lowGsdM)) {
-    throw new InputError("requirement", requirement, "0 < lowGsdM <= highGsdM", "GSD band is empty");
-  }
+  const minImages = checkedMinImages(requirement, opts);
   const { width, height, transform } = grid;
   const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
 
@@ -109,19 +113,77 @@ export function assessPlan(
   }
 }
 
+/**
+ * The footprint sweep of assessPlan started now on the band workers, from `legs`' photos, while
+ * the caller goes on (the plan starts it from the solved strips while it routes and checks the
+ * waypoints: the flights' legs place the same photos unless a strip was cut between flights).
+ * Pass it to assessPlan as `early` with the same grid, camera, requirement and options.
+ * @example const early = startAssessmentSweep(grid, site, solved.legs, camera, req, o); ...; assessPlan(grid, site, flown, camera, req, { ...o, early })
+ */
+export function startAssessmentSweep(
+  grid: DemGrid,
+  site: Polygon | MultiPolygon,
+  legs: readonly AssessedLeg[],
+  camera: Camera,
+  requirement: Pick<Requirement, "lowGsdM" | "highGsdM">,
+  opts: AssessOptions,
+): EarlySweep {
+  const minImages = checkedMinImages(requirement, opts);
+  const inSite = opts.inSite ?? siteMaskFor(grid, site, opts.threads);
+  const options = sweepOptions(requirement, opts, minImages, opts.bandPool);
+  return { started: startCoverage(grid, inSite, exposuresFromLegs(legs, opts.triggerM, { phase: opts.phase }), camera, options), camera, options };
+}
+
+/** The minimum image count, after checking assessPlan's numeric inputs. */
+function checkedMinImages(requirement: Pick<Requirement, "lowGsdM" | "highGsdM">, opts: AssessOptions): number {
+  const minImages = opts.minImages ?? 2;
+  if (!Number.isInteger(minImages) || minImages < 1 || minImages > 65535) {
+    throw new InputError("minImages", minImages, "a whole number from 1 to 65535", "minimum image count out of range");
+  }
+  if (!(opts.zoneHalfAcrossM >= 0) || !Number.isFinite(opts.zoneHalfAcrossM)) {
+    throw new InputError("zoneHalfAcrossM", opts.zoneHalfAcrossM, "a finite number of metres >= 0");
+  }
+  if (!(requirement.lowGsdM > 0 && requirement.highGsdM >= requirement.lowGsdM)) {
+    throw new InputError("requirement", requirement, "0 < lowGsdM <= highGsdM", "GSD band is empty");
+  }
+  return minImages;
+}
+
+/** The footprint sweep's options for an assessment: the effect bits set band by band as soon as a band's photos are all counted. */
+function sweepOptions(requirement: Pick<Requirement, "lowGsdM" | "highGsdM">, opts: AssessOptions, minImages: number, bandPool: BandPool | undefined): CoverageOptions {
+  return {
+    nadirBy: opts.nadirBy,
+    threads: opts.threads,
+    ...(bandPool ? { bandPool } : {}),
+    effects: { lowGsdCm: requirement.lowGsdM * 100, highGsdCm: requirement.highGsdM * 100, minImages },
+  };
+}
+
+/** True when two sweeps' options give the same rasters (the workers that run them aside). */
+function sameSweep(a: CoverageOptions, b: CoverageOptions): boolean {
+  const ea = a.effects, eb = b.effects;
+  return a.nadirBy === b.nadirBy && a.threads === b.threads && a.rowsIn === b.rowsIn &&
+    ea?.lowGsdCm === eb?.lowGsdCm && ea?.highGsdCm === eb?.highGsdCm && ea?.minImages === eb?.minImages;
+}
+
+/** The early sweep if it is this assessment's (see AssessOptions.early), else one started now (the early one cancelled). */
+function sweepFor(grid: DemGrid, inSite: Uint8Array, exposures: ReturnType<typeof exposuresFromLegs>, camera: Camera, options: CoverageOptions, early: EarlySweep | undefined): StartedCoverage {
+  if (early) {
+    const s = early.started;
+    if (s.grid === grid && s.inSite === inSite && early.camera === camera && sameSweep(early.options, options) && s.sameExposures(exposures)) return s;
+    s.cancel();
+  }
+  return startCoverage(grid, inSite, exposures, camera, options);
+}
+
 /** assessPlan's passes, on `bandPool`'s workers. */
 function assessWithPool(
   grid: DemGrid, inSite: Uint8Array, legs: readonly AssessedLeg[], camera: Camera, requirement: Pick<Requirement, "lowGsdM" | "highGsdM">, opts: AssessOptions,
   exposures: ReturnType<typeof exposuresFromLegs>, minImages: number, cellAreaM2: number, bandPool: BandPool,
 ): Assessment {
   const { width, height, transform } = grid;
-  const { gsdCm, images, nadirStrip, flags, seenByBand } = computeCoverage(grid, inSite, exposures, camera, {
-    nadirBy: opts.nadirBy,
-    threads: opts.threads,
-    bandPool,
-    // The effect bits are set band by band as soon as a band's photos are all counted.
-    effects: { lowGsdCm: requirement.lowGsdM * 100, highGsdCm: requirement.highGsdM * 100, minImages },
-  }) as Required<Coverage>;
+  const sweep = sweepFor(grid, inSite, exposures, camera, sweepOptions(requirement, opts, minImages, bandPool), opts.early);
+  const { gsdCm, images, nadirStrip, flags, seenByBand } = sweep.finish() as Required<Coverage>;
   paintCauseZones(flags, grid, inSite, legs, opts.zoneHalfAcrossM);
   if (opts.keepOut) paintKeepOutCuts(flags, grid, inSite, opts.keepOut.cuts, opts.keepOut.footprintAcrossM / 2, opts.keepOut.footprintAlongM / 2);
 

@@ -93,21 +93,54 @@ function bandWorker(): Worker {
  * @example runBands("sweep", input, bands, threads, sweepBands);
  */
 export function runBands<I>(kind: BandKind, input: I, bands: number, threads: number, loop: (input: I, next: Int32Array, bands: number, slot: number) => void, pool?: BandPool): void {
+  startBands(kind, input, bands, threads, pool).join(loop);
+}
+
+/** A pass whose workers have started on its bands (startBands). */
+export interface StartedBands<I> {
+  /** Takes the bands left on this thread (slot 0) with `loop`, then waits for the workers; throws if one failed. */
+  join: (loop: (input: I, next: Int32Array, bands: number, slot: number) => void) => void;
+  /** Hands out no more bands and waits for the workers to finish the ones they took (a failure is not raised). */
+  cancel: () => void;
+}
+
+/**
+ * runBands without this thread's part: the workers start taking bands now, while this thread
+ * does other work; `join` then takes the bands left here and waits (a pass started ahead, such
+ * as the assessment's sweep while the route is made: assess.ts startAssessmentSweep).
+ * @example const started = startBands("sweep", input, bands, threads, pool); ...; started.join(sweepBands);
+ */
+export function startBands<I>(kind: BandKind, input: I, bands: number, threads: number, pool?: BandPool): StartedBands<I> {
   const next = new Int32Array(new SharedArrayBuffer(4));
   const done = new Int32Array(new SharedArrayBuffer(4 * threads));
   const workers = pool ?? bandPool();
   workers.start(threads - 1);
   for (let t = 1; t < threads; t++) workers.workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
-  loop(input, next, bands, 0);
-  let failed = false;
-  for (let t = 1; t < threads; t++) {
-    // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
-    const deadline = Date.now() + 600_000;
-    while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
-    if (Atomics.load(done, t) !== 1) failed = true;
-  }
-  if (!pool) workers.close();
-  if (failed) throw new Error(`${kind}: a worker thread failed`);
+  let settled = false;
+  const wait = (): boolean => {
+    settled = true;
+    let failed = false;
+    for (let t = 1; t < threads; t++) {
+      // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
+      const deadline = Date.now() + 600_000;
+      while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
+      if (Atomics.load(done, t) !== 1) failed = true;
+    }
+    if (!pool) workers.close();
+    return failed;
+  };
+  return {
+    join: (loop) => {
+      if (settled) throw new Error(`${kind}: pass already joined or cancelled`);
+      loop(input, next, bands, 0);
+      if (wait()) throw new Error(`${kind}: a worker thread failed`);
+    },
+    cancel: () => {
+      if (settled) return;
+      Atomics.store(next, 0, bands);
+      wait();
+    },
+  };
 }
 
 /** One pass's job for a band worker (coverageWorker.ts). */

@@ -2,7 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import type { Camera } from "../camera/types.js";
 import type { Exposure, StripRaster } from "./types.js";
 import { BLOCK, reachOfPhotos, siteGroundBlocks, sweepBands, type NadirBy, type SeenByBand, type SweepInput } from "./coverageKernel.js";
-import { bandThreads, runBands, shareable, type BandPool } from "./bandThreads.js";
+import { bandThreads, shareable, startBands, type BandPool } from "./bandThreads.js";
 
 /**
  * Which photos see each ground cell, and at what detail.
@@ -86,6 +86,35 @@ export function computeCoverage(
   camera: Camera,
   opts: CoverageOptions = {},
 ): Coverage {
+  return startCoverage(grid, inSite, exposures, camera, opts).finish();
+}
+
+/** A footprint sweep whose workers have started (startCoverage). */
+export interface StartedCoverage {
+  grid: DemGrid;
+  inSite: Uint8Array;
+  /** True when `exposures` are the sweep's own photos, to the bit (same order, places, altitudes, headings, strips). */
+  sameExposures: (exposures: readonly Exposure[]) => boolean;
+  /** Sweeps the bands left on this thread, waits for the workers, and gives the coverage. */
+  finish: () => Coverage;
+  /** Stops handing out bands and waits for the workers' current ones (the sweep is dropped). */
+  cancel: () => void;
+}
+
+/**
+ * computeCoverage in two steps: the band workers start sweeping now and this thread joins
+ * them at `finish` (with one thread, all of the sweep is done there). Lets the sweep start
+ * before its caller has done other work, e.g. while the route is made (assess.ts
+ * startAssessmentSweep).
+ * @example const started = startCoverage(grid, inSite, exposures, camera, o); ...; const cov = started.finish();
+ */
+export function startCoverage(
+  grid: DemGrid,
+  inSite: Uint8Array,
+  exposures: readonly Exposure[],
+  camera: Camera,
+  opts: CoverageOptions = {},
+): StartedCoverage {
   const { width, height, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
   const n = width * height;
@@ -140,10 +169,30 @@ export function computeCoverage(
     // No site ground at all: no photo can see anything (every row range left empty).
     input.rowLo.fill(1);
   } else reachOfPhotos(input);
-  runBands("sweep", input, bands, threads, sweepBands, opts.bandPool);
+  const started = startBands("sweep", input, bands, threads, opts.bandPool);
   return {
-    gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip,
-    ...(input.flags ? { flags: input.flags } : {}),
-    ...(input.effects ? { seenByBand: input.effects.seen } : {}),
+    grid,
+    inSite,
+    sameExposures: (e) => sameExposures(input, e),
+    finish: () => {
+      started.join(sweepBands);
+      return {
+        gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip,
+        ...(input.flags ? { flags: input.flags } : {}),
+        ...(input.effects ? { seenByBand: input.effects.seen } : {}),
+      };
+    },
+    cancel: started.cancel,
   };
+}
+
+/** True when `e` are the photos of `input`, to the bit (Object.is: NaN equals NaN, 0 is not -0). */
+function sameExposures(input: SweepInput, e: readonly Exposure[]): boolean {
+  if (e.length !== input.ex.length) return false;
+  const same = Object.is;
+  for (let i = 0; i < e.length; i++) {
+    const p = e[i];
+    if (!(same(p.x, input.ex[i]) && same(p.y, input.ey[i]) && same(p.altitudeAmslM, input.ez[i]) && same(p.ux, input.eux[i]) && same(p.uy, input.euy[i]) && p.strip === input.strip[i])) return false;
+  }
+  return true;
 }

@@ -35,7 +35,7 @@ import { clearanceFloorM } from "../solve/clearance.js";
 import { solveInBestStripOrder } from "./stripOrder.js";
 import { toleranceToFitBudget } from "../solve/budget.js";
 import type { SolvedLeg, SolveResult, SolverOptions, SolveWarning } from "../solve/types.js";
-import { assessPlan, siteMaskFor } from "../assess/assess.js";
+import { assessPlan, siteMaskFor, startAssessmentSweep, type AssessOptions } from "../assess/assess.js";
 import { bandPool, type BandPool } from "../assess/bandThreads.js";
 import { sweepThreads } from "../assess/coverage.js";
 import { photoPhaseOn, type AssessedLeg } from "../assess/exposures.js";
@@ -322,6 +322,40 @@ async function planLoaded(ctx: {
   const inSite = siteMask();
   const takeoffGround = solvedBlocks[0].groundM;
   const baselineRun = constantAltitudeBaselineInBackground(grid, layout, camera, requirement, baselineOptions, inSite, earlyBaseline);
+  let reportMaps: (() => Promise<ReportMapsAndLayers | undefined>) | undefined;
+  let polygonsMade: Background<FlagPolygons> = NOT_IN_BACKGROUND;
+  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
+  // The comparison shows the plan's own ceiling breaches: under the ground and surface rules
+  // they are counted in the statistics' pass (GSD at or above the breach threshold).
+  const breachGsdCm = ceilingBreachGsdCm(camera.ifov, { ceiling: options.ceiling, takeoffGroundM: takeoffGround });
+  const assessOptions: AssessOptions = {
+    triggerM,
+    minImages: options.minImages,
+    zoneHalfAcrossM: zoneHalfAcrossM(spacingM, triggerM),
+    toWgs84: frame.toWgs84,
+    // The nearest nadir point splits the ground between strips at the midline, as the
+    // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
+    nadirBy: "distance",
+    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
+    bandPool: bands,
+    ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
+    inSite,
+    ...(breachGsdCm !== undefined ? { countGsdAtLeastCm: breachGsdCm } : {}),
+    ...(gsdTally ? { gsdTally } : {}),
+    // The flag polygons (below), the report's maps and the DEM's layers are made on the other
+    // core while the statistics are made.
+    polygons: false,
+    onRasters: (r) => {
+      polygonsMade = flagPolygonsInBackground({ flags: r.flags, width: r.width, height: r.height, transform: r.transform, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2 }, hooks.threads);
+      maps.withRasters(r);
+      reportMaps = maps.result;
+    },
+  };
+  // The assessment's footprint sweep starts now on the band workers, from the solved strips'
+  // photos, while this thread routes and checks the waypoints (the other core is otherwise
+  // idle then); the assessment takes it over when the flights' legs place the same photos to
+  // the bit (they do unless a strip is cut between two flights), else makes it afresh.
+  const early = startAssessmentSweep(grid, site.local, solve.legs as AssessedLeg[], camera, requirement, assessOptions);
   const transitWarnings = new WeakMap<SolvedLeg, SolveWarning[]>();
   const splits = solvedBlocks.map((b) =>
     splitFlights(b.solve.legs, {
@@ -370,36 +404,8 @@ async function planLoaded(ctx: {
   lap("verify");
 
   stage("assess");
-  let reportMaps: (() => Promise<ReportMapsAndLayers | undefined>) | undefined;
-  let polygonsMade: Background<FlagPolygons> = NOT_IN_BACKGROUND;
   const flownLegs = flights.flights.flatMap((f) => f.legs);
-  const cellAreaM2 = grid.cellSizeM[0] * grid.cellSizeM[1];
-  // The comparison shows the plan's own ceiling breaches: under the ground and surface rules
-  // they are counted in the statistics' pass (GSD at or above the breach threshold).
-  const breachGsdCm = ceilingBreachGsdCm(camera.ifov, { ceiling: options.ceiling, takeoffGroundM: takeoffGround });
-  const assessed = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, {
-    triggerM,
-    minImages: options.minImages,
-    zoneHalfAcrossM: zoneHalfAcrossM(spacingM, triggerM),
-    toWgs84: frame.toWgs84,
-    // The nearest nadir point splits the ground between strips at the midline, as the
-    // solver's zones do; the view-angle choice would hand zone edges to a higher strip.
-    nadirBy: "distance",
-    ...(hooks.threads !== undefined ? { threads: hooks.threads } : {}),
-    bandPool: bands,
-    ...(layout.keepOutCuts ? { keepOut: { cuts: layout.keepOutCuts, footprintAcrossM: fp.acrossM, footprintAlongM: fp.alongM } } : {}),
-    inSite,
-    ...(breachGsdCm !== undefined ? { countGsdAtLeastCm: breachGsdCm } : {}),
-    ...(gsdTally ? { gsdTally } : {}),
-    // The flag polygons (below), the report's maps and the DEM's layers are made on the other
-    // core while the statistics are made.
-    polygons: false,
-    onRasters: (r) => {
-      polygonsMade = flagPolygonsInBackground({ flags: r.flags, width: r.width, height: r.height, transform: r.transform, frame: { proj4: frame.proj4, epsg: frame.epsg, name: frame.name }, cellAreaM2 }, hooks.threads);
-      maps.withRasters(r);
-      reportMaps = maps.result;
-    },
-  });
+  const assessed = assessPlan(grid, site.local, flownLegs as AssessedLeg[], camera, requirement, { ...assessOptions, early });
   // No rasters handed over (none were made): the maps' worker is not left waiting for them.
   if (!reportMaps) maps.cancel();
   const r = assessed.rasters;
