@@ -17,7 +17,7 @@ import { workerResourceLimits } from "../workerHeap.js";
  */
 
 /** Which band loop a worker runs (coverageWorker.ts maps each to its function). */
-export type BandKind = "sweep" | "stats" | "heading";
+export type BandKind = "sweep" | "stats" | "gather" | "heading";
 
 const MIN_CELLS_FOR_THREADS = 1_000_000;
 const workerUrl = new URL("./coverageWorker.js", import.meta.url);

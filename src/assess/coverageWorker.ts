@@ -2,6 +2,7 @@ import { parentPort } from "node:worker_threads";
 import type { BandJob } from "./bandThreads.js";
 import { sweepBands, type SweepInput } from "./coverageKernel.js";
 import { statsPassBands, type StatsPassJob } from "./stats.js";
+import { gatherBands, type GatherJob } from "./quantiles.js";
 import { headingTerrainBands, type HeadingTerrainJob } from "../layout/headingTerrain.js";
 
 /**
@@ -13,6 +14,7 @@ parentPort?.on("message", ({ kind, input, next, bands, done, slot }: BandJob) =>
   try {
     if (kind === "sweep") sweepBands(input as SweepInput, next, bands);
     else if (kind === "stats") statsPassBands(input as StatsPassJob, next, bands, slot);
+    else if (kind === "gather") gatherBands(input as GatherJob, next, bands, slot);
     else headingTerrainBands(input as HeadingTerrainJob, next, bands);
     Atomics.store(done, slot, 1);
   } catch {

@@ -78,7 +78,24 @@ export function radixBinOfValue(v: number): number {
 
 /** The first-pass bin of a float32's raw bits: bins order like the values (NaN excluded by the caller). */
 export function radixBin(bits: number): number {
-  return sortKey(bits) >>> 16;
+  return sortKey(bits) >>> RADIX_SHIFT;
+}
+
+/** Low bits of the sort key radixBin drops: its bins are 1/128 of a doubling (7 bits of the fraction kept). */
+export const RADIX_SHIFT = 16;
+
+/**
+ * A float32's sort key (its raw bits with the sign flip above): keys order like the values,
+ * and key >>> shift is a bin of 2^(23 - shift) a doubling (radixBin: shift 16).
+ * @example float32SortKey(bits) >>> 13 // a bin of 1/1024 of a doubling
+ */
+export function float32SortKey(bits: number): number {
+  return sortKey(bits);
+}
+
+/** The bin (sort key >>> shift) of a number as a float32. */
+export function binOfValue(v: number, shift: number): number {
+  return sortKey(float32Keys(new Float32Array([v]))[0]) >>> shift;
 }
 
 /**
@@ -236,7 +253,7 @@ function selectWithinBins(binOf: readonly number[], within: readonly number[], g
  * (NaN for a group with no values).
  * @example quantilesOfGroups(gsdCm, nadirStrip, inSite, strips, [0, 0.5, 1], siteRadix)
  */
-export function quantilesOfGroups(values: Float32Array, group: ArrayLike<number>, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array): Float64Array {
+export function quantilesOfGroups(values: Float32Array, group: GroupArray, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array): Float64Array {
   let lo = 0;
   while (lo < RADIX_BINS && all[lo] === 0) lo++;
   if (lo === RADIX_BINS) return new Float64Array(groups * ps.length).fill(NaN);
@@ -269,6 +286,12 @@ export interface GroupRadix {
   hist: Uint32Array;
   below: Uint32Array;
   above: Uint32Array;
+  /**
+   * Low bits of the sort key dropped for a bin (float32SortKey): RADIX_SHIFT (the default)
+   * counts radixBin's bins; fewer counts finer ones, whose wanted bins hold fewer values to
+   * gather and select among (the statistics' pass counts the strips' at 13, 1/1024 of a doubling).
+   */
+  shift?: number;
 }
 
 /**
@@ -280,7 +303,7 @@ export interface GroupRadix {
  * quantiles are made by quantilesOfGroups instead (`fromSpans` false). The same figures either way.
  * @example const { all, groups } = quantilesOfAllAndGroups(gsdCm, nadirStrip, inSite, strips, [0, 0.5, 1], siteRadix, stripRadix)
  */
-export function quantilesOfAllAndGroups(values: Float32Array, group: ArrayLike<number>, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array, byGroup?: GroupRadix): { all: number[]; groups: Float64Array; fromSpans: boolean } {
+export function quantilesOfAllAndGroups(values: Float32Array, group: GroupArray, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array, byGroup?: GroupRadix, bands?: GatherBands): { all: number[]; groups: Float64Array; fromSpans: boolean } {
   let n = 0;
   for (let b = 0; b < RADIX_BINS; b++) n += all[b];
   const wantedGroups = byGroup ? groupRanks(byGroup, groups, ps) : undefined;
@@ -288,35 +311,124 @@ export function quantilesOfAllAndGroups(values: Float32Array, group: ArrayLike<n
     const { stats } = orderStatisticsOfRadix(values, { hist: all, n }, (m) => ranksOf(m, ps), include);
     return { all: n === 0 ? ps.map(() => NaN) : interpolate(n, ps, stats), groups: quantilesOfGroups(values, group, include, groups, ps, all), fromSpans: false };
   }
-  const got = gatherWanted(values, group, include, ps, byGroup, wantedGroups, { hist: all, n });
+  const got = gatherWanted(values, group, include, ps, byGroup, wantedGroups, { hist: all, n }, bands);
   return { ...got, fromSpans: true };
+}
+
+/** A group number per value (quantilesOfGroups): a strip number per cell. */
+export type GroupArray = Uint8Array | Uint16Array;
+
+/**
+ * gatherWanted's pass over the values taken band by band on two threads (more would need
+ * room for each thread's share of every bin, or a pass to count it): run by `run` (stats.ts:
+ * runBands("gather", ...) on the statistics' band workers, each thread taking bands with
+ * gatherBands), `bandCells` values a band. The values, groups and mask must then be in
+ * shared memory.
+ */
+export interface GatherBands {
+  bandCells: number;
+  run: (job: GatherJob, bands: number) => void;
+}
+
+/**
+ * gatherWanted's pass as plain typed arrays: which slot each bin goes to (the site's by bin,
+ * each group's by group and bin from `lo`), and where each slot's values go in `out`: slot k
+ * holds out[slotAt[k] .. slotAt[k + 1]), thread 0 filling it from its start and thread 1
+ * from its end (at[t * slots + k]: the next place, moving by +1 or -1), so the two threads'
+ * values meet without a gap or a copy.
+ */
+export interface GatherJob {
+  values: Float32Array;
+  group: GroupArray;
+  include: Uint8Array;
+  lo: number;
+  span: number;
+  /** GroupRadix.shift of the groups' bins. */
+  shift: number;
+  siteSlot: Int32Array;
+  /** The site's slots by the groups' bins (from `lo`), not by radixBin. */
+  siteFine: boolean;
+  groupSlot: Int32Array;
+  slots: number;
+  out: Float32Array;
+  at: Int32Array;
+  bandCells: number;
+}
+
+/**
+ * Takes bands of gatherWanted's pass from the counter until none is left (runBands' loop),
+ * as thread `slot` (0 or 1).
+ * @example runBands("gather", job, bands, 2, gatherBands)
+ */
+export function gatherBands(job: GatherJob, next: Int32Array, bands: number, slot: number): void {
+  const n = job.values.length;
+  for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
+    gatherCells(job, b * job.bandCells, Math.min(n, (b + 1) * job.bandCells), slot);
+  }
+}
+
+/** Values i0 .. i1 - 1 of the wanted bins, put at thread t's places in their slots. */
+function gatherCells(job: GatherJob, i0: number, i1: number, t: number): void {
+  const { values, group, include, lo, span, shift, siteSlot, siteFine, groupSlot, out, at } = job;
+  if (t > 1) throw new Error("gatherCells: two threads at most");
+  const keys = float32Keys(values);
+  const a0 = t * job.slots;
+  const step = t === 0 ? 1 : -1;
+  const site = siteSlot.length > 0;
+  for (let i = i0; i < i1; i++) {
+    if (include[i] === 0) continue;
+    const v = values[i];
+    if (v !== v) continue;
+    const key = sortKey(keys[i]);
+    const b = (key >>> shift) - lo;
+    if (site) {
+      const k = siteFine ? (b >= 0 && b < span ? siteSlot[b] : -1) : siteSlot[key >>> RADIX_SHIFT];
+      if (k >= 0) {
+        out[at[a0 + k]] = v;
+        at[a0 + k] += step;
+      }
+    }
+    if (b >= 0 && b < span) {
+      const kg = groupSlot[group[i] * span + b];
+      if (kg >= 0) {
+        out[at[a0 + kg]] = v;
+        at[a0 + kg] += step;
+      }
+    }
+  }
 }
 
 /**
  * The second pass of quantilesOfGroups and quantilesOfAllAndGroups: gathers the values of the
  * bins holding each group's wanted ranks (and, with `site`, those of all values' first pass),
- * in the order they come, and selects within them. Out: `groups` rows of ps.length values (NaN
- * for a group with no values), and all values' quantiles when `site` was given (else none).
+ * and selects within them (the values of a bin in any order: a rank's value is the same). With
+ * `bands`, the pass is shared between two threads (GatherJob). Out: `groups` rows of
+ * ps.length values (NaN for a group with no values), and all values' quantiles when `site`
+ * was given (else none).
  */
 function gatherWanted(
   values: Float32Array,
-  group: ArrayLike<number>,
+  group: GroupArray,
   include: Uint8Array,
   ps: readonly number[],
   byGroup: GroupRadix,
   wanted: ({ n: number } & ReturnType<typeof ranksInBins>)[],
   site?: RadixHistogram,
+  bands?: GatherBands,
 ): { all: number[]; groups: Float64Array } {
   const { lo, span, hist } = byGroup;
   const groups = wanted.length;
-  // Slots of the bins to gather: the site's (by bin) and each group's (by group and bin).
+  // Slots of the bins to gather: the site's (by bin) and each group's (by group and bin). The
+  // site's ranks are found in the groups' bins added up when those are finer and hold them.
   const sizes: number[] = [];
-  const siteW = site ? ranksInBins(site.hist, 0, ranksOf(site.n, ps)) : undefined;
-  const siteSlot = new Int32Array(site ? RADIX_BINS : 0).fill(-1);
+  const siteRanks = site ? ranksOf(site.n, ps) : [];
+  const fine = site && (byGroup.shift ?? RADIX_SHIFT) < RADIX_SHIFT ? ranksInGroupBins(byGroup, groups, site.n, siteRanks) : undefined;
+  const siteW = fine ?? (site ? { ...ranksInBins(site.hist, 0, siteRanks), hist: site.hist } : undefined);
+  const siteSlot = new Int32Array(site ? (fine ? span : RADIX_BINS) : 0).fill(-1);
   for (const b of siteW?.binOf ?? []) {
     if (siteSlot[b] < 0) {
       siteSlot[b] = sizes.length;
-      sizes.push(site!.hist[b]);
+      sizes.push(siteW!.hist[b]);
     }
   }
   const groupSlot = new Int32Array(groups * span).fill(-1);
@@ -329,28 +441,32 @@ function gatherWanted(
       }
     }
   }
-  const gathered = sizes.map((m) => new Float32Array(m));
-  const fill = new Int32Array(sizes.length);
-  const keys = float32Keys(values);
-  for (let i = 0; i < values.length; i++) {
-    if (include[i] === 0) continue;
-    const v = values[i];
-    if (v !== v) continue;
-    const bin = radixBin(keys[i]);
-    if (siteW) {
-      const k = siteSlot[bin];
-      if (k >= 0) gathered[k][fill[k]++] = v;
-    }
-    const b = bin - lo;
-    if (b >= 0 && b < span) {
-      const kg = groupSlot[group[i] * span + b];
-      if (kg >= 0) gathered[kg][fill[kg]++] = v;
-    }
+  const slots = sizes.length;
+  const slotAt = new Int32Array(slots + 1);
+  for (let k = 0; k < slots; k++) slotAt[k + 1] = slotAt[k] + sizes[k];
+  const shared = bands !== undefined;
+  const memory = (bytes: number) => (shared ? new SharedArrayBuffer(bytes) : new ArrayBuffer(bytes));
+  const at = new Int32Array(memory(4 * 2 * slots));
+  for (let k = 0; k < slots; k++) {
+    at[k] = slotAt[k];
+    at[slots + k] = slotAt[k + 1] - 1;
   }
-  // First passes counted on other values than these would select wrongly: refuse them.
-  sizes.forEach((m, k) => {
-    if (fill[k] !== m) throw new Error(`radix histograms do not match the values: slot ${k} counted ${m}, found ${fill[k]}`);
-  });
+  const job: GatherJob = {
+    values, group, include, lo, span, shift: byGroup.shift ?? RADIX_SHIFT, siteSlot, siteFine: fine !== undefined, groupSlot, slots,
+    out: new Float32Array(memory(4 * slotAt[slots])),
+    at,
+    bandCells: bands?.bandCells ?? values.length,
+  };
+  if (bands) bands.run(job, Math.ceil(values.length / job.bandCells));
+  else gatherCells(job, 0, values.length, 0);
+  const gathered: Float32Array[] = [];
+  for (let k = 0; k < slots; k++) {
+    // First passes counted on other values than these would select wrongly: refuse them
+    // (the two threads' values must meet exactly: thread 0's next place is thread 1's last).
+    const found = at[k] - slotAt[k] + (slotAt[k + 1] - 1 - at[slots + k]);
+    if (found !== sizes[k] || at[k] !== at[slots + k] + 1) throw new Error(`radix histograms do not match the values: slot ${k} counted ${sizes[k]}, found ${found}`);
+    gathered.push(job.out.subarray(slotAt[k], slotAt[k + 1]));
+  }
   const out = new Float64Array(groups * ps.length).fill(NaN);
   for (let g = 0; g < groups; g++) {
     const w = wanted[g];
@@ -361,6 +477,28 @@ function gatherWanted(
   if (!site || !siteW) return { all: [], groups: out };
   const siteStats = selectWithinBins(siteW.binOf, siteW.within, (b) => gathered[siteSlot[b]]);
   return { all: interpolate(site.n, ps, siteStats), groups: out };
+}
+
+/**
+ * Where the ranks of all values lie in the groups' bins added up (the bins of the span, from
+ * `lo`), with those sums: when every value is in some group's count (the groups' counts add up
+ * to `n`) and every rank lies within the span; else undefined.
+ */
+function ranksInGroupBins(r: GroupRadix, groups: number, n: number, ranks: readonly number[]): { binOf: number[]; within: number[]; hist: Float64Array } | undefined {
+  const sum = new Float64Array(r.span);
+  let below = 0, above = 0;
+  for (let g = 0; g < groups; g++) {
+    below += r.below[g];
+    above += r.above[g];
+    const row = g * r.span;
+    for (let b = 0; b < r.span; b++) sum[b] += r.hist[row + b];
+  }
+  let inSpan = 0;
+  for (let b = 0; b < r.span; b++) inSpan += sum[b];
+  if (inSpan + below + above !== n) return undefined;
+  const shifted = ranks.map((k) => k - below);
+  if (shifted.some((k) => k < 0 || k >= inSpan)) return undefined;
+  return { ...ranksInBins(sum, 0, shifted), hist: sum };
 }
 
 /**

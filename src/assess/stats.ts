@@ -4,7 +4,7 @@ import { bandThreads, runBands, shareable, type BandPool } from "./bandThreads.j
 import { splitAllowed } from "../background.js";
 import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_KINDS } from "./flags.js";
 import { tallyCounter, tallyEdges, tallyOfSlots, type GsdTallyGrid } from "./gsdTally.js";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, quantilesOfAllAndGroups, radixBin, radixBinOfValue, type GroupRadix } from "./quantiles.js";
+import { RADIX_BINS, RADIX_SHIFT, binOfValue, countStatsOfHistogram, float32Keys, float32SortKey, gatherBands, quantilesOfAllAndGroups, type GatherBands, type GroupRadix } from "./quantiles.js";
 import { zeroFilled } from "../zeroFill.js";
 
 /**
@@ -161,7 +161,8 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
     }
     const g = gsdCm[i];
     if (g !== g) continue;
-    const bin = radixBin(gsdBits[i]);
+    const key = float32SortKey(gsdBits[i]);
+    const bin = key >>> RADIX_SHIFT;
     if (rh + bin === radixAt) radixRun++;
     else {
       radixHist[radixAt] += radixRun;
@@ -169,7 +170,7 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
       radixRun = 1;
     }
     if (stripHist !== undefined && stripBelow !== undefined && stripAbove !== undefined) {
-      const b = bin - spanLo;
+      const b = (key >>> STRIP_BIN_SHIFT) - spanLo;
       if (b < 0) stripBelow[bs + s]++;
       else if (b >= span) stripAbove[bs + s]++;
       else {
@@ -204,11 +205,21 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
 /** Float64 entries between two threads' counts (each thread adds to its own as it goes): 64 bytes, one cache line each. */
 const SLOT_STRIDE = 8;
 
+/**
+ * Bits of the GSD's sort key the strips' first pass drops (quantiles.ts GroupRadix.shift): bins
+ * of 1/1024 of a doubling, eight to the site's radix bin. A strip's GSD spans a few of the
+ * site's bins, so a wanted rank's site-sized bin held a tenth or more of the strip's cells:
+ * at 4 km2 the quantiles' second pass gathered 7.0 M of the 16 M seen cells (28 MB) and
+ * selected among them. The counters cost strips x span (~6 400 bins over the span below) x 4
+ * bytes a thread: 4.3 MB a thread at 4 km2.
+ */
+const STRIP_BIN_SHIFT = 13;
+
 /** The pass's counters of each strip's first radix pass over the bins of `spanCm`, if asked for and not too many. */
 function stripSpanJob(spanCm: [number, number] | undefined, strips: number, threads: number): Pick<StatsPassJob, "spanLo" | "span" | "stripHist" | "stripBelow" | "stripAbove"> {
   if (!spanCm || !(spanCm[0] > 0) || !(spanCm[1] >= spanCm[0]) || !Number.isFinite(spanCm[1])) return {};
-  const spanLo = radixBinOfValue(spanCm[0]);
-  const span = radixBinOfValue(spanCm[1]) - spanLo + 1;
+  const spanLo = binOfValue(spanCm[0], STRIP_BIN_SHIFT);
+  const span = binOfValue(spanCm[1], STRIP_BIN_SHIFT) - spanLo + 1;
   if (strips * span > MAX_STRIP_BINS) return {};
   return {
     spanLo, span,
@@ -315,9 +326,13 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   // with a wanted rank beyond that span, quantilesOfGroups): no copy of the GSD grouped by
   // strip (4 bytes a seen cell) is made.
   const byStrip: GroupRadix | undefined = job.stripHist && job.stripBelow && job.stripAbove && job.span !== undefined && job.spanLo !== undefined
-    ? { lo: job.spanLo, span: job.span, hist: sumOfSlots(job.stripHist, threads), below: sumOfSlots(job.stripBelow, threads), above: sumOfSlots(job.stripAbove, threads) }
+    ? { lo: job.spanLo, span: job.span, shift: STRIP_BIN_SHIFT, hist: sumOfSlots(job.stripHist, threads), below: sumOfSlots(job.stripBelow, threads), above: sumOfSlots(job.stripAbove, threads) }
     : undefined;
-  const q = quantilesOfAllAndGroups(gsdCm, nadirStrip, inSite, S, QUANTILES, radixHist, byStrip);
+  // Its pass over the cells on two of the statistics' pass's threads, band by band.
+  const gather: GatherBands | undefined = threads > 1
+    ? { bandCells: job.bandCells, run: (g, gatherBandCount) => runBands("gather", g, gatherBandCount, 2, gatherBands, input.bandPool) }
+    : undefined;
+  const q = quantilesOfAllAndGroups(job.gsdCm, job.nadirStrip, job.inSite, S, QUANTILES, radixHist, byStrip, gather);
   const siteGsd = gsdStats(q.all);
   const stripQuantiles = q.groups;
   const stripGsd = (s: number): GsdStats => gsdStats(stripQuantiles.subarray(s * QUANTILES.length, (s + 1) * QUANTILES.length));

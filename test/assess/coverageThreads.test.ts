@@ -59,6 +59,11 @@ describe.skipIf(!HAS_DIST)("coverage split over worker threads", () => {
     // ... whether the pass over the cells runs on one thread or takes the bands on three.
     expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 1 })).toEqual(st);
     expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 3 })).toEqual(st);
+    // ... and with the strips' first pass counted in it (their finer bins), the quantiles' second
+    // pass then shared between two of those threads.
+    const spans = { stripSpanCm: [0.25, 20] as [number, number] };
+    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 3, ...spans })).toEqual(st);
+    expect(assessmentStats({ ...statsIn, seenByBand: twoD.seenByBand, threads: 1, ...spans })).toEqual(st);
     // Each strip's GSD quantiles (taken by strips on three threads above) against a sort of
     // the strip's values: type 7 of Hyndman & Fan (1996), numpy's default.
     const type7 = (v: number[], p: number) => {

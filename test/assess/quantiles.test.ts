@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { RADIX_BINS, countStatsOfHistogram, float32Keys, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfAllAndGroups, quantilesOfGroups, radixBin, radixBinOfValue, type GroupRadix } from "../../src/assess/quantiles.js";
+import { RADIX_BINS, RADIX_SHIFT, binOfValue, countStatsOfHistogram, float32Keys, float32SortKey, gatherBands, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfAllAndGroups, quantilesOfGroups, radixBin, radixBinOfValue, type GatherBands, type GroupRadix } from "../../src/assess/quantiles.js";
 
 /**
  * Straightforward reference: sort, then interpolate linearly at h = (n - 1) p
@@ -155,7 +155,7 @@ describe("quantiles of every group at once (quantilesOfGroups)", () => {
 describe("quantiles of all values and of every group, the groups' first pass counted over a span (quantilesOfAllAndGroups)", () => {
   // Reference: the values sorted, type 7 of Hyndman & Fan (1996) (sortedQuantile), for all
   // included values and for each group's.
-  function sample(seed0: number, outlierGroup: number | undefined) {
+  function sample(seed0: number, outlierGroup: number | undefined, shift = RADIX_SHIFT, spanFrom = 0.5) {
     let seed = seed0;
     const rnd = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
     const n = 200_000;
@@ -174,14 +174,15 @@ describe("quantiles of all values and of every group, the groups' first pass cou
       values[i] = rnd() < 0.02 ? NaN : g === outlierGroup && far < 0.2 ? 0.01 + 0.01 * rnd() : far < 0.001 ? (rnd() < 0.5 ? 0.6 : 9.5) : rnd() < 0.8 ? 2.5 + 0.01 * (rnd() - 0.5) : 1.5 + 2 * rnd();
     }
     const all = new Uint32Array(RADIX_BINS);
-    const lo = radixBinOfValue(0.5), span = radixBinOfValue(10) - lo + 1;
-    const byGroup: GroupRadix = { lo, span, hist: new Uint32Array(groups * span), below: new Uint32Array(groups), above: new Uint32Array(groups) };
+    // The groups' bins: radixBin's (shift 16) or finer (fewer low bits of the sort key dropped).
+    const lo = binOfValue(spanFrom, shift), span = binOfValue(10, shift) - lo + 1;
+    const byGroup: GroupRadix = { lo, span, hist: new Uint32Array(groups * span), below: new Uint32Array(groups), above: new Uint32Array(groups), ...(shift !== RADIX_SHIFT ? { shift } : {}) };
     const keys = float32Keys(values);
     for (let i = 0; i < n; i++) {
       if (!include[i] || values[i] !== values[i]) continue;
       const bin = radixBin(keys[i]);
       all[bin]++;
-      const b = bin - lo;
+      const b = (float32SortKey(keys[i]) >>> shift) - lo;
       if (b < 0) byGroup.below[group[i]]++;
       else if (b >= span) byGroup.above[group[i]]++;
       else byGroup.hist[group[i] * span + b]++;
@@ -233,6 +234,56 @@ describe("quantiles of all values and of every group, the groups' first pass cou
       ps.forEach((p, k) => expect(got.groups[g * ps.length + k], `group ${g} p ${p}`).toBe(v.length ? sortedQuantile(v, p) : NaN));
     }
   });
+
+  // The statistics' pass counts the strips' bins at 1/1024 of a doubling (shift 13): a wanted
+  // rank's bin then holds few values to gather, and the site's ranks are found in the groups'
+  // bins added up. The same figures as the sorted values', with values below the span (a span
+  // from 1.0 leaves half the 0.6 values below it) or without.
+  for (const spanFrom of [0.5, 1.0]) {
+    it(`equal the sorted quantiles from the groups' finer bins, the site's too (span from ${spanFrom})`, () => {
+      const s = sample(5, undefined, 13, spanFrom);
+      expect(s.byGroup.span).toBeGreaterThan(8 * 200);
+      // Below the span: the extremes lie there, so only the inner quantiles are asked.
+      const ps = spanFrom === 1.0 ? [0.05, 0.5, 0.95] : PS;
+      if (spanFrom === 1.0) expect(s.byGroup.below[0]).toBeGreaterThan(10);
+      const got = quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, ps, s.all, s.byGroup);
+      expect(got.fromSpans).toBe(true);
+      checkAgainstSorted(s, got, ps);
+    });
+  }
+
+  // The second pass shared between two threads (stats.ts runs it on its band workers), here
+  // taken in turn on this one: thread 1 takes the last bands, filling its bins from their
+  // ends, thread 0 the first, from their starts.
+  for (const shift of [RADIX_SHIFT, 13]) {
+    it(`equal the sorted quantiles with the second pass split between two threads (shift ${shift})`, () => {
+      const s = sample(7, undefined, shift);
+      const bandCells = 10_007;
+      const bands: GatherBands = {
+        bandCells,
+        run: (job, count) => {
+          const half = count >> 1;
+          gatherBands(job, Int32Array.of(half), count, 1);
+          gatherBands(job, Int32Array.of(0), half, 0);
+        },
+      };
+      const got = quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup, bands);
+      expect(got.fromSpans).toBe(true);
+      checkAgainstSorted(s, got);
+      // A thread that misses its bands leaves the bins short: refused.
+      const short: GatherBands = { bandCells, run: (job, count) => gatherBands(job, Int32Array.of(1), count, 1) };
+      expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup, short)).toThrow(/do not match/);
+    });
+  }
+
+  function checkAgainstSorted(s: ReturnType<typeof sample>, got: ReturnType<typeof quantilesOfAllAndGroups>, ps = PS): void {
+    const every = s.sorted(() => true);
+    ps.forEach((p, k) => expect(got.all[k], `all p ${p}`).toBe(sortedQuantile(every, p)));
+    for (let g = 0; g < s.groups; g++) {
+      const v = s.sorted((i) => s.group[i] === g);
+      ps.forEach((p, k) => expect(got.groups[g * ps.length + k], `group ${g} p ${p} of ${v.length}`).toBe(v.length ? sortedQuantile(v, p) : NaN));
+    }
+  }
 
   it("refuse first passes that do not match the values", () => {
     const s = sample(5, undefined);
