@@ -21,6 +21,7 @@ import {
   type StationProfile,
   type Waypoint,
 } from "./types.js";
+import { shapedSolverOptions } from "./optionsShape.js";
 import { gsdRange, validateSolverOptions } from "./validate.js";
 
 /**
@@ -79,8 +80,9 @@ function newPiece(
  * local rules, airspace and the pilot in command decide.
  * @example solvePlan(grid, layout.legs, opts).legs[1].waypoints
  */
-export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions): SolveResult {
-  validateSolverOptions(opts);
+export function solvePlan(grid: DemGrid, legs: LayoutLeg[], given: SolverOptions): SolveResult {
+  validateSolverOptions(given);
+  const opts = shapedSolverOptions(given);
   const work = opts.assumeGroundM !== undefined ? nodataFilled(grid, opts.assumeGroundM) : grid;
   const warnings: SolveWarning[] = [];
   const pieces: Piece[] = [];
@@ -137,21 +139,7 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
   });
 
   const out: SolvedLeg[] = pieces.map((p, i) => buildLeg(p, paths[i]!, vertices[i]!, opts));
-  const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
-  for (const leg of out) {
-    for (const t of leg.trimmed ?? []) for (let k = 0; k < t.status.length; k++) if (t.status[k] === STATUS_UNFLYABLE) counts.unflyable++;
-    if (leg.kind !== "strip" && !leg.conflictGap) continue;
-    // A routed bridge flies elsewhere: count the strip's stations it skipped, as a straight one would.
-    const st = (leg.skipped ?? leg.profile).status;
-    const n = st.length;
-    for (let k = 0; k < n; k++) {
-      // A gap shares its end stations with the strips beside it: count only its own.
-      if (leg.conflictGap && st[k] !== STATUS_UNFLYABLE) continue;
-      if (st[k] === STATUS_OK) counts.ok++;
-      else if (st[k] === STATUS_DETAIL_LIMITED) counts.detailLimited++;
-      else counts.unflyable++;
-    }
-  }
+  const counts = stationCounts(out);
   ceilingBreaches(out, warnings);
   warnings.push({
     code: "ceiling-rule",
@@ -170,6 +158,31 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
 }
 
 /**
+ * The stations of the solved strips (and bridges) by status. Apart from solvePlan: a loop over
+ * every station made solvePlan hot mid-call, and the code after it, first reached once the
+ * engine had compiled the loop, sent solvePlan back to the interpreter at every call
+ * (node --trace-deopt: four times a 4 km2 plan, each then compiled again).
+ */
+function stationCounts(out: readonly SolvedLeg[]): SolveResult["counts"] {
+  const counts = { ok: 0, detailLimited: 0, unflyable: 0 };
+  for (const leg of out) {
+    for (const t of leg.trimmed ?? []) for (let k = 0; k < t.status.length; k++) if (t.status[k] === STATUS_UNFLYABLE) counts.unflyable++;
+    if (leg.kind !== "strip" && !leg.conflictGap) continue;
+    // A routed bridge flies elsewhere: count the strip's stations it skipped, as a straight one would.
+    const st = (leg.skipped ?? leg.profile).status;
+    const n = st.length;
+    for (let k = 0; k < n; k++) {
+      // A gap shares its end stations with the strips beside it: count only its own.
+      if (leg.conflictGap && st[k] !== STATUS_UNFLYABLE) continue;
+      if (st[k] === STATUS_OK) counts.ok++;
+      else if (st[k] === STATUS_DETAIL_LIMITED) counts.detailLimited++;
+      else counts.unflyable++;
+    }
+  }
+  return counts;
+}
+
+/**
  * One transit leg on its own (the legs to and from take-off that flight
  * splitting adds), with clearance over the terrain under it. `startAltM` /
  * `endAltM` pin its ends to the previous leg's end height and the next leg's
@@ -181,9 +194,10 @@ export function solvePlan(grid: DemGrid, legs: LayoutLeg[], opts: SolverOptions)
  * @example solveTransit(grid, { kind: "transit", strip: 3, from, to, lengthM }, opts, 512.4).leg.waypoints
  */
 export function solveTransit(
-  grid: DemGrid, leg: LayoutLeg, opts: SolverOptions, startAltM?: number, endAltM?: number,
+  grid: DemGrid, leg: LayoutLeg, given: SolverOptions, startAltM?: number, endAltM?: number,
 ): { leg: SolvedLeg; warnings: SolveWarning[] } {
-  validateSolverOptions(opts);
+  validateSolverOptions(given);
+  const opts = shapedSolverOptions(given);
   const work = opts.assumeGroundM !== undefined ? nodataFilled(grid, opts.assumeGroundM) : grid;
   const warnings: SolveWarning[] = [];
   const piece = newPiece("transit", leg.strip, false, transitCorridor(work, leg, opts));
