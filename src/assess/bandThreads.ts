@@ -117,6 +117,8 @@ export function startBands<I>(kind: BandKind, input: I, bands: number, threads: 
   workers.start(threads - 1);
   for (let t = 1; t < threads; t++) workers.workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
   let settled = false;
+  // Dropped once settled: a cancelled pass's arrays are not kept by its handle.
+  let job: I | undefined = input;
   const wait = (): boolean => {
     settled = true;
     let failed = false;
@@ -131,14 +133,16 @@ export function startBands<I>(kind: BandKind, input: I, bands: number, threads: 
   };
   return {
     join: (loop) => {
-      if (settled) throw new Error(`${kind}: pass already joined or cancelled`);
-      loop(input, next, bands, 0);
+      if (settled || job === undefined) throw new Error(`${kind}: pass already joined or cancelled`);
+      loop(job, next, bands, 0);
+      job = undefined;
       if (wait()) throw new Error(`${kind}: a worker thread failed`);
     },
     cancel: () => {
       if (settled) return;
       Atomics.store(next, 0, bands);
       wait();
+      job = undefined;
     },
   };
 }

@@ -170,19 +170,29 @@ export function startCoverage(
     input.rowLo.fill(1);
   } else reachOfPhotos(input);
   const started = startBands("sweep", input, bands, threads, opts.bandPool);
+  // Let go on cancel: a dropped sweep's rasters (~180 MB at 4 km2) are not kept while another is made.
+  let job: SweepInput | undefined = input;
+  const live = (): SweepInput => {
+    if (!job) throw new Error("computeCoverage: the sweep was cancelled");
+    return job;
+  };
   return {
     grid,
     inSite,
-    sameExposures: (e) => sameExposures(input, e),
+    sameExposures: (e) => sameExposures(live(), e),
     finish: () => {
+      const inp = live();
       started.join(sweepBands);
       return {
-        gsdCm: input.gsdCm, images: input.images, nadirStrip: input.nadirStrip,
-        ...(input.flags ? { flags: input.flags } : {}),
-        ...(input.effects ? { seenByBand: input.effects.seen } : {}),
+        gsdCm: inp.gsdCm, images: inp.images, nadirStrip: inp.nadirStrip,
+        ...(inp.flags ? { flags: inp.flags } : {}),
+        ...(inp.effects ? { seenByBand: inp.effects.seen } : {}),
       };
     },
-    cancel: started.cancel,
+    cancel: () => {
+      started.cancel();
+      job = undefined;
+    },
   };
 }
 

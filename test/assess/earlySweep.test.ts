@@ -87,6 +87,8 @@ describe.skipIf(!HAS_DIST)("the assessment's sweep started ahead", () => {
       const other = watched();
       const redone = assessPlan(grid, site, flown, camera, band, { ...opts, early: other.early });
       expect(other.n).toEqual({ finish: 0, cancel: 1 });
+      // The dropped sweep's handle lets go of its rasters.
+      expect(() => other.early.started.sameExposures([])).toThrow(/cancelled/);
       sameRasters(redone, assessPlan(grid, site, flown, camera, band, opts));
       let differ = 0;
       for (let i = 0; i < fresh.rasters.gsdCm.length; i++) if (!Object.is(fresh.rasters.gsdCm[i], redone.rasters.gsdCm[i])) differ++;
