@@ -575,6 +575,9 @@ function checkTargetReachable(profiles: StationProfile[], o: SolverOptions): voi
       if (z >= p.hardLowM[k]) aboveClearance++;
       lowAgl = Math.min(lowAgl, p.hardLowM[k] - g);
       highAgl = Math.max(highAgl, p.hardHighM[k] - g);
+      // Reachable somewhere on both counts: nothing to refuse (the heights above ground
+      // are for the messages below only). Most plans stop at their first station.
+      if (underCeiling > 0 && aboveClearance > 0) return;
     }
   }
   if (seen === 0) return;
