@@ -332,10 +332,10 @@ export interface GatherBands {
 
 /**
  * gatherWanted's pass as plain typed arrays: which slot each bin goes to (the site's by bin,
- * each group's by group and bin from `lo`), and where each slot's values go in `out`: slot k
- * holds out[slotAt[k] .. slotAt[k + 1]), thread 0 filling it from its start and thread 1
- * from its end (at[t * slots + k]: the next place, moving by +1 or -1), so the two threads'
- * values meet without a gap or a copy.
+ * each group's by group and bin from `lo`), and where each slot's values go in `out`: each
+ * slot has a stretch as long as its first pass counted, thread 0 filling it from its start and
+ * thread 1 from its end (at[t * slots + k]: the next place, moving by +1 or -1), so the two
+ * threads' values meet without a gap or a copy.
  */
 export interface GatherJob {
   values: Float32Array;

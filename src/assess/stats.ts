@@ -80,7 +80,7 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
   tallyGrid?: GsdTallyGrid;
   tallyEdges?: Float64Array;
   tally?: Float64Array;
-  /** Each strip's first radix pass over bins spanLo .. spanLo + span - 1, per slot (strips x span), and its values below and above (strips), if asked for. */
+  /** Each strip's first pass over its finer bins (STRIP_BIN_SHIFT) spanLo .. spanLo + span - 1, per slot (strips x span), and its values below and above (strips), if asked for. */
   spanLo?: number;
   span?: number;
   stripHist?: Uint32Array;
