@@ -54,6 +54,27 @@ describe("splitFlights", () => {
     expect(rows.filter((x) => x.flight === 2)[0]).toMatchObject({ segment: "transit", x: 0, y: 0, strip: 2, index: 1, speedMps: 0 });
   });
 
+  it("flies every strip left in one flight when they fit with the way back from the last, not trying the ways back between", () => {
+    // The way back from strip 2's end takes 1000 s, from the others' 20 s. Strip by strip, a
+    // flight would stop before strip 2; the four strips with the way back from strip 4's end
+    // take 470 s of the 480 s usable: one flight, and only that way back is solved.
+    const asked: XY[] = [];
+    const counting = (from: XY, to: XY, strip: number) => {
+      asked.push(from);
+      return timedLeg("transit", strip, from, to, ALT, from[0] === ends[1][0] && from[1] === ends[1][1] ? 1000 : 20);
+    };
+    const r = splitFlights(path(), { takeoff: T, enduranceMin: 10, transitLeg: counting });
+    expect(r.flights.map((f) => f.strips)).toEqual([[1, 2, 3, 4]]);
+    expect(r.flights[0].timeS).toBe(470);
+    expect(asked).toEqual([ends[3]]);
+    // Without room for all four (300 s), strip by strip as before: the way back from each strip
+    // end tried in turn; strip 2 alone with its way back does not fit and flies on with strip 3.
+    asked.length = 0;
+    const short = splitFlights(path(), { takeoff: T, enduranceMin: 5, reservePct: 0, transitLeg: counting });
+    expect(short.flights.map((f) => f.strips)).toEqual([[1], [2, 3], [4]]);
+    for (const e of [ends[0], ends[1], ends[2], ends[3]]) expect(asked).toContainEqual(e);
+  });
+
   it("splits by the autopilot's waypoint limit", () => {
     // A flight of n strips has 2 + 2n rows here (take-off, strip ends, back at take-off).
     const r = splitFlights(path(), { takeoff: T, enduranceMin: 60, maxWaypoints: 6, transitLeg });
