@@ -22,14 +22,27 @@ export function heapBase(): usize {
  * four byte planes, most significant first, each byte differenced from the one before
  * across the whole row): the differences summed in place, then samples c0..c1-1 of each
  * row written as little-endian 32-bit words, row after row, from `dst` (c1 - c0 words a row).
+ * With `mark` not 0, a sample equal to `nodata` or not finite is written as NaN (the bits
+ * 0x7fc00000 a Float32Array stores for NaN), as floatBlocks.ts markNodata does.
  */
-export function floatRows(src: usize, tw: i32, rows: i32, c0: i32, c1: i32, dst: usize): void {
+export function floatRows(src: usize, tw: i32, rows: i32, c0: i32, c1: i32, dst: usize, mark: i32, nodata: f64): void {
   const rowBytes = <usize>(4 * tw);
   const n = <usize>(c1 - c0);
   for (let r = 0; r < rows; r++) {
     const o = src + <usize>r * rowBytes;
+    const d = dst + <usize>r * n * 4;
     sumRow(o, rowBytes);
-    planesToWords(o, <usize>tw, <usize>c0, n, dst + <usize>r * n * 4);
+    planesToWords(o, <usize>tw, <usize>c0, n, d);
+    if (mark != 0) markNodata(d, n, nodata);
+  }
+}
+
+/** Samples at d .. d + 4n - 1 that equal `nodata` (compared as doubles) or are not finite, set to NaN. */
+function markNodata(d: usize, n: usize, nodata: f64): void {
+  for (let i: usize = 0; i < n; i++) {
+    const p = d + (i << 2);
+    const v = load<f32>(p);
+    if (<f64>v == nodata || v - v != 0) store<u32>(p, 0x7fc00000);
   }
 }
 

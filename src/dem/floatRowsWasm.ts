@@ -10,15 +10,16 @@ export interface FloatRows {
   /**
    * Rows `rows` of a block `tw` samples wide, from byte `from` of `bytes` (4 * tw bytes a
    * row), un-predicted: samples c0..c1-1 of each row as 32-bit words (host order), row after
-   * row. The view is the kernel's memory: read it before the next call.
+   * row. With `nodata`, a sample equal to it or not finite comes as NaN (floatBlocks.ts
+   * markNodata's rule and bits). The view is the kernel's memory: read it before the next call.
    */
-  rows(bytes: Uint8Array, from: number, rows: number, tw: number, c0: number, c1: number): Uint32Array;
+  rows(bytes: Uint8Array, from: number, rows: number, tw: number, c0: number, c1: number, nodata?: number): Uint32Array;
 }
 
 interface Exports {
   memory: WasmMemory;
   heapBase: () => number;
-  floatRows: (src: number, tw: number, rows: number, c0: number, c1: number, dst: number) => void;
+  floatRows: (src: number, tw: number, rows: number, c0: number, c1: number, dst: number, mark: number, nodata: number) => void;
 }
 
 /** Where the kernel is, under dist/ (scripts/build-wasm.mjs). */
@@ -34,13 +35,13 @@ export function floatRows(): FloatRows | undefined {
   if (!k) return undefined;
   const { exports: x, base } = k;
   return {
-    rows(bytes, from, rows, tw, c0, c1) {
+    rows(bytes, from, rows, tw, c0, c1, nodata) {
       const len = rows * 4 * tw;
       const dst = align16(base + len);
       const n = c1 - c0;
       ensureMemory(x.memory, dst + 4 * rows * n);
       new Uint8Array(x.memory.buffer, base, len).set(bytes.subarray(from, from + len));
-      x.floatRows(base, tw, rows, c0, c1, dst);
+      x.floatRows(base, tw, rows, c0, c1, dst, nodata === undefined ? 0 : 1, nodata ?? NaN);
       return new Uint32Array(x.memory.buffer, dst, rows * n);
     },
   };

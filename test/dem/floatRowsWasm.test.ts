@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
-import { floatPredictorRow32, placeFloatPredicted } from "../../src/dem/floatBlocks.js";
+import { floatPredictorRow32, markNodata, placeFloatPredicted } from "../../src/dem/floatBlocks.js";
 import { floatRows, FLOAT_ROWS_WASM } from "../../src/dem/floatRowsWasm.js";
 import { wasmKernel } from "../../src/wasmKernel.js";
 
@@ -40,6 +40,7 @@ describe.skipIf(!HAS_WASM)("predictor-3 rows in WebAssembly", () => {
   it("gives the JavaScript rows' words bit for bit", () => {
     const k = floatRows()!;
     let checked = 0;
+    let nonFinite = 0;
     for (const tw of [1, 3, 4, 15, 16, 17, 64, 100, 257]) {
       for (const rows of [1, 2, 5]) {
         for (const [c0, c1] of [[0, tw], [0, 1], [Math.floor(tw / 3), tw], [1, Math.max(1, tw - 1)], [tw - 1, tw]]) {
@@ -52,11 +53,22 @@ describe.skipIf(!HAS_WASM)("predictor-3 rows in WebAssembly", () => {
           for (let r = 0; r < rows; r++) floatPredictorRow32(mine, from + r * rowBytes, rowBytes, 1, tw, c0, c1, js, r * (c1 - c0));
           const got = k.rows(bytes, from, rows, tw, c0, c1);
           expect(Array.from(got), `tw ${tw}, ${rows} rows, columns ${c0}..${c1 - 1}`).toEqual(Array.from(js));
+          // With a nodata value (the first sample's, so some cell holds it), marked as
+          // markNodata marks it, and every non-finite sample the random bytes make: the same bits.
+          const nd = new Float32Array(js.buffer)[0];
+          if (nd === nd) {
+            const marked = js.slice();
+            markNodata(new Float32Array(marked.buffer), 0, marked.length, nd);
+            const gotMarked = k.rows(bytes, from, rows, tw, c0, c1, nd);
+            expect(Array.from(gotMarked), `marked: tw ${tw}, ${rows} rows, columns ${c0}..${c1 - 1}`).toEqual(Array.from(marked));
+            nonFinite += Array.from(new Float32Array(js.buffer)).filter((v) => !Number.isFinite(v)).length;
+          }
           checked++;
         }
       }
     }
     expect(checked).toBeGreaterThan(100);
+    expect(nonFinite).toBeGreaterThan(5);
   });
 
   it("places the same heights as the JavaScript rows, nodata and non-finite cells included (NaN)", () => {
