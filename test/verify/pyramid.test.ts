@@ -68,6 +68,15 @@ describe("the verifier's block pyramid (verify/pyramid.ts)", () => {
       }
       const top = p.levels[p.levels.length - 1];
       expect([top.bw, top.bh]).toEqual([1, 1]);
+      // Without assumed ground the plan passes one array as both (makeSurface): the same
+      // level 0 as the definition gives for it, unknown exactly where unusable.
+      const one = buildPyramid(z, z, width, height).levels[0];
+      const wantOne = bruteLevel0(z, z, width, height);
+      expect(Array.from(one.max)).toEqual(wantOne.max.map((v) => Math.fround(v)));
+      expect(Array.from(one.min)).toEqual(wantOne.min.map((v) => Math.fround(v)));
+      expect(Array.from(one.unusable)).toEqual(wantOne.unusable);
+      expect(Array.from(one.unknown)).toEqual(wantOne.unknown);
+      if (width * height > 500) expect(wantOne.unknown.some((b) => b === 1)).toBe(true);
     });
   }
 });
