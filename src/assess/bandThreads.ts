@@ -116,11 +116,9 @@ export function startBands<I>(kind: BandKind, input: I, bands: number, threads: 
   const workers = pool ?? bandPool();
   workers.start(threads - 1);
   for (let t = 1; t < threads; t++) workers.workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
-  let settled = false;
-  // Dropped once settled: a cancelled pass's arrays are not kept by its handle.
+  // Dropped once joined or cancelled (undefined: settled): a cancelled pass's arrays are not kept by its handle.
   let job: I | undefined = input;
   const wait = (): boolean => {
-    settled = true;
     let failed = false;
     for (let t = 1; t < threads; t++) {
       // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
@@ -133,13 +131,13 @@ export function startBands<I>(kind: BandKind, input: I, bands: number, threads: 
   };
   return {
     join: (loop) => {
-      if (settled || job === undefined) throw new Error(`${kind}: pass already joined or cancelled`);
+      if (job === undefined) throw new Error(`${kind}: pass already joined or cancelled`);
       loop(job, next, bands, 0);
       job = undefined;
       if (wait()) throw new Error(`${kind}: a worker thread failed`);
     },
     cancel: () => {
-      if (settled) return;
+      if (job === undefined) return;
       Atomics.store(next, 0, bands);
       wait();
       job = undefined;

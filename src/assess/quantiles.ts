@@ -73,12 +73,12 @@ export function float32Keys(values: Float32Array): Uint32Array {
 
 /** The first-pass bin of a number as a float32 (radixBin of its bits). */
 export function radixBinOfValue(v: number): number {
-  return radixBin(float32Keys(new Float32Array([v]))[0]);
+  return binOfValue(v, RADIX_SHIFT);
 }
 
 /** The first-pass bin of a float32's raw bits: bins order like the values (NaN excluded by the caller). */
 export function radixBin(bits: number): number {
-  return sortKey(bits) >>> RADIX_SHIFT;
+  return float32SortKey(bits) >>> RADIX_SHIFT;
 }
 
 /** Low bits of the sort key radixBin drops: its bins are 1/128 of a doubling (7 bits of the fraction kept). */
@@ -89,13 +89,15 @@ export const RADIX_SHIFT = 16;
  * and key >>> shift is a bin of 2^(23 - shift) a doubling (radixBin: shift 16).
  * @example float32SortKey(bits) >>> 13 // a bin of 1/1024 of a doubling
  */
-export function float32SortKey(bits: number): number {
-  return sortKey(bits);
+export function float32SortKey(u: number): number {
+  // Negative: invert all bits; positive: set the sign bit (branch-free: the arithmetic
+  // shift spreads the sign bit over the whole mask).
+  return (u ^ ((u >> 31) | 0x80000000)) >>> 0;
 }
 
 /** The bin (sort key >>> shift) of a number as a float32. */
 export function binOfValue(v: number, shift: number): number {
-  return sortKey(float32Keys(new Float32Array([v]))[0]) >>> shift;
+  return float32SortKey(float32Keys(new Float32Array([v]))[0]) >>> shift;
 }
 
 /**
@@ -379,7 +381,7 @@ function gatherCells(job: GatherJob, i0: number, i1: number, t: number): void {
     if (include[i] === 0) continue;
     const v = values[i];
     if (v !== v) continue;
-    const key = sortKey(keys[i]);
+    const key = float32SortKey(keys[i]);
     const b = (key >>> shift) - lo;
     if (site) {
       const k = siteFine ? (b >= 0 && b < span ? siteSlot[b] : -1) : siteSlot[key >>> RADIX_SHIFT];
@@ -598,12 +600,6 @@ function selectRank(a: Float32Array, k: number, lo: number, hi: number): void {
     else if (k >= i) lo = i;
     else return;
   }
-}
-
-function sortKey(u: number): number {
-  // Negative: invert all bits; positive: set the sign bit (branch-free: the arithmetic
-  // shift spreads the sign bit over the whole mask).
-  return (u ^ ((u >> 31) | 0x80000000)) >>> 0;
 }
 
 /**
