@@ -96,18 +96,24 @@ export class BinCounter {
   }
 
   add(v: number): void {
-    const { lo, hi, slots, edges } = this;
+    const k = this.slotOf(v);
+    if (k >= 0) this.slots[k]++;
+  }
+
+  /** The entry of `slots` that counts v, or -1 for a value not counted (NaN, the infinities); larger values never get a smaller entry. */
+  slotOf(v: number): number {
+    const { lo, hi, edges } = this;
     // NaN fails every comparison and is skipped, as are the infinities.
-    if (v < lo) {
-      if (v > -Infinity) slots[this.at]++;
-    } else if (v < hi) {
+    if (v < lo) return v > -Infinity ? this.at : -1;
+    if (v < hi) {
       // Index by multiplication, then correct the slip of one at an edge.
       let b = ((v - lo) * this.inv) | 0;
       if (b > this.last) b = this.last;
       if (v < edges[b]) b--;
       else if (v >= edges[b + 1]) b++;
-      slots[this.base + b]++;
-    } else if (v < Infinity) slots[this.overAt]++;
+      return this.base + b;
+    }
+    return v < Infinity ? this.overAt : -1;
   }
 }
 

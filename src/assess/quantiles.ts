@@ -95,6 +95,16 @@ export function float32SortKey(u: number): number {
   return (u ^ ((u >> 31) | 0x80000000)) >>> 0;
 }
 
+/**
+ * The float32 whose sort key is `key` (float32SortKey undone): keys with the top bit set are
+ * the positive numbers', the others the negative numbers' with every bit inverted.
+ * @example float32OfSortKey(float32SortKey(float32Keys(Float32Array.of(2.5))[0])) // 2.5
+ */
+export function float32OfSortKey(key: number): number {
+  const bits = key >= 0x80000000 ? key - 0x80000000 : ~key >>> 0;
+  return new Float32Array(Uint32Array.of(bits).buffer)[0];
+}
+
 /** The bin (sort key >>> shift) of a number as a float32. */
 export function binOfValue(v: number, shift: number): number {
   return float32SortKey(float32Keys(new Float32Array([v]))[0]) >>> shift;

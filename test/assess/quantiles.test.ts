@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { RADIX_BINS, RADIX_SHIFT, binOfValue, countStatsOfHistogram, float32Keys, float32SortKey, gatherBands, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfAllAndGroups, quantilesOfGroups, radixBin, radixBinOfValue, type GatherBands, type GroupRadix } from "../../src/assess/quantiles.js";
+import { RADIX_BINS, RADIX_SHIFT, binOfValue, countStatsOfHistogram, float32Keys, float32OfSortKey, float32SortKey, gatherBands, orderStatistics, orderStatisticsOfRadix, quantilesFloat32, quantilesOfAllAndGroups, quantilesOfGroups, radixBin, radixBinOfValue, type GatherBands, type GroupRadix } from "../../src/assess/quantiles.js";
 
 /**
  * Straightforward reference: sort, then interpolate linearly at h = (n - 1) p
@@ -294,5 +294,14 @@ describe("quantiles of all values and of every group, the groups' first pass cou
     hist[0 * span + bin]--;
     hist[1 * span + bin]++;
     expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, { ...s.byGroup, hist })).toThrow(/do not match/);
+  });
+});
+
+describe("float32OfSortKey", () => {
+  it("undoes float32SortKey for every kind of float32 and keeps the keys' order (IEEE 754 binary32)", () => {
+    const values = Float32Array.of(-Infinity, -3.4e38, -2.5, -1e-45, -0, 0, 1e-45, 1.17549435e-38, 0.01, 2.5, 2.5000002, 3.4e38, Infinity);
+    const keys = Array.from(float32Keys(values), (b) => float32SortKey(b));
+    for (let i = 0; i < values.length; i++) expect(Object.is(float32OfSortKey(keys[i]), values[i]), `${values[i]}`).toBe(true);
+    for (let i = 1; i < keys.length; i++) expect(keys[i]).toBeGreaterThan(keys[i - 1]);
   });
 });
