@@ -193,12 +193,18 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
   // Row y of the file is row win.r0 + y of the rasters, from column win.c0.
   const at = (y: number) => (win.r0 + y) * W + win.c0;
   const sizes = overviewSizes(width, height, COG_TILE_SIZE);
+  // Each row's cells before its first site cell and after its last are nodata, written as a
+  // run (TypedArray fill); only those between are read (on an oblique site, half its box).
+  const spans = siteRowSpans(inSite, W, win);
   if (which === "gsd.tif") {
     const g = r.gsdCm;
     const levels = meanPyramid(width, height, sizes, (y, band) => {
       for (let o = 0, rows = band.length / width; o < rows; o++) {
         const base = at(y + o) - o * width;
-        for (let j = o * width; j < (o + 1) * width; j++) band[j] = inSite[base + j] === 1 ? g[base + j] : NaN;
+        const j0 = o * width + spans[2 * (y + o)], j1 = o * width + spans[2 * (y + o) + 1];
+        band.fill(NaN, o * width, j0);
+        for (let j = j0; j < j1; j++) band[j] = inSite[base + j] === 1 ? g[base + j] : NaN;
+        band.fill(NaN, j1, (o + 1) * width);
       }
     });
     return cogFile(levels, Float32Array, grid, crs, {
@@ -214,10 +220,13 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
       // Counts saturate just below nodata.
       for (let o = 0, rows = band.length / width; o < rows; o++) {
         const base = at(y + o) - o * width;
-        for (let j = o * width; j < (o + 1) * width; j++) {
+        const j0 = o * width + spans[2 * (y + o)], j1 = o * width + spans[2 * (y + o) + 1];
+        band.fill(IMAGES_NODATA, o * width, j0);
+        for (let j = j0; j < j1; j++) {
           const c = v[base + j];
           band[j] = inSite[base + j] === 1 ? (c < cap ? c : cap) : IMAGES_NODATA;
         }
+        band.fill(IMAGES_NODATA, j1, (o + 1) * width);
       }
     }, (values, w, h, out) => nearestOverview(values, w, h, IMAGES_NODATA, out));
     return cogFile(levels, Uint16Array, grid, crs, {
@@ -232,10 +241,13 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
     // No cell can be both coarser and finer, so no cell is 255; should one be, it keeps its other bits.
     for (let o = 0, rows = band.length / width; o < rows; o++) {
       const base = at(y + o) - o * width;
-      for (let j = o * width; j < (o + 1) * width; j++) {
+      const j0 = o * width + spans[2 * (y + o)], j1 = o * width + spans[2 * (y + o) + 1];
+      band.fill(FLAGS_NODATA, o * width, j0);
+      for (let j = j0; j < j1; j++) {
         const x = f[base + j];
         band[j] = inSite[base + j] !== 1 ? FLAGS_NODATA : x === FLAGS_NODATA ? x & ~FLAG_FINE : x;
       }
+      band.fill(FLAGS_NODATA, j1, (o + 1) * width);
     }
   }, (values, w, h, out) => orOverview(values, w, h, FLAGS_NODATA, FLAG_FINE, out));
   const items: Record<string, string> = {};
@@ -247,6 +259,25 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
     colorMap: flagColorMap(FLAGS_NODATA),
     band: { description: "assessment flag bits: a cell holds the sum of the values of its FLAG_n items", items },
   });
+}
+
+/**
+ * Per row of the window: the columns (from its left) from the row's first site cell (inSite 1)
+ * to just past its last, [start, end) at 2y and 2y + 1; [width, width) for a row without one.
+ * @example siteRowSpans(Uint8Array.of(0, 1, 1, 0, 0, 0, 0, 0), 4, { c0: 0, r0: 0, width: 4, height: 2 }) // [1, 3, 4, 4]
+ */
+export function siteRowSpans(inSite: Uint8Array, W: number, win: RasterWindow): Int32Array {
+  const spans = new Int32Array(2 * win.height);
+  for (let y = 0; y < win.height; y++) {
+    const base = (win.r0 + y) * W + win.c0;
+    let a = 0;
+    while (a < win.width && inSite[base + a] !== 1) a++;
+    let b = win.width;
+    while (b > a && inSite[base + b - 1] !== 1) b--;
+    spans[2 * y] = a;
+    spans[2 * y + 1] = b;
+  }
+  return spans;
 }
 
 /** Fills `band` with the file's full-resolution rows from row `y` on (whole rows, row-major), nodata in place. */

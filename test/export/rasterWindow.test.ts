@@ -6,7 +6,8 @@ import path from "node:path";
 import { fromArrayBuffer } from "geotiff";
 import { HAS_GDAL } from "../helpers/tools.js";
 import type { AssessmentRasters } from "../../src/assess/types.js";
-import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiff, assessmentGeoTiffChunks, siteWindow } from "../../src/export/geotiffRasters.js";
+import { FLAGS_NODATA, IMAGES_NODATA, assessmentGeoTiff, assessmentGeoTiffChunks, siteRowSpans, siteWindow } from "../../src/export/geotiffRasters.js";
+import { FLAG_FINE } from "../../src/assess/flags.js";
 
 const CRS = { epsg: 32633, proj4: "+proj=utm +zone=33 +datum=WGS84 +units=m +no_defs", geographic: false, name: "WGS 84 / UTM zone 33N" };
 
@@ -106,5 +107,50 @@ describe("assessment GeoTIFFs of a window", () => {
     expect(a.mean).toBeCloseTo(b.mean, 4);
     expect(a.minimum).toBeCloseTo(b.minimum, 4);
     expect(a.maximum).toBeCloseTo(b.maximum, 4);
+  });
+});
+
+describe("the rows' site spans (siteRowSpans) and the files made with them", () => {
+  it("are each row's first site cell to just past its last, empty rows at the window's width", () => {
+    // 6 x 3 window at column 1, row 1 of 8 x 5 rasters: row 0 site cells at 2 and 4 (a gap),
+    // row 1 none, row 2 the whole row.
+    const inSite = new Uint8Array(8 * 5);
+    for (const c of [3, 5]) inSite[1 * 8 + c] = 1;
+    inSite[1 * 8 + 0] = 1; // left of the window: not counted
+    for (let c = 0; c < 8; c++) inSite[3 * 8 + c] = 1;
+    expect(Array.from(siteRowSpans(inSite, 8, { c0: 1, r0: 1, width: 6, height: 3 }))).toEqual([2, 5, 6, 6, 0, 6]);
+  });
+
+  it("hold each site cell's value and nodata elsewhere, rows without site cells and gaps within a row's span included", async () => {
+    // A ring: rows above and below it have no site cell, rows through its middle two runs.
+    const w = 700, h = 600;
+    const n = w * h;
+    const inSite = new Uint8Array(n), gsdCm = new Float32Array(n), images = new Uint16Array(n), flags = new Uint16Array(n);
+    for (let i = 0; i < n; i++) {
+      const c = i % w, rr = Math.floor(i / w);
+      const d = Math.hypot(c - 350, rr - 300);
+      inSite[i] = d <= 250 && d >= 120 ? 1 : 0;
+      // Values outside the site too: the files must not show them.
+      gsdCm[i] = 2 + (i % 97) / 100;
+      images[i] = i % 13;
+      flags[i] = i % 17 === 0 ? FLAGS_NODATA : i % 5 === 0 ? FLAG_FINE : 0;
+    }
+    const ring: AssessmentRasters = { width: w, height: h, transform, gsdCm, images, flags, inSite };
+    const win = { c0: 50, r0: 20, width: 620, height: 570 };
+    for (const name of ["gsd.tif", "images.tif", "flags.tif"] as const) {
+      const { data } = await read(assessmentGeoTiff(ring, CRS, name, win));
+      let wrong = 0;
+      for (let y = 0; y < win.height; y++) {
+        for (let x = 0; x < win.width; x++) {
+          const i = (win.r0 + y) * w + win.c0 + x;
+          const want = name === "gsd.tif" ? (inSite[i] ? gsdCm[i] : NaN)
+            : name === "images.tif" ? (inSite[i] ? images[i] : IMAGES_NODATA)
+            // flags.tif: a cell whose bits read as nodata drops its fine bit (geotiffRasters.ts).
+            : (inSite[i] ? (flags[i] === FLAGS_NODATA ? FLAGS_NODATA & ~FLAG_FINE : flags[i]) : FLAGS_NODATA);
+          if (!Object.is(data[y * win.width + x], want)) wrong++;
+        }
+      }
+      expect(wrong, name).toBe(0);
+    }
   });
 });
