@@ -1,9 +1,8 @@
 import { inBackground, NOT_IN_BACKGROUND, type Background } from "../background.js";
 
 /**
- * Some blocks of a window decoded on a worker thread while the calling thread decodes the
- * others: a window read is most of the load stage, and the floating-point predictor and
- * placing run on the thread that reads (zlib's inflate alone goes to libuv's pool).
+ * A window's blocks decoded on a worker thread and the calling thread at once, each taking
+ * the next block from a shared counter (blockTake.ts): a window read is most of the load stage.
  */
 
 /** One block: where its bytes lie in the file, its tile column and row, the bytes it must decode to. */
@@ -28,14 +27,19 @@ export interface BlockJob {
   outW: number;
   heights: Float32Array;
   nd: number;
+  /** The next block to take (one entry, shared). */
+  next: Int32Array;
+  /** Per block: who took it (blockTake.ts NOT_TAKEN, TAKEN_HERE, TAKEN_BY_WORKER; shared). */
+  taken: Uint8Array;
 }
 
 const workerUrl = new URL("./blockWorker.js", import.meta.url);
 
 /**
- * Starts the worker on `job` (heights in shared memory): result() is true when it
- * placed every block, false or undefined when the caller must decode them itself.
- * @example const bg = blocksInBackground(job); ...; if (!(await bg.result())) for (const b of job.blocks) ...
+ * Starts the worker on `job` (heights, counter and marks in shared memory): result() is true
+ * when it placed every block it took, false or undefined when the caller must decode those
+ * (marked TAKEN_BY_WORKER) itself.
+ * @example const bg = blocksInBackground(job); takeBlocks(job, fd, TAKEN_HERE); if (!(await bg.result())) ...
  */
 export function blocksInBackground(job: BlockJob): Background<boolean> {
   if (!(job.heights.buffer instanceof SharedArrayBuffer)) return NOT_IN_BACKGROUND;

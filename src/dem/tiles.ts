@@ -1,3 +1,4 @@
+import { closeSync, openSync } from "node:fs";
 import { getDecoder, type GeoTIFFImage } from "geotiff";
 import { InputFileError } from "../errors.js";
 import type { DemSource } from "./source.js";
@@ -7,8 +8,9 @@ import type { CellWindow } from "./window.js";
 import { StrictLzwDecoder, withZstdContentSize } from "./zlib-decoder.js";
 import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
 import { blockCellsInWindow, markNodata, placeFloatPredicted } from "./floatBlocks.js";
-import { blocksInBackground, type BlockRef } from "./blocksInBackground.js";
-import { NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
+import { blocksInBackground, type BlockJob, type BlockRef } from "./blocksInBackground.js";
+import { TAKEN_BY_WORKER, TAKEN_HERE, takeBlocks } from "./blockTake.js";
+import { NOT_IN_BACKGROUND, splitAllowed } from "../background.js";
 
 type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array | Float64Array;
 
@@ -119,25 +121,6 @@ export async function decodeWindowDirect(
     await decodeRemote(source, image, client, jobs, sample, decoderFor, blockBytes, place1);
     return true;
   }
-  // A large window of the usual local Deflate DEM (see splitAllowed): the later half of its blocks go to a
-  // worker thread (blocksInBackground), decoded and placed there while this thread does the
-  // rest; should the worker fail, this thread decodes them too (with its own errors).
-  let theirs: BlockRef[] = [];
-  let inWorker: Background<boolean> = NOT_IN_BACKGROUND;
-  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && splitAllowed((win.col1 - win.col0) * (win.row1 - win.row0), threads)) {
-    const later = jobs.splice(Math.ceil(jobs.length / 2));
-    const across = Math.ceil(source.width / tw), down = Math.ceil(source.height / th);
-    const tag = image.isTiled ? "Tile" : "Strip";
-    for (const [tx, ty] of later) {
-      const index = (planar === 2 ? sample * across * down : 0) + ty * across + tx;
-      const length = Number(await fd.loadValueIndexed(`${tag}ByteCounts`, index));
-      // A sparse block (no bytes: geotiff fills it with nodata) stays here.
-      if (length === 0) jobs.push([tx, ty]);
-      else theirs.push({ offset: Number(await fd.loadValueIndexed(`${tag}Offsets`, index)), length, tx, ty, need: blockBytes(ty) });
-    }
-    inWorker = blocksInBackground({ path: source.path, blocks: theirs, tw, th, win: { col0: win.col0, col1: win.col1, row0: win.row0, row1: win.row1 }, sourceHeight: source.height, wc0, wr0, outW, heights, nd });
-    if (inWorker === NOT_IN_BACKGROUND) jobs.push(...theirs.map((b) => [b.tx, b.ty] as [number, number]));
-  }
   const decodeHere = async (list: [number, number][]) => {
     let next = 0;
     const worker = async () => {
@@ -148,9 +131,54 @@ export async function decodeWindowDirect(
     };
     await Promise.all(Array.from({ length: Math.min(IN_FLIGHT, list.length) }, worker));
   };
+  // A large window of the usual local Deflate DEM (see splitAllowed): its blocks are taken
+  // one by one by a worker thread and by this thread, both decoding synchronously straight
+  // into the window (blockTake.ts); sparse blocks (no bytes: geotiff fills them with nodata),
+  // a block this thread could not decode and, should the worker fail, the blocks it took go
+  // through geotiff's reader below (with its errors naming the block).
+  if (words && (source.compressionCode === 8 || source.compressionCode === 32946) && jobs.length >= 8 && splitAllowed((win.col1 - win.col0) * (win.row1 - win.row0), threads)) {
+    const across = Math.ceil(source.width / tw), down = Math.ceil(source.height / th);
+    const tag = image.isTiled ? "Tile" : "Strip";
+    const blocks: BlockRef[] = [];
+    const elsewhere: [number, number][] = [];
+    for (const [tx, ty] of jobs) {
+      const index = (planar === 2 ? sample * across * down : 0) + ty * across + tx;
+      const length = Number(await fd.loadValueIndexed(`${tag}ByteCounts`, index));
+      if (length === 0) elsewhere.push([tx, ty]);
+      else blocks.push({ offset: Number(await fd.loadValueIndexed(`${tag}Offsets`, index)), length, tx, ty, need: blockBytes(ty) });
+    }
+    const job: BlockJob = {
+      path: source.path, blocks, tw, th, win: { col0: win.col0, col1: win.col1, row0: win.row0, row1: win.row1 }, sourceHeight: source.height, wc0, wr0, outW, heights, nd,
+      next: new Int32Array(new SharedArrayBuffer(4)),
+      taken: new Uint8Array(new SharedArrayBuffer(blocks.length)),
+    };
+    // Opened before the worker starts: a file this thread cannot open by its path is read by
+    // geotiff's reader alone, as before.
+    const file = openedForReading(source.path);
+    const inWorker = file === undefined ? NOT_IN_BACKGROUND : blocksInBackground(job);
+    if (file !== undefined && inWorker === NOT_IN_BACKGROUND) closeSync(file);
+    if (file !== undefined && inWorker !== NOT_IN_BACKGROUND) {
+      try {
+        takeBlocks(job, file, TAKEN_HERE, (k) => elsewhere.push([blocks[k].tx, blocks[k].ty]));
+      } finally {
+        closeSync(file);
+      }
+      await decodeHere(elsewhere);
+      if ((await inWorker.result()) !== true) await decodeHere(blocks.filter((_, k) => Atomics.load(job.taken, k) === TAKEN_BY_WORKER).map((b) => [b.tx, b.ty]));
+      return true;
+    }
+  }
   await decodeHere(jobs);
-  if (inWorker !== NOT_IN_BACKGROUND && (await inWorker.result()) !== true) await decodeHere(theirs.map((b) => [b.tx, b.ty]));
   return true;
+}
+
+/** A file descriptor for reading `path`, or undefined where it cannot be opened. */
+function openedForReading(path: string): number | undefined {
+  try {
+    return openSync(path, "r");
+  } catch {
+    return undefined;
+  }
 }
 
 /**
