@@ -7,7 +7,7 @@ import { workerResourceLimits } from "./workerHeap.js";
  * Work started on a worker thread now and awaited later, so one core does it while this
  * thread goes on with the plan. The worker module posts one message, its result, and is
  * ended. Used for the parts of a plan that need only what is known early (the DEM, the
- * final strips, the final rasters): half the blocks of a large DEM window, the
+ * final strips, the final rasters): a share of the blocks of a large DEM window, the
  * constant-altitude comparison, the flag polygons, the report's DEM layers and reduced maps,
  * the small compressed rasters.
  */

@@ -120,10 +120,11 @@ const PASS_CHUNK = 8192;
  * Cells i0..i1-1: a histogram of flag values per strip (strip 0: cells no photo sees) gives
  * every count (flag kinds are read off the 512 bins afterwards instead of testing 9 bits per
  * cell); image counts of site cells with data (their min and median); seen cells in band per
- * strip; the first radix pass of the site's GSD quantiles (quantiles.ts). Neighbouring cells
- * mostly fall in the same entries (strip and flags, radix bin, image count), and an entry
- * incremented cell after cell makes each increment wait for the one before (~5 cycles): so
- * each histogram is added to a run of one entry at a time.
+ * strip; the first radix pass of the site's GSD quantiles (quantiles.ts); each strip's finer
+ * bins and the GSD tally, when asked for. Neighbouring cells mostly fall in the same entries
+ * (strip and flags, radix bin, image count), and an entry incremented cell after cell makes
+ * each increment wait for the one before (~5 cycles): so those histograms are added to a run
+ * of one entry at a time (the strips' finer bins, which change from cell to cell, are not).
  */
 function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number): void {
   const { gsdCm, images, flags, inSite, ground, nadirStrip, flagHist, imageHist, inBandSeen, radixHist, atLeastCm } = job;
@@ -138,7 +139,7 @@ function statsPassCells(job: StatsPassJob, i0: number, i1: number, slot: number)
   const spanLo = job.spanLo ?? 0;
   const span = job.span ?? 0;
   const sh = slot * S * span;
-  // Runs of one entry: image count, strip and flag value, radix bin, strip and bin, strip in band.
+  // Runs of one entry: image count, strip and flag value, radix bin, strip in band.
   let imageAt = ih, imageRun = 0;
   let flagAt = fh, flagRun = 0;
   let radixAt = rh, radixRun = 0;

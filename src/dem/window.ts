@@ -12,7 +12,7 @@ export interface ReadWindowOptions {
   crs?: string;
   /** Extra ground distance added on every side, metres (default 0). */
   marginM?: number;
-  /** Threads the read may use (1: this one only; more: half the blocks on a worker thread; default: that on large windows, see splitAllowed). */
+  /** Threads the read may use (1: this one only; more: the blocks shared with a worker thread, each taking the next; default: that on large windows, see splitAllowed). */
   threads?: number;
 }
 
