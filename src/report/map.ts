@@ -6,7 +6,7 @@
 import type { MultiPolygon, Polygon } from "geojson";
 import type { GeoTransform } from "../dem/grid.js";
 import type { XY } from "../layout/types.js";
-import type { ReportBlock, ReportGrid, ReportLeg } from "./model.js";
+import type { ProfiledLeg, ReportBlock, ReportGrid, ReportLeg } from "./model.js";
 import { TAKEOFF_FROM_WORDS } from "./blocks.js";
 import { contourInterval, contourLines, heightRange, type Polyline } from "./contours.js";
 import { tableColour, viridisTable256 } from "./colour.js";
@@ -148,7 +148,7 @@ export function sitePath(v: MapView, site: Polygon | MultiPolygon, attrs: string
 }
 
 /** Range of height above ground over all strip stations (for the leg colour scale). */
-export function aglRange(legs: ReportLeg[]): [number, number] {
+export function aglRange(legs: readonly ProfiledLeg[]): [number, number] {
   let lo = Infinity;
   let hi = -Infinity;
   for (const leg of legs) {
@@ -165,14 +165,43 @@ export function aglRange(legs: ReportLeg[]): [number, number] {
   return [lo, hi];
 }
 
+/** Classes of height above ground the legs are coloured by (viridis). */
+const AGL_CLASSES = 12;
+
 /**
- * Legs: strips as runs of stations coloured by height above ground (12 viridis classes,
- * so a run of one class is one path), transits dashed, waypoints as dots.
+ * Each leg's runs of stations of one class of height above ground (AGL_CLASSES over `agl`),
+ * as legsLayer draws them: per run the first station's x and y, the last's, and the class;
+ * none for a transit. Made from the stations once (report/serialize.ts compactReportInput),
+ * so report-data.json holds these instead of every station.
+ * @example legRuns(input.legs, aglRange(input.legs))[0] // Float64Array [x0, y0, x1, y1, class, ...]
  */
-export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]): string {
+export function legRuns(legs: readonly ProfiledLeg[], agl: [number, number]): Float64Array[] {
+  const cls = (a: number) => Math.max(0, Math.min(AGL_CLASSES - 1, Math.floor(((a - agl[0]) / (agl[1] - agl[0])) * AGL_CLASSES)));
+  return legs.map((leg) => {
+    if (leg.kind === "transit") return new Float64Array(0);
+    const p = leg.profile;
+    const n = p.s.length;
+    const out: number[] = [];
+    let start = 0;
+    while (start < n - 1) {
+      const c = cls(p.altitudeM[start] - p.groundM[start]);
+      let end = start + 1;
+      while (end < n - 1 && cls(p.altitudeM[end] - p.groundM[end]) === c) end++;
+      // Straight legs: the run's two ends are enough.
+      out.push(p.x[start], p.y[start], p.x[end], p.y[end], c);
+      start = end;
+    }
+    return Float64Array.from(out);
+  });
+}
+
+/**
+ * Legs: strips as runs of stations coloured by height above ground (legRuns: 12 viridis
+ * classes, so a run of one class is one path), transits dashed, waypoints as dots.
+ */
+export function legsLayer(v: MapView, legs: ReportLeg[], legRunsOf: readonly Float64Array[]): string {
   const table = viridisTable256();
-  const classes = 12;
-  const cls = (a: number) => Math.max(0, Math.min(classes - 1, Math.floor(((a - agl[0]) / (agl[1] - agl[0])) * classes)));
+  const classes = AGL_CLASSES;
   const runs: string[][] = Array.from({ length: classes }, () => []);
   let transit = "";
   let bridge = "";
@@ -184,7 +213,8 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
     const pts = leg.waypoints.length >= 2 ? leg.waypoints.map((w) => [w.x, w.y]) : [leg.from, leg.to];
     return pts.map(([x, y], i) => `${i ? "L" : "M"}${vx(v, x)},${vy(v, y)}`).join("");
   };
-  for (const leg of legs) {
+  for (let li = 0; li < legs.length; li++) {
+    const leg = legs[li];
     if (leg.kind === "transit" && leg.conflictGap) {
       bridge += through(leg);
       continue;
@@ -193,19 +223,11 @@ export function legsLayer(v: MapView, legs: ReportLeg[], agl: [number, number]):
       transit += through(leg);
       continue;
     }
-    const p = leg.profile;
-    const n = p.s.length;
     casing += `M${vx(v, leg.from[0])},${vy(v, leg.from[1])}L${vx(v, leg.to[0])},${vy(v, leg.to[1])}`;
-    let start = 0;
-    while (start < n - 1) {
-      const c = cls(p.altitudeM[start] - p.groundM[start]);
-      let end = start + 1;
-      while (end < n - 1 && cls(p.altitudeM[end] - p.groundM[end]) === c) end++;
-      let d = `M${vx(v, p.x[start])},${vy(v, p.y[start])}`;
-      // Straight legs: the run's two ends are enough.
-      d += `L${vx(v, p.x[end])},${vy(v, p.y[end])}`;
-      runs[Number.isFinite(c) ? c : 0].push(d);
-      start = end;
+    const r = legRunsOf[li];
+    for (let k = 0; k < r.length; k += 5) {
+      const c = r[k + 4];
+      runs[Number.isFinite(c) ? c : 0].push(`M${vx(v, r[k])},${vy(v, r[k + 1])}L${vx(v, r[k + 2])},${vy(v, r[k + 3])}`);
     }
     for (const w of leg.waypoints) dots += `<circle cx="${vx(v, w.x)}" cy="${vy(v, w.y)}" r="2.6"/>`;
   }

@@ -83,6 +83,45 @@ export interface ReportProfile {
   cause: Uint8Array;
 }
 
+/**
+ * A strip profile's data: its series binned along the strip (about 320 bins), the flagged
+ * stretches and the waypoints. Typed arrays, so report-data.json keeps every bit (-0 included).
+ */
+export interface StripDrawing {
+  strip: number;
+  /** Bin centres, metres along the strip, and each bin's envelope (the safe side of each bound). */
+  s: Float64Array;
+  ground: Float64Array;
+  hardLow: Float64Array;
+  hardHigh: Float64Array;
+  bandLow: Float64Array;
+  bandHigh: Float64Array;
+  /** Flagged stretches at full station resolution: start, end (metres along) and status, per stretch. */
+  flagged: Float64Array;
+  /** The waypoints: metres along and altitude AMSL, per waypoint. */
+  flight: Float64Array;
+  /** Detail-limited and unflyable stations. */
+  nDetail: number;
+  nUnfly: number;
+  sMax: number;
+  /** The strip's own height range (before padding). */
+  lo: number;
+  hi: number;
+}
+
+/**
+ * What the page draws from the legs' stations (their profiles), made from them once
+ * (serialize.ts compactReportInput): report-data.json holds this instead of every station.
+ */
+export interface ReportDrawing {
+  /** Each strip's profile (profiles.ts stripDrawings), in strip order. */
+  strips: StripDrawing[];
+  /** Height above ground over the strip stations, lowest and highest (map.ts aglRange). */
+  agl: [number, number];
+  /** Per leg, in the legs' order: its runs of one class of height above ground (map.ts legRuns). */
+  runs: Float64Array[];
+}
+
 /** A leg as the report needs it (SolvedLeg satisfies it). */
 export interface ReportLeg {
   kind: "strip" | "transit";
@@ -90,7 +129,8 @@ export interface ReportLeg {
   from: XY;
   to: XY;
   waypoints: { x: number; y: number; s: number; altitudeAmslM: number; groundAmslM: number; heightAboveGroundM: number }[];
-  profile: ReportProfile;
+  /** Every station's figures; absent once the report's input is compacted (its drawing made: ReportInput.drawing). */
+  profile?: ReportProfile;
   lengthM: number;
   /** A transit bridging a stretch of its strip that was skipped as unflyable (SolvedLeg.conflictGap). */
   conflictGap?: boolean;
@@ -99,6 +139,9 @@ export interface ReportLeg {
   /** 1-based block of that flight (absent in report-data written before blocks). */
   block?: number;
 }
+
+/** A leg with its stations (before the report's input is compacted). */
+export type ProfiledLeg = ReportLeg & { profile: ReportProfile };
 
 /** How a block's take-off point was chosen (PlanBlock.takeoffFrom). */
 export type TakeoffFrom = "given" | "layout" | "candidate" | "proposed";
@@ -165,6 +208,8 @@ export interface ReportInput {
   site: Polygon | MultiPolygon;
   /** Legs in flight order (strips and transits). */
   legs: ReportLeg[];
+  /** What the page draws from the legs' stations; made by compactReportInput when absent (from the legs' profiles). */
+  drawing?: ReportDrawing;
   /** Take-off point, local frame. */
   takeoff: XY;
   /** The blocks, each with its take-off point (absent in report-data written before blocks). */

@@ -3,7 +3,7 @@
  * and ceiling), the detail band, the flown altitude through its waypoints, and the
  * stations the solver flagged (detail-limited, unflyable).
  */
-import type { ReportLeg } from "./model.js";
+import type { ProfiledLeg, StripDrawing } from "./model.js";
 import { esc } from "./escape.js";
 import { fixed1, fmt } from "./format.js";
 import { niceStep, ticks } from "./nice.js";
@@ -20,28 +20,38 @@ export interface StripProfile {
 }
 
 /**
- * One SVG per strip (its strip legs joined along the strip direction), in strip order.
+ * One SVG per strip, in strip order, from the strips' drawings (stripDrawings).
  *
- * @example for (const p of stripProfiles(input.legs)) html += p.svg;
+ * @example for (const p of stripProfiles(stripDrawings(input.legs))) html += p.svg;
  */
-export function stripProfiles(legs: ReportLeg[], opts: { sharedScales?: boolean } = {}): StripProfile[] {
-  const byStrip = new Map<number, ReportLeg[]>();
-  // A bridge over an unflyable stretch belongs to its strip's profile: it is where the
-  // strip could not be flown within the bounds.
-  for (const l of legs) if (l.kind === "strip" || l.conflictGap) (byStrip.get(l.strip) ?? byStrip.set(l.strip, []).get(l.strip)!).push(l);
-  const data = [...byStrip.entries()].sort((a, b) => a[0] - b[0]).map(([strip, ls]) => collect(strip, ls));
+export function stripProfiles(data: readonly StripDrawing[], opts: { sharedScales?: boolean } = {}): StripProfile[] {
   // Small multiples share their scales (same metres per unit along and up), so strips can
   // be compared at a glance; a strip shorter than the longest draws shorter.
   if (opts.sharedScales ?? true) {
     const all = { lo: Infinity, hi: -Infinity, sMax: 0 };
     for (const d of data) {
-      all.lo = Math.min(all.lo, d.range.lo);
-      all.hi = Math.max(all.hi, d.range.hi);
+      all.lo = Math.min(all.lo, d.lo);
+      all.hi = Math.max(all.hi, d.hi);
       all.sMax = Math.max(all.sMax, d.sMax);
     }
     return data.map((d) => draw(d, all));
   }
-  return data.map((d) => draw(d, { ...d.range, sMax: d.sMax }));
+  return data.map((d) => draw(d, { lo: d.lo, hi: d.hi, sMax: d.sMax }));
+}
+
+/**
+ * What each strip's profile draws (its strip legs joined along the strip direction), in strip
+ * order: made from the legs' stations once (report/serialize.ts compactReportInput), so
+ * report-data.json holds these instead of every station.
+ *
+ * @example stripDrawings(input.legs)[0].ground // the ground's envelope per bin
+ */
+export function stripDrawings(legs: readonly ProfiledLeg[]): StripDrawing[] {
+  const byStrip = new Map<number, ProfiledLeg[]>();
+  // A bridge over an unflyable stretch belongs to its strip's profile: it is where the
+  // strip could not be flown within the bounds.
+  for (const l of legs) if (l.kind === "strip" || l.conflictGap) (byStrip.get(l.strip) ?? byStrip.set(l.strip, []).get(l.strip)!).push(l);
+  return [...byStrip.entries()].sort((a, b) => a[0] - b[0]).map(([strip, ls]) => collect(strip, ls));
 }
 
 interface Series {
@@ -53,30 +63,18 @@ interface Series {
   bandHigh: number[];
 }
 
-interface Collected {
-  strip: number;
-  ser: Series;
-  flagged: { s0: number; s1: number; status: number }[];
-  flight: [number, number][];
-  nDetail: number;
-  nUnfly: number;
-  sMax: number;
-  /** This strip's own height range (before padding). */
-  range: { lo: number; hi: number };
-}
-
-function collect(strip: number, legs: ReportLeg[]): Collected {
+function collect(strip: number, legs: ProfiledLeg[]): StripDrawing {
   const first = legs[0];
   const L0 = Math.hypot(first.to[0] - first.from[0], first.to[1] - first.from[1]) || 1;
   const ux = (first.to[0] - first.from[0]) / L0;
   const uy = (first.to[1] - first.from[1]) / L0;
-  const off = (l: ReportLeg) => (l.from[0] - first.from[0]) * ux + (l.from[1] - first.from[1]) * uy;
+  const off = (l: ProfiledLeg) => (l.from[0] - first.from[0]) * ux + (l.from[1] - first.from[1]) * uy;
 
   // Envelope per bin (about 450 bins a strip): the safe side of each bound, so the
   // picture never shows more room than the solver had.
   const ser: Series = { s: [], ground: [], hardLow: [], hardHigh: [], bandLow: [], bandHigh: [] };
-  const flagged: { s0: number; s1: number; status: number }[] = [];
-  const flight: [number, number][] = [];
+  const flagged: number[] = [];
+  const flight: number[] = [];
   let total = 0;
   for (const l of legs) total += l.profile.s.length;
   const binSize = Math.max(1, Math.ceil(total / 320));
@@ -115,17 +113,16 @@ function collect(strip: number, legs: ReportLeg[]): Collected {
       let j = i;
       while (j + 1 < n && p.status[j + 1] === st) j++;
       const half = n > 1 ? (p.s[1] - p.s[0]) / 2 : 0;
-      flagged.push({ s0: o + p.s[i] - half, s1: o + p.s[j] + half, status: st });
+      flagged.push(o + p.s[i] - half, o + p.s[j] + half, st);
       if (st === 1) nDetail += j - i + 1;
       else nUnfly += j - i + 1;
       i = j + 1;
     }
-    for (const w of l.waypoints) flight.push([o + w.s, w.altitudeAmslM]);
+    for (const w of l.waypoints) flight.push(o + w.s, w.altitudeAmslM);
     sMax = Math.max(sMax, o + (n ? p.s[n - 1] : l.lengthM));
   }
 
   let lo = Infinity, hi = -Infinity;
-  const range = { lo: 0, hi: 0 };
   const take = (v: number) => {
     if (Number.isFinite(v)) {
       lo = Math.min(lo, v);
@@ -135,7 +132,7 @@ function collect(strip: number, legs: ReportLeg[]): Collected {
   ser.ground.forEach(take);
   ser.bandHigh.forEach(take);
   ser.hardLow.forEach(take);
-  flight.forEach((f) => take(f[1]));
+  for (let k = 1; k < flight.length; k += 2) take(flight[k]);
   // The ceiling only widens the axis when it is near the flight.
   const top0 = hi;
   for (const v of ser.hardHigh) if (Number.isFinite(v) && v <= top0 + 0.35 * (top0 - lo)) hi = Math.max(hi, v);
@@ -143,13 +140,16 @@ function collect(strip: number, legs: ReportLeg[]): Collected {
     lo = (Number.isFinite(lo) ? lo : 0) - 10;
     hi = lo + 20;
   }
-  range.lo = lo;
-  range.hi = hi;
-  return { strip, ser, flagged, flight, nDetail, nUnfly, sMax, range };
+  const f64 = (v: number[]) => Float64Array.from(v);
+  return {
+    strip, s: f64(ser.s), ground: f64(ser.ground), hardLow: f64(ser.hardLow), hardHigh: f64(ser.hardHigh), bandLow: f64(ser.bandLow), bandHigh: f64(ser.bandHigh),
+    flagged: f64(flagged), flight: f64(flight), nDetail, nUnfly, sMax, lo, hi,
+  };
 }
 
-function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): StripProfile {
-  const { strip, ser, flagged, flight, nDetail, nUnfly, sMax } = c;
+function draw(c: StripDrawing, scale: { lo: number; hi: number; sMax: number }): StripProfile {
+  const { strip, flagged, flight, nDetail, nUnfly, sMax } = c;
+  const ser = c;
   const pad = (scale.hi - scale.lo) * 0.08;
   const lo = scale.lo - pad;
   const hi = scale.hi + pad;
@@ -158,8 +158,8 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
   const sy = (z: number) => fixed1(MT + ((hi - Math.max(lo, Math.min(hi, z))) / (hi - lo)) * (H - MT - MB));
 
   // Every path of the strip runs over the same bins: their x texts are made once.
-  const xs = ser.s.map(sx);
-  const area = (upper: number[], lower: number[]): string => {
+  const xs = Array.from(ser.s, sx);
+  const area = (upper: ArrayLike<number>, lower: ArrayLike<number>): string => {
     let d = "";
     let i = 0;
     const n = ser.s.length;
@@ -178,7 +178,7 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
     }
     return d;
   };
-  const line = (vals: number[]): string => {
+  const line = (vals: ArrayLike<number>): string => {
     const parts: string[] = [];
     let pen = false;
     for (let k = 0; k < ser.s.length; k++) {
@@ -195,12 +195,13 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
   const clippedHigh = ser.hardHigh.map((v) => (Number.isFinite(v) ? Math.min(v, hi) : hi));
 
   let flagsSvg = "";
-  for (const f of flagged) {
-    const x0 = +sx(Math.max(0, f.s0));
-    const x1 = +sx(Math.min(sMax, f.s1));
-    const fill = f.status === 2 ? "#d62728" : "#ff9f1c";
+  for (let k = 0; k < flagged.length; k += 3) {
+    const status = flagged[k + 2];
+    const x0 = +sx(Math.max(0, flagged[k]));
+    const x1 = +sx(Math.min(sMax, flagged[k + 1]));
+    const fill = status === 2 ? "#d62728" : "#ff9f1c";
     flagsSvg +=
-      `<rect class="flagged status-${f.status}" x="${x0}" y="${MT}" width="${fixed1(Math.max(1, x1 - x0))}" height="${H - MT - MB}" fill="${fill}" fill-opacity="0.16"/>` +
+      `<rect class="flagged status-${status}" x="${x0}" y="${MT}" width="${fixed1(Math.max(1, x1 - x0))}" height="${H - MT - MB}" fill="${fill}" fill-opacity="0.16"/>` +
       `<rect x="${x0}" y="${MT - 7}" width="${fixed1(Math.max(1, x1 - x0))}" height="5" fill="${fill}"/>`;
   }
   const zStep = niceStep(hi - lo, 5);
@@ -210,8 +211,12 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
     axes += `<line x1="${ML}" x2="${sx(sMax)}" y1="${sy(z)}" y2="${sy(z)}" stroke="#000" stroke-opacity="0.08"/><text x="${ML - 6}" y="${fixed1(+sy(z) + 4)}" text-anchor="end">${fmt(z)}</text>`;
   for (const s of ticks(0, sMax, sStep))
     axes += `<line x1="${sx(s)}" x2="${sx(s)}" y1="${H - MB}" y2="${H - MB + 4}" stroke="#333"/><text x="${sx(s)}" y="${H - MB + 16}" text-anchor="middle">${fmt(s)}</text>`;
-  const flightD = flight.map((f, i) => (i ? "L" : "M") + sx(f[0]) + "," + sy(f[1])).join("");
-  const wps = flight.map((f) => `<circle cx="${sx(f[0])}" cy="${sy(f[1])}" r="3"/>`).join("");
+  let flightD = "";
+  let wps = "";
+  for (let k = 0; k < flight.length; k += 2) {
+    flightD += (k ? "L" : "M") + sx(flight[k]) + "," + sy(flight[k + 1]);
+    wps += `<circle cx="${sx(flight[k])}" cy="${sy(flight[k + 1])}" r="3"/>`;
+  }
 
   const svg =
     `<svg class="profile-svg" viewBox="0 0 ${W} ${H}" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile of strip ${strip}">` +
@@ -226,7 +231,7 @@ function draw(c: Collected, scale: { lo: number; hi: number; sMax: number }): St
     `<path class="flight" d="${flightD}" fill="none" stroke="#111" stroke-width="2"/>` +
     `<g class="wps" fill="#fff" stroke="#111" stroke-width="1.3">${wps}</g>` +
     `<text x="4" y="13" font-weight="600">Strip ${esc(strip)}</text>` +
-    `<text x="${W - MR}" y="13" text-anchor="end" class="small">${fmt(sMax)} m · ${flight.length} waypoints` +
+    `<text x="${W - MR}" y="13" text-anchor="end" class="small">${fmt(sMax)} m · ${flight.length / 2} waypoints` +
     (nDetail || nUnfly ? ` · flagged: ${nDetail} detail-limited, ${nUnfly} unflyable stations` : "") +
     `</text>` +
     `<text x="14" y="${(MT + (H - MT - MB) / 2).toFixed(1)}" transform="rotate(-90 14 ${(MT + (H - MT - MB) / 2).toFixed(1)})" text-anchor="middle" class="small">m AMSL</text>` +

@@ -13,7 +13,7 @@ import { gsdRgba, imagesRgba, pngDataUri } from "./png.js";
 import { demLayers, demLayersKey, type DemLayers } from "./demLayers.js";
 import { maskOutline } from "./contours.js";
 import {
-  aglRange, blockOutlines, blockTakeoffMarkers, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
+  blockOutlines, blockTakeoffMarkers, hatchPattern, keepOutHatch, keepOutLayer, legsLayer, mapSvg, mapView, northArrow, outlinePath,
   rangeCircles, rasterImage, scaleBar, sitePath, takeoffMarker, takeoffTitle, type MapView,
 } from "./map.js";
 import { blocksLegend, gsdLegend, keepOutLegend, sequentialLegend } from "./legend.js";
@@ -186,7 +186,9 @@ export function renderReport(input: ReportInput, layers?: DemLayers): string {
 
   // 1. Map
   const contours = dl.contours;
-  const agl = aglRange(inp.legs);
+  // The drawing made from the legs' stations (compactReportInput made it, when not given).
+  const drawing = inp.drawing!;
+  const agl = drawing.agl;
   // Blocks: with one block the single take-off marker as before; with several, each take-off
   // point numbered and each block's extent outlined. The range circle about every take-off
   // point whenever the plan has a range limit.
@@ -209,7 +211,7 @@ export function renderReport(input: ReportInput, layers?: DemLayers): string {
       site(`fill="#ffffff" fill-opacity="0.12" stroke="#111" stroke-width="2" stroke-dasharray="8 4"`) +
       zoneLayer(view, "main") +
       blockLayer +
-      `<g class="layer" data-layer="legs">${legsLayer(view, inp.legs, agl)}</g>` +
+      `<g class="layer" data-layer="legs">${legsLayer(view, inp.legs, drawing.runs)}</g>` +
       `<g class="layer" data-layer="contours-labels">${contours.labels}</g>` +
       takeoffs +
       overlays,
@@ -307,7 +309,7 @@ export function renderReport(input: ReportInput, layers?: DemLayers): string {
     : "";
 
   // 4. Profiles
-  const profiles = stripProfiles(inp.legs);
+  const profiles = stripProfiles(drawing.strips);
   const profileHtml = profiles
     .map((p) => `<figure class="profile" data-strip="${esc(p.strip)}">${p.svg}</figure>`)
     .join("");

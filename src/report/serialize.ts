@@ -2,10 +2,12 @@
  * `report-data.json`: the report's input written beside the other outputs so that
  * `gsdplan report <out-dir>` can re-render the page without re-running the plan.
  *
- * Chosen over reading the GeoTIFFs back because the report also needs the legs' station
- * profiles, the baseline comparison and the histograms, which no GeoTIFF holds. The file
+ * Chosen over reading the GeoTIFFs back because the report also needs what it draws of the
+ * legs' stations, the baseline comparison and the histograms, which no GeoTIFF holds. The file
  * stays compact: rasters are block-reduced to at most `maxPx` across (downsample.ts), the
- * GSD histogram is computed first at full resolution, and every typed array is stored as
+ * GSD histogram is computed first at full resolution, the legs' stations give way (version 3
+ * on) to what the page draws of them (ReportDrawing: each strip's binned profile, the map's
+ * runs of one height-above-ground class), and every typed array is stored as
  * `{ "$typed": "<Uint16Array|...>", "length": n, "deflate": "<base64 of zlib-deflated little-endian bytes>" }`,
  * floating-point arrays (version 2 on) as `{ "$typed": "<Float32Array|Float64Array>", "length": n,
  * "planes": "<base64 of zlib-deflated byte planes>" }` (bytePlanes below). Version 1 files
@@ -13,16 +15,22 @@
  */
 import { deflateSync, inflateSync } from "node:zlib";
 import { InputFileError } from "../errors.js";
-import type { ReportGrid, ReportInput, ReportRasters } from "./model.js";
+import type { ProfiledLeg, ReportDrawing, ReportGrid, ReportInput, ReportRasters, StripDrawing } from "./model.js";
+import { aglRange, legRuns } from "./map.js";
+import { stripDrawings } from "./profiles.js";
 import { REPORT_MAP_PX, blockFactor, downsampleGrid, downsampleGridAndRasters, downsampleRasters } from "./downsample.js";
 import { backgroundAllowed, inBackgroundWithInput, NOT_IN_BACKGROUND, type Background, type BackgroundWithInput } from "../background.js";
 import type { DemLayers } from "./demLayers.js";
 import { REPORT_GSD_BINS, gsdBinEdges, histogram } from "./histogram.js";
 
 export const REPORT_DATA_FORMAT = "gsdplan-report-data";
-export const REPORT_DATA_VERSION = 2;
-/** The versions parseReportInput reads: 1 (every typed array under "deflate") and 2 (floating-point arrays under "planes"). */
-const READABLE_VERSIONS: readonly number[] = [1, 2];
+export const REPORT_DATA_VERSION = 3;
+/**
+ * The versions parseReportInput reads: 1 (every typed array under "deflate"), 2 (floating-point
+ * arrays under "planes") and 3 (the legs without their stations, the page's drawing of them in
+ * `drawing`).
+ */
+const READABLE_VERSIONS: readonly number[] = [1, 2, 3];
 
 const TYPED = {
   Float64Array,
@@ -106,7 +114,23 @@ export function compactReportInput(input: ReportInput, maxPx = REPORT_MAP_PX, ma
     gsdHistogram,
     dem,
     rasters,
+    ...drawnLegs(input),
   };
+}
+
+/**
+ * The legs without their stations and what the page draws from those (ReportDrawing): made
+ * here once, so report-data.json holds the drawing (~1/4 of the stations' bytes at 4 km2) and
+ * the page is drawn from it alike, directly or from the file. A drawing already made is kept.
+ */
+function drawnLegs(input: ReportInput): Pick<ReportInput, "legs" | "drawing"> {
+  const withoutProfile = input.legs.map(({ profile: _, ...leg }) => leg);
+  if (input.drawing) return { legs: withoutProfile, drawing: input.drawing };
+  const legs = input.legs as ProfiledLeg[];
+  const missing = legs.findIndex((l) => !l.profile);
+  if (missing >= 0) throw new Error(`report input: leg ${missing + 1} has no station profile and the input no drawing`);
+  const agl = aglRange(legs);
+  return { legs: withoutProfile, drawing: { strips: stripDrawings(legs), agl, runs: legRuns(legs, agl) } };
 }
 
 /** The report's DEM and rasters, reduced. */
@@ -278,6 +302,13 @@ function checkShape(inp: Partial<ReportInput> | undefined): string | null {
   if (!(r.flags instanceof Uint8Array || r.flags instanceof Uint16Array) || r.flags.length !== n) return "rasters.flags does not match the raster size";
   if (!(r.inSite instanceof Uint8Array) || r.inSite.length !== n) return "rasters.inSite does not match the raster size";
   if (!Array.isArray(inp.legs)) return "missing legs";
+  if (inp.drawing === undefined) {
+    // Version 1 and 2 files: the page's drawing is made from every leg's stations.
+    if (inp.legs.some((l) => !l || !l.profile || !(l.profile.s instanceof Float64Array || l.profile.s instanceof Float32Array))) return "a leg has neither its station profile nor the input the legs' drawing";
+  } else {
+    const problem = drawingProblem(inp.drawing, inp.legs.length);
+    if (problem) return problem;
+  }
   if (!inp.site || (inp.site.type !== "Polygon" && inp.site.type !== "MultiPolygon")) return "site must be a Polygon or MultiPolygon";
   return (
     (inp.keepOut === undefined ? null : keepOutProblem(inp.keepOut)) ??
@@ -286,6 +317,25 @@ function checkShape(inp: Partial<ReportInput> | undefined): string | null {
     (inp.blocks === undefined ? null : blocksProblem(inp.blocks)) ??
     (inp.flights === undefined ? null : flightsProblem(inp.flights, inp.blocks))
   );
+}
+
+/** The legs' drawing's shape (ReportDrawing, version 3 on). */
+function drawingProblem(d: unknown, legs: number): string | null {
+  const x = d as Partial<ReportDrawing> | null;
+  if (!x || typeof x !== "object") return "drawing must be an object";
+  if (!Array.isArray(x.agl) || x.agl.length !== 2 || !x.agl.every(isNum)) return "drawing.agl must be two numbers";
+  if (!Array.isArray(x.runs) || x.runs.length !== legs || !x.runs.every((r) => r instanceof Float64Array && r.length % 5 === 0)) return "drawing.runs must hold five numbers a run for every leg";
+  if (!Array.isArray(x.strips)) return "drawing.strips must be a list";
+  for (let i = 0; i < x.strips.length; i++) {
+    const s = x.strips[i] as Partial<StripDrawing> | null;
+    const at = `drawing.strips[${i}]`;
+    if (!s || typeof s !== "object" || !isNum(s.strip)) return `${at} must be a strip's drawing`;
+    const series = [s.s, s.ground, s.hardLow, s.hardHigh, s.bandLow, s.bandHigh];
+    if (!series.every((a) => a instanceof Float64Array && a.length === s.s!.length)) return `${at}: its series must be arrays of one length`;
+    if (!(s.flagged instanceof Float64Array) || s.flagged.length % 3 !== 0 || !(s.flight instanceof Float64Array) || s.flight.length % 2 !== 0) return `${at}: flagged must hold three numbers a stretch, flight two a waypoint`;
+    if (![s.nDetail, s.nUnfly, s.sMax, s.lo, s.hi].every(isNum)) return `${at}: nDetail, nUnfly, sMax, lo and hi must be numbers`;
+  }
+  return null;
 }
 
 const isNum = (v: unknown) => typeof v === "number";

@@ -39,7 +39,7 @@ function transit(from: XY, to: XY, strip: number): ReportLeg {
 
 /** A strip leg cut at station `i` (a waypoint's station): both pieces keep that station. */
 function splitStrip(leg: ReportLeg, i: number): [ReportLeg, ReportLeg] {
-  const p = leg.profile;
+  const p = leg.profile!;
   const part = (a: number, b: number): ReportLeg => {
     const sl = <T extends Float64Array | Float32Array | Uint8Array>(v: T) => v.slice(a, b) as T;
     const s0 = p.s[a];
@@ -75,7 +75,7 @@ export function makeBlocksInput(): BlocksFixture {
   // Flights of strips: block 1 in threes; block 2's first strip split, then threes.
   const b2 = groups[1];
   const mid = b2[0].waypoints[Math.floor(b2[0].waypoints.length / 2)];
-  const midStation = Math.round(mid.s / (b2[0].profile.s[1] - b2[0].profile.s[0]));
+  const midStation = Math.round(mid.s / (b2[0].profile!.s[1] - b2[0].profile!.s[0]));
   const [firstPiece, resumed] = splitStrip(b2[0], midStation);
   const plan: { block: number; legs: ReportLeg[]; resumes: number | null }[] = [
     { block: 1, legs: groups[0].slice(0, 3), resumes: null },

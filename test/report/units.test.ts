@@ -4,7 +4,8 @@ import { esc, jsonForScript } from "../../src/report/escape.js";
 import { contourInterval, contourLines, maskOutline } from "../../src/report/contours.js";
 import { niceFloor, niceStep } from "../../src/report/nice.js";
 import { histogram } from "../../src/report/histogram.js";
-import { bytePlanes, fromBytePlanes, parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
+import { bytePlanes, compactReportInput, fromBytePlanes, parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
+import { firstDifference } from "../helpers/dist.js";
 import { deflateSync, inflateSync } from "node:zlib";
 import { renderReport } from "../../src/report/render.js";
 import { InputFileError } from "../../src/errors.js";
@@ -125,8 +126,12 @@ describe("report-data.json", () => {
     expect(back.summary).toEqual(input.summary);
     expect(back.rasters.gsdCm).toBeInstanceOf(Float32Array);
     expect(Array.from(back.rasters.flags)).toEqual(Array.from(input.rasters.flags));
-    expect(back.legs[1].profile.altitudeM).toEqual(input.legs[1].profile.altitudeM);
     expect(back.legs.length).toBe(input.legs.length);
+    // The legs go without their stations; what the page draws of them goes instead, every bit kept.
+    expect(back.legs.every((l) => l.profile === undefined)).toBe(true);
+    expect(back.legs[1].waypoints).toEqual(input.legs[1].waypoints);
+    expect(firstDifference(back.drawing, compactReportInput(input).drawing)).toBe("");
+    expect(back.drawing!.strips.length).toBeGreaterThan(1);
   });
   it("block-reduces large rasters and keeps every flag bit", () => {
     const input = makeReportInput();
@@ -166,13 +171,13 @@ describe("report-data.json", () => {
     const input = makeReportInput();
     const text = serializeReportInput(input);
     const doc = JSON.parse(text);
-    expect(doc.version).toBe(2);
+    expect(doc.version).toBe(3);
     expect(Object.keys(doc.input.rasters.gsdCm).sort()).toEqual(["$typed", "length", "planes"]);
-    expect(Object.keys(doc.input.legs[1].profile.altitudeM).sort()).toEqual(["$typed", "length", "planes"]);
+    expect(Object.keys(doc.input.drawing.strips[0].ground).sort()).toEqual(["$typed", "length", "planes"]);
     expect(Object.keys(doc.input.rasters.images).sort()).toEqual(["$typed", "deflate", "length"]);
     const back = parseReportInput(text);
     const bits = (a: Float32Array | Float64Array) => Array.from(new Uint8Array(a.buffer, a.byteOffset, a.byteLength));
-    expect(bits(back.legs[1].profile.groundM)).toEqual(bits(input.legs[1].profile.groundM));
+    expect(bits(back.drawing!.strips[0].ground)).toEqual(bits(compactReportInput(input).drawing!.strips[0].ground));
     expect(bits(back.dem.heights)).toEqual(bits(input.dem.heights));
   });
 
@@ -189,6 +194,38 @@ describe("report-data.json", () => {
     });
     expect(v1).not.toContain('"planes"');
     expect(parseReportInput(v1)).toEqual(parseReportInput(text));
+  });
+});
+
+describe("report-data.json of version 2 (every leg's stations, no drawing)", () => {
+  // Such files were written before the drawing: the page made from one is the page made
+  // directly from the plan's input, as is the page made from version 3.
+  it("gives the same page as the input itself and as version 3", () => {
+    const input = makeReportInput();
+    const v2 = JSON.stringify({ format: "gsdplan-report-data", version: 2, input: { ...input, drawing: undefined } }, (_k, v: unknown) => {
+      if (ArrayBuffer.isView(v)) {
+        const a = v as unknown as { length: number; BYTES_PER_ELEMENT: number };
+        const bytes = new Uint8Array(v.buffer, v.byteOffset, v.byteLength);
+        const float = v instanceof Float64Array || v instanceof Float32Array;
+        return float
+          ? { $typed: v.constructor.name, length: a.length, planes: deflateSync(bytePlanes(bytes, a.BYTES_PER_ELEMENT)).toString("base64") }
+          : { $typed: v.constructor.name, length: a.length, deflate: deflateSync(bytes).toString("base64") };
+      }
+      if (typeof v === "number" && !Number.isFinite(v)) return { $number: String(v) };
+      return v;
+    });
+    expect(v2).toContain('"profile"');
+    expect(v2).not.toContain('"drawing"');
+    const direct = renderReport(input);
+    expect(renderReport(parseReportInput(v2)) === direct).toBe(true);
+    expect(renderReport(parseReportInput(serializeReportInput(input))) === direct).toBe(true);
+  });
+
+  it("is refused, one clear error, when a leg has neither its stations nor the input a drawing", () => {
+    const doc = JSON.parse(serializeReportInput(makeReportInput()));
+    delete doc.input.drawing;
+    expect(() => parseReportInput(JSON.stringify(doc), "out/report-data.json")).toThrow(InputFileError);
+    expect(() => parseReportInput(JSON.stringify(doc), "out/report-data.json")).toThrow(/drawing/);
   });
 });
 
