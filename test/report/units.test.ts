@@ -232,3 +232,54 @@ describe("report-data.json of version 2 (every leg's stations, no drawing)", () 
 function inflate(base64: string): Buffer {
   return inflateSync(Buffer.from(base64, "base64"));
 }
+
+describe("the legs' drawing (compactReportInput)", () => {
+  // Checked against the stations themselves, by what the page shows: the map's coloured runs
+  // and each strip's profile figures.
+  const input = makeReportInput();
+  const drawing = compactReportInput(input).drawing!;
+  const strips = input.legs.filter((l) => l.kind === "strip");
+
+  it("colours the map's legs by height above ground over the strip stations' own range, in runs that follow each strip leg end to end", () => {
+    let lo = Infinity, hi = -Infinity;
+    for (const l of strips) for (let i = 0; i < l.profile!.s.length; i++) {
+      const a = l.profile!.altitudeM[i] - l.profile!.groundM[i];
+      lo = Math.min(lo, a);
+      hi = Math.max(hi, a);
+    }
+    expect(drawing.agl).toEqual([lo, hi]);
+    expect(drawing.runs.length).toBe(input.legs.length);
+    input.legs.forEach((l, k) => {
+      const r = drawing.runs[k];
+      if (l.kind === "transit") return expect(r.length).toBe(0);
+      const p = l.profile!;
+      const n = p.s.length;
+      expect(r.length % 5).toBe(0);
+      expect([r[0], r[1]]).toEqual([p.x[0], p.y[0]]);
+      expect([r[r.length - 3], r[r.length - 2]]).toEqual([p.x[n - 1], p.y[n - 1]]);
+      for (let j = 5; j < r.length; j += 5) expect([r[j], r[j + 1]]).toEqual([r[j - 3], r[j - 2]]);
+      // Each run takes the class (12 over the range) of the station it starts at.
+      for (let j = 0; j < r.length; j += 5) {
+        const i = Array.from(p.x).findIndex((x, m) => x === r[j] && p.y[m] === r[j + 1]);
+        const a = p.altitudeM[i] - p.groundM[i];
+        expect(r[j + 4]).toBe(Math.max(0, Math.min(11, Math.floor(((a - lo) / (hi - lo)) * 12))));
+      }
+    });
+  });
+
+  it("gives each strip its waypoints, its length and its flagged stations", () => {
+    const numbers = [...new Set(strips.map((l) => l.strip))].sort((a, b) => a - b);
+    expect(drawing.strips.map((d) => d.strip)).toEqual(numbers);
+    for (const d of drawing.strips) {
+      const own = strips.filter((l) => l.strip === d.strip);
+      expect(d.flight.length / 2).toBe(own.reduce((n, l) => n + l.waypoints.length, 0));
+      const alts = own.flatMap((l) => l.waypoints.map((w) => w.altitudeAmslM));
+      expect(Array.from(d.flight.filter((_, i) => i % 2 === 1))).toEqual(alts);
+      const count = (st: number) => own.reduce((n, l) => n + Array.from(l.profile!.status).filter((x) => x === st).length, 0);
+      expect([d.nDetail, d.nUnfly]).toEqual([count(1), count(2)]);
+      expect(d.s.length).toBeGreaterThan(10);
+      // The binned ground envelope never shows lower ground than the stations have.
+      expect(Math.max(...d.ground)).toBe(Math.max(...own.flatMap((l) => Array.from(l.profile!.groundM))));
+    }
+  });
+});
