@@ -70,7 +70,7 @@ function collect(strip: number, legs: ProfiledLeg[]): StripDrawing {
   const uy = (first.to[1] - first.from[1]) / L0;
   const off = (l: ProfiledLeg) => (l.from[0] - first.from[0]) * ux + (l.from[1] - first.from[1]) * uy;
 
-  // Envelope per bin (about 450 bins a strip): the safe side of each bound, so the
+  // Envelope per bin (about 320 bins a strip): the safe side of each bound, so the
   // picture never shows more room than the solver had.
   const ser: Series = { s: [], ground: [], hardLow: [], hardHigh: [], bandLow: [], bandHigh: [] };
   const flagged: number[] = [];
@@ -149,7 +149,6 @@ function collect(strip: number, legs: ProfiledLeg[]): StripDrawing {
 
 function draw(c: StripDrawing, scale: { lo: number; hi: number; sMax: number }): StripProfile {
   const { strip, flagged, flight, nDetail, nUnfly, sMax } = c;
-  const ser = c;
   const pad = (scale.hi - scale.lo) * 0.08;
   const lo = scale.lo - pad;
   const hi = scale.hi + pad;
@@ -158,11 +157,11 @@ function draw(c: StripDrawing, scale: { lo: number; hi: number; sMax: number }):
   const sy = (z: number) => fixed1(MT + ((hi - Math.max(lo, Math.min(hi, z))) / (hi - lo)) * (H - MT - MB));
 
   // Every path of the strip runs over the same bins: their x texts are made once.
-  const xs = Array.from(ser.s, sx);
+  const xs = Array.from(c.s, sx);
   const area = (upper: ArrayLike<number>, lower: ArrayLike<number>): string => {
     let d = "";
     let i = 0;
-    const n = ser.s.length;
+    const n = c.s.length;
     while (i < n) {
       while (i < n && !(Number.isFinite(upper[i]) && Number.isFinite(lower[i]))) i++;
       let j = i;
@@ -181,7 +180,7 @@ function draw(c: StripDrawing, scale: { lo: number; hi: number; sMax: number }):
   const line = (vals: ArrayLike<number>): string => {
     const parts: string[] = [];
     let pen = false;
-    for (let k = 0; k < ser.s.length; k++) {
+    for (let k = 0; k < c.s.length; k++) {
       if (!Number.isFinite(vals[k]) || vals[k] > hi || vals[k] < lo) {
         pen = false;
         continue;
@@ -191,8 +190,8 @@ function draw(c: StripDrawing, scale: { lo: number; hi: number; sMax: number }):
     }
     return parts.join("");
   };
-  const floor = ser.ground.map(() => lo);
-  const clippedHigh = ser.hardHigh.map((v) => (Number.isFinite(v) ? Math.min(v, hi) : hi));
+  const floor = c.ground.map(() => lo);
+  const clippedHigh = c.hardHigh.map((v) => (Number.isFinite(v) ? Math.min(v, hi) : hi));
 
   let flagsSvg = "";
   for (let k = 0; k < flagged.length; k += 3) {
@@ -222,11 +221,11 @@ function draw(c: StripDrawing, scale: { lo: number; hi: number; sMax: number }):
     `<svg class="profile-svg" viewBox="0 0 ${W} ${H}" xmlns="http://www.w3.org/2000/svg" role="img" aria-label="Profile of strip ${strip}">` +
     `<rect x="${ML}" y="${MT}" width="${(+sx(sMax) - ML).toFixed(1)}" height="${H - MT - MB}" fill="#fbfbfa"/>` +
     axes +
-    `<path class="corridor" d="${area(clippedHigh, ser.hardLow)}" fill="#9ecae1" fill-opacity="0.35"/>` +
-    `<path class="band" d="${area(ser.bandHigh, ser.bandLow)}" fill="#31a354" fill-opacity="0.35"/>` +
-    `<path class="ground" d="${area(ser.ground, floor)}" fill="#b89b72" fill-opacity="0.9" stroke="#6b5236" stroke-width="1"/>` +
-    `<path class="hard-low" d="${line(ser.hardLow)}" fill="none" stroke="#8c510a" stroke-width="1.2" stroke-dasharray="4 3"/>` +
-    `<path class="hard-high" d="${line(ser.hardHigh)}" fill="none" stroke="#c0392b" stroke-width="1.2" stroke-dasharray="7 3"/>` +
+    `<path class="corridor" d="${area(clippedHigh, c.hardLow)}" fill="#9ecae1" fill-opacity="0.35"/>` +
+    `<path class="band" d="${area(c.bandHigh, c.bandLow)}" fill="#31a354" fill-opacity="0.35"/>` +
+    `<path class="ground" d="${area(c.ground, floor)}" fill="#b89b72" fill-opacity="0.9" stroke="#6b5236" stroke-width="1"/>` +
+    `<path class="hard-low" d="${line(c.hardLow)}" fill="none" stroke="#8c510a" stroke-width="1.2" stroke-dasharray="4 3"/>` +
+    `<path class="hard-high" d="${line(c.hardHigh)}" fill="none" stroke="#c0392b" stroke-width="1.2" stroke-dasharray="7 3"/>` +
     flagsSvg +
     `<path class="flight" d="${flightD}" fill="none" stroke="#111" stroke-width="2"/>` +
     `<g class="wps" fill="#fff" stroke="#111" stroke-width="1.3">${wps}</g>` +
