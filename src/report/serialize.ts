@@ -120,8 +120,9 @@ export function compactReportInput(input: ReportInput, maxPx = REPORT_MAP_PX, ma
 
 /**
  * The legs without their stations and what the page draws from those (ReportDrawing): made
- * here once, so report-data.json holds the drawing (~1/4 of the stations' bytes at 4 km2) and
- * the page is drawn from it alike, directly or from the file. A drawing already made is kept.
+ * here once, so report-data.json holds the drawing (at 4 km2 2.2 MB in ~1 700 arrays, against
+ * the stations' 15.5 MB in ~3 800) and the page is drawn from it alike, directly or from the
+ * file. A drawing already made is kept.
  */
 function drawnLegs(input: ReportInput): Pick<ReportInput, "legs" | "drawing"> {
   const withoutProfile = input.legs.map(({ profile: _, ...leg }) => leg);
