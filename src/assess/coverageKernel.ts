@@ -209,9 +209,7 @@ export function sweepBand(inp: SweepInput, band: number, best: Float32Array): vo
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
   if (r0 > r1) return;
-  // With the WebAssembly rows the effects are made a few rows at a time, right after the rows'
-  // results are copied out (still in the cache); else over the band here.
-  if (!sweepPhotos(inp, r0, r1, best, band) && inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, r0 * inp.width, (r1 + 1) * inp.width, band);
+  sweepPhotos(inp, r0, r1, best, band);
 }
 
 /** Rows of a band the WebAssembly rows take at a time (their memory holds these cells). */
@@ -221,12 +219,13 @@ const WASM_ROWS = 64;
 let threadRows: FootprintRows | null | undefined;
 
 /**
- * sweepBand's photo loop over rows r0..r1: in WebAssembly a few rows at a time, their cells
- * copied into its memory and the results back (the copies take under a tenth of the sweep's
- * time at 4 km2, perf; the rows themselves ~2.2-2.6 ns a cell-photo visit against ~6.8 in
- * JavaScript). True when it made the effects (bandEffects) too, those rows at a time.
+ * sweepBand's photo loop over rows r0..r1, then the effects (bandEffects): in WebAssembly a few
+ * rows at a time, their cells copied into its memory and the results back (the copies take
+ * under a tenth of the sweep's time at 4 km2, perf; the rows themselves ~2.2-2.6 ns a
+ * cell-photo visit against ~6.8 in JavaScript), each few rows' effects made as soon as their
+ * results are copied out (still in the cache).
  */
-function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array, bandIndex: number): boolean {
+function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array, bandIndex: number): void {
   const { width, ground, inSite, images, gsdCm, nadirStrip } = inp;
   if (inp.rowsIn !== "js") threadRows ??= footprintRows() ?? null;
   const rows = inp.rowsIn !== "js" ? threadRows : null;
@@ -242,7 +241,8 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
     nadirStrip.fill(0, i0, i1);
     best.fill(Infinity, 0, i1 - i0);
     photoRows(inp, r0, r1, best, undefined);
-    return false;
+    effectsOf(inp, i0, i1, bandIndex);
+    return;
   }
   setCamera(inp, rows);
   for (let s0 = r0; s0 <= r1; s0 += WASM_ROWS) {
@@ -261,9 +261,13 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
     images.set(band.images, i0);
     gsdCm.set(band.gsdCm, i0);
     nadirStrip.set(band.nadirStrip, i0);
-    if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, i0, i1, bandIndex);
+    effectsOf(inp, i0, i1, bandIndex);
   }
-  return true;
+}
+
+/** The effect bits of cells i0..i1-1 of band `band`, when the sweep makes them (bandEffects). */
+function effectsOf(inp: SweepInput, i0: number, i1: number, band: number): void {
+  if (inp.flags && inp.effects) bandEffects(inp, inp.flags, inp.effects, i0, i1, band);
 }
 
 /** The figures sweepRow takes for every row, given to the WebAssembly rows once per band. */
