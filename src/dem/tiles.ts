@@ -10,7 +10,7 @@ import { LITTLE_ENDIAN_HOST } from "../hostEndian.js";
 import { blockCellsInWindow, markNodata, placeFloatPredicted } from "./floatBlocks.js";
 import { blocksInBackground, type BlockJob, type BlockRef } from "./blocksInBackground.js";
 import { TAKEN_BY_WORKER, TAKEN_HERE, takeBlocks } from "./blockTake.js";
-import { NOT_IN_BACKGROUND, splitAllowed } from "../background.js";
+import { NOT_IN_BACKGROUND, splitAllowed, type Background } from "../background.js";
 
 type Raw = Int8Array | Uint8Array | Int16Array | Uint16Array | Int32Array | Uint32Array | Float32Array | Float64Array;
 
@@ -155,17 +155,19 @@ export async function decodeWindowDirect(
     // Opened before the worker starts: a file this thread cannot open by its path is read by
     // geotiff's reader alone, as before.
     const file = openedForReading(source.path);
-    const inWorker = file === undefined ? NOT_IN_BACKGROUND : blocksInBackground(job);
-    if (file !== undefined && inWorker === NOT_IN_BACKGROUND) closeSync(file);
-    if (file !== undefined && inWorker !== NOT_IN_BACKGROUND) {
+    if (file !== undefined) {
+      let inWorker: Background<boolean> = NOT_IN_BACKGROUND;
       try {
-        takeBlocks(job, file, TAKEN_HERE, (k) => elsewhere.push([blocks[k].tx, blocks[k].ty]));
+        inWorker = blocksInBackground(job);
+        if (inWorker !== NOT_IN_BACKGROUND) takeBlocks(job, file, TAKEN_HERE, (k) => elsewhere.push([blocks[k].tx, blocks[k].ty]));
       } finally {
         closeSync(file);
       }
-      await decodeHere(elsewhere);
-      if ((await inWorker.result()) !== true) await decodeHere(blocks.filter((_, k) => Atomics.load(job.taken, k) === TAKEN_BY_WORKER).map((b) => [b.tx, b.ty]));
-      return true;
+      if (inWorker !== NOT_IN_BACKGROUND) {
+        await decodeHere(elsewhere);
+        if ((await inWorker.result()) !== true) await decodeHere(blocks.filter((_, k) => Atomics.load(job.taken, k) === TAKEN_BY_WORKER).map((b) => [b.tx, b.ty]));
+        return true;
+      }
     }
   }
   await decodeHere(jobs);
