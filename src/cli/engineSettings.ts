@@ -1,4 +1,5 @@
 import { setFlagsFromString } from "node:v8";
+import { WRITE_ENV } from "../codeCache.js";
 
 /**
  * How much bytecode a function runs before V8 optimises it (its "interrupt budget"; Node 20's
@@ -16,10 +17,15 @@ import { setFlagsFromString } from "node:v8";
 export const INTERRUPT_BUDGET = 400_000;
 
 /**
- * Set for the CLI's process, first thing (this module is main.ts's first import, so no other
- * module's code has run), and so for the worker threads it starts. The library itself leaves
- * the engine's settings to the program that loads it. V8 reads this budget whenever it
- * (re)arms a function's counter, so setting it at run time takes effect for the code that
+ * Set for the CLI's process, first thing (this module is program.ts's first import, so no
+ * other module's code has run), and so for the worker threads it starts. The library itself
+ * leaves the engine's settings to the program that loads it. V8 reads this budget whenever
+ * it (re)arms a function's counter, so setting it at run time takes effect for the code that
  * runs after it (checked with perf: the compiler's share fell as with the command-line flag).
+ *
+ * Not in the build's run that writes the code cache (codeCache.ts WRITE_ENV): the engine
+ * accepts a cache only under the flags it was written with, and the CLI's bundle is read
+ * (its cache checked) before this runs, under the engine's own flags. The budget does not
+ * change what the cache holds (the functions' bytecode, made on their first call).
  */
-setFlagsFromString(`--interrupt-budget=${INTERRUPT_BUDGET}`);
+if (process.env[WRITE_ENV] !== "1") setFlagsFromString(`--interrupt-budget=${INTERRUPT_BUDGET}`);

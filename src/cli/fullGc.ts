@@ -12,14 +12,17 @@ let collect: (() => void) | undefined;
  * own; with this collection the outputs stayed under the plan's peak in 4 of 4. It takes a
  * few milliseconds (the plan's own heap is tens of MB; the window's memory is outside it).
  * The engine's gc function is reached through its --expose-gc flag, set here when first
- * asked for (it exposes gc to contexts made afterwards, such as the one made here); the
- * library itself never calls this: the program decides (cli/planCommand.ts).
+ * asked for (it exposes gc to contexts made afterwards, such as the one made here) and
+ * cleared once the function is had, so the engine's flags are as before (a code cache
+ * written at exit, codeCache.ts, is accepted only under the flags the bundle was read
+ * with); the library itself never calls this: the program decides (cli/planCommand.ts).
  * @example collectGarbage();
  */
 export function collectGarbage(): void {
   if (!collect) {
     setFlagsFromString("--expose-gc");
     collect = runInNewContext("gc") as () => void;
+    setFlagsFromString("--no-expose-gc");
   }
   collect();
 }

@@ -1,25 +1,6 @@
 #!/usr/bin/env node
-// The CLI stays thin: each command module declares its options and calls the library in
-// its action. Users run it bundled into one file with the library (package.json's bin,
-// dist/bundle/main.js, scripts/bundle.mjs), so it starts without resolving each module.
-// First: the engine's settings for this process (engineSettings.ts), before any other module's code runs.
-import "./engineSettings.js";
-import { Command } from "commander";
-import { registerCommands } from "./commands/index.js";
-import { runMain } from "./run.js";
-import { packageVersion } from "../packageRoot.js";
+// The CLI's entry as tsc compiles it (dist/cli/main.js). Users run the bundled one
+// (package.json's bin, dist/bundle/main.js: the same runCli, scripts/bundle.mjs).
+import { runCli } from "./program.js";
 
-const program = new Command();
-program
-  .name("gsdplan")
-  .description(
-    "Terrain-aware mapping flight planning: waypoint altitudes that hold the ground sample distance over hills.\n" +
-      "Plans only; the pilot in command decides. Check local rules, airspace and obstacles before every flight.",
-  )
-  .version(packageVersion(), "-V, --version", "print the version of gsdplan")
-  .option("--debug", "print stack traces for errors")
-  .showHelpAfterError(false);
-
-registerCommands(program);
-
-await runMain(program, process.argv);
+await runCli(process.argv);

@@ -1,0 +1,46 @@
+// Writes V8's code cache for the library's and the CLI's bundles (dist/bundle/lib.cjs,
+// cli.cjs; read by src/codeCache.ts): each bundle runs the demo plan once, in a process of
+// its own, and writes the bytecode of every function that ran when the process exits. The
+// library plans the demo through its API, as a program that loads it would; the CLI runs
+// `gsdplan demo`. The cache holds no results, only compiled code: planning any other site
+// runs the same functions, and any the demo did not call are compiled on their first call
+// as without a cache.
+//
+// Usage: node scripts/code-cache.mjs   (run by `npm run build` after scripts/bundle.mjs)
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readdirSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { dirname, join, relative } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+
+const root = join(dirname(fileURLToPath(import.meta.url)), "..");
+const bundle = join(root, "dist", "bundle");
+const planFile = join(root, "fixtures", "demo", "corrie-vane-plan.yaml");
+// codeCache.ts WRITE_ENV.
+const env = { ...process.env, GSDPLAN_CODE_CACHE_WRITE: "1" };
+
+// The library's run, in a child process (this script with --library-run: worker threads
+// inherit the process's arguments, so the run cannot be given as `node -e`'s text).
+if (process.argv[2] === "--library-run") {
+  const lib = await import(pathToFileURL(join(bundle, "index.js")).href);
+  const file = await lib.loadPlanFile(process.argv[3]);
+  const run = await lib.planMission(lib.resolvePlanOptions(file.data, {}, file.dir));
+  await lib.writeOutputSet(process.argv[4], lib.planOutputs(run).files, { force: true });
+  process.exit(0);
+}
+
+const tmp = mkdtempSync(join(tmpdir(), "gsdplan-code-cache-"));
+try {
+  for (const [what, args] of [
+    ["library", [fileURLToPath(import.meta.url), "--library-run", planFile, join(tmp, "library")]],
+    ["CLI", [join(bundle, "main.js"), "demo", "--quiet", "--out", join(tmp, "cli")]],
+  ]) {
+    const r = spawnSync(process.execPath, args, { env, encoding: "utf8", timeout: 300_000 });
+    if (r.status !== 0) throw new Error(`code cache: the ${what}'s demo run failed (exit ${r.status}):\n${r.stderr}`);
+  }
+} finally {
+  rmSync(tmp, { recursive: true, force: true });
+}
+const written = readdirSync(bundle).filter((f) => f.endsWith(".v8cache"));
+if (written.length !== 2) throw new Error(`code cache: expected the library's and the CLI's caches in ${bundle}, found ${written.join(", ") || "none"}`);
+console.log(`code cache: ${written.map((f) => relative(root, join(bundle, f))).join(", ")}`);

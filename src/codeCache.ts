@@ -1,0 +1,99 @@
+/**
+ * Loads a CommonJS bundle (scripts/bundle.mjs: dist/bundle/lib.cjs, the library; cli.cjs,
+ * the CLI) through V8's code cache: the bytecode of every function a plan ran, written by
+ * the build (scripts/code-cache.mjs) beside the bundle. Without it the engine parses the 3 MB
+ * bundle at each start (~50 ms) and compiles each function on its first call (tens of
+ * milliseconds more over a plan, on the thread that does the plan's work).
+ *
+ * Why by hand: Node 20 keeps no compile cache of its own (module.enableCompileCache is
+ * Node 22's), and the packages that add one to require() write it as the module is
+ * compiled, before it runs, so it holds the top level but not the functions a run compiles
+ * later; here the cache is written when the run that makes it exits.
+ *
+ * The engine accepts a cache only for its own version and flags, and checks the source by
+ * its length only: the cache's file name carries a digest of the bundle's text (put in the
+ * entry module by the build), so a rebuilt bundle never reads an older bundle's cache. Nor
+ * does a release build of the engine check the cache's own bytes (a damaged byte was taken,
+ * test/codeCache.test.ts): the file begins with the SHA-256 of the rest, checked here (~1 ms
+ * for the library's 1.7 MB). A cache that fails that or that the engine refuses (another
+ * Node, other flags) costs nothing but the read: the bundle is compiled as without one.
+ */
+import { createHash } from "node:crypto";
+import { readFileSync, renameSync, writeFileSync } from "node:fs";
+import { createRequire } from "node:module";
+import path from "node:path";
+import { Script } from "node:vm";
+
+/** What became of the cache: read and used, refused by the engine, or not there. */
+export type CacheState = "accepted" | "rejected" | "none";
+
+export interface LoadedBundle {
+  exports: Record<string, unknown>;
+  cache: CacheState;
+  /** Writes the cache of everything compiled so far in this process (to a temporary file, then renamed). */
+  writeCache: () => void;
+}
+
+/** Environment variable: "1" makes the entry write the cache when the process exits (the build's runs, scripts/code-cache.mjs). */
+export const WRITE_ENV = "GSDPLAN_CODE_CACHE_WRITE";
+
+/**
+ * Runs `file` (a CommonJS module's text) as require() would, with the code cache in
+ * `cacheFile` when the engine accepts it.
+ * @example const { exports } = loadBundle("/pkg/dist/bundle/lib.cjs", "/pkg/dist/bundle/lib.3f2a9c1e.v8cache")
+ */
+export function loadBundle(file: string, cacheFile: string): LoadedBundle {
+  const source = readFileSync(file, "utf8");
+  const stored = readCache(cacheFile);
+  const cachedData = stored === "damaged" ? undefined : stored;
+  // The same wrapper require() puts around a module's text.
+  const script = new Script(`(function (exports, require, module, __filename, __dirname) { ${source}\n})`, { filename: file, cachedData });
+  const cache: CacheState = stored === "damaged" || script.cachedDataRejected ? "rejected" : cachedData === undefined ? "none" : "accepted";
+  const run = script.runInThisContext() as (exports: object, require: NodeRequire, module: { exports: object }, filename: string, dirname: string) => void;
+  const module = { exports: {} as Record<string, unknown> };
+  run.call(module.exports, module.exports, createRequire(file), module, file, path.dirname(file));
+  return {
+    exports: module.exports,
+    cache,
+    writeCache: () => {
+      const data = script.createCachedData();
+      const tmp = `${cacheFile}.${process.pid}.tmp`;
+      writeFileSync(tmp, Buffer.concat([sha256(data), data]));
+      renameSync(tmp, cacheFile);
+    },
+  };
+}
+
+/** The engine's cache data in `cacheFile` (after its SHA-256), "damaged" when the digest does not match, undefined when there is no such file. */
+function readCache(cacheFile: string): Buffer | "damaged" | undefined {
+  let bytes: Buffer;
+  try {
+    bytes = readFileSync(cacheFile);
+  } catch {
+    return undefined;
+  }
+  const data = bytes.subarray(DIGEST_BYTES);
+  return bytes.length > DIGEST_BYTES && sha256(data).equals(bytes.subarray(0, DIGEST_BYTES)) ? data : "damaged";
+}
+
+const DIGEST_BYTES = 32;
+
+function sha256(data: Uint8Array): Buffer {
+  return createHash("sha256").update(data).digest();
+}
+
+/**
+ * The entry modules' loader: `name`'s bundle and cache in `dir`, the cache written at exit
+ * when WRITE_ENV is "1".
+ * @example const lib = loadEntry(__dirname, "lib", "3f2a9c1e")
+ */
+export function loadEntry(dir: string, name: string, digest: string): Record<string, unknown> {
+  const loaded = loadBundle(path.join(dir, `${name}.cjs`), path.join(dir, cacheFileName(name, digest)));
+  if (process.env[WRITE_ENV] === "1") process.once("exit", loaded.writeCache);
+  return loaded.exports;
+}
+
+/** The cache's file name for a bundle whose text has `digest`. */
+export function cacheFileName(name: string, digest: string): string {
+  return `${name}.${digest}.v8cache`;
+}
