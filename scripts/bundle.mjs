@@ -18,13 +18,12 @@
 // the module's own folder. Dependencies read through createRequire (EPSG index, EGM96
 // grid) stay in node_modules.
 //
-// The library and the CLI are CommonJS bundles (lib.cjs, cli.cjs) behind small ES module
-// entries (index.js, main.js) that run them through V8's code cache (src/codeCache.ts; the
+// The library, the CLI and the workers are CommonJS bundles (lib.cjs, cli.cjs, xWorker.cjs)
+// behind small ES module entries (index.js, main.js, xWorker.js) that run them through V8's code cache (src/codeCache.ts; the
 // cache is written by scripts/code-cache.mjs, after this): the 4 km2 benchmark, 8 interleaved
 // pairs, 3.47 -> 3.29 s (CPU 6.39 -> 6.13 s; the demo 1.63 -> 1.54 s), the engine no longer
 // parsing the 3 MB bundle at each start nor compiling each function a plan calls. An ES module cannot be run from a
 // cache on Node 20. The entries' digests name the cache files (codeCache.ts says why).
-// The worker modules stay ES modules (each a few tens of kB).
 //
 // Usage: node scripts/bundle.mjs   (run by `npm run build` after tsc)
 import { createHash } from "node:crypto";
@@ -54,26 +53,24 @@ if (twice.length) throw new Error(`bundle: worker modules share a file name (${t
 
 rmSync(out, { recursive: true, force: true });
 const common = { bundle: true, platform: "node", target: "node20", logLevel: "warning" };
-await build({
+// The library, the CLI and the worker modules as CommonJS (so that they can run from a code
+// cache): import.meta.url (worker modules and package files are found from it) becomes the
+// bundle's own file URL; strict, as the ES modules were.
+const entries = { lib: join(dist, "index.js"), cli: join(dist, "cli", "program.js"), ...Object.fromEntries(workers.map((p) => [p.split("/").pop().replace(/\.js$/, ""), p])) };
+const { metafile } = await build({
   ...common,
-  entryPoints: workers,
-  outdir: out,
-  entryNames: "[name]",
-  format: "esm",
-  // CommonJS dependencies call require(); an ES module has none of its own.
-  banner: { js: "import { createRequire as __gsdplanRequire } from \"node:module\"; const require = __gsdplanRequire(import.meta.url);" },
-});
-// The library and the CLI as CommonJS: import.meta.url (worker modules and package files are
-// found from it) becomes the bundle's own file URL; strict, as the ES modules were.
-await build({
-  ...common,
-  entryPoints: { lib: join(dist, "index.js"), cli: join(dist, "cli", "program.js") },
+  entryPoints: entries,
   outdir: out,
   outExtension: { ".js": ".cjs" },
   format: "cjs",
   define: { "import.meta.url": "__gsdplanModuleUrl" },
   banner: { js: "\"use strict\"; var __gsdplanModuleUrl = require(\"node:url\").pathToFileURL(__filename).href;" },
+  metafile: true,
 });
+// A script run from a code cache has no module loader behind it: an import() left in a bundle
+// (of a module outside it) would fail when called.
+const dynamic = Object.entries(metafile.outputs).flatMap(([file, o]) => o.imports.filter((i) => i.kind === "dynamic-import").map((i) => `${relative(root, file)}: import("${i.path}")`));
+if (dynamic.length) throw new Error(`bundle: dynamic imports cannot run from the code cache:\n${dynamic.join("\n")}`);
 await build({ ...common, entryPoints: [join(dist, "codeCache.js")], outfile: join(out, "codeCache.js"), format: "esm" });
 
 /** The first 16 hex digits of the SHA-256 of a bundle's text (the cache's file name, codeCache.ts). */
@@ -90,4 +87,8 @@ if (bad.length) throw new Error(`bundle: the library exports names an ES module 
 writeFileSync(join(out, "index.js"), `// gsdplan's library (lib.cjs, scripts/bundle.mjs).\n${loader("lib")}export const {\n${libNames.map((n) => `  ${n},`).join("\n")}\n} = loaded;\n`);
 writeFileSync(join(out, "main.js"), `#!/usr/bin/env node\n// gsdplan's command line (cli.cjs, scripts/bundle.mjs).\n${loader("cli")}await loaded.runCli(process.argv);\n`);
 chmodSync(join(out, "main.js"), 0o755);
-console.log(`bundle: ${relative(root, out)}/ (main.js, index.js over cli.cjs, lib.cjs; ${workers.length} worker modules)`);
+// Each worker's module runs its bundle (which does its work on load).
+for (const name of Object.keys(entries).filter((n) => n.endsWith("Worker"))) {
+  writeFileSync(join(out, `${name}.js`), `// A gsdplan worker thread (${name}.cjs, scripts/bundle.mjs).\n${loader(name).replace("const loaded = ", "")}`);
+}
+console.log(`bundle: ${relative(root, out)}/ (main.js, index.js and ${workers.length} worker modules over their CommonJS bundles)`);

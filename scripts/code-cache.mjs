@@ -1,10 +1,10 @@
-// Writes V8's code cache for the library's and the CLI's bundles (dist/bundle/lib.cjs,
-// cli.cjs; read by src/codeCache.ts): each bundle runs the demo plan once, in a process of
-// its own, and writes the bytecode of every function that ran when the process exits. The
-// library plans the demo through its API, as a program that loads it would; the CLI runs
-// `gsdplan demo`. The cache holds no results, only compiled code: planning any other site
-// runs the same functions, and any the demo did not call are compiled on their first call
-// as without a cache.
+// Writes V8's code cache for the bundles (dist/bundle/*.cjs; read by src/codeCache.ts): the
+// demo plan runs once through the library's API, as a program that loads it would, and once
+// through the CLI (`gsdplan demo`), each in a process of its own that writes the bytecode
+// of every function that ran when it exits (the worker threads, when their work is done).
+// The cache holds no results, only compiled code: planning any other site runs the same
+// functions, and any the demo did not call are compiled on their first call as without a
+// cache.
 //
 // Usage: node scripts/code-cache.mjs   (run by `npm run build` after scripts/bundle.mjs)
 import { spawnSync } from "node:child_process";
@@ -24,7 +24,9 @@ const env = { ...process.env, GSDPLAN_CODE_CACHE_WRITE: "1" };
 if (process.argv[2] === "--library-run") {
   const lib = await import(pathToFileURL(join(bundle, "index.js")).href);
   const file = await lib.loadPlanFile(process.argv[3]);
-  const run = await lib.planMission(lib.resolvePlanOptions(file.data, {}, file.dir));
+  // Two threads asked for: the passes a grid this small keeps on one thread are split
+  // too, so that every worker module's cache is written (src/background.ts splitAllowed).
+  const run = await lib.planMission(lib.resolvePlanOptions(file.data, {}, file.dir), { threads: 2 });
   await lib.writeOutputSet(process.argv[4], lib.planOutputs(run).files, { force: true });
   process.exit(0);
 }
@@ -41,6 +43,12 @@ try {
 } finally {
   rmSync(tmp, { recursive: true, force: true });
 }
+// Every bundle's cache, but the campaign's site worker's (the build plans no campaign; that
+// worker compiles as without a cache).
 const written = readdirSync(bundle).filter((f) => f.endsWith(".v8cache"));
-if (written.length !== 2) throw new Error(`code cache: expected the library's and the CLI's caches in ${bundle}, found ${written.join(", ") || "none"}`);
-console.log(`code cache: ${written.map((f) => relative(root, join(bundle, f))).join(", ")}`);
+const missing = readdirSync(bundle)
+  .filter((f) => f.endsWith(".cjs") && f !== "siteWorker.cjs")
+  .map((f) => f.replace(/\.cjs$/, ""))
+  .filter((name) => !written.some((w) => w.startsWith(`${name}.`)));
+if (missing.length) throw new Error(`code cache: no cache was written for ${missing.join(", ")} in ${relative(root, bundle)}/`);
+console.log(`code cache: ${relative(root, bundle)}/ (${written.length} caches: ${written.map((f) => f.split(".")[0]).join(", ")})`);

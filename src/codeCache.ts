@@ -23,6 +23,7 @@ import { readFileSync, renameSync, writeFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
 import { Script } from "node:vm";
+import { threadId } from "node:worker_threads";
 
 /** What became of the cache: read and used, refused by the engine, or not there. */
 export type CacheState = "accepted" | "rejected" | "none";
@@ -37,31 +38,45 @@ export interface LoadedBundle {
 /** Environment variable: "1" makes the entry write the cache when the process exits (the build's runs, scripts/code-cache.mjs). */
 export const WRITE_ENV = "GSDPLAN_CODE_CACHE_WRITE";
 
+/** A bundle compiled, not yet run: its script, what became of the cache, and the cache's writer. */
+export interface CompiledBundle {
+  script: Script;
+  cache: CacheState;
+  writeCache: () => void;
+}
+
 /**
- * Runs `file` (a CommonJS module's text) as require() would, with the code cache in
- * `cacheFile` when the engine accepts it.
- * @example const { exports } = loadBundle("/pkg/dist/bundle/lib.cjs", "/pkg/dist/bundle/lib.3f2a9c1e.v8cache")
+ * Compiles `file` (a CommonJS module's text, in the wrapper require() puts around it) with
+ * the code cache in `cacheFile` when the engine accepts it; nothing of it runs.
+ * @example compileBundle("/pkg/dist/bundle/lib.cjs", "/pkg/dist/bundle/lib.3f2a9c1e.v8cache").cache // "accepted"
  */
-export function loadBundle(file: string, cacheFile: string): LoadedBundle {
+export function compileBundle(file: string, cacheFile: string): CompiledBundle {
   const source = readFileSync(file, "utf8");
   const stored = readCache(cacheFile);
   const cachedData = stored === "damaged" ? undefined : stored;
-  // The same wrapper require() puts around a module's text.
   const script = new Script(`(function (exports, require, module, __filename, __dirname) { ${source}\n})`, { filename: file, cachedData });
   const cache: CacheState = stored === "damaged" || script.cachedDataRejected ? "rejected" : cachedData === undefined ? "none" : "accepted";
+  const writeCache = () => {
+    const data = script.createCachedData();
+    const tmp = `${cacheFile}.${process.pid}.${threadId}.tmp`;
+    writeFileSync(tmp, Buffer.concat([sha256(data), data]));
+    renameSync(tmp, cacheFile);
+  };
+  return { script, cache, writeCache };
+}
+
+/**
+ * Runs `file` as require() would, compiled by compileBundle. `beforeRun` is given the
+ * cache's writer before the module's code runs (a worker's module does its work as it loads).
+ * @example const { exports } = loadBundle("/pkg/dist/bundle/lib.cjs", "/pkg/dist/bundle/lib.3f2a9c1e.v8cache")
+ */
+export function loadBundle(file: string, cacheFile: string, beforeRun?: (writeCache: () => void) => void): LoadedBundle {
+  const { script, cache, writeCache } = compileBundle(file, cacheFile);
+  beforeRun?.(writeCache);
   const run = script.runInThisContext() as (exports: object, require: NodeRequire, module: { exports: object }, filename: string, dirname: string) => void;
   const module = { exports: {} as Record<string, unknown> };
   run.call(module.exports, module.exports, createRequire(file), module, file, path.dirname(file));
-  return {
-    exports: module.exports,
-    cache,
-    writeCache: () => {
-      const data = script.createCachedData();
-      const tmp = `${cacheFile}.${process.pid}.tmp`;
-      writeFileSync(tmp, Buffer.concat([sha256(data), data]));
-      renameSync(tmp, cacheFile);
-    },
-  };
+  return { exports: module.exports, cache, writeCache };
 }
 
 /** The engine's cache data in `cacheFile` (after its SHA-256), "damaged" when the digest does not match, undefined when there is no such file. */
@@ -83,14 +98,33 @@ function sha256(data: Uint8Array): Buffer {
 }
 
 /**
- * The entry modules' loader: `name`'s bundle and cache in `dir`, the cache written at exit
- * when WRITE_ENV is "1".
+ * The entry modules' loader (the library's, the CLI's, each worker thread's): `name`'s
+ * bundle and cache in `dir`. When WRITE_ENV is "1" the cache is written when the process
+ * exits, and by a worker thread at its codeCacheCheckpoint (its caller ends it without an
+ * exit of its own).
  * @example const lib = loadEntry(__dirname, "lib", "3f2a9c1e")
  */
 export function loadEntry(dir: string, name: string, digest: string): Record<string, unknown> {
-  const loaded = loadBundle(path.join(dir, `${name}.cjs`), path.join(dir, cacheFileName(name, digest)));
-  if (process.env[WRITE_ENV] === "1") process.once("exit", loaded.writeCache);
-  return loaded.exports;
+  const writing = process.env[WRITE_ENV] === "1";
+  return loadBundle(path.join(dir, `${name}.cjs`), path.join(dir, cacheFileName(name, digest)), (writeCache) => {
+    if (!writing) return;
+    process.once("exit", writeCache);
+    (globalThis as Checkpoint)[CHECKPOINT] = writeCache;
+  }).exports;
+}
+
+/** Where loadEntry leaves the cache's writer for codeCacheCheckpoint: a bundle has its own copy of this module, the thread's global object is shared. */
+const CHECKPOINT = Symbol.for("gsdplan.codeCacheCheckpoint");
+type Checkpoint = { [CHECKPOINT]?: () => void };
+
+/**
+ * A worker thread's work is done (every function it runs has been compiled): in the build's
+ * cache run, the cache of the bundle the thread was loaded from is written now; otherwise
+ * nothing happens. Called before the thread tells its caller, which may end it at once.
+ * @example codeCacheCheckpoint(); parentPort?.postMessage(result)
+ */
+export function codeCacheCheckpoint(): void {
+  (globalThis as Checkpoint)[CHECKPOINT]?.();
 }
 
 /** The cache's file name for a bundle whose text has `digest`. */

@@ -11,7 +11,9 @@ import { existsSync, mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { pathToFileURL } from "node:url";
-import { cacheFileName, loadBundle } from "../src/codeCache.js";
+import { Worker } from "node:worker_threads";
+import { build } from "esbuild";
+import { cacheFileName, loadBundle, WRITE_ENV } from "../src/codeCache.js";
 import { ROOT } from "./e2e/cli.js";
 
 const LOADER = pathToFileURL(path.join(ROOT, "dist", "bundle", "codeCache.js")).href;
@@ -30,6 +32,11 @@ function inChild(script: string): string {
   const r = spawnSync(process.execPath, ["--input-type=module", "-e", `const { loadBundle } = await import(${JSON.stringify(LOADER)});\n${script}`], { encoding: "utf8" });
   if (r.status !== 0) throw new Error(r.stderr);
   return r.stdout;
+}
+
+/** Compiles `file` with `cache` in a fresh process without running it (a worker's module does its work as it loads): what became of the cache. */
+function compiledInChild(file: string, cache: string): string {
+  return inChild(`const { compileBundle } = await import(${JSON.stringify(LOADER)});\nprocess.stdout.write(compileBundle(${JSON.stringify(file)}, ${JSON.stringify(cache)}).cache);`);
 }
 
 /** Loads `file` with `cache` in a fresh process: what became of the cache and what the module exported. */
@@ -76,18 +83,44 @@ describe("loadBundle", () => {
   });
 });
 
+describe("a worker thread's cache (loadEntry, codeCacheCheckpoint)", () => {
+  it("is written at the worker's checkpoint, though its caller ends it as soon as it has the result", async () => {
+    const dir = mkdtempSync(path.join(tmpdir(), "gsdplan-code-cache-worker-"));
+    // A worker module that does its work as it loads, as ours do, then tells its caller;
+    // bundled as CommonJS with its own copy of codeCache.ts, as scripts/bundle.mjs bundles ours.
+    writeFileSync(
+      path.join(dir, "testWorker.ts"),
+      `import { parentPort } from "node:worker_threads";\nimport { codeCacheCheckpoint } from ${JSON.stringify(path.join(ROOT, "src", "codeCache.ts"))};\nconst sum = (n: number) => { let s = 0; for (let i = 0; i < n; i++) s += i; return s; };\nconst result = sum(1000);\ncodeCacheCheckpoint();\nparentPort?.postMessage(result);\n`,
+    );
+    await build({ entryPoints: [path.join(dir, "testWorker.ts")], outfile: path.join(dir, "testWorker.cjs"), bundle: true, platform: "node", format: "cjs", logLevel: "silent" });
+    writeFileSync(path.join(dir, "testWorker.js"), `import { loadEntry } from ${JSON.stringify(LOADER)};\nloadEntry(${JSON.stringify(dir)}, "testWorker", "0123456789abcdef");\n`);
+    const w = new Worker(path.join(dir, "testWorker.js"), { env: { ...process.env, [WRITE_ENV]: "1" } });
+    const result = await new Promise((resolve, reject) => {
+      w.once("message", resolve);
+      w.once("error", reject);
+    });
+    await w.terminate();
+    expect(result).toBe(499500);
+    const cache = path.join(dir, cacheFileName("testWorker", "0123456789abcdef"));
+    expect(existsSync(cache)).toBe(true);
+    expect(compiledInChild(path.join(dir, "testWorker.cjs"), cache)).toBe("accepted");
+  });
+});
+
 describe("the build's caches (scripts/bundle.mjs, scripts/code-cache.mjs)", () => {
-  for (const [entry, name] of [
+  const bundle = path.join(ROOT, "dist", "bundle");
+  const entries: [string, string][] = [
     ["index.js", "lib"],
     ["main.js", "cli"],
-  ] as const) {
+    ...["baselineWorker", "blockWorker", "cogFileWorker", "coverageWorker", "flagPolygonsWorker", "mapsWorker", "renderWorker"].map((w): [string, string] => [`${w}.js`, w]),
+  ];
+  for (const [entry, name] of entries) {
     it(`${entry} names the cache of ${name}.cjs by the digest of its text, and a fresh process takes it`, () => {
-      const bundle = path.join(ROOT, "dist", "bundle");
       const digest = createHash("sha256").update(readFileSync(path.join(bundle, `${name}.cjs`))).digest("hex").slice(0, 16);
       expect(readFileSync(path.join(bundle, entry), "utf8")).toContain(`"${name}", "${digest}"`);
       const cache = path.join(bundle, cacheFileName(name, digest));
       expect(existsSync(cache), `${cache} is missing: npm run build writes it`).toBe(true);
-      expect(inChild(`process.stdout.write(loadBundle(${JSON.stringify(path.join(bundle, `${name}.cjs`))}, ${JSON.stringify(cache)}).cache);`)).toBe("accepted");
+      expect(compiledInChild(path.join(bundle, `${name}.cjs`), cache)).toBe("accepted");
     });
   }
 });

@@ -4,6 +4,7 @@ import { sweepBands, type SweepInput } from "./coverageKernel.js";
 import { statsPassBands, type StatsPassJob } from "./stats.js";
 import { gatherBands, type GatherJob } from "./quantiles.js";
 import { headingTerrainBands, type HeadingTerrainJob } from "../layout/headingTerrain.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread of banded passes (bandThreads.ts): for each job it is sent, runs the band
@@ -16,6 +17,7 @@ parentPort?.on("message", ({ kind, input, next, bands, done, slot }: BandJob) =>
     else if (kind === "stats") statsPassBands(input as StatsPassJob, next, bands, slot);
     else if (kind === "gather") gatherBands(input as GatherJob, next, bands, slot);
     else headingTerrainBands(input as HeadingTerrainJob, next, bands);
+    codeCacheCheckpoint();
     Atomics.store(done, slot, 1);
   } catch {
     Atomics.store(done, slot, 2);

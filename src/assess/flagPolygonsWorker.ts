@@ -2,6 +2,7 @@ import { parentPort, workerData } from "node:worker_threads";
 import { frameFromProj4 } from "../geo/localFrame.js";
 import { registerLocalEquirectangular } from "../geo/localEquirectangular.js";
 import { flagPolygons, type FlagPolygonsJob } from "./flagPolygons.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that traces the flag polygons (see flagPolygonsInBackground), with the
@@ -11,4 +12,6 @@ const { flags, width, height, transform, frame, cellAreaM2 } = workerData as Fla
 // A geographic DEM's frame is our own local equirectangular projection: known to proj4 once registered.
 registerLocalEquirectangular();
 const f = frameFromProj4(frame.proj4, frame.epsg, frame.name);
-parentPort?.postMessage(flagPolygons(flags, width, height, transform, (x, y) => f.toWgs84(x, y), cellAreaM2));
+const polygons = flagPolygons(flags, width, height, transform, (x, y) => f.toWgs84(x, y), cellAreaM2);
+codeCacheCheckpoint();
+parentPort?.postMessage(polygons);

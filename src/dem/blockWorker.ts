@@ -2,6 +2,7 @@ import { closeSync, openSync } from "node:fs";
 import { parentPort, workerData } from "node:worker_threads";
 import { TAKEN_BY_WORKER, takeBlocks } from "./blockTake.js";
 import type { BlockJob } from "./blocksInBackground.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that decodes Deflate blocks of a local Float32 DEM with the floating-point
@@ -21,4 +22,5 @@ try {
 } finally {
   if (fd !== undefined) closeSync(fd);
 }
+codeCacheCheckpoint();
 parentPort?.postMessage(ok);

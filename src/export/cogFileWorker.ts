@@ -2,6 +2,7 @@ import { writeFile } from "node:fs/promises";
 import { parentPort, workerData } from "node:worker_threads";
 import type { AssessmentRasters } from "../assess/types.js";
 import { assessmentGeoTiffChunks, type CogFileJob } from "./geotiffRasters.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that writes one assessment raster's file at a path, chunk by chunk as
@@ -10,5 +11,9 @@ import { assessmentGeoTiffChunks, type CogFileJob } from "./geotiffRasters.js";
  * A failure ends the worker without the message.
  */
 const { rasters, crs, name, path, window } = workerData as CogFileJob;
-await writeFile(path, assessmentGeoTiffChunks(rasters as AssessmentRasters, crs, name, window));
-parentPort?.postMessage(true);
+// A failed write is an unhandled rejection, which ends this thread with an error: its caller
+// then writes the file itself.
+void writeFile(path, assessmentGeoTiffChunks(rasters as AssessmentRasters, crs, name, window)).then(() => {
+  codeCacheCheckpoint();
+  parentPort?.postMessage(true);
+});

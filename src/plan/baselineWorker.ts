@@ -1,6 +1,7 @@
 import { parentPort, workerData } from "node:worker_threads";
 import { baselineFigures, type BaselineJob } from "./baseline.js";
 import { lowerThisThreadPriority } from "../threadPriority.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that makes the constant-altitude comparison's figures from its job (one
@@ -12,4 +13,5 @@ import { lowerThisThreadPriority } from "../threadPriority.js";
 const { job, nice } = workerData as { job: BaselineJob; nice?: number };
 if (nice !== undefined) lowerThisThreadPriority(nice);
 const figures = baselineFigures(job);
+codeCacheCheckpoint();
 parentPort?.postMessage(figures, [figures.seenBits.buffer as ArrayBuffer]);

@@ -4,6 +4,7 @@ import type { ReportGrid, ReportRasters } from "./model.js";
 import { REPORT_MAP_PX, blockFactor, downsampleGrid, downsampleRasters } from "./downsample.js";
 import { demLayers } from "./demLayers.js";
 import { lowerThisThreadPriority } from "../threadPriority.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread of reportMapsInBackground: reduces the DEM for the report and draws the
@@ -21,5 +22,6 @@ parentPort?.once("message", ({ rasters }: { rasters: ReportRasters }) => {
   const own = [small.heights, reduced.gsdCm, reduced.images, reduced.flags, reduced.inSite]
     .map((a) => a.buffer)
     .filter((b): b is ArrayBuffer => b instanceof ArrayBuffer);
+  codeCacheCheckpoint();
   parentPort?.postMessage(made, [...new Set(own)]);
 });

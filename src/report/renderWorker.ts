@@ -2,6 +2,7 @@ import { parentPort, workerData } from "node:worker_threads";
 import type { ReportInput } from "./model.js";
 import type { DemLayers } from "./demLayers.js";
 import { renderReport } from "./render.js";
+import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that renders report.html from a (compacted) report input, so the page is
@@ -12,4 +13,5 @@ import { renderReport } from "./render.js";
  */
 const { input, layers } = workerData as { input: ReportInput; layers?: DemLayers };
 const bytes = new TextEncoder().encode(renderReport(input, layers));
+codeCacheCheckpoint();
 parentPort?.postMessage(bytes, [bytes.buffer]);
