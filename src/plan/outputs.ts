@@ -16,9 +16,9 @@ import { planGpx } from "../export/gpx.js";
 import { assessmentGeoTiffChunks, assessmentGeoTiffFileInBackground, siteWindow, type AssessmentTiffs, type RasterCrs, type RasterWindow } from "../export/geotiffRasters.js";
 import { SPLIT_MIN_CELLS, splitAllowed } from "../background.js";
 import type { PlanExportInput } from "../export/layers.js";
-import { compactReportInput, serializeReportInput } from "../report/serialize.js";
+import { compactReportInput } from "../report/serialize.js";
 import { REPORT_MAP_PX } from "../report/downsample.js";
-import { reportHtmlInBackground } from "../report/background.js";
+import { reportFilesInBackground } from "../report/background.js";
 import type { DemLayers } from "../report/demLayers.js";
 import type { AssessmentRasters } from "../assess/types.js";
 import type { ReportInput } from "../report/model.js";
@@ -132,16 +132,16 @@ function outputFiles(parts: WrittenParts, summary: PlanSummary, report: ReducedR
   // demo the page's worker gained more from the core it left free (below).
   const cells = rasters.width * rasters.height;
   const gsdInBackground = splitAllowed(cells, parts.threads);
-  // Both report files come from one reduced input. The page is rendered in a worker thread,
-  // so it is made on the other core while the rasters and report-data.json are written here:
+  // Both report files come from one reduced input, made in a worker thread (the page, then
+  // report-data.json), so they are made on the other core while the rasters are written here:
   // on large grids started by the first small raster, after gsd.tif when that is made here
   // (the page's worker holds ~55-75 MB at 4 km2: its heap, the page's strings; workerHeap.ts);
   // on smaller grids as soon as its input is ready (the demo, 34 interleaved pairs: ~0.06 s
   // sooner done).
-  let page: Promise<ReturnType<typeof reportHtmlInBackground>> | undefined;
+  let page: Promise<ReturnType<typeof reportFilesInBackground>> | undefined;
   const reportPage = () => (page ??= (async () => {
     const { input, layers } = await report;
-    return reportHtmlInBackground(input, layers);
+    return reportFilesInBackground(input, layers);
   })());
   const tiff = (name: keyof AssessmentTiffs) => async () => {
     if (name !== "gsd.tif") await reportPage();
@@ -161,15 +161,7 @@ function outputFiles(parts: WrittenParts, summary: PlanSummary, report: ReducedR
     { name: "images.tif", data: tiff("images.tif") },
     { name: "flags.tif", data: tiff("flags.tif") },
     { name: "summary.json", data: JSON.stringify(summary, null, 2) + "\n" },
-    {
-      name: "report-data.json",
-      data: async () => {
-        const { input } = await report;
-        // The page renders on its worker meanwhile, if no raster started it (its failure surfaces from report.html).
-        reportPage().catch(() => undefined);
-        return serializeReportInput(input);
-      },
-    },
+    { name: "report-data.json", data: async () => (await reportPage()).data() },
     { name: "report.html", data: async () => (await reportPage()).bytes() },
   ];
   // On smaller grids the page starts now, once its input is ready (its failure surfaces from report.html).

@@ -2,16 +2,20 @@ import { parentPort, workerData } from "node:worker_threads";
 import type { ReportInput } from "./model.js";
 import type { DemLayers } from "./demLayers.js";
 import { renderReport } from "./render.js";
+import { serializeReportInput } from "./serialize.js";
 import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that renders report.html from a (compacted) report input, so the page is
- * made on another core while the plan's rasters and report-data.json are written (see
- * reportHtmlInBackground). It sends the page's UTF-8 bytes, their memory handed over rather
- * than copied: the page as a string is two bytes a character (a few of its characters lie
- * beyond Latin-1), which a message copies whole and the writer encodes again.
+ * made on another core while the plan's rasters are written, and then report-data.json's
+ * text from the same input (see reportFilesInBackground). It sends both as UTF-8 bytes, their
+ * memory handed over rather than copied: the page as a string is two bytes a character (a
+ * few of its characters lie beyond Latin-1), which a message copies whole and the writer
+ * encodes again.
  */
 const { input, layers } = workerData as { input: ReportInput; layers?: DemLayers };
-const bytes = new TextEncoder().encode(renderReport(input, layers));
+const encoder = new TextEncoder();
+const page = encoder.encode(renderReport(input, layers));
+const data = encoder.encode(serializeReportInput(input));
 codeCacheCheckpoint();
-parentPort?.postMessage(bytes, [bytes.buffer]);
+parentPort?.postMessage({ page, data }, [page.buffer, data.buffer]);

@@ -2,21 +2,21 @@ import { describe, it, expect } from "vitest";
 import { builtModule, firstDifference } from "../helpers/dist.js";
 import { makeReportInput } from "./fixture.js";
 import { renderReport } from "../../src/report/render.js";
-import type { reportHtmlInBackground as Background } from "../../src/report/background.js";
+import type { reportFilesInBackground as Background } from "../../src/report/background.js";
 import { demLayers } from "../../src/report/demLayers.js";
 import { makeGrid } from "../../src/dem/sample.js";
-import { compactReportInput, reportMaps, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
+import { compactReportInput, reportMaps, serializeReportInput, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
 import type { ReportRasters } from "../../src/report/model.js";
 import { inSharedMemory } from "../../src/background.js";
 
 const built = builtModule("report/background.js", ["renderWorker.js"]);
 const builtMaps = builtModule("report/serialize.js", ["mapsWorker.js"]);
 
-describe.skipIf(!built.available)("report page rendered in a worker thread", () => {
-  it("is the page rendered on this thread, character for character and as UTF-8 bytes", async () => {
-    const { reportHtmlInBackground } = (await import(built.href)) as { reportHtmlInBackground: typeof Background };
+describe.skipIf(!built.available)("report files made in a worker thread", () => {
+  it("are the page rendered on this thread, character for character and as UTF-8 bytes, and report-data.json's text", async () => {
+    const { reportFilesInBackground } = (await import(built.href)) as { reportFilesInBackground: typeof Background };
     const input = makeReportInput({ siteName: "Worker check" });
-    const page = reportHtmlInBackground(input);
+    const page = reportFilesInBackground(input);
     const html = await page.html();
     expect(html.length).toBeGreaterThan(10_000);
     expect(html).toContain("Worker check");
@@ -25,6 +25,10 @@ describe.skipIf(!built.available)("report page rendered in a worker thread", () 
     const bytes = await page.bytes();
     expect(Buffer.from(bytes).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
     expect(/[^\u0000-\u00ff]/.test(html)).toBe(true);
+    // report-data.json: serializeReportInput's text, as this thread writes it.
+    const data = await page.data();
+    expect(data.length).toBeGreaterThan(10_000);
+    expect(Buffer.from(data).equals(Buffer.from(serializeReportInput(input), "utf8"))).toBe(true);
   });
 });
 
