@@ -1,4 +1,5 @@
 import { describe, it, expect } from "vitest";
+import { Worker } from "node:worker_threads";
 import { builtModule, firstDifference } from "../helpers/dist.js";
 import { makeReportInput } from "./fixture.js";
 import { renderReport } from "../../src/report/render.js";
@@ -29,6 +30,18 @@ describe.skipIf(!built.available)("report files made in a worker thread", () => 
     const data = await page.data();
     expect(data.length).toBeGreaterThan(10_000);
     expect(Buffer.from(data).equals(Buffer.from(serializeReportInput(input), "utf8"))).toBe(true);
+  });
+
+  it("come from the worker itself: its one message holds both files (the calling thread's fallback is not what was checked above)", async () => {
+    const input = makeReportInput({ siteName: "Worker message" });
+    const w = new Worker(new URL("renderWorker.js", built.href), { workerData: inSharedMemory({ input }) });
+    const m = await new Promise<{ page: Uint8Array; data: Uint8Array }>((resolve, reject) => {
+      w.once("message", resolve);
+      w.once("error", reject);
+    });
+    await w.terminate();
+    expect(Buffer.from(m.page).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
+    expect(Buffer.from(m.data).equals(Buffer.from(serializeReportInput(input), "utf8"))).toBe(true);
   });
 });
 
