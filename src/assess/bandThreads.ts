@@ -118,13 +118,18 @@ export function startBands<I>(kind: BandKind, input: I, bands: number, threads: 
   for (let t = 1; t < threads; t++) workers.workers[t - 1].postMessage({ kind, input, next, bands, done, slot: t } satisfies BandJob);
   // Dropped once joined or cancelled (undefined: settled): a cancelled pass's arrays are not kept by its handle.
   let job: I | undefined = input;
+  // Called once no band is left to take (this thread took the rest, or the pass was cancelled).
   const wait = (): boolean => {
     let failed = false;
     for (let t = 1; t < threads; t++) {
-      // A worker that dies before raising its flag would leave us waiting: give up after 10 minutes.
+      // A worker that has not begun the job took none of its bands: the job is withdrawn from
+      // it (it skips the job when it comes to it) and not waited for. So a worker still
+      // starting, or one that could not start at all, never holds this thread up.
+      if (Atomics.compareExchange(done, t, JOB_WAITING, JOB_WITHDRAWN) === JOB_WAITING) continue;
+      // A worker that dies while at work would leave us waiting: give up after 10 minutes.
       const deadline = Date.now() + 600_000;
-      while (Atomics.load(done, t) === 0 && Date.now() < deadline) Atomics.wait(done, t, 0, 1000);
-      if (Atomics.load(done, t) !== 1) failed = true;
+      while (Atomics.load(done, t) === JOB_BEGUN && Date.now() < deadline) Atomics.wait(done, t, JOB_BEGUN, 1000);
+      if (Atomics.load(done, t) !== JOB_FINISHED) failed = true;
     }
     if (!pool) workers.close();
     return failed;
@@ -144,6 +149,18 @@ export function startBands<I>(kind: BandKind, input: I, bands: number, threads: 
     },
   };
 }
+
+/**
+ * A job's state in its `done` flag, one per worker slot: waiting (sent, not yet begun), begun
+ * (the worker claimed it: compare-and-exchange from waiting), finished or failed (the worker's
+ * flag), withdrawn (the calling thread claimed it first, once no band was left: the worker
+ * skips it).
+ */
+export const JOB_WAITING = 0;
+export const JOB_FINISHED = 1;
+export const JOB_FAILED = 2;
+export const JOB_BEGUN = 3;
+export const JOB_WITHDRAWN = 4;
 
 /** One pass's job for a band worker (coverageWorker.ts). */
 export interface BandJob {
