@@ -1,5 +1,8 @@
-import http from "node:http";
-import https from "node:https";
+import type http from "node:http";
+import { lazyModule } from "../lazyModule.js";
+
+const httpModule = lazyModule<typeof import("node:http")>("node:http");
+const httpsModule = lazyModule<typeof import("node:https")>("node:https");
 import { BaseClient, BaseResponse, fromCustomClient, type GeoTIFF } from "geotiff";
 import { InputFileError } from "../errors.js";
 
@@ -183,7 +186,7 @@ export function isHttpUrl(spec: string): boolean {
  */
 function get(url: string, headers: Record<string, string>, signal: AbortSignal, hops = 0): Promise<{ status: number; statusText: string; headers: http.IncomingHttpHeaders; body: ArrayBuffer }> {
   return new Promise((resolve, reject) => {
-    const lib = url.startsWith("https:") ? https : http;
+    const lib = url.startsWith("https:") ? httpsModule() : httpModule();
     const req = lib.get(url, { headers, signal }, (res) => {
       const status = res.statusCode ?? 0;
       const location = res.headers.location;

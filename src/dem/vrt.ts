@@ -1,7 +1,11 @@
 import path from "node:path";
-import { DOMParser, type Element } from "@xmldom/xmldom";
+import type { Element } from "@xmldom/xmldom";
+import { lazyModule } from "../lazyModule.js";
 import { InputError, InputFileError } from "../errors.js";
 import type { GeoTransform } from "./grid.js";
+
+/** The XML parser, loaded when a file needs it (lazyModule.ts). */
+const xmldom = lazyModule<typeof import("@xmldom/xmldom")>("@xmldom/xmldom");
 
 /**
  * A GDAL VRT mosaic, as `gdalbuildvrt` writes it: one grid (size and geotransform) and per
@@ -59,7 +63,7 @@ export function parseVrt(text: string, vrtPath: string, band: number): VrtMosaic
   const refuse = (what: string) => new InputFileError(vrtPath, `${what}; only mosaics (VRTRasterBand with SimpleSource/ComplexSource, as gdalbuildvrt writes them) are read`);
   let root: Element | null;
   try {
-    root = new DOMParser({ onError: (level, msg) => { if (level !== "warning") throw new Error(msg); } }).parseFromString(text, "text/xml").documentElement;
+    root = new (xmldom().DOMParser)({ onError: (level, msg) => { if (level !== "warning") throw new Error(msg); } }).parseFromString(text, "text/xml").documentElement;
   } catch (e) {
     throw new InputFileError(vrtPath, `not well-formed XML (${(e as Error).message.split("\n")[0]})`);
   }

@@ -3,8 +3,12 @@
  * any validation. Reads GeoJSON (RFC 7946), KML 2.2 polygons and bounding
  * boxes; says what it found when there is no polygon.
  */
-import { DOMParser, type Element, type Node as XmlNode } from "@xmldom/xmldom";
+import type { Element, Node as XmlNode } from "@xmldom/xmldom";
+import { lazyModule } from "../lazyModule.js";
 import { InputError, InputFileError } from "../errors.js";
+
+/** The XML parser, loaded when a file needs it (lazyModule.ts). */
+const xmldom = lazyModule<typeof import("@xmldom/xmldom")>("@xmldom/xmldom");
 
 /** One polygon: rings of [lon, lat] pairs, the first ring the outer boundary. */
 export type LonLatPolygon = number[][][];
@@ -215,7 +219,7 @@ export const KML_OTHER_GEOMETRIES: ReadonlySet<string> = new Set(["Point", "Line
 export function parseKmlRoot(text: string, source = "site"): Element {
   let root: Element | null;
   try {
-    root = new DOMParser().parseFromString(text, "text/xml").documentElement;
+    root = new (xmldom().DOMParser)().parseFromString(text, "text/xml").documentElement;
   } catch (e) {
     throw new InputFileError(source, `not well-formed XML (${(e as Error).message.split("\n")[0]})`);
   }
