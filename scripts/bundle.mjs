@@ -19,11 +19,12 @@
 // grid) stay in node_modules.
 //
 // The library, the CLI and the workers are CommonJS bundles (lib.cjs, cli.cjs, xWorker.cjs)
-// behind small ES module entries (index.js, main.js, xWorker.js) that run them through V8's code cache (src/codeCache.ts; the
-// cache is written by scripts/code-cache.mjs, after this): the 4 km2 benchmark, 8 interleaved
-// pairs, 3.47 -> 3.29 s (CPU 6.39 -> 6.13 s; the demo 1.63 -> 1.54 s), the engine no longer
-// parsing the 3 MB bundle at each start nor compiling each function a plan calls. An ES module cannot be run from a
-// cache on Node 20. The entries' digests name the cache files (codeCache.ts says why).
+// behind small ES module entries (index.js, main.js, xWorker.js) that run them through V8's
+// code cache (src/codeCache.ts; the cache is written by scripts/code-cache.mjs, after this):
+// the 4 km2 benchmark, 8 interleaved pairs, 3.47 -> 3.29 s (CPU 6.39 -> 6.13 s; the demo
+// 1.63 -> 1.54 s), the engine no longer parsing the 3 MB bundle at each start nor compiling
+// each function a plan calls. An ES module cannot be run from a cache on Node 20. The
+// entries' digests name the cache files (codeCache.ts says why).
 //
 // Usage: node scripts/bundle.mjs   (run by `npm run build` after tsc)
 import { createHash } from "node:crypto";

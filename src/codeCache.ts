@@ -1,9 +1,10 @@
 /**
  * Loads a CommonJS bundle (scripts/bundle.mjs: dist/bundle/lib.cjs, the library; cli.cjs,
- * the CLI) through V8's code cache: the bytecode of every function a plan ran, written by
- * the build (scripts/code-cache.mjs) beside the bundle. Without it the engine parses the 3 MB
- * bundle at each start (~50 ms) and compiles each function on its first call (tens of
- * milliseconds more over a plan, on the thread that does the plan's work).
+ * the CLI; xWorker.cjs, each worker thread's module) through V8's code cache: the bytecode of
+ * every function a plan ran, written by the build (scripts/code-cache.mjs) beside the bundle.
+ * Without it the engine parses the 3 MB bundle at each start (~50 ms) and compiles each
+ * function on its first call (tens of milliseconds more over a plan, on the thread that does
+ * the plan's work), and each worker thread does the same for its own.
  *
  * Why by hand: Node 20 keeps no compile cache of its own (module.enableCompileCache is
  * Node 22's), and the packages that add one to require() write it as the module is
@@ -28,21 +29,20 @@ import { threadId } from "node:worker_threads";
 /** What became of the cache: read and used, refused by the engine, or not there. */
 export type CacheState = "accepted" | "rejected" | "none";
 
-export interface LoadedBundle {
-  exports: Record<string, unknown>;
-  cache: CacheState;
-  /** Writes the cache of everything compiled so far in this process (to a temporary file, then renamed). */
-  writeCache: () => void;
-}
-
-/** Environment variable: "1" makes the entry write the cache when the process exits (the build's runs, scripts/code-cache.mjs). */
+/** Environment variable: "1" makes each entry write its cache when the process exits, or a worker thread at its checkpoint (the build's runs, scripts/code-cache.mjs). */
 export const WRITE_ENV = "GSDPLAN_CODE_CACHE_WRITE";
 
 /** A bundle compiled, not yet run: its script, what became of the cache, and the cache's writer. */
 export interface CompiledBundle {
   script: Script;
   cache: CacheState;
+  /** Writes the cache of every function of the script compiled so far in this thread (to a temporary file, then renamed). */
   writeCache: () => void;
+}
+
+/** A bundle run: its exports, what became of the cache, and the cache's writer. */
+export interface LoadedBundle extends Omit<CompiledBundle, "script"> {
+  exports: Record<string, unknown>;
 }
 
 /**
