@@ -17,22 +17,35 @@ export interface ReportFilesInBackground {
 }
 
 /**
+ * Who makes report-data.json, decided once (compare-and-exchange on a shared flag): the page's
+ * worker when it is done with the page before this thread asks for the file, else this thread.
+ */
+export const DATA_UNCLAIMED = 0;
+export const DATA_BY_WORKER = 1;
+export const DATA_BY_CALLER = 2;
+
+/**
  * Starts rendering report.html from `input` in a worker thread (when the compiled worker is
  * there: the built library, dist/), so the caller can write other files meanwhile; otherwise,
- * or if the worker fails, the page is rendered on this thread when awaited. The same worker
- * then writes report-data.json's text from the same input (serializeReportInput), taking its
- * zlib work (~0.15 s at 4 km2) off the calling thread, which otherwise made it last and alone
- * while the other core had finished its share of the files. The input's typed arrays are
- * shared with the worker (inSharedMemory: one copy of their values), the rest copied; both
- * files come back as UTF-8 bytes (`bytes` and `data`; the page also as text, `html`). Never
- * rejects before it is awaited: a failure surfaces from the file asked for. `layers`: the
- * DEM's layers made beforehand (demLayers.ts), if any.
+ * or if the worker fails, the page is rendered on this thread when awaited. report-data.json's
+ * text (serializeReportInput, ~0.15 s of zlib at 4 km2) goes to whichever thread is free
+ * first: the worker once the page is done, unless this thread asked for the file before
+ * that (it then makes it itself, while the worker finishes the page). This thread made it
+ * last and alone when the worker had finished early (the oblique 3.2 km2 site); the worker
+ * did, when this thread had (4 km2). The input's typed arrays are shared with the worker
+ * (inSharedMemory: one copy of their values), the rest copied; both files come back as UTF-8
+ * bytes (`bytes` and `data`; the page also as text, `html`). Never rejects before it is
+ * awaited: a failure surfaces from the file asked for. `layers`: the DEM's layers made
+ * beforehand (demLayers.ts), if any.
  * @example const files = reportFilesInBackground(compact); ...; await writeFile("report.html", await files.bytes());
  */
 export function reportFilesInBackground(input: ReportInput, layers?: DemLayers): ReportFilesInBackground {
-  const made = inBackground<{ page: Uint8Array; data: Uint8Array }>(workerUrl, inSharedMemory({ input, layers }));
-  const fromWorker = async () => made.result();
-  const bytes = async () => (await fromWorker())?.page ?? new TextEncoder().encode(renderReport(input, layers));
-  const data = async () => (await fromWorker())?.data ?? new TextEncoder().encode(serializeReportInput(input));
+  const claim = new Int32Array(new SharedArrayBuffer(4));
+  const made = inBackground<{ page: Uint8Array; data?: Uint8Array }>(workerUrl, { ...inSharedMemory({ input, layers }), claim });
+  const bytes = async () => (await made.result())?.page ?? new TextEncoder().encode(renderReport(input, layers));
+  const data = async () => {
+    if (Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_CALLER) === DATA_UNCLAIMED) return new TextEncoder().encode(serializeReportInput(input));
+    return (await made.result())?.data ?? new TextEncoder().encode(serializeReportInput(input));
+  };
   return { bytes, html: async () => new TextDecoder().decode(await bytes()), data };
 }

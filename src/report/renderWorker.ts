@@ -3,19 +3,20 @@ import type { ReportInput } from "./model.js";
 import type { DemLayers } from "./demLayers.js";
 import { renderReport } from "./render.js";
 import { serializeReportInput } from "./serialize.js";
+import { DATA_BY_WORKER, DATA_UNCLAIMED } from "./background.js";
 import { codeCacheCheckpoint } from "../codeCache.js";
 
 /**
  * Worker thread that renders report.html from a (compacted) report input, so the page is
  * made on another core while the plan's rasters are written, and then report-data.json's
- * text from the same input (see reportFilesInBackground). It sends both as UTF-8 bytes, their
- * memory handed over rather than copied: the page as a string is two bytes a character (a
- * few of its characters lie beyond Latin-1), which a message copies whole and the writer
- * encodes again.
+ * text from the same input, unless the calling thread has claimed that first (see
+ * reportFilesInBackground). It sends them as UTF-8 bytes, their memory handed over rather
+ * than copied: the page as a string is two bytes a character (a few of its characters lie
+ * beyond Latin-1), which a message copies whole and the writer encodes again.
  */
-const { input, layers } = workerData as { input: ReportInput; layers?: DemLayers };
+const { input, layers, claim } = workerData as { input: ReportInput; layers?: DemLayers; claim: Int32Array };
 const encoder = new TextEncoder();
 const page = encoder.encode(renderReport(input, layers));
-const data = encoder.encode(serializeReportInput(input));
+const data = Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_WORKER) === DATA_UNCLAIMED ? encoder.encode(serializeReportInput(input)) : undefined;
 codeCacheCheckpoint();
-parentPort?.postMessage({ page, data }, [page.buffer, data.buffer]);
+parentPort?.postMessage({ page, data }, data ? [page.buffer, data.buffer] : [page.buffer]);

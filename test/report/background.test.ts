@@ -3,7 +3,7 @@ import { Worker } from "node:worker_threads";
 import { builtModule, firstDifference } from "../helpers/dist.js";
 import { makeReportInput } from "./fixture.js";
 import { renderReport } from "../../src/report/render.js";
-import type { reportFilesInBackground as Background } from "../../src/report/background.js";
+import { DATA_BY_CALLER, DATA_BY_WORKER, type reportFilesInBackground as Background } from "../../src/report/background.js";
 import { demLayers } from "../../src/report/demLayers.js";
 import { makeGrid } from "../../src/dem/sample.js";
 import { compactReportInput, reportMaps, serializeReportInput, type reportMapsInBackground as MapsInBackground } from "../../src/report/serialize.js";
@@ -32,16 +32,28 @@ describe.skipIf(!built.available)("report files made in a worker thread", () => 
     expect(Buffer.from(data).equals(Buffer.from(serializeReportInput(input), "utf8"))).toBe(true);
   });
 
-  it("come from the worker itself: its one message holds both files (the calling thread's fallback is not what was checked above)", async () => {
+  it("come from the worker itself: its one message holds the page and, unless the calling thread claimed it first, report-data.json", async () => {
     const input = makeReportInput({ siteName: "Worker message" });
-    const w = new Worker(new URL("renderWorker.js", built.href), { workerData: inSharedMemory({ input }) });
-    const m = await new Promise<{ page: Uint8Array; data: Uint8Array }>((resolve, reject) => {
-      w.once("message", resolve);
-      w.once("error", reject);
-    });
-    await w.terminate();
-    expect(Buffer.from(m.page).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
-    expect(Buffer.from(m.data).equals(Buffer.from(serializeReportInput(input), "utf8"))).toBe(true);
+    const run = async (claimed: boolean) => {
+      const claim = new Int32Array(new SharedArrayBuffer(4));
+      if (claimed) claim[0] = DATA_BY_CALLER;
+      const w = new Worker(new URL("renderWorker.js", built.href), { workerData: { ...inSharedMemory({ input }), claim } });
+      const m = await new Promise<{ page: Uint8Array; data?: Uint8Array }>((resolve, reject) => {
+        w.once("message", resolve);
+        w.once("error", reject);
+      });
+      await w.terminate();
+      return { m, claim: claim[0] };
+    };
+    const free = await run(false);
+    expect(Buffer.from(free.m.page).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
+    expect(Buffer.from(free.m.data!).equals(Buffer.from(serializeReportInput(input), "utf8"))).toBe(true);
+    expect(free.claim).toBe(DATA_BY_WORKER);
+    // Claimed by the calling thread: the page only, the claim left as it was.
+    const taken = await run(true);
+    expect(Buffer.from(taken.m.page).equals(Buffer.from(renderReport(input), "utf8"))).toBe(true);
+    expect(taken.m.data).toBeUndefined();
+    expect(taken.claim).toBe(DATA_BY_CALLER);
   });
 });
 
