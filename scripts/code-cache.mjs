@@ -31,6 +31,9 @@ if (process.argv[2] === "--library-run") {
   process.exit(0);
 }
 
+// A cache is only a head start: gsdplan runs without one (each bundle then compiled as it
+// loads). A failed run here leaves the caches out and says so, rather than failing the build
+// (and `npm ci`, which builds); the tests require the caches (test/codeCache.test.ts).
 const tmp = mkdtempSync(join(tmpdir(), "gsdplan-code-cache-"));
 try {
   for (const [what, args] of [
@@ -38,17 +41,19 @@ try {
     ["CLI", [join(bundle, "main.js"), "demo", "--quiet", "--out", join(tmp, "cli")]],
   ]) {
     const r = spawnSync(process.execPath, args, { env, encoding: "utf8", timeout: 300_000 });
-    if (r.status !== 0) throw new Error(`code cache: the ${what}'s demo run failed (exit ${r.status}):\n${r.stderr}`);
+    if (r.status !== 0) throw new Error(`the ${what}'s demo run failed (exit ${r.status ?? r.signal}):\n${r.stderr}`);
   }
+  // Every bundle's cache, but the campaign's site worker's (the build plans no campaign;
+  // that worker compiles as without a cache).
+  const written = readdirSync(bundle).filter((f) => f.endsWith(".v8cache"));
+  const missing = readdirSync(bundle)
+    .filter((f) => f.endsWith(".cjs") && f !== "siteWorker.cjs")
+    .map((f) => f.replace(/\.cjs$/, ""))
+    .filter((name) => !written.some((w) => w.startsWith(`${name}.`)));
+  if (missing.length) throw new Error(`no cache was written for ${missing.join(", ")}`);
+  console.log(`code cache: ${relative(root, bundle)}/ (${written.length} caches: ${written.map((f) => f.split(".")[0]).join(", ")})`);
+} catch (e) {
+  console.warn(`code cache: not complete in ${relative(root, bundle)}/ (${e.message}); gsdplan runs without it, compiling its code as it loads`);
 } finally {
   rmSync(tmp, { recursive: true, force: true });
 }
-// Every bundle's cache, but the campaign's site worker's (the build plans no campaign; that
-// worker compiles as without a cache).
-const written = readdirSync(bundle).filter((f) => f.endsWith(".v8cache"));
-const missing = readdirSync(bundle)
-  .filter((f) => f.endsWith(".cjs") && f !== "siteWorker.cjs")
-  .map((f) => f.replace(/\.cjs$/, ""))
-  .filter((name) => !written.some((w) => w.startsWith(`${name}.`)));
-if (missing.length) throw new Error(`code cache: no cache was written for ${missing.join(", ")} in ${relative(root, bundle)}/`);
-console.log(`code cache: ${relative(root, bundle)}/ (${written.length} caches: ${written.map((f) => f.split(".")[0]).join(", ")})`);
