@@ -198,15 +198,7 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
   const spans = siteRowSpans(inSite, W, win);
   if (which === "gsd.tif") {
     const g = r.gsdCm;
-    const levels = meanPyramid(width, height, sizes, (y, band) => {
-      for (let o = 0, rows = band.length / width; o < rows; o++) {
-        const base = at(y + o) - o * width;
-        const j0 = o * width + spans[2 * (y + o)], j1 = o * width + spans[2 * (y + o) + 1];
-        band.fill(NaN, o * width, j0);
-        for (let j = j0; j < j1; j++) band[j] = inSite[base + j] === 1 ? g[base + j] : NaN;
-        band.fill(NaN, j1, (o + 1) * width);
-      }
-    });
+    const levels = meanPyramid(width, height, sizes, (y, band) => siteRows(g, inSite, spans, at, width, y, band, NaN, NaN));
     return cogFile(levels, Float32Array, grid, crs, {
       nodata: NaN,
       ...GSD_COMPRESSION,
@@ -216,19 +208,8 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
   if (which === "images.tif") {
     const v = r.images;
     const cap = IMAGES_NODATA - 1;
-    const levels = uint16Pyramid(width, height, sizes, (y, band) => {
-      // Counts saturate just below nodata.
-      for (let o = 0, rows = band.length / width; o < rows; o++) {
-        const base = at(y + o) - o * width;
-        const j0 = o * width + spans[2 * (y + o)], j1 = o * width + spans[2 * (y + o) + 1];
-        band.fill(IMAGES_NODATA, o * width, j0);
-        for (let j = j0; j < j1; j++) {
-          const c = v[base + j];
-          band[j] = inSite[base + j] === 1 ? (c < cap ? c : cap) : IMAGES_NODATA;
-        }
-        band.fill(IMAGES_NODATA, j1, (o + 1) * width);
-      }
-    }, (values, w, h, out) => nearestOverview(values, w, h, IMAGES_NODATA, out));
+    // Counts saturate just below nodata.
+    const levels = uint16Pyramid(width, height, sizes, (y, band) => siteRows(v, inSite, spans, at, width, y, band, IMAGES_NODATA, cap), (values, w, h, out) => nearestOverview(values, w, h, IMAGES_NODATA, out));
     return cogFile(levels, Uint16Array, grid, crs, {
       nodata: IMAGES_NODATA,
       compression: "deflate",
@@ -237,19 +218,8 @@ function assessmentCog(r: AssessmentRasters, crs: RasterCrs, which: keyof Assess
     });
   }
   const f = r.flags;
-  const levels = uint16Pyramid(width, height, sizes, (y, band) => {
-    // No cell can be both coarser and finer, so no cell is 255; should one be, it keeps its other bits.
-    for (let o = 0, rows = band.length / width; o < rows; o++) {
-      const base = at(y + o) - o * width;
-      const j0 = o * width + spans[2 * (y + o)], j1 = o * width + spans[2 * (y + o) + 1];
-      band.fill(FLAGS_NODATA, o * width, j0);
-      for (let j = j0; j < j1; j++) {
-        const x = f[base + j];
-        band[j] = inSite[base + j] !== 1 ? FLAGS_NODATA : x === FLAGS_NODATA ? x & ~FLAG_FINE : x;
-      }
-      band.fill(FLAGS_NODATA, j1, (o + 1) * width);
-    }
-  }, (values, w, h, out) => orOverview(values, w, h, FLAGS_NODATA, FLAG_FINE, out));
+  // No cell can be both coarser and finer, so no cell is 255; should one be, it keeps its other bits.
+  const levels = uint16Pyramid(width, height, sizes, (y, band) => siteRows(f, inSite, spans, at, width, y, band, FLAGS_NODATA, FLAGS_NODATA & ~FLAG_FINE), (values, w, h, out) => orOverview(values, w, h, FLAGS_NODATA, FLAG_FINE, out));
   const items: Record<string, string> = {};
   for (const k of ASSESSMENT_FLAG_KINDS) items[`FLAG_${k.bit}`] = k.label;
   return cogFile(levels, Uint16Array, grid, crs, {
@@ -278,6 +248,37 @@ export function siteRowSpans(inSite: Uint8Array, W: number, win: RasterWindow): 
     spans[2 * y + 1] = b;
   }
   return spans;
+}
+
+/**
+ * The file's rows from `y` on into `band` (whole rows): a cell's value from the rasters'
+ * `values` (its file row starts at rasters cell rowAt(row)) where the cell is in the site,
+ * `nodata` elsewhere; a site cell holding `nodata` itself is written as `held` (in the file
+ * nodata means outside the site; NaN is never matched: an unseen cell's NaN GSD stays). Each
+ * row's site span (`spans`, siteRowSpans) is copied whole, then the cells of the span equal to
+ * nodata, and those outside the site (inSite 0: the mask is 0 or 1), are found with the
+ * arrays' own indexOf and patched: cell by cell (three reads and a branch a cell) the three
+ * files' rows took ~5 ns a cell, some 0.2 s of CPU at 4 km2, about three times this.
+ */
+function siteRows<T extends Float32Array | Uint16Array>(values: T, inSite: Uint8Array, spans: Int32Array, rowAt: (y: number) => number, width: number, y: number, band: T, nodata: number, held: number): void {
+  for (let o = 0, rows = band.length / width; o < rows; o++) {
+    const a = spans[2 * (y + o)], b = spans[2 * (y + o) + 1];
+    const row = band.subarray(o * width, (o + 1) * width) as T;
+    row.fill(nodata, 0, a);
+    row.fill(nodata, b);
+    if (a >= b) continue;
+    const base = rowAt(y + o);
+    const out = row.subarray(a, b) as T;
+    out.set(values.subarray(base + a, base + b));
+    if (nodata === nodata) for (let k = out.indexOf(nodata); k !== -1; k = out.indexOf(nodata, k + 1)) out[k] = held;
+    const site = inSite.subarray(base + a, base + b);
+    for (let k = site.indexOf(0); k !== -1; ) {
+      let e = site.indexOf(1, k);
+      if (e === -1) e = site.length;
+      out.fill(nodata, k, e);
+      k = site.indexOf(0, e);
+    }
+  }
 }
 
 /** Fills `band` with the file's full-resolution rows from row `y` on (whole rows, row-major), nodata in place. */

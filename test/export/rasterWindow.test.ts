@@ -132,7 +132,8 @@ describe("the rows' site spans (siteRowSpans) and the files made with them", () 
       inSite[i] = d <= 250 && d >= 120 ? 1 : 0;
       // Values outside the site too: the files must not show them.
       gsdCm[i] = 2 + (i % 97) / 100;
-      images[i] = i % 13;
+      // Some counts saturated (65535, the file's nodata): written just below it.
+      images[i] = i % 211 === 0 ? 65535 : i % 13;
       flags[i] = i % 17 === 0 ? FLAGS_NODATA : i % 5 === 0 ? FLAG_FINE : 0;
     }
     const ring: AssessmentRasters = { width: w, height: h, transform, gsdCm, images, flags, inSite };
@@ -144,7 +145,7 @@ describe("the rows' site spans (siteRowSpans) and the files made with them", () 
         for (let x = 0; x < win.width; x++) {
           const i = (win.r0 + y) * w + win.c0 + x;
           const want = name === "gsd.tif" ? (inSite[i] ? gsdCm[i] : NaN)
-            : name === "images.tif" ? (inSite[i] ? images[i] : IMAGES_NODATA)
+            : name === "images.tif" ? (inSite[i] ? Math.min(images[i], IMAGES_NODATA - 1) : IMAGES_NODATA)
             // flags.tif: a cell whose bits read as nodata drops its fine bit (geotiffRasters.ts).
             : (inSite[i] ? (flags[i] === FLAGS_NODATA ? FLAGS_NODATA & ~FLAG_FINE : flags[i]) : FLAGS_NODATA);
           if (!Object.is(data[y * win.width + x], want)) wrong++;
