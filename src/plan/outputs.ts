@@ -132,8 +132,9 @@ function outputFiles(parts: WrittenParts, summary: PlanSummary, report: ReducedR
   // demo the page's worker gained more from the core it left free (below).
   const cells = rasters.width * rasters.height;
   const gsdInBackground = splitAllowed(cells, parts.threads);
-  // Both report files come from one reduced input, made in a worker thread (the page, then
-  // report-data.json), so they are made on the other core while the rasters are written here:
+  // Both report files come from one reduced input, made in a worker thread (the page, and
+  // report-data.json unless this thread comes to it first: report/background.ts), so they are
+  // made on the other core while the rasters are written here:
   // on large grids started by the first small raster, after gsd.tif when that is made here
   // (the page's worker holds ~55-75 MB at 4 km2: its heap, the page's strings; workerHeap.ts);
   // on smaller grids as soon as its input is ready (the demo, 34 interleaved pairs: ~0.06 s
