@@ -24,13 +24,25 @@ import { readFileSync, renameSync, writeFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import path from "node:path";
 import { Script } from "node:vm";
-import { threadId } from "node:worker_threads";
+import { isMainThread, threadId } from "node:worker_threads";
 
 /** What became of the cache: read and used, refused by the engine, or not there. */
 export type CacheState = "accepted" | "rejected" | "none";
 
-/** Environment variable: "1" makes each entry write its cache when the process exits, or a worker thread at its checkpoint (the build's runs, scripts/code-cache.mjs). */
+/**
+ * Environment variable: "1" makes each entry write its cache when the process exits, or a
+ * worker thread at its checkpoint; "workers" the worker threads only (the build's runs,
+ * scripts/code-cache.mjs).
+ */
 export const WRITE_ENV = "GSDPLAN_CODE_CACHE_WRITE";
+
+/**
+ * Environment variable naming the engine flags a program set after loading its bundle
+ * (cli/engineSettings.ts), which the worker threads it starts inherit with the environment:
+ * their caches carry it in their names, since the engine takes a cache only under the flags
+ * it was written with. Unset: the engine's own flags.
+ */
+export const FLAGS_ENV = "GSDPLAN_ENGINE_FLAGS";
 
 /** A bundle compiled, not yet run: its script, what became of the cache, and the cache's writer. */
 export interface CompiledBundle {
@@ -105,8 +117,9 @@ function sha256(data: Uint8Array): Buffer {
  * @example const lib = loadEntry(__dirname, "lib", "3f2a9c1e")
  */
 export function loadEntry(dir: string, name: string, digest: string): Record<string, unknown> {
-  const writing = process.env[WRITE_ENV] === "1";
-  return loadBundle(path.join(dir, `${name}.cjs`), path.join(dir, cacheFileName(name, digest)), (writeCache) => {
+  const mode = process.env[WRITE_ENV];
+  const writing = mode === "1" || (mode === "workers" && !isMainThread);
+  return loadBundle(path.join(dir, `${name}.cjs`), path.join(dir, cacheFileName(name, digest, process.env[FLAGS_ENV])), (writeCache) => {
     if (!writing) return;
     process.once("exit", writeCache);
     (globalThis as Checkpoint)[CHECKPOINT] = writeCache;
@@ -127,7 +140,7 @@ export function codeCacheCheckpoint(): void {
   (globalThis as Checkpoint)[CHECKPOINT]?.();
 }
 
-/** The cache's file name for a bundle whose text has `digest`. */
-export function cacheFileName(name: string, digest: string): string {
-  return `${name}.${digest}.v8cache`;
+/** The cache's file name for a bundle whose text has `digest`, run under the engine flags named `flags` (FLAGS_ENV; none: the engine's own). */
+export function cacheFileName(name: string, digest: string, flags?: string): string {
+  return flags ? `${name}.${digest}.${flags.replace(/[^A-Za-z0-9-]/g, "-")}.v8cache` : `${name}.${digest}.v8cache`;
 }

@@ -123,4 +123,22 @@ describe("the build's caches (scripts/bundle.mjs, scripts/code-cache.mjs)", () =
       expect(compiledInChild(path.join(bundle, `${name}.cjs`), cache)).toBe("accepted");
     });
   }
+
+  // The CLI sets an engine flag once its bundle is read (cli/engineSettings.ts); the workers it
+  // starts then find their caches by the flags' name (FLAGS_ENV), as the CLI's process does.
+  for (const [entry, name] of entries.filter(([, n]) => n.endsWith("Worker"))) {
+    it(`${entry}'s cache under the CLI's engine flags is taken there, and the plain one is not`, () => {
+      const digest = createHash("sha256").update(readFileSync(path.join(bundle, `${name}.cjs`))).digest("hex").slice(0, 16);
+      const settings = pathToFileURL(path.join(ROOT, "dist", "cli", "engineSettings.js")).href;
+      const states = inChild(
+        `const { compileBundle, cacheFileName, FLAGS_ENV } = await import(${JSON.stringify(LOADER)});\n` +
+          `await import(${JSON.stringify(settings)});\n` +
+          `const file = ${JSON.stringify(path.join(bundle, `${name}.cjs`))};\n` +
+          `const flagged = compileBundle(file, ${JSON.stringify(bundle)} + "/" + cacheFileName(${JSON.stringify(name)}, ${JSON.stringify(digest)}, process.env[FLAGS_ENV])).cache;\n` +
+          `const plain = compileBundle(file, ${JSON.stringify(bundle)} + "/" + cacheFileName(${JSON.stringify(name)}, ${JSON.stringify(digest)})).cache;\n` +
+          `process.stdout.write(JSON.stringify({ flags: process.env[FLAGS_ENV], flagged, plain }));`,
+      );
+      expect(JSON.parse(states)).toEqual({ flags: "interrupt-budget-400000", flagged: "accepted", plain: "rejected" });
+    });
+  }
 });

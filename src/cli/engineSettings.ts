@@ -1,5 +1,5 @@
 import { setFlagsFromString } from "node:v8";
-import { WRITE_ENV } from "../codeCache.js";
+import { FLAGS_ENV, WRITE_ENV } from "../codeCache.js";
 
 /**
  * How much bytecode a function runs before V8 optimises it (its "interrupt budget"; Node 20's
@@ -23,9 +23,14 @@ export const INTERRUPT_BUDGET = 400_000;
  * it (re)arms a function's counter, so setting it at run time takes effect for the code that
  * runs after it (checked with perf: the compiler's share fell as with the command-line flag).
  *
- * Not in the build's run that writes the code cache (codeCache.ts WRITE_ENV): the engine
- * accepts a cache only under the flags it was written with, and the CLI's bundle is read
- * (its cache checked) before this runs, under the engine's own flags. The budget does not
- * change what the cache holds (the functions' bytecode, made on their first call).
+ * The engine takes a code cache (codeCache.ts) only under the flags it was written with. The
+ * CLI's bundle is read (its cache checked) before this runs, under the engine's own flags, so
+ * the build's run that writes that cache (WRITE_ENV "1") leaves the budget alone; the worker
+ * threads start after it, and find their caches by the flags named in FLAGS_ENV, written by
+ * the build's run with the budget (WRITE_ENV "workers"). The budget does not change what a
+ * cache holds (the functions' bytecode, made on their first call).
  */
-if (process.env[WRITE_ENV] !== "1") setFlagsFromString(`--interrupt-budget=${INTERRUPT_BUDGET}`);
+if (process.env[WRITE_ENV] !== "1") {
+  setFlagsFromString(`--interrupt-budget=${INTERRUPT_BUDGET}`);
+  process.env[FLAGS_ENV] = `interrupt-budget-${INTERRUPT_BUDGET}`;
+}
