@@ -111,9 +111,9 @@ function sha256(data: Uint8Array): Buffer {
 
 /**
  * The entry modules' loader (the library's, the CLI's, each worker thread's): `name`'s
- * bundle and cache in `dir`. When WRITE_ENV is "1" the cache is written when the process
- * exits, and by a worker thread at its codeCacheCheckpoint (its caller ends it without an
- * exit of its own).
+ * bundle and cache in `dir`, the cache for the engine flags FLAGS_ENV names, if any. When
+ * WRITE_ENV says so the cache is written when the process exits, and by a worker thread at
+ * its codeCacheCheckpoint (its caller ends it without an exit of its own).
  * @example const lib = loadEntry(__dirname, "lib", "3f2a9c1e")
  */
 export function loadEntry(dir: string, name: string, digest: string): Record<string, unknown> {
