@@ -14,3 +14,6 @@ export function lazyModule<T>(id: string): () => T {
   let module: T | undefined;
   return () => (module ??= load(id) as T);
 }
+
+/** The XML parser (VRT mosaics, KML and GPX sites), one handle for its readers. */
+export const xmldom = lazyModule<typeof import("@xmldom/xmldom")>("@xmldom/xmldom");

@@ -1,10 +1,11 @@
 import type http from "node:http";
+import { BaseClient, BaseResponse, fromCustomClient, type GeoTIFF } from "geotiff";
 import { lazyModule } from "../lazyModule.js";
+import { InputFileError } from "../errors.js";
 
+/** node:http and node:https, loaded when a remote DEM is read (lazyModule.ts). */
 const httpModule = lazyModule<typeof import("node:http")>("node:http");
 const httpsModule = lazyModule<typeof import("node:https")>("node:https");
-import { BaseClient, BaseResponse, fromCustomClient, type GeoTIFF } from "geotiff";
-import { InputFileError } from "../errors.js";
 
 /** How a GeoTIFF over HTTP(S) is fetched. */
 export interface HttpOptions {

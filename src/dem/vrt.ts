@@ -1,11 +1,8 @@
 import path from "node:path";
 import type { Element } from "@xmldom/xmldom";
-import { lazyModule } from "../lazyModule.js";
+import { xmldom } from "../lazyModule.js";
 import { InputError, InputFileError } from "../errors.js";
 import type { GeoTransform } from "./grid.js";
-
-/** The XML parser, loaded when a file needs it (lazyModule.ts). */
-const xmldom = lazyModule<typeof import("@xmldom/xmldom")>("@xmldom/xmldom");
 
 /**
  * A GDAL VRT mosaic, as `gdalbuildvrt` writes it: one grid (size and geotransform) and per

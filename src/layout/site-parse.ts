@@ -4,11 +4,8 @@
  * boxes; says what it found when there is no polygon.
  */
 import type { Element, Node as XmlNode } from "@xmldom/xmldom";
-import { lazyModule } from "../lazyModule.js";
+import { xmldom } from "../lazyModule.js";
 import { InputError, InputFileError } from "../errors.js";
-
-/** The XML parser, loaded when a file needs it (lazyModule.ts). */
-const xmldom = lazyModule<typeof import("@xmldom/xmldom")>("@xmldom/xmldom");
 
 /** One polygon: rings of [lon, lat] pairs, the first ring the outer boundary. */
 export type LonLatPolygon = number[][][];
