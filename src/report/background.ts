@@ -44,8 +44,9 @@ export function reportFilesInBackground(input: ReportInput, layers?: DemLayers):
   const made = inBackground<{ page: Uint8Array; data?: Uint8Array }>(workerUrl, { ...inSharedMemory({ input, layers }), claim });
   const bytes = async () => (await made.result())?.page ?? new TextEncoder().encode(renderReport(input, layers));
   const data = async () => {
-    if (Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_CALLER) === DATA_UNCLAIMED) return new TextEncoder().encode(serializeReportInput(input));
-    return (await made.result())?.data ?? new TextEncoder().encode(serializeReportInput(input));
+    // Claimed here first, or the worker's (here too should the worker fail).
+    const byWorker = Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_CALLER) !== DATA_UNCLAIMED;
+    return (byWorker ? (await made.result())?.data : undefined) ?? new TextEncoder().encode(serializeReportInput(input));
   };
   return { bytes, html: async () => new TextDecoder().decode(await bytes()), data };
 }
