@@ -1,7 +1,7 @@
 import { inBackground, inSharedMemory } from "../background.js";
 import type { ReportInput } from "./model.js";
 import { renderReport } from "./render.js";
-import { serializeReportInput } from "./serialize.js";
+import { serializeReportInputInPool } from "./serialize.js";
 import type { DemLayers } from "./demLayers.js";
 
 const workerUrl = new URL("./renderWorker.js", import.meta.url);
@@ -12,7 +12,7 @@ export interface ReportFilesInBackground {
   bytes: () => Promise<Uint8Array>;
   /** report.html as text. */
   html: () => Promise<string>;
-  /** report-data.json's UTF-8 bytes (serializeReportInput's text). */
+  /** report-data.json's UTF-8 bytes (serializeReportInput's text, its streams deflated on Node's thread pool). */
   data: () => Promise<Uint8Array>;
 }
 
@@ -28,7 +28,7 @@ export const DATA_BY_CALLER = 2;
  * Starts rendering report.html from `input` in a worker thread (when the compiled worker is
  * there: the built library, dist/), so the caller can write other files meanwhile; otherwise,
  * or if the worker fails, the page is rendered on this thread when awaited. report-data.json's
- * text (serializeReportInput, ~0.15 s of zlib at 4 km2) goes to whichever thread is free
+ * text (serializeReportInputInPool, ~0.06 s at 4 km2) goes to whichever thread is free
  * first: the worker once the page is done, unless this thread asked for the file before
  * that (it then makes it itself, while the worker finishes the page). This thread made it
  * last and alone when the worker had finished early (the oblique 3.2 km2 site); the worker
@@ -46,7 +46,7 @@ export function reportFilesInBackground(input: ReportInput, layers?: DemLayers):
   const data = async () => {
     // Claimed here first, or the worker's (here too should the worker fail).
     const byWorker = Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_CALLER) !== DATA_UNCLAIMED;
-    return (byWorker ? (await made.result())?.data : undefined) ?? new TextEncoder().encode(serializeReportInput(input));
+    return (byWorker ? (await made.result())?.data : undefined) ?? new TextEncoder().encode(await serializeReportInputInPool(input));
   };
   return { bytes, html: async () => new TextDecoder().decode(await bytes()), data };
 }

@@ -2,7 +2,7 @@ import { parentPort, workerData } from "node:worker_threads";
 import type { ReportInput } from "./model.js";
 import type { DemLayers } from "./demLayers.js";
 import { renderReport } from "./render.js";
-import { serializeReportInput } from "./serialize.js";
+import { serializeReportInputInPool } from "./serialize.js";
 import { DATA_BY_WORKER, DATA_UNCLAIMED } from "./background.js";
 import { codeCacheCheckpoint } from "../codeCache.js";
 
@@ -17,6 +17,9 @@ import { codeCacheCheckpoint } from "../codeCache.js";
 const { input, layers, claim } = workerData as { input: ReportInput; layers?: DemLayers; claim: Int32Array };
 const encoder = new TextEncoder();
 const page = encoder.encode(renderReport(input, layers));
-const data = Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_WORKER) === DATA_UNCLAIMED ? encoder.encode(serializeReportInput(input)) : undefined;
-codeCacheCheckpoint();
-parentPort?.postMessage({ page, data }, data ? [page.buffer, data.buffer] : [page.buffer]);
+const claimed = Atomics.compareExchange(claim, 0, DATA_UNCLAIMED, DATA_BY_WORKER) === DATA_UNCLAIMED;
+// A failure here fails the worker: the calling thread then makes both files itself.
+void (claimed ? serializeReportInputInPool(input).then((text) => encoder.encode(text)) : Promise.resolve(undefined)).then((data) => {
+  codeCacheCheckpoint();
+  parentPort?.postMessage({ page, data }, data ? [page.buffer, data.buffer] : [page.buffer]);
+});

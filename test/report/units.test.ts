@@ -4,7 +4,7 @@ import { esc, jsonForScript } from "../../src/report/escape.js";
 import { contourInterval, contourLines, maskOutline } from "../../src/report/contours.js";
 import { niceFloor, niceStep } from "../../src/report/nice.js";
 import { histogram } from "../../src/report/histogram.js";
-import { bytePlanes, compactReportInput, fromBytePlanes, parseReportInput, serializeReportInput } from "../../src/report/serialize.js";
+import { OWN_STREAM_BYTES, bytePlanes, compactReportInput, fromBytePlanes, parseReportInput, serializeReportInput, serializeReportInputInPool } from "../../src/report/serialize.js";
 import { firstDifference } from "../helpers/dist.js";
 import { deflateSync, inflateSync } from "node:zlib";
 import { renderReport } from "../../src/report/render.js";
@@ -167,40 +167,78 @@ describe("report-data.json", () => {
     }
   });
 
-  it("writes float arrays as planes and the others as plain bytes, and reads them back bit for bit", () => {
+  it("writes float arrays as planes and the others as plain bytes, large ones in streams of their own, and reads them back bit for bit", () => {
     const input = makeReportInput();
+    const compact = compactReportInput(input);
     const text = serializeReportInput(input);
     const doc = JSON.parse(text);
-    expect(doc.version).toBe(3);
-    expect(Object.keys(doc.input.rasters.gsdCm).sort()).toEqual(["$typed", "length", "planes"]);
-    expect(Object.keys(doc.input.drawing.strips[0].ground).sort()).toEqual(["$typed", "length", "planes"]);
-    expect(Object.keys(doc.input.rasters.images).sort()).toEqual(["$typed", "deflate", "length"]);
+    expect(doc.version).toBe(4);
+    // The packed stream comes before the input (the reader takes it first).
+    expect(Object.keys(doc)).toEqual(["format", "version", "packed", "input"]);
+    const keys = (o: object) => Object.keys(o).sort();
+    const dem = compact.dem.heights, ground = compact.drawing!.strips[0].ground, images = compact.rasters.images;
+    // The fixture's DEM is large enough for a stream of its own, the strips' profiles small.
+    expect(dem.byteLength).toBeGreaterThanOrEqual(OWN_STREAM_BYTES);
+    expect(ground.byteLength).toBeLessThan(OWN_STREAM_BYTES);
+    expect(keys(doc.input.dem.heights)).toEqual(["$typed", "length", "planes"]);
+    expect(keys(doc.input.drawing.strips[0].ground)).toEqual(["$typed", "length", "packedPlanesAt"]);
+    expect(keys(doc.input.rasters.images)).toEqual(images.byteLength >= OWN_STREAM_BYTES ? ["$typed", "deflate", "length"] : ["$typed", "length", "packedAt"]);
+    // The packed stream holds each small array's stored bytes at its offset: the profile's byte planes.
+    const packed = inflate(doc.packed.deflate);
+    expect(packed.length).toBe(doc.packed.length);
+    const at = doc.input.drawing.strips[0].ground.packedPlanesAt;
+    const groundBytes = new Uint8Array(ground.buffer, ground.byteOffset, ground.byteLength);
+    expect(Array.from(packed.subarray(at, at + ground.byteLength))).toEqual(Array.from(bytePlanes(groundBytes, ground.BYTES_PER_ELEMENT)));
     const back = parseReportInput(text);
     const bits = (a: Float32Array | Float64Array) => Array.from(new Uint8Array(a.buffer, a.byteOffset, a.byteLength));
-    expect(bits(back.drawing!.strips[0].ground)).toEqual(bits(compactReportInput(input).drawing!.strips[0].ground));
+    expect(bits(back.drawing!.strips[0].ground)).toEqual(bits(ground));
     expect(bits(back.dem.heights)).toEqual(bits(input.dem.heights));
+    expect(Array.from(back.rasters.images)).toEqual(Array.from(images));
   });
 
-  it("still reads version 1 files, every typed array as plain deflated bytes", () => {
+  it("gives the same text with its streams deflated on the thread pool", async () => {
+    const input = makeReportInput();
+    expect((await serializeReportInputInPool(input)) === serializeReportInput(input)).toBe(true);
+  });
+
+  it("refuses a packed array with no packed bytes before it, or reaching past them", () => {
+    const doc = JSON.parse(serializeReportInput(makeReportInput()));
+    const strip = doc.input.drawing.strips[0];
+    const late = { format: doc.format, version: doc.version, input: doc.input, packed: doc.packed };
+    expect(() => parseReportInput(JSON.stringify(late), "out/report-data.json")).toThrow(InputFileError);
+    expect(() => parseReportInput(JSON.stringify(late), "out/report-data.json")).toThrow(/no packed bytes before it/);
+    strip.ground.packedPlanesAt = doc.packed.length - 4;
+    expect(() => parseReportInput(JSON.stringify(doc), "out/report-data.json")).toThrow(/outside the packed bytes/);
+  });
+
+  it("still reads versions 1 and 3 files, every typed array in a stream of its own (version 1 as plain deflated bytes)", () => {
     const text = serializeReportInput(makeReportInput());
-    const v1 = JSON.stringify({ ...JSON.parse(text), version: 1 }, (_k, v: unknown) => {
-      const t = v as { $typed?: string; length?: number; planes?: string };
-      if (t && typeof t === "object" && t.planes !== undefined) {
-        const size = t.$typed === "Float64Array" ? 8 : 4;
-        const bytes = fromBytePlanes(new Uint8Array(inflate(t.planes)), size);
-        return { $typed: t.$typed, length: t.length, deflate: deflateSync(bytes).toString("base64") };
-      }
-      return v;
-    });
+    const doc = JSON.parse(text);
+    const packed = inflate(doc.packed.deflate);
+    const older = (version: number) =>
+      JSON.stringify({ format: doc.format, version, input: doc.input }, (_k, v: unknown) => {
+        const t = v as { $typed?: string; length?: number; planes?: string; packedAt?: number; packedPlanesAt?: number };
+        if (!t || typeof t !== "object" || t.$typed === undefined) return v;
+        const size = BYTES_PER_ELEMENT[t.$typed];
+        const at = t.packedPlanesAt ?? t.packedAt;
+        const stored = at !== undefined ? packed.subarray(at, at + t.length! * size) : inflate((t.planes ?? (t as { deflate: string }).deflate));
+        const isPlanes = t.planes !== undefined || t.packedPlanesAt !== undefined;
+        if (version === 1) return { $typed: t.$typed, length: t.length, deflate: deflateSync(isPlanes ? fromBytePlanes(stored, size) : stored).toString("base64") };
+        return isPlanes ? { $typed: t.$typed, length: t.length, planes: deflateSync(stored).toString("base64") } : { $typed: t.$typed, length: t.length, deflate: deflateSync(stored).toString("base64") };
+      });
+    const v1 = older(1), v3 = older(3);
+    for (const old of [v1, v3]) expect(old).not.toMatch(/"packed/);
     expect(v1).not.toContain('"planes"');
+    expect(v3).toContain('"planes"');
     expect(parseReportInput(v1)).toEqual(parseReportInput(text));
+    expect(parseReportInput(v3)).toEqual(parseReportInput(text));
   });
 });
 
 describe("report-data.json of version 2 (every leg's stations, no drawing)", () => {
   // Such files were written before the drawing: the page made from one is the page made
-  // directly from the plan's input, as is the page made from version 3.
-  it("gives the same page as the input itself and as version 3", () => {
+  // directly from the plan's input, as is the page made from version 4.
+  it("gives the same page as the input itself and as version 4", () => {
     const input = makeReportInput();
     const v2 = JSON.stringify({ format: "gsdplan-report-data", version: 2, input: { ...input, drawing: undefined } }, (_k, v: unknown) => {
       if (ArrayBuffer.isView(v)) {
@@ -228,6 +266,8 @@ describe("report-data.json of version 2 (every leg's stations, no drawing)", () 
     expect(() => parseReportInput(JSON.stringify(doc), "out/report-data.json")).toThrow(/drawing/);
   });
 });
+
+const BYTES_PER_ELEMENT: Record<string, number> = { Float64Array: 8, Float32Array: 4, Uint32Array: 4, Int32Array: 4, Uint16Array: 2, Int16Array: 2, Uint8Array: 1 };
 
 function inflate(base64: string): Buffer {
   return inflateSync(Buffer.from(base64, "base64"));
