@@ -33,7 +33,7 @@ export function timedRun(cmd, args, { timeoutS } = {}) {
  * Runs a Node script under GNU time; the script prints one JSON object as the last line of
  * its stdout, returned as `json` (null when it timed out) with the wall time, CPU time and
  * peak RSS of the whole child process.
- * @example const { json, peakRssBytes } = nodeJson("scripts/bench/plan.mjs", ["--child", "cfg.json"])
+ * @example const { json, peakRssBytes } = nodeJson("scripts/bench/planChild.mjs", ["plan.json", "out"])
  */
 export function nodeJson(script, args = [], { nodeArgs = [], timeoutS } = {}) {
   const t = timedRun(process.execPath, [...nodeArgs, script, ...args], { timeoutS });
