@@ -6,6 +6,7 @@ import { FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_VALUES, ASSESSMENT_FLAG_K
 import { tallyCounter, tallyEdges, tallyOfSlots, type GsdTallyGrid } from "./gsdTally.js";
 import { RADIX_BINS, RADIX_SHIFT, binOfValue, countStatsOfHistogram, float32Keys, float32OfSortKey, float32SortKey, gatherBands, quantilesOfAllAndGroups, type GatherBands, type GroupRadix } from "./quantiles.js";
 import { zeroFilled } from "../zeroFill.js";
+import { statsCells } from "./statsCellsWasm.js";
 
 /**
  * Summary figures of an assessment over the site's cells.
@@ -48,6 +49,8 @@ export interface StatsInput {
    * cells instead of two, unless a strip's wanted rank lies outside the range.
    */
   stripSpanCm?: [number, number];
+  /** Count the cells in JavaScript or WebAssembly (the default, where built): the same figures (StatsPassJob.cellsIn). */
+  cellsIn?: "js" | "wasm";
 }
 
 const QUANTILES = [0, 0.05, 0.5, 0.95, 1];
@@ -93,6 +96,8 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
    * is outside the span); the rest are added from the strips' bins afterwards (tallyFromStripBins).
    */
   tallyOfStripBin?: Int32Array;
+  /** Count the cells in JavaScript (statsPassCells) or WebAssembly (statsCells.as.ts, where built: the default); the counts are the same. */
+  cellsIn?: "js" | "wasm";
 }
 
 /**
@@ -101,11 +106,16 @@ export interface StatsPassJob extends Pick<StatsInput, "gsdCm" | "images" | "fla
  * @example runBands("stats", job, bands, threads, statsPassBands);
  */
 export function statsPassBands(job: StatsPassJob, next: Int32Array, bands: number, slot: number): void {
+  const wasm = job.cellsIn === "js" ? undefined : statsCells(job, PASS_CHUNK, STRIP_BIN_SHIFT);
   for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
     const i0 = b * job.bandCells;
     const i1 = Math.min(job.inSite.length, i0 + job.bandCells);
-    for (let c = i0; c < i1; c += PASS_CHUNK) statsPassCells(job, c, Math.min(i1, c + PASS_CHUNK), slot);
+    for (let c = i0; c < i1; c += PASS_CHUNK) {
+      if (wasm) wasm.cells(c, Math.min(i1, c + PASS_CHUNK));
+      else statsPassCells(job, c, Math.min(i1, c + PASS_CHUNK), slot);
+    }
   }
+  if (wasm) job.atLeast[slot * SLOT_STRIDE] += wasm.flush(slot);
 }
 
 /**
@@ -328,6 +338,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
     ...(input.gsdTally && edges ? { tallyGrid: input.gsdTally, tallyEdges: edges, tally: new Float64Array(buffer(threads, 8 * threads * (input.gsdTally.bins + 2))) } : {}),
     ...spanJob,
     ...(input.gsdTally && edges && spanJob.stripHist ? { tallyOfStripBin: tallyOfStripBins(input.gsdTally, edges, spanJob.spanLo!, spanJob.span!) } : {}),
+    ...(input.cellsIn ? { cellsIn: input.cellsIn } : {}),
   };
   runBands("stats", job, bands, threads, statsPassBands, input.bandPool);
   const flagHist = sumOfSlots(job.flagHist, threads);

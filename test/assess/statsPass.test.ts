@@ -51,8 +51,9 @@ describe("the assessment's statistics against a count cell by cell", () => {
   // The last, small, case is one run of a few thousand cells: a run left uncounted loses it all.
   // Spans: [2.2, 3.2] cm leaves the odd high cells' GSD above it (the strips' maxima then made
   // afterwards); [1, 8] cm holds every strip's values (their quantiles from the pass's bins).
-  for (const [W, H, span] of [[700, 300, [2.2, 3.2]], [700, 300, [1, 8]], [513, 257, null], [61, 40, [2.2, 3.2]]] as const) {
-    it(`${W} x ${H} cells, strips' first pass ${span ? `counted in the pass over ${span[0]} .. ${span[1]} cm` : "made afterwards"}`, () => {
+  // Each case with the cells counted in JavaScript and in WebAssembly (statsCells.as.ts, where built).
+  for (const [W, H, span] of [[700, 300, [2.2, 3.2]], [700, 300, [1, 8]], [513, 257, null], [61, 40, [2.2, 3.2]]] as const) for (const cellsIn of ["js", "wasm"] as const) {
+    it(`${W} x ${H} cells, strips' first pass ${span ? `counted in the pass over ${span[0]} .. ${span[1]} cm` : "made afterwards"}, counted in ${cellsIn}`, () => {
       const r = rasters(W, H, W + H);
       if (W < 100) {
         // One strip, one image count, one flag value and near GSD over the whole site.
@@ -63,7 +64,7 @@ describe("the assessment's statistics against a count cell by cell", () => {
         for (let i = 0; i < r.gsdCm.length; i++) r.gsdCm[i] = 2.5 + (i % 61) / 1000;
       }
       const tallyGrid = { first: 180, stepCm: 0.01, bins: 150 };
-      const stats = assessmentStats({ ...r, cellAreaM2: 0.25, threads: 1, gsdAtLeastCm: 2.75, gsdTally: tallyGrid, ...(span ? { stripSpanCm: [span[0], span[1]] as [number, number] } : {}) });
+      const stats = assessmentStats({ ...r, cellAreaM2: 0.25, threads: 1, cellsIn, gsdAtLeastCm: 2.75, gsdTally: tallyGrid, ...(span ? { stripSpanCm: [span[0], span[1]] as [number, number] } : {}) });
       const n = W * H;
       const site: number[] = [];
       for (let i = 0; i < n; i++) if (r.inSite[i]) site.push(i);
