@@ -13,6 +13,7 @@
  * and NumPy).
  */
 import { zeroFilled } from "../zeroFill.js";
+import { gatherCells as gatherKernel } from "./gatherCellsWasm.js";
 
 /**
  * Quantiles `ps` (each in [0, 1]) of `values`; NaN entries are ignored, and so are
@@ -315,7 +316,7 @@ export interface GroupRadix {
  * quantiles are made by quantilesOfGroups instead (`fromSpans` false). The same figures either way.
  * @example const { all, groups } = quantilesOfAllAndGroups(gsdCm, nadirStrip, inSite, strips, [0, 0.5, 1], siteRadix, stripRadix)
  */
-export function quantilesOfAllAndGroups(values: Float32Array, group: GroupArray, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array, byGroup?: GroupRadix, bands?: GatherBands): { all: number[]; groups: Float64Array; fromSpans: boolean } {
+export function quantilesOfAllAndGroups(values: Float32Array, group: GroupArray, include: Uint8Array, groups: number, ps: readonly number[], all: Uint32Array, byGroup?: GroupRadix, bands?: GatherBands, cellsIn?: GatherJob["cellsIn"]): { all: number[]; groups: Float64Array; fromSpans: boolean } {
   let n = 0;
   for (let b = 0; b < RADIX_BINS; b++) n += all[b];
   const wantedGroups = byGroup ? groupRanks(byGroup, groups, ps) : undefined;
@@ -323,7 +324,7 @@ export function quantilesOfAllAndGroups(values: Float32Array, group: GroupArray,
     const { stats } = orderStatisticsOfRadix(values, { hist: all, n }, (m) => ranksOf(m, ps), include);
     return { all: n === 0 ? ps.map(() => NaN) : interpolate(n, ps, stats), groups: quantilesOfGroups(values, group, include, groups, ps, all), fromSpans: false };
   }
-  const got = gatherWanted(values, group, include, ps, byGroup, wantedGroups, { hist: all, n }, bands);
+  const got = gatherWanted(values, group, include, ps, byGroup, wantedGroups, { hist: all, n }, bands, cellsIn);
   return { ...got, fromSpans: true };
 }
 
@@ -365,6 +366,10 @@ export interface GatherJob {
   out: Float32Array;
   at: Int32Array;
   bandCells: number;
+  /** Each slot's first place in `out` (slots + 1 entries: the last is out's length). */
+  slotAt: Int32Array;
+  /** Gather in JavaScript (gatherCells) or WebAssembly (gatherCells.as.ts, where built: the default); the quantiles are the same. */
+  cellsIn?: "js" | "wasm";
 }
 
 /**
@@ -374,10 +379,19 @@ export interface GatherJob {
  */
 export function gatherBands(job: GatherJob, next: Int32Array, bands: number, slot: number): void {
   const n = job.values.length;
+  const wasm = job.cellsIn === "js" ? undefined : gatherKernel(job, GATHER_CHUNK, RADIX_SHIFT);
   for (let b = Atomics.add(next, 0, 1); b < bands; b = Atomics.add(next, 0, 1)) {
-    gatherCells(job, b * job.bandCells, Math.min(n, (b + 1) * job.bandCells), slot);
+    const i1 = Math.min(n, (b + 1) * job.bandCells);
+    for (let i0 = b * job.bandCells; i0 < i1; i0 += GATHER_CHUNK) {
+      if (wasm) wasm.cells(i0, Math.min(i1, i0 + GATHER_CHUNK));
+      else gatherCells(job, i0, Math.min(i1, i0 + GATHER_CHUNK), slot);
+    }
   }
+  wasm?.flush(slot);
 }
+
+/** Cells the pass takes at a time (the WebAssembly pass copies them into its memory: ~112 KB). */
+const GATHER_CHUNK = 16384;
 
 /** Values i0 .. i1 - 1 of the wanted bins, put at thread t's places in their slots. */
 function gatherCells(job: GatherJob, i0: number, i1: number, t: number): void {
@@ -427,6 +441,7 @@ function gatherWanted(
   wanted: ({ n: number } & ReturnType<typeof ranksInBins>)[],
   site?: RadixHistogram,
   bands?: GatherBands,
+  cellsIn?: GatherJob["cellsIn"],
 ): { all: number[]; groups: Float64Array } {
   const { lo, span, hist } = byGroup;
   const groups = wanted.length;
@@ -468,9 +483,11 @@ function gatherWanted(
     out: new Float32Array(memory(4 * slotAt[slots])),
     at,
     bandCells: bands?.bandCells ?? values.length,
+    slotAt,
+    ...(cellsIn ? { cellsIn } : {}),
   };
   if (bands) bands.run(job, Math.ceil(values.length / job.bandCells));
-  else gatherCells(job, 0, values.length, 0);
+  else gatherBands(job, new Int32Array(1), 1, 0);
   const gathered: Float32Array[] = [];
   for (let k = 0; k < slots; k++) {
     // First passes counted on other values than these would select wrongly: refuse them

@@ -49,7 +49,7 @@ export interface StatsInput {
    * cells instead of two, unless a strip's wanted rank lies outside the range.
    */
   stripSpanCm?: [number, number];
-  /** Count the cells in JavaScript or WebAssembly (the default, where built): the same figures (StatsPassJob.cellsIn). */
+  /** Count and gather the cells in JavaScript or WebAssembly (the default, where built): the same figures (StatsPassJob.cellsIn, GatherJob.cellsIn). */
   cellsIn?: "js" | "wasm";
 }
 
@@ -386,7 +386,7 @@ export function assessmentStats(input: StatsInput): AssessmentStats {
   const gather: GatherBands | undefined = threads > 1
     ? { bandCells: job.bandCells, run: (g, gatherBandCount) => runBands("gather", g, gatherBandCount, 2, gatherBands, input.bandPool) }
     : undefined;
-  const q = quantilesOfAllAndGroups(job.gsdCm, job.nadirStrip, job.inSite, S, QUANTILES, radixHist, byStrip, gather);
+  const q = quantilesOfAllAndGroups(job.gsdCm, job.nadirStrip, job.inSite, S, QUANTILES, radixHist, byStrip, gather, input.cellsIn);
   const siteGsd = gsdStats(q.all);
   const stripQuantiles = q.groups;
   const stripGsd = (s: number): GsdStats => gsdStats(stripQuantiles.subarray(s * QUANTILES.length, (s + 1) * QUANTILES.length));

@@ -255,8 +255,9 @@ describe("quantiles of all values and of every group, the groups' first pass cou
   // The second pass shared between two threads (stats.ts runs it on its band workers), here
   // taken in turn on this one: thread 1 takes the last bands, filling its bins from their
   // ends, thread 0 the first, from their starts.
-  for (const shift of [RADIX_SHIFT, 13]) {
-    it(`equal the sorted quantiles with the second pass split between two threads (shift ${shift})`, () => {
+  // Each with the second pass in JavaScript and in WebAssembly (gatherCells.as.ts, where built).
+  for (const shift of [RADIX_SHIFT, 13]) for (const cellsIn of ["js", "wasm"] as const) {
+    it(`equal the sorted quantiles with the second pass split between two threads (shift ${shift}, gathered in ${cellsIn})`, () => {
       const s = sample(7, undefined, shift);
       const bandCells = 10_007;
       const bands: GatherBands = {
@@ -267,14 +268,44 @@ describe("quantiles of all values and of every group, the groups' first pass cou
           gatherBands(job, Int32Array.of(0), half, 0);
         },
       };
-      const got = quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup, bands);
+      const got = quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup, bands, cellsIn);
       expect(got.fromSpans).toBe(true);
       checkAgainstSorted(s, got);
       // A thread that misses its bands leaves the bins short: refused.
       const short: GatherBands = { bandCells, run: (job, count) => gatherBands(job, Int32Array.of(1), count, 1) };
-      expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup, short)).toThrow(/do not match/);
+      expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, s.byGroup, short, cellsIn)).toThrow(/do not match/);
     });
   }
+
+  // A value in the first bin past the span belongs to no group's bins: not to the next group's
+  // first bin, which sits right after it in the table (here a wanted one: group 1's minimum).
+  for (const cellsIn of ["js", "wasm"] as const) it(`leave a value just past the span out of the next group's first bin (gathered in ${cellsIn})`, () => {
+    const shift = 13, lo = binOfValue(2, shift), span = binOfValue(3, shift) - lo + 1;
+    const first = (bin: number) => float32OfSortKey(bin * 2 ** shift);
+    const n = 4000, groups = 2;
+    const values = new Float32Array(n), group = new Uint16Array(n), include = new Uint8Array(n).fill(1);
+    for (let i = 0; i < n; i++) {
+      group[i] = i % 2;
+      // Group 0: one in fifty in the bin just past the span; group 1: its lowest in the span's first bin.
+      values[i] = i % 2 === 0 ? (i % 100 === 0 ? first(lo + span) : 2.5 + (i % 7) / 100) : i % 10 === 1 ? first(lo) : 2.4 + (i % 11) / 100;
+    }
+    const all = new Uint32Array(RADIX_BINS);
+    const byGroup: GroupRadix = { lo, span, shift, hist: new Uint32Array(groups * span), below: new Uint32Array(groups), above: new Uint32Array(groups) };
+    const keys = float32Keys(values);
+    for (let i = 0; i < n; i++) {
+      all[radixBin(keys[i])]++;
+      const b = (float32SortKey(keys[i]) >>> shift) - lo;
+      if (b < 0) byGroup.below[group[i]]++;
+      else if (b >= span) byGroup.above[group[i]]++;
+      else byGroup.hist[group[i] * span + b]++;
+    }
+    expect(byGroup.above[0]).toBe(40);
+    const ps = [0, 0.5, 0.95];
+    const got = quantilesOfAllAndGroups(values, group, include, groups, ps, all, byGroup, undefined, cellsIn);
+    expect(got.fromSpans).toBe(true);
+    const own = Array.from(values).filter((_, i) => group[i] === 1).sort((a, b) => a - b);
+    ps.forEach((p, k) => expect(got.groups[1 * ps.length + k], `group 1 p ${p}`).toBe(sortedQuantile(own, p)));
+  });
 
   function checkAgainstSorted(s: ReturnType<typeof sample>, got: ReturnType<typeof quantilesOfAllAndGroups>, ps = PS): void {
     const every = s.sorted(() => true);
@@ -285,7 +316,7 @@ describe("quantiles of all values and of every group, the groups' first pass cou
     }
   }
 
-  it("refuse first passes that do not match the values", () => {
+  for (const cellsIn of ["js", "wasm"] as const) it(`refuse first passes that do not match the values (gathered in ${cellsIn})`, () => {
     const s = sample(5, undefined);
     const hist = s.byGroup.hist.slice();
     // One count moved to another group's bin holding a wanted rank: the gathered bins come out short.
@@ -293,7 +324,7 @@ describe("quantiles of all values and of every group, the groups' first pass cou
     const bin = radixBinOfValue(2.5) - lo;
     hist[0 * span + bin]--;
     hist[1 * span + bin]++;
-    expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, { ...s.byGroup, hist })).toThrow(/do not match/);
+    expect(() => quantilesOfAllAndGroups(s.values, s.group, s.include, s.groups, PS, s.all, { ...s.byGroup, hist }, undefined, cellsIn)).toThrow(/do not match/);
   });
 });
 
