@@ -31,6 +31,8 @@ let invKA2: f64 = 0;
 let invKC2: f64 = 0;
 let byDistance: bool = false;
 let gsdPerM: f64 = 0;
+let F: usize = 0;
+let C: usize = 0;
 
 /** First free byte of memory (after this module's own data). */
 export function heapBase(): usize {
@@ -45,6 +47,53 @@ export function arrays(ground: usize, inSite: usize, images: usize, best: usize,
   B = best;
   D = gsdCm;
   T = nadirStrip;
+}
+
+/** Where the band's effect flags (Uint16) and its seen cells per nadir strip (Int32) lie, for `effects`. */
+export function effectArrays(flags: usize, seen: usize): void {
+  F = flags;
+  C = seen;
+}
+
+/**
+ * coverageKernel.ts bandEffects over the band's first n cells, once its photos are all
+ * counted: each site cell's effect flags (`nodata` where the ground has none; else `coarse`
+ * above `hi`, `fine` below `lo`, `few` under minImages images; 0 outside the site), and the
+ * seen site cells counted by nadir strip (added to what `seen` holds).
+ */
+export function effects(n: i32, lo: f64, hi: f64, minImages: f64, nodata: u16, coarse: u16, fine: u16, few: u16): void {
+  let runStrip: i32 = 0;
+  let run: i32 = 0;
+  for (let i = 0; i < n; i++) {
+    const k = <usize>i;
+    if (load<u8>(S + k) == 0) {
+      store<u16>(F + (k << 1), 0);
+      continue;
+    }
+    const g = <f64>load<f32>(D + (k << 2));
+    if (g == g) {
+      const s = <i32>load<u16>(T + (k << 1));
+      if (s != runStrip) {
+        const p = C + (<usize>runStrip << 2);
+        store<i32>(p, load<i32>(p) + run);
+        runStrip = s;
+        run = 0;
+      }
+      run++;
+    }
+    const z = load<f32>(G + (k << 2));
+    if (z != z) {
+      store<u16>(F + (k << 1), nodata);
+      continue;
+    }
+    let f: u16 = 0;
+    if (g > hi) f |= coarse;
+    else if (g < lo) f |= fine;
+    if (<f64>load<u16>(I + (k << 1)) < minImages) f |= few;
+    store<u16>(F + (k << 1), f);
+  }
+  const p = C + (<usize>runStrip << 2);
+  store<i32>(p, load<i32>(p) + run);
 }
 
 /** The camera's figures, as sweepRow takes them (byDistance: nonzero for the "distance" measure). */

@@ -1,4 +1,5 @@
 import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
+import { BAND_SLACK, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "./flags.js";
 
 /**
  * The coverage sweep's footprint rows in WebAssembly (footprintRows.as.ts, built into
@@ -7,11 +8,16 @@ import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmK
  * bit for bit.
  */
 export interface FootprintRows {
-  /** Views of the band's arrays for `cells` cells (made again when the memory had to grow). */
-  band(cells: number): BandArrays;
+  /** Views of the band's arrays for `cells` cells and, for `effects`, `strips` nadir strips (made again when the memory had to grow). */
+  band(cells: number, strips?: number): BandArrays;
   camera(kAlong: number, kAcross: number, invKA2: number, invKC2: number, byDistance: boolean, gsdPerM: number): void;
   /** sweepRow over band cells i0..i1 (inclusive; indices in the band). */
   row(i0: number, i1: number, ez: number, a0: number, q0: number, da: number, dq: number, strip: number): void;
+  /**
+   * coverageKernel.ts bandEffects over the band's first n cells (the band's views made for
+   * `strips`): their flags into `flags`, their seen cells by nadir strip added to `seen`.
+   */
+  effects(n: number, lowCm: number, highCm: number, minImages: number): void;
 }
 
 /** One band's arrays in the kernel's memory. */
@@ -22,6 +28,10 @@ export interface BandArrays {
   best: Float32Array;
   gsdCm: Float32Array;
   nadirStrip: Uint16Array;
+  /** The effect flags (`effects`). */
+  flags: Uint16Array;
+  /** Seen cells by nadir strip (`effects`): zero them before the band's cells are counted. */
+  seen: Int32Array;
 }
 
 interface Exports {
@@ -30,6 +40,8 @@ interface Exports {
   arrays: (g: number, s: number, i: number, b: number, d: number, t: number) => void;
   camera: (ka: number, kc: number, ika2: number, ikc2: number, distance: number, gsdPerM: number) => void;
   row: (i0: number, i1: number, ez: number, a0: number, q0: number, da: number, dq: number, strip: number) => void;
+  effectArrays: (flags: number, seen: number) => void;
+  effects: (n: number, lo: number, hi: number, minImages: number, nodata: number, coarse: number, fine: number, few: number) => void;
 }
 
 /** Where the kernel is, under dist/ (scripts/build-wasm.mjs). */
@@ -46,18 +58,23 @@ export function footprintRows(): FootprintRows | undefined {
   const { exports: x, base } = k;
   let views: BandArrays | undefined;
   let viewsCells = -1;
+  let viewsStrips = -1;
   return {
-    band(cells) {
-      if (views && viewsCells === cells && views.ground.buffer === x.memory.buffer) return views;
-      // Layout: the 4-byte arrays first, then the 2-byte, then the mask, each 16-byte aligned.
+    band(cells, strips = 0) {
+      if (views && viewsCells === cells && viewsStrips >= strips && views.ground.buffer === x.memory.buffer) return views;
+      // Layout: the 4-byte arrays first, then the 2-byte, then the mask, each 16-byte aligned;
+      // then the effects' flags and seen cells.
       const g = base;
       const b = align16(g + 4 * cells);
       const d = align16(b + 4 * cells);
       const i = align16(d + 4 * cells);
       const t = align16(i + 2 * cells);
       const s = align16(t + 2 * cells);
-      ensureMemory(x.memory, s + cells);
+      const f = align16(s + cells);
+      const c = align16(f + 2 * cells);
+      ensureMemory(x.memory, c + 4 * strips);
       x.arrays(g, s, i, b, d, t);
+      x.effectArrays(f, c);
       const buf = x.memory.buffer;
       views = {
         ground: new Float32Array(buf, g, cells),
@@ -66,13 +83,19 @@ export function footprintRows(): FootprintRows | undefined {
         best: new Float32Array(buf, b, cells),
         gsdCm: new Float32Array(buf, d, cells),
         nadirStrip: new Uint16Array(buf, t, cells),
+        flags: new Uint16Array(buf, f, cells),
+        seen: new Int32Array(buf, c, strips),
       };
       viewsCells = cells;
+      viewsStrips = strips;
       return views;
     },
     camera(kAlong, kAcross, invKA2, invKC2, byDistance, gsdPerM) {
       x.camera(kAlong, kAcross, invKA2, invKC2, byDistance ? 1 : 0, gsdPerM);
     },
     row: x.row,
+    effects(n, lowCm, highCm, minImages) {
+      x.effects(n, lowCm * (1 - BAND_SLACK), highCm * (1 + BAND_SLACK), minImages, FLAG_NODATA, FLAG_COARSE, FLAG_FINE, FLAG_FEW_IMAGES);
+    },
   };
 }
