@@ -1,4 +1,8 @@
 import type { ReportGrid, ReportRasters } from "./model.js";
+import { reduceInKernel } from "./reduceRowsWasm.js";
+
+/** Reduce in JavaScript or WebAssembly (reduceRows.as.ts, where built: the default); the same maps. */
+export type ReduceIn = "js" | "wasm";
 
 /**
  * Block reduction of the map rasters for the report: the page needs a picture about a
@@ -23,9 +27,9 @@ export function blockFactor(width: number, height: number, maxPx: number): numbe
 /**
  * @example const small = downsampleGrid(dem, 2); // half the cells each way
  */
-export function downsampleGrid(grid: ReportGrid, k: number): ReportGrid {
+export function downsampleGrid(grid: ReportGrid, k: number, reduceIn?: ReduceIn): ReportGrid {
   if (k <= 1) return grid;
-  return reducedGrid(grid, k, meanBlocks(grid.heights, grid.width, grid.height, k));
+  return reducedGrid(grid, k, meanBlocks(grid.heights, grid.width, grid.height, k, reduceIn));
 }
 
 /** The reduced grid's record around its block means. */
@@ -42,9 +46,9 @@ function reducedGrid(grid: ReportGrid, k: number, heights: Float32Array): Report
 /**
  * @example const small = downsampleRasters(assessment.rasters, 3);
  */
-export function downsampleRasters(r: ReportRasters, k: number): ReportRasters {
+export function downsampleRasters(r: ReportRasters, k: number, reduceIn?: ReduceIn): ReportRasters {
   if (k <= 1) return r;
-  return reduceRasters(r, k, null).rasters;
+  return reduceRasters(r, k, null, reduceIn).rasters;
 }
 
 /**
@@ -53,15 +57,15 @@ export function downsampleRasters(r: ReportRasters, k: number): ReportRasters {
  *
  * @example const { dem, rasters } = downsampleGridAndRasters(run.grid, assessment.rasters, 5);
  */
-export function downsampleGridAndRasters(grid: ReportGrid, r: ReportRasters, k: number): { dem: ReportGrid; rasters: ReportRasters } {
+export function downsampleGridAndRasters(grid: ReportGrid, r: ReportRasters, k: number, reduceIn?: ReduceIn): { dem: ReportGrid; rasters: ReportRasters } {
   if (k <= 1) return { dem: grid, rasters: r };
-  if (grid.width !== r.width || grid.height !== r.height) return { dem: downsampleGrid(grid, k), rasters: downsampleRasters(r, k) };
-  const { rasters, heights } = reduceRasters(r, k, grid.heights);
+  if (grid.width !== r.width || grid.height !== r.height) return { dem: downsampleGrid(grid, k, reduceIn), rasters: downsampleRasters(r, k, reduceIn) };
+  const { rasters, heights } = reduceRasters(r, k, grid.heights, reduceIn);
   return { dem: reducedGrid(grid, k, heights!), rasters };
 }
 
 /** The block reduction of the rasters and, when given, of heights on the same grid. */
-function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null): { rasters: ReportRasters; heights: Float32Array | null } {
+function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null, reduceIn?: ReduceIn): { rasters: ReportRasters; heights: Float32Array | null } {
   const W = r.width;
   const H = r.height;
   const w = Math.ceil(W / k);
@@ -73,6 +77,16 @@ function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null): { r
   const heights = z ? new Float32Array(w * h) : null;
   // Old 8-bit flags (report data from before the keep-out bit) widened once, so the row loops take one array type.
   const src = { gsd: r.gsdCm, images: r.images, flags: r.flags instanceof Uint16Array ? r.flags : Uint16Array.from(r.flags), inSite: r.inSite, z };
+  const rasters = {
+    width: w,
+    height: h,
+    transform: { ...r.transform, dx: r.transform.dx * k, dy: r.transform.dy * k },
+    gsdCm,
+    images,
+    flags,
+    inSite,
+  };
+  if (reduceIn !== "js" && reduceInKernel({ ...src, ...(z ? { heights: z } : {}) }, { gsd: gsdCm, images, flags, inSite, ...(heights ? { heights } : {}) }, W, H, k)) return { rasters, heights };
   // One row of blocks at a time, read row by row (see meanBlocks): per block column the
   // flag OR, whether any cell is in the site, the least in-site image count and the GSD
   // (and height) sums.
@@ -104,15 +118,6 @@ function reduceRasters(r: ReportRasters, k: number, z: Float32Array | null): { r
       if (heights) heights[o + bc] = acc.zCnt[bc] ? acc.zSum[bc] / acc.zCnt[bc] : NaN;
     }
   }
-  const rasters = {
-    width: w,
-    height: h,
-    transform: { ...r.transform, dx: r.transform.dx * k, dy: r.transform.dy * k },
-    gsdCm,
-    images,
-    flags,
-    inSite,
-  };
   return { rasters, heights };
 }
 
@@ -190,10 +195,11 @@ function finiteSumBlocks(v: Float32Array, base: number, W: number, k: number, w:
  * a large raster); each block still adds its values in the same order, row by row, so the
  * means come out the same to the last bit.
  */
-function meanBlocks(src: Float32Array, W: number, H: number, k: number): Float32Array {
+function meanBlocks(src: Float32Array, W: number, H: number, k: number, reduceIn?: ReduceIn): Float32Array {
   const w = Math.ceil(W / k);
   const h = Math.ceil(H / k);
   const out = new Float32Array(w * h);
+  if (reduceIn !== "js" && reduceInKernel({ heights: src }, { heights: out }, W, H, k)) return out;
   const sum = new Float64Array(w);
   const cnt = new Int32Array(w);
   for (let br = 0; br < h; br++) {
