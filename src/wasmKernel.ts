@@ -83,3 +83,22 @@ export function ensureMemory(memory: WasmMemory, bytes: number): void {
 
 /** `n` rounded up to a multiple of 16 (a SIMD vector's bytes). */
 export const align16 = (n: number): number => (n + 15) & ~15;
+
+/**
+ * Places arrays in a kernel's memory one after another from `base`, each 16-byte aligned:
+ * `place(bytes)` gives the next one's address, or 0 when it is not `wanted` (the kernels read
+ * address 0 as "none"); `end()` the first byte after them all (for ensureMemory).
+ * @example const m = memoryPlan(base); const a = m.place(4 * n), b = m.place(n, hasMask); ensureMemory(x.memory, m.end());
+ */
+export function memoryPlan(base: number): { place: (bytes: number, wanted?: unknown) => number; end: () => number } {
+  let at = base;
+  return {
+    place(bytes, wanted = true) {
+      if (!wanted) return 0;
+      const p = at;
+      at = align16(at + bytes);
+      return p;
+    },
+    end: () => at,
+  };
+}

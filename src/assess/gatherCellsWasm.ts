@@ -1,4 +1,4 @@
-import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
+import { ensureMemory, kernelInstance, memoryPlan, type WasmMemory } from "../wasmKernel.js";
 import type { GatherJob } from "./quantiles.js";
 
 /**
@@ -39,18 +39,13 @@ export function gatherCells(job: GatherJob, chunkCells: number, radixShift: numb
   if (!k) return undefined;
   const { exports: x, base } = k;
   const { slots, slotAt } = job;
-  let end = base;
-  const place = (bytes: number) => {
-    const p = end;
-    end = align16(end + bytes);
-    return p;
-  };
+  const { place, end } = memoryPlan(base);
   const va = place(4 * chunkCells), gr = place(2 * chunkCells), inc = place(chunkCells);
-  const ss = job.siteSlot.length > 0 ? place(4 * job.siteSlot.length) : 0;
+  const ss = place(4 * job.siteSlot.length, job.siteSlot.length > 0);
   const gs = place(4 * job.groupSlot.length);
   const nx = place(4 * slots);
   const out = place(4 * slotAt[slots]);
-  ensureMemory(x.memory, end);
+  ensureMemory(x.memory, end());
   x.chunk(va, gr, inc);
   x.tables(ss, gs, nx, out);
   x.figures(job.lo, job.span, job.shift, job.siteFine ? 1 : 0, radixShift);

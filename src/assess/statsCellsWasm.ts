@@ -1,4 +1,4 @@
-import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
+import { ensureMemory, kernelInstance, memoryPlan, type WasmMemory } from "../wasmKernel.js";
 import { FLAG_COARSE, FLAG_FINE, FLAG_VALUES } from "./flags.js";
 import { RADIX_BINS, RADIX_SHIFT } from "./quantiles.js";
 import { tallyEdges } from "./gsdTally.js";
@@ -46,24 +46,19 @@ export function statsCells(job: StatsPassJob, chunkCells: number, stripShift: nu
   const span = job.stripHist ? job.span ?? 0 : 0;
   const edges = job.tallyGrid && job.tally ? job.tallyEdges ?? tallyEdges(job.tallyGrid) : undefined;
   const bins = edges ? edges.length - 1 : -1;
-  // Layout: the cells' 4-byte arrays, 2-byte arrays and mask, then the counts, each 16-byte aligned.
-  let at = base;
-  const place = (bytes: number) => {
-    const p = at;
-    at = align16(at + bytes);
-    return p;
-  };
+  // Layout: the cells' 4-byte arrays, 2-byte arrays and mask, then the counts.
+  const { place, end } = memoryPlan(base);
   const gs = place(4 * chunkCells), gr = place(4 * chunkCells);
   const im = place(2 * chunkCells), st = place(2 * chunkCells), fl = place(2 * chunkCells);
   const si = place(chunkCells);
   const ih = place(4 * 65536), fh = place(4 * S * FLAG_VALUES), bs = place(4 * S), rh = place(4 * RADIX_BINS);
-  const sh = span > 0 ? place(4 * S * span) : 0;
-  const sb = span > 0 ? place(4 * S) : 0;
-  const sa = span > 0 ? place(4 * S) : 0;
-  const ts = bins >= 0 ? place(4 * (bins + 2)) : 0;
-  const te = bins >= 0 ? place(8 * (bins + 1)) : 0;
-  const tm = span > 0 && bins >= 0 && job.tallyOfStripBin ? place(4 * span) : 0;
-  ensureMemory(x.memory, at);
+  const sh = place(4 * S * span, span > 0);
+  const sb = place(4 * S, span > 0);
+  const sa = place(4 * S, span > 0);
+  const ts = place(4 * (bins + 2), bins >= 0);
+  const te = place(8 * (bins + 1), bins >= 0);
+  const tm = place(4 * span, span > 0 && bins >= 0 && job.tallyOfStripBin);
+  ensureMemory(x.memory, end());
   // A new instance's memory is zeros: the counts start from zero.
   x.chunk(gs, gr, im, st, fl, si);
   x.counts(ih, fh, bs, rh, sh, sb, sa, ts, te, tm);

@@ -1,4 +1,4 @@
-import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
+import { ensureMemory, kernelInstance, memoryPlan, type WasmMemory } from "../wasmKernel.js";
 
 /**
  * The report maps' block reduction in WebAssembly (reduceRows.as.ts, built into
@@ -39,17 +39,11 @@ export function reduceInKernel(src: ReduceRasters, out: ReduceRasters, W: number
   const { exports: x, base } = kern;
   const w = Math.ceil(W / k), h = Math.ceil(H / k);
   const cells = k * W;
-  let at = base;
-  const place = (has: unknown, bytes: number) => {
-    if (!has) return 0;
-    const p = at;
-    at = align16(at + bytes);
-    return p;
-  };
-  const ig = place(src.gsd, 4 * cells), iz = place(src.heights, 4 * cells), ii = place(src.images, 2 * cells), iF = place(src.flags, 2 * cells), is = place(src.inSite, cells);
-  const og = place(src.gsd, 4 * w), oz = place(src.heights, 4 * w), oi = place(src.inSite, 2 * w), oF = place(src.flags, 2 * w), os = place(src.inSite, w);
-  const acc = place(true, 36 * w);
-  ensureMemory(x.memory, at);
+  const { place, end } = memoryPlan(base);
+  const ig = place(4 * cells, src.gsd), iz = place(4 * cells, src.heights), ii = place(2 * cells, src.images), iF = place(2 * cells, src.flags), is = place(cells, src.inSite);
+  const og = place(4 * w, src.gsd), oz = place(4 * w, src.heights), oi = place(2 * w, src.inSite), oF = place(2 * w, src.flags), os = place(w, src.inSite);
+  const acc = place(36 * w);
+  ensureMemory(x.memory, end());
   x.inputs(ig, ii, iF, is, iz);
   x.outputs(oF, os, oi, og, oz);
   x.scratch(acc, w);
