@@ -18,7 +18,9 @@ export function clearanceFloorM(c: SolverOptions["clearance"]): number {
  * point always counted; NaN where the disc touches nodata or leaves the grid).
  *
  * On fine DEMs the disc spans many cells (15 m at 0.5 m is ~2 800 per station),
- * so the grid is max-pooled once into k x k blocks (k about radius / 8 cells)
+ * so the grid is max-pooled once into k x k blocks (k about radius / 6 cells: at
+ * 0.5 m cells over the 4 km2 benchmark's 176 k stations 195 ms against 208 ms at radius / 8,
+ * 199 ms at radius / 4, 316 ms at radius / 11, one thread)
  * and each disc is covered block row by block row: blocks whose every cell
  * centre lies inside the radius (1e-6 m of margin for rounding) count by
  * their pooled maximum; blocks the circle crosses are scanned cell by cell,
@@ -33,7 +35,7 @@ export function clearanceFloorM(c: SolverOptions["clearance"]): number {
  */
 export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: ArrayLike<number>, radiusM: number, out: Float64Array): void {
   const cellM = Math.max(grid.cellSizeM[0], grid.cellSizeM[1]);
-  const k = radiusM / cellM > 16 ? Math.ceil(radiusM / cellM / 8) : 1;
+  const k = radiusM / cellM > 16 ? Math.ceil(radiusM / cellM / 6) : 1;
   if (k === 1) {
     extremaInRadius(grid, xs, ys, radiusM, out);
     return;
