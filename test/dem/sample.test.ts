@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { extremaInOrientedRect, extremaInRadius, makeGrid, sampleBilinear, cellCentre, toColRow } from "../../src/dem/sample.js";
+import { extremaInOrientedRect, extremaInRadius, inverseOfPowerOfTwo, makeGrid, sampleBilinear, cellCentre, toColRow } from "../../src/dem/sample.js";
 
 // A bilinear interpolant reproduces any function of the form a + bx + cy + dxy
 // exactly (definition of bilinear interpolation, any numerical-analysis text).
@@ -102,4 +102,50 @@ describe("extrema", () => {
     expect(mx[1]).toBe(1);
     expect(Number.isNaN(mx[2])).toBe(true);
   });
+});
+
+describe("sampleBilinear's cell scale", () => {
+  // IEEE 754 binary64: a power of two and its inverse are exact, so x / d and x * (1 / d) are
+  // both the exact quotient rounded once; for other d they may differ in the last bit.
+  it("takes the inverse of powers of two only", () => {
+    for (const [d, inv] of [[0.5, 2], [1, 1], [2, 0.5], [-0.5, -2], [0.25, 4], [1024, 1 / 1024], [2 ** -1000, 2 ** 1000]] as const) expect(inverseOfPowerOfTwo(d), String(d)).toBe(inv);
+    for (const d of [0.3, 3, -1.5, 0, NaN, Infinity, 2 ** -1070, 2 ** 1023, 0.1]) expect(inverseOfPowerOfTwo(d), String(d)).toBe(0);
+  });
+
+  // Against the definition dividing by the cell, bit for bit: cells of a power of two (the
+  // scaled path) and not (the dividing one), north-up and south-up rows.
+  for (const [dx, dy] of [[0.5, -0.5], [2, 2], [0.3, -0.3], [1, -0.7]] as const) {
+    it(`dx ${dx}, dy ${dy}`, () => {
+      const w = 37, h = 29, x0 = 500123.25, y0 = 5200456.75;
+      const heights = Float32Array.from({ length: w * h }, (_, i) => (i % 53 === 0 ? NaN : 300 + Math.sin(i / 7) * 40 + i / 1000));
+      const grid = { width: w, height: h, heights, transform: { x0, y0, dx, dy } };
+      const xs: number[] = [], ys: number[] = [];
+      let seed = 3;
+      const rnd = () => ((seed = (seed * 16807) % 2147483647) / 2147483647);
+      for (let k = 0; k < 4000; k++) {
+        xs.push(x0 + (rnd() * (w + 2) - 1) * dx);
+        ys.push(y0 + (rnd() * (h + 2) - 1) * dy);
+      }
+      const got = sampleBilinear(grid, xs, ys);
+      let compared = 0;
+      for (let k = 0; k < xs.length; k++) {
+        // The definition: fractional column and row by division, snapped within the outer half cell.
+        let c = (xs[k] - x0) / dx - 0.5, r = (ys[k] - y0) / dy - 0.5;
+        if (c < 0 && c >= -0.5) c = 0;
+        if (r < 0 && r >= -0.5) r = 0;
+        if (c > w - 1 && c <= w - 0.5) c = w - 1;
+        if (r > h - 1 && r <= h - 0.5) r = h - 1;
+        let want = NaN;
+        if (c >= 0 && r >= 0 && c <= w - 1 && r <= h - 1) {
+          const c0 = Math.min(Math.floor(c), w - 2), r0 = Math.min(Math.floor(r), h - 2);
+          const fc = c - c0, fr = r - r0;
+          const z = (i: number, j: number) => heights[j * w + i];
+          want = (z(c0, r0) * (1 - fc) + z(c0 + 1, r0) * fc) * (1 - fr) + (z(c0, r0 + 1) * (1 - fc) + z(c0 + 1, r0 + 1) * fc) * fr;
+          compared++;
+        }
+        expect(Object.is(got[k], want), `point ${k}`).toBe(true);
+      }
+      expect(compared).toBeGreaterThan(3000);
+    });
+  }
 });
