@@ -2,6 +2,7 @@ import type { DemGrid } from "../dem/grid.js";
 import { extremaInOrientedRect } from "../dem/sample.js";
 import { SlidingExtrema } from "./slidingExtrema.js";
 import { EDGE_M, testCell } from "./zoneCell.js";
+import { foldColumns } from "./foldColumnsWasm.js";
 
 
 /**
@@ -19,7 +20,9 @@ import { EDGE_M, testCell } from "./zoneCell.js";
  * the across edges, are settled per station by extremaInOrientedRect's own
  * test; zones near the grid border go to extremaInOrientedRect. Returns false
  * (outputs untouched) when the leg is not along an axis or the points are not
- * on one line in increasing order along (ux, uy).
+ * on one line in increasing order along (ux, uy). An east-west leg's columns are folded in
+ * WebAssembly where built (foldColumns.as.ts; `foldIn` "js" for the JavaScript loop): the
+ * same extrema.
  * @example zoneExtremaOnAxis(grid, st.x, st.y, 1, 0, 11.9, 24, maxOut, minOut) // true
  */
 export function zoneExtremaOnAxis(
@@ -32,6 +35,7 @@ export function zoneExtremaOnAxis(
   halfAcrossM: number,
   outMax: Float64Array,
   outMin: Float64Array,
+  foldIn?: "js" | "wasm",
 ): boolean {
   const n = xs.length;
   if (n < 8) return false;
@@ -97,7 +101,7 @@ export function zoneExtremaOnAxis(
   for (let l = cA; l <= cB; l++) if (laneEdge[l]) oneRun = false;
   if (!oneRun) return false;
   const nanOf = new Int32Array(m);
-  foldCoreCells(heights, groups, gStride, lStride, cA, cB, gMax, gMin, nanOf);
+  foldCoreCells(heights, groups, gStride, lStride, cA, cB, gMax, gMin, nanOf, foldIn);
   for (let j = 0; j < m; j++) nanBefore[j + 1] = nanBefore[j] + nanOf[j];
   const edgeLanes: number[] = [];
   for (let l = l0; l <= l1; l++) if (laneEdge[l]) edgeLanes.push(l);
@@ -207,6 +211,7 @@ function foldCoreCells(
   gMax: Float64Array,
   gMin: Float64Array,
   nanOf: Int32Array,
+  foldIn?: "js" | "wasm",
 ): void {
   const m = groups.length;
   gMax.fill(-Infinity);
@@ -226,6 +231,21 @@ function foldCoreCells(
       nanOf[j] = nan;
     }
   } else {
+    // An east-west leg's columns, contiguous: in WebAssembly where built (foldIn "wasm", the default).
+    const first = groups[0], last = groups[m - 1];
+    if (foldIn !== "js" && gStride === 1 && m > 0 && Math.abs(last - first) === m - 1) {
+      const c0 = Math.min(first, last);
+      const f = foldColumns(heights, lStride, cA, cB, c0, Math.max(first, last));
+      if (f) {
+        for (let j = 0; j < m; j++) {
+          const c = groups[j] - c0;
+          gMax[j] = f.max[c];
+          gMin[j] = f.min[c];
+          nanOf[j] = f.nan[c];
+        }
+        return;
+      }
+    }
     for (let l = cA; l <= cB; l++) {
       const base = l * lStride;
       for (let j = 0; j < m; j++) {
