@@ -246,7 +246,6 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
     return;
   }
   setCamera(inp, rows);
-  const fx = inp.flags && inp.effects;
   const strips = inp.effects ? inp.effects.seen.strips : 0;
   for (let s0 = r0; s0 <= r1; s0 += WASM_ROWS) {
     const s1 = Math.min(r1, s0 + WASM_ROWS - 1);
@@ -264,7 +263,7 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
     images.set(band.images, i0);
     gsdCm.set(band.gsdCm, i0);
     nadirStrip.set(band.nadirStrip, i0);
-    if (fx && inp.flags && inp.effects) {
+    if (inp.flags && inp.effects) {
       // The effects from the cells still in the rows' memory (bandEffects' own rule).
       band.seen.fill(0);
       rows.effects(i1 - i0, inp.effects.lowCm, inp.effects.highCm, inp.effects.minImages);

@@ -1,4 +1,4 @@
-import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
+import { ensureMemory, kernelInstance, memoryPlan, type WasmMemory } from "../wasmKernel.js";
 import { BAND_SLACK, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "./flags.js";
 
 /**
@@ -64,15 +64,12 @@ export function footprintRows(): FootprintRows | undefined {
       if (views && viewsCells === cells && viewsStrips >= strips && views.ground.buffer === x.memory.buffer) return views;
       // Layout: the 4-byte arrays first, then the 2-byte, then the mask, each 16-byte aligned;
       // then the effects' flags and seen cells.
-      const g = base;
-      const b = align16(g + 4 * cells);
-      const d = align16(b + 4 * cells);
-      const i = align16(d + 4 * cells);
-      const t = align16(i + 2 * cells);
-      const s = align16(t + 2 * cells);
-      const f = align16(s + cells);
-      const c = align16(f + 2 * cells);
-      ensureMemory(x.memory, c + 4 * strips);
+      const { place, end } = memoryPlan(base);
+      const g = place(4 * cells), b = place(4 * cells), d = place(4 * cells);
+      const i = place(2 * cells), t = place(2 * cells);
+      const s = place(cells);
+      const f = place(2 * cells), c = place(4 * strips);
+      ensureMemory(x.memory, end());
       x.arrays(g, s, i, b, d, t);
       x.effectArrays(f, c);
       const buf = x.memory.buffer;
