@@ -48,25 +48,23 @@ export function reduceInKernel(src: ReduceRasters, out: ReduceRasters, W: number
   x.outputs(oF, os, oi, og, oz);
   x.scratch(acc, w);
   const buf = x.memory.buffer;
-  const rows = {
-    gsd: src.gsd && new Float32Array(buf, ig, cells), heights: src.heights && new Float32Array(buf, iz, cells),
-    images: src.images && new Uint16Array(buf, ii, cells), flags: src.flags && new Uint16Array(buf, iF, cells), inSite: src.inSite && new Uint8Array(buf, is, cells),
-  };
-  const row = {
-    gsd: new Float32Array(buf, og, src.gsd ? w : 0), heights: new Float32Array(buf, oz, src.heights ? w : 0),
-    images: new Uint16Array(buf, oi, src.inSite ? w : 0), flags: new Uint16Array(buf, oF, src.flags ? w : 0), inSite: new Uint8Array(buf, os, src.inSite ? w : 0),
-  };
+  // Each given raster's input rows and output row in the kernel's memory, beside the caller's
+  // arrays (the output where one is asked for; an image count's row is made with the site
+  // mask's, so only with it).
+  const view = <T extends Float32Array | Uint16Array | Uint8Array>(C: new (b: ArrayBufferLike, at: number, n: number) => T, from: T | undefined, to: T | undefined, inAt: number, outAt: number) =>
+    from ? [{ from, rows: new C(buf, inAt, cells), to, row: new C(buf, outAt, w) }] : [];
+  const rasters = [
+    ...view(Float32Array, src.gsd, out.gsd, ig, og),
+    ...view(Float32Array, src.heights, out.heights, iz, oz),
+    ...view(Uint16Array, src.flags, out.flags, iF, oF),
+    ...view(Uint8Array, src.inSite, out.inSite, is, os),
+    ...view(Uint16Array, src.images, src.inSite && out.images, ii, oi),
+  ] as { from: Float32Array; rows: Float32Array; to?: Float32Array; row: Float32Array }[];
   for (let br = 0; br < h; br++) {
     const i0 = br * k * W, i1 = Math.min(H, br * k + k) * W;
-    for (const key of ["gsd", "heights", "images", "flags", "inSite"] as const) {
-      const from = src[key];
-      if (from) (rows[key] as Float32Array).set(from.subarray(i0, i1) as Float32Array);
-    }
+    for (const r of rasters) r.rows.set(r.from.subarray(i0, i1));
     x.blockRow((i1 - i0) / W, W, k, w);
-    for (const key of ["gsd", "heights", "images", "flags", "inSite"] as const) {
-      const into = out[key];
-      if (into && src[key === "images" ? "inSite" : key]) (into as Float32Array).set(row[key] as Float32Array, br * w);
-    }
+    for (const r of rasters) r.to?.set(r.row, br * w);
   }
   return true;
 }
