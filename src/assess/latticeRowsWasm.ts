@@ -1,4 +1,4 @@
-import { align16, ensureMemory, kernelInstance, type WasmMemory } from "../wasmKernel.js";
+import { ensureMemory, kernelInstance, memoryPlan, type WasmMemory } from "../wasmKernel.js";
 
 /**
  * The comparison's lattice rows in WebAssembly (latticeRows.as.ts, built into
@@ -66,18 +66,13 @@ export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells:
   if (!k) return undefined;
   const { exports: x, base } = k;
   // Layout: the prefix counts, the band's 4-byte, 2-byte and 1-byte arrays, then the tallies, each 16-byte aligned.
-  const p = base;
-  const g = align16(p + 4 * pre.length);
-  const i = align16(g + 4 * cells);
-  const s = align16(i + 2 * cells);
-  const rg = align16(s + cells);
-  const ih = align16(rg + 4 * RADIX_BINS);
-  const fh = align16(ih + 8 * IMAGE_COUNTS);
+  const { place, end } = memoryPlan(base);
+  const p = place(4 * pre.length), g = place(4 * cells), i = place(2 * cells), s = place(cells);
   const bins = tally ? tally.bins : 0;
-  const ts = align16(fh + 8 * FLAG_VALUES);
-  const te = align16(ts + 8 * (bins + 2));
-  const sb = align16(te + 8 * (bins + 1));
-  ensureMemory(x.memory, tally ? sb + ((tally.gridCells + 7) >> 3) : rg);
+  const rg = place(4 * RADIX_BINS, tally), ih = place(8 * IMAGE_COUNTS, tally), fh = place(8 * FLAG_VALUES, tally);
+  const ts = place(8 * (bins + 2), tally), te = place(8 * (bins + 1), tally);
+  const sb = place(tally ? (tally.gridCells + 7) >> 3 : 0, tally);
+  ensureMemory(x.memory, end());
   x.arrays(g, s, i, p);
   const buf = x.memory.buffer;
   new Int32Array(buf, p, pre.length).set(pre);
