@@ -381,6 +381,10 @@ function solvePiece(
   // after it that has not yet run then has no type feedback (node --trace-deopt showed this
   // call, made only after the loops, sending every later piece back to the interpreter).
   const vertexStepM = vertexStepOf(opts);
+  // Likewise the preferred height's inputs, read in the loop below only on legs into strips
+  // (after strips had the loop compiled, each such leg went back to the interpreter there).
+  const isStrip = p.kind === "strip";
+  const hTargetM = opts.band.hTargetM;
   const lo = new Float64Array(n), hi = new Float64Array(n);
   // Unknown ground under a transit: the floor over the cells that have data nearby, else
   // the highest floor known on this leg, else the take-off's (a guess: warned below).
@@ -458,9 +462,9 @@ function solvePiece(
   for (let k = 0; k < n; k++) {
     const bl = Math.min(prof.bandLowM[k], prof.bandHighM[k]);
     const bh = Math.max(prof.bandLowM[k], prof.bandHighM[k]);
-    pref[k] = p.kind === "strip" && bl === bl ? (bl + bh) / 2 : prof.groundM[k] + opts.band.hTargetM;
+    pref[k] = isStrip && bl === bl ? (bl + bh) / 2 : prof.groundM[k] + hTargetM;
     if (pref[k] !== pref[k]) pref[k] = eLo[k];
-    if (p.kind !== "strip" || bl !== bl) { tLo[k] = eLo[k]; tHi[k] = eHi[k]; continue; }
+    if (!isStrip || bl !== bl) { tLo[k] = eLo[k]; tHi[k] = eHi[k]; continue; }
     const a = Math.max(bl, eLo[k]), b = Math.min(bh, eHi[k]);
     if (a <= b) { tLo[k] = a; tHi[k] = b; }
     else if (bl > eHi[k]) { envelopeCut[k] = 1; tLo[k] = Math.max(eLo[k], eHi[k] - bandWidthM); tHi[k] = eHi[k]; }
