@@ -124,7 +124,7 @@ describe("the build's caches (scripts/bundle.mjs, scripts/code-cache.mjs)", () =
     });
   }
 
-  // The CLI sets an engine flag once its bundle is read (cli/engineSettings.ts); the workers it
+  // The CLI sets engine flags once its bundle is read (cli/engineSettings.ts); the workers it
   // starts then find their caches by the flags' name (FLAGS_ENV), as the CLI's process does.
   for (const [entry, name] of entries.filter(([, n]) => n.endsWith("Worker"))) {
     it(`${entry}'s cache under the CLI's engine flags is taken there, and the plain one is not`, () => {
@@ -138,7 +138,7 @@ describe("the build's caches (scripts/bundle.mjs, scripts/code-cache.mjs)", () =
           `const plain = compileBundle(file, ${JSON.stringify(bundle)} + "/" + cacheFileName(${JSON.stringify(name)}, ${JSON.stringify(digest)})).cache;\n` +
           `process.stdout.write(JSON.stringify({ flags: process.env[FLAGS_ENV], flagged, plain }));`,
       );
-      expect(JSON.parse(states)).toEqual({ flags: "interrupt-budget-400000", flagged: "accepted", plain: "rejected" });
+      expect(JSON.parse(states)).toEqual({ flags: "interrupt-budget-400000_no-turbo-escape_no-turbo-loop-peeling", flagged: "accepted", plain: "rejected" });
     });
   }
 });

@@ -47,6 +47,10 @@ async function child(planFile, outDir) {
   const { planMission } = entry ?? (await load("plan/plan.js"));
   const { planOutputs } = entry ?? (await load("plan/outputs.js"));
   const { writeOutputSet } = entry ?? (await load("export/atomicDir.js"));
+  // The engine flags `gsdplan` sets for its process once its bundle is read (the optimising
+  // compiler's budget and phases: cli/engineSettings.ts), likewise here after the entry, so
+  // the child runs the plan as the command does (and its workers find their code caches).
+  if (existsSync(join(dist, "cli", "engineSettings.js"))) await load("cli/engineSettings.js");
   const tImport = performance.now();
 
   const options = resolvePlanOptions(JSON.parse(readFileSync(planFile, "utf8")), {}, dirname(planFile));
