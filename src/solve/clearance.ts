@@ -198,7 +198,13 @@ export function poolFor(grid: DemGrid, k: number): { k: number; pooled: DemGrid 
   return { k: kk, pooled: pooledMax(grid, kk) };
 }
 
-/** k x k max pooling (NaN if any cell of the block is nodata); cached per grid. */
+/**
+ * k x k max pooling (NaN if any cell of the block is nodata); cached per grid. Each band of k
+ * rows is first folded column by column into one row (contiguous reads, a compare a cell),
+ * then each run of k columns of that row into its block: the same maxima as a block-by-block
+ * scan (the maximum and NaN's poisoning do not depend on the order; of +0 and -0 in one block
+ * either may be kept, both being its maximum): at 4 km2 (20.8 M cells, k 6) ~49 -> ~36 ms.
+ */
 export function pooledMax(grid: DemGrid, k: number): DemGrid {
   let m = cache.get(grid);
   if (!m) { m = new Map(); cache.set(grid, m); }
@@ -206,24 +212,13 @@ export function pooledMax(grid: DemGrid, k: number): DemGrid {
   if (hit) return hit;
   const w = Math.ceil(grid.width / k);
   const h = Math.ceil(grid.height / k);
-  const heights = new Float32Array(w * h).fill(-Infinity);
+  const heights = new Float32Array(w * h);
   const src = grid.heights;
   const W = grid.width;
-  for (let r = 0; r < grid.height; r++) {
-    const base = Math.floor(r / k) * w;
-    const rb = r * W;
-    for (let bc = 0; bc < w; bc++) {
-      let cur = heights[base + bc];
-      // NaN anywhere in the block poisons it (unknown ground is never assumed low).
-      if (cur !== cur) continue;
-      const cEnd = Math.min(W, bc * k + k);
-      for (let c = bc * k; c < cEnd; c++) {
-        const z = src[rb + c];
-        if (z !== z) { cur = NaN; break; }
-        if (z > cur) cur = z;
-      }
-      heights[base + bc] = cur;
-    }
+  const band = new Float32Array(W);
+  for (let br = 0; br < h; br++) {
+    foldRowsInto(src, W, br * k, Math.min(grid.height, br * k + k), band);
+    foldRuns(band, W, k, heights, br * w);
   }
   const t = grid.transform;
   const pooled: DemGrid = {
@@ -236,4 +231,32 @@ export function pooledMax(grid: DemGrid, k: number): DemGrid {
   };
   m.set(k, pooled);
   return pooled;
+}
+
+/**
+ * Each column's highest height over rows r0 .. r1 - 1 of the W-wide `src` into `out`, NaN
+ * where the column holds nodata there (a NaN met stays: no height compares above it).
+ */
+function foldRowsInto(src: Float32Array, W: number, r0: number, r1: number, out: Float32Array): void {
+  out.set(src.subarray(r0 * W, r0 * W + W));
+  for (let r = r0 + 1; r < r1; r++) {
+    const rb = r * W;
+    for (let c = 0; c < W; c++) {
+      const z = src[rb + c];
+      if (z > out[c] || z !== z) out[c] = z;
+    }
+  }
+}
+
+/** The highest of each run of k entries of `row` (W of them, the last run shorter) into out[at ..], NaN where a run holds NaN. */
+function foldRuns(row: Float32Array, W: number, k: number, out: Float32Array, at: number): void {
+  for (let c0 = 0, o = at; c0 < W; c0 += k, o++) {
+    let cur = row[c0];
+    const end = Math.min(W, c0 + k);
+    for (let c = c0 + 1; c < end && cur === cur; c++) {
+      const z = row[c];
+      if (z > cur || z !== z) cur = z;
+    }
+    out[o] = cur;
+  }
 }
