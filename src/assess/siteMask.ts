@@ -101,7 +101,8 @@ export function rasteriseSite(
       let c1 = Math.ceil((row[k + 1] - x0) / dx - 0.5) - 1;
       if (c0 < 0) c0 = 0;
       if (c1 > width - 1) c1 = width - 1;
-      for (let c = c0; c <= c1; c++) mask[base + c] = 1;
+      // A run at a time (memset): cell by cell the fill was most of the 4 km2 site's ~25 ms.
+      if (c0 <= c1) mask.fill(1, base + c0, base + c1 + 1);
     }
   }
   return mask;
