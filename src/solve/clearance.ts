@@ -235,7 +235,8 @@ export function pooledMax(grid: DemGrid, k: number): DemGrid {
 
 /**
  * Each column's highest height over rows r0 .. r1 - 1 of the W-wide `src` into `out`, NaN
- * where the column holds nodata there (a NaN met stays: no height compares above it).
+ * where the column holds nodata there (a NaN met stays: no height compares above it; unknown
+ * ground is never assumed low).
  */
 function foldRowsInto(src: Float32Array, W: number, r0: number, r1: number, out: Float32Array): void {
   out.set(src.subarray(r0 * W, r0 * W + W));
