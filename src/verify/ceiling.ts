@@ -12,7 +12,7 @@
  *   a terrain point near enough to decide is found, usually the one straight below).
  */
 import { LENGTH_STEP_M, TOLERANCE_M, resetFinding, type LegFinding, type LegSpec } from "./clearance.js";
-import { quadOf, quadUsable, type Surface } from "./surface.js";
+import { quadColumn, quadRow, quadUsable, type Surface } from "./surface.js";
 import { distanceOut, surfaceDistance } from "./surfaceDistance.js";
 import { lengthAbove, legBreaks } from "./walk.js";
 import { grown } from "./grow.js";
@@ -35,7 +35,7 @@ export function checkGroundCeilingLeg(s: Surface, leg: LegSpec, ceilingM: number
     const t1 = t[k];
     const t2 = t[k + 1];
     const tm = 0.5 * (t1 + t2);
-    const [i, j] = quadOf(s, ca + dc * tm, ra + dr * tm);
+    const i = quadColumn(s, ca + dc * tm), j = quadRow(s, ra + dr * tm);
     if (!quadUsable(s, i, j)) continue; // unknown ground: the nodata check reports it
     const q = j * w + i;
     const A = z[q];

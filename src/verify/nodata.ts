@@ -11,7 +11,7 @@
 import { LENGTH_STEP_M, type LegSpec } from "./clearance.js";
 import { touchesUnknownIndex } from "./discMax.js";
 import { pyramidBounds } from "./pyramid.js";
-import { quadKnown, quadOf, type Surface } from "./surface.js";
+import { quadKnown, quadColumn, quadRow, type Surface } from "./surface.js";
 import { legBreaks } from "./walk.js";
 import { grown } from "./grow.js";
 
@@ -42,14 +42,14 @@ export function checkUnknownLeg(s: Surface, leg: LegSpec, radiusM: number, discC
   const { t, n } = legBreaks(ca, ra, cb, rb);
   for (let k = 0; k + 1 < n; k++) {
     const tm = 0.5 * (t[k] + t[k + 1]);
-    const [i, j] = quadOf(s, ca + dc * tm, ra + dr * tm);
+    const i = quadColumn(s, ca + dc * tm), j = quadRow(s, ra + dr * tm);
     if (!quadKnown(s, i, j)) {
       out.belowM += (t[k + 1] - t[k]) * lengthM;
       if (!(out.firstT <= tm)) out.firstT = tm;
     }
   }
   if (lengthM === 0) {
-    const [i, j] = quadOf(s, ca, ra);
+    const i = quadColumn(s, ca), j = quadRow(s, ra);
     if (!quadKnown(s, i, j)) out.firstT = 0;
   }
   if (!discCheck) return;

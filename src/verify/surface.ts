@@ -61,15 +61,21 @@ export function quadKnown(s: Surface, i: number, j: number): boolean {
 }
 
 /**
- * The quad holding index point (c, r): the last centre line belongs to the quad before it.
- * @example quadOf(s, 3.5, 4.25) // [3, 4]
+ * The quad holding index point (c, r) is (quadColumn(s, c), quadRow(s, r)): the last centre
+ * line belongs to the quad before it. Two numbers rather than a pair, so the checks'
+ * per-piece loops allocate nothing (the CLI's engine leaves escape analysis out, which had
+ * removed the pairs: cli/engineSettings.ts).
+ * @example quadColumn(s, 3.5) // 3
  */
-export function quadOf(s: Surface, c: number, r: number): [number, number] {
-  let i = Math.floor(c);
-  let j = Math.floor(r);
-  if (i === s.width - 1 && c === i) i -= 1;
-  if (j === s.height - 1 && r === j) j -= 1;
-  return [i, j];
+export function quadColumn(s: Surface, c: number): number {
+  const i = Math.floor(c);
+  return i === s.width - 1 && c === i ? i - 1 : i;
+}
+
+/** The row of the quad holding index row r (see quadColumn). @example quadRow(s, 4.25) // 4 */
+export function quadRow(s: Surface, r: number): number {
+  const j = Math.floor(r);
+  return j === s.height - 1 && r === j ? j - 1 : j;
 }
 
 /**
@@ -78,7 +84,7 @@ export function quadOf(s: Surface, c: number, r: number): [number, number] {
  * @example groundAtIndex(s, 3, 4) // the height of centre (3, 4)
  */
 export function groundAtIndex(s: Surface, c: number, r: number): number {
-  const [i, j] = quadOf(s, c, r);
+  const i = quadColumn(s, c), j = quadRow(s, r);
   if (!quadUsable(s, i, j)) return NaN;
   const w = s.width;
   const k = j * w + i;
@@ -94,7 +100,7 @@ export function groundAtIndex(s: Surface, c: number, r: number): number {
  * @example knownGroundAtIndex(s, 3.5, 4) // halfway between centres (3, 4) and (4, 4)
  */
 export function knownGroundAtIndex(s: Surface, c: number, r: number): number {
-  const [i, j] = quadOf(s, c, r);
+  const i = quadColumn(s, c), j = quadRow(s, r);
   if (!quadKnown(s, i, j)) return NaN;
   const w = s.width;
   const k = j * w + i;
