@@ -1,7 +1,7 @@
 import type { StripRaster } from "./types.js";
-import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
+import { orientedRectColSpans, orientedRectRowRange } from "./orientedRect.js";
 import { BAND_SLACK, FLAG_COARSE, FLAG_FEW_IMAGES, FLAG_FINE, FLAG_NODATA } from "./flags.js";
-import { footprintRows, type FootprintRows } from "./footprintRowsWasm.js";
+import { footprintRows, type BandArrays, type FootprintRows } from "./footprintRowsWasm.js";
 
 /**
  * The hot loop of the coverage pass, on plain typed arrays only, so the same
@@ -251,7 +251,7 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
     const s1 = Math.min(r1, s0 + WASM_ROWS - 1);
     const i0 = s0 * width;
     const i1 = (s1 + 1) * width;
-    const band = rows.band(i1 - i0, strips);
+    const band = rows.band(i1 - i0, strips, WASM_ROWS);
     band.ground.set(ground.subarray(i0, i1));
     band.inSite.set(inSite.subarray(i0, i1));
     // The outputs are only written (see above: nadirStrip, fresh, is not read to be copied in).
@@ -259,7 +259,7 @@ function sweepPhotos(inp: SweepInput, r0: number, r1: number, best: Float32Array
     band.nadirStrip.fill(0);
     band.best.fill(Infinity);
     band.gsdCm.fill(NaN);
-    photoRows(inp, s0, s1, band.best, rows);
+    photoRows(inp, s0, s1, band.best, { rows, band });
     images.set(band.images, i0);
     gsdCm.set(band.gsdCm, i0);
     nadirStrip.set(band.nadirStrip, i0);
@@ -289,20 +289,21 @@ function setCamera(inp: SweepInput, rows: FootprintRows): void {
 
 /**
  * The photos over rows r0..r1, each footprint row by sweepRow, or by the WebAssembly rows
- * (`rows`, whose memory holds rows r0..r1 from its start). A function of its own so that the
+ * (`wasm`: the kernel, whose memory holds rows r0..r1 from its start, and its band's views;
+ * a photo's rows gathered into the band's row arrays and swept in one call). A function of its own so that the
  * engine's on-the-fly compilation of this loop (entered during the first band, before any
  * band's effects were made) does not hold the effects pass too: compiled together, the
  * effects call had no type feedback yet and sent every later band back to the interpreter
  * (seen with node --trace-deopt: one deoptimisation per band and thread).
  */
-function photoRows(inp: SweepInput, r0: number, r1: number, best: Float32Array, rows: FootprintRows | undefined): void {
+function photoRows(inp: SweepInput, r0: number, r1: number, best: Float32Array, wasm: { rows: FootprintRows; band: BandArrays } | undefined): void {
   const { width, x0, y0, dx, dy, ground, inSite, images, gsdCm, nadirStrip, kAlong, kAcross, blocks } = inp;
   const base0 = r0 * width;
   const byDistance = inp.nadirBy === "distance";
   // In distance mode the weights are 1 and the division by d^2 is dropped (d2 = 1 below).
   const invKA2 = byDistance ? 1 : 1 / (kAlong * kAlong);
   const invKC2 = byDistance ? 1 : 1 / (kAcross * kAcross);
-  const span = new Int32Array(2);
+  const spans = new Int32Array(2 * BLOCK);
   const m = inp.ex.length;
   for (let e = 0; e < m; e++) {
     const rLo = Math.max(inp.rowLo[e], r0);
@@ -324,36 +325,46 @@ function photoRows(inp: SweepInput, r0: number, r1: number, best: Float32Array, 
     const ext = Math.abs(ux) * hAlongMax + Math.abs(uy) * hAcrossMax;
     const bc0 = Math.max(0, Math.floor((ex - ext - x0) / dx / BLOCK));
     const bc1 = Math.min(blocks.bw - 1, Math.floor((ex + ext - x0) / dx / BLOCK));
-    let bandRow = -1;
-    let hA = 0;
-    let hC = 0;
-    for (let r = rLo; r <= rHi; r++) {
-      const br = (r / BLOCK) | 0;
-      if (br !== bandRow) {
-        bandRow = br;
-        const g = blockRowMin(blocks, br, bc0, bc1);
-        const dRow = g < Infinity ? Math.min(ez - g, dMax) : 0;
-        hA = dRow > 0 ? dRow * kAlong : -1;
-        hC = dRow > 0 ? dRow * kAcross : -1;
+    // With the WebAssembly rows, the photo's rows are gathered into the band's row arrays and
+    // swept in one call (rows.rows, in the same order as row by row).
+    let nRows = 0;
+    // A run of rows within one band of BLOCK rows at a time: its own, tighter reach (the lowest
+    // ground of its blocks under the box), and its rows' spans in one call.
+    for (let ra = rLo; ra <= rHi; ) {
+      const br = (ra / BLOCK) | 0;
+      const rb = Math.min(rHi, br * BLOCK + BLOCK - 1);
+      const g = blockRowMin(blocks, br, bc0, bc1);
+      const dRow = g < Infinity ? Math.min(ez - g, dMax) : 0;
+      if (dRow > 0) {
+        orientedRectColSpans(y0, dy, ra, rb, ex, ey, ux, uy, dRow * kAlong, dRow * kAcross, x0, dx, width, spans);
+        for (let r = ra; r <= rb; r++) {
+          const c0 = spans[2 * (r - ra)], c1 = spans[2 * (r - ra) + 1];
+          if (c0 > c1) continue;
+          const cy = y0 + (r + 0.5) * dy;
+          const ddy = cy - ey;
+          const ddx0 = x0 + (c0 + 0.5) * dx - ex;
+          const a0 = ddx0 * ux + ddy * uy;
+          const q0 = ddx0 * vx + ddy * vy;
+          if (wasm) {
+            const { rowCells, rowOffsets } = wasm.band;
+            rowCells[2 * nRows] = r * width + c0 - base0;
+            rowCells[2 * nRows + 1] = r * width + c1 - base0;
+            rowOffsets[2 * nRows] = a0;
+            rowOffsets[2 * nRows + 1] = q0;
+            nRows++;
+          } else {
+            sweepRow(
+              ground, inSite, images, best, gsdCm, nadirStrip,
+              r * width + c0, r * width + c1, base0,
+              ez, a0, q0, dx * ux, dx * vx,
+              kAlong, kAcross, invKA2, invKC2, byDistance, inp.gsdPerM, st,
+            );
+          }
+        }
       }
-      if (hA < 0) continue;
-      const cy = y0 + (r + 0.5) * dy;
-      orientedRectColSpan(cy, ex, ey, ux, uy, hA, hC, x0, dx, width, span);
-      if (span[0] > span[1]) continue;
-      const ddy = cy - ey;
-      const ddx0 = x0 + (span[0] + 0.5) * dx - ex;
-      const a0 = ddx0 * ux + ddy * uy;
-      const q0 = ddx0 * vx + ddy * vy;
-      if (rows) rows.row(r * width + span[0] - base0, r * width + span[1] - base0, ez, a0, q0, dx * ux, dx * vx, st);
-      else {
-        sweepRow(
-          ground, inSite, images, best, gsdCm, nadirStrip,
-          r * width + span[0], r * width + span[1], base0,
-          ez, a0, q0, dx * ux, dx * vx,
-          kAlong, kAcross, invKA2, invKC2, byDistance, inp.gsdPerM, st,
-        );
-      }
+      ra = rb + 1;
     }
+    if (wasm && nRows > 0) wasm.rows.rows(nRows, ez, dx * ux, dx * vx, st);
   }
 }
 

@@ -106,6 +106,28 @@ export function camera(ka: f64, kc: f64, ika2: f64, ikc2: f64, distance: i32, gs
   gsdPerM = gsdPerMetre;
 }
 
+/** Where a photo's rows lie for `rows`: their first and last band cells (Int32 pairs) and first offsets along and across (Float64 pairs). */
+let RI: usize = 0;
+let RF: usize = 0;
+
+export function rowArrays(ints: usize, floats: usize): void {
+  RI = ints;
+  RF = floats;
+}
+
+/**
+ * `row` for n rows of one photo, in order: row k over band cells RI[2k]..RI[2k + 1] from the
+ * offsets RF[2k], RF[2k + 1] (one call a photo from JavaScript, not one a row: each call
+ * from the engine's lower tiers boxed its five numbers, ~80 bytes of garbage a row).
+ */
+export function rows(n: i32, ez: f64, da: f64, dq: f64, strip: i32): void {
+  for (let k = 0; k < n; k++) {
+    const pi = RI + ((<usize>k) << 3);
+    const pf = RF + ((<usize>k) << 4);
+    row(load<i32>(pi), load<i32>(pi, 4), ez, load<f64>(pf), load<f64>(pf, 8), da, dq, strip);
+  }
+}
+
 /**
  * One row of one footprint: band cells i0..i1 (inclusive), offsets along and across of the
  * first a0 / q0, stepping by da / dq per cell; the photo at altitude ez of strip `strip`.
