@@ -1,6 +1,6 @@
 import type { DemGrid } from "../dem/grid.js";
 import { blockRowMin, minUnder, siteGroundBlocks, BLOCK, type BlockMinima } from "./coverageKernel.js";
-import { orientedRectColSpan, orientedRectRowRange } from "./orientedRect.js";
+import { orientedRectColSpans, orientedRectRowRange } from "./orientedRect.js";
 import type { PhotoLattice } from "./exposures.js";
 import { latticeRows, type KernelTallies, type LatticeRows } from "./latticeRowsWasm.js";
 
@@ -97,7 +97,7 @@ export function latticeCountsByBand(
   const input = prepareLattice({ width, height, x0, y0, dx, dy }, heights, inSite, strips, altitudeAmslM, triggerM, kAlong, kAcross, new Uint16Array(0), blocks);
   // The rows in WebAssembly where the kernel is built (latticeRows.as.ts; the same counts), the
   // band's ground and mask copied into its memory and its counts read from there.
-  const kernel = rowsIn === "js" ? undefined : latticeRows(input.pre, bandCells, tally ? { gridCells: width * height, bins: tally.bins } : undefined);
+  const kernel = rowsIn === "js" ? undefined : latticeRows(input.pre, bandCells, tally ? { gridCells: width * height, bins: tally.bins } : undefined, LATTICE_BAND_ROWS);
   input.images = kernel ? kernel.images : new Uint16Array(bandCells);
   return {
     bands: Math.ceil(height / LATTICE_BAND_ROWS),
@@ -197,7 +197,7 @@ function latticeBand(inp: LatticeInput, band: number, imagesAt: number, kernel: 
   const { width, x0, y0, dx, dy, heights, inSite, images, blocks, A, triggerM, kAlong, kAcross } = inp;
   const r0 = band * inp.bandRows;
   const r1 = Math.min(inp.height - 1, r0 + inp.bandRows - 1);
-  const span = new Int32Array(2);
+  const spans = new Int32Array(2 * BLOCK);
   // Written before read, as in sweepBand (coverageKernel.ts).
   images.fill(0, r0 * width - imagesAt, (r1 + 1) * width - imagesAt);
   for (let j = 0; j < inp.fx.length; j++) {
@@ -214,41 +214,44 @@ function latticeBand(inp: LatticeInput, band: number, imagesAt: number, kernel: 
     const ext = Math.abs(ux) * (halfRun + dMax * kAlong) + Math.abs(uy) * dMax * kAcross;
     const bc0 = Math.max(0, Math.floor((px - ext - x0) / dx / BLOCK));
     const bc1 = Math.min(blocks.bw - 1, Math.floor((px + ext - x0) / dx / BLOCK));
-    let bandRow = -1;
-    let hA = -1;
-    let hC = -1;
-    for (let r = rLo; r <= rHi; r++) {
-      const br = (r / BLOCK) | 0;
-      if (br !== bandRow) {
-        // Each band of BLOCK rows: the reach over the lowest ground of its blocks under the box.
-        bandRow = br;
-        const g = blockRowMin(blocks, br, bc0, bc1);
-        const dRow = g < Infinity ? Math.min(A - g, dMax) : 0;
-        hA = dRow > 0 ? halfRun + dRow * kAlong : -1;
-        hC = dRow > 0 ? dRow * kAcross : -1;
+    // With the WebAssembly rows, the strip's rows are gathered into the kernel's row arrays and
+    // counted in one call (kernel.rows, in the same order as row by row).
+    let nRows = 0;
+    // A run of rows within one band of BLOCK rows at a time: the reach over the lowest ground
+    // of its blocks under the box, and its rows' spans in one call.
+    for (let ra = rLo; ra <= rHi; ) {
+      const br = (ra / BLOCK) | 0;
+      const rb = Math.min(rHi, br * BLOCK + BLOCK - 1);
+      const g = blockRowMin(blocks, br, bc0, bc1);
+      const dRow = g < Infinity ? Math.min(A - g, dMax) : 0;
+      if (dRow > 0) {
+        orientedRectColSpans(y0, dy, ra, rb, px, py, ux, uy, halfRun + dRow * kAlong, dRow * kAcross, x0, dx, width, spans);
+        for (let r = ra; r <= rb; r++) {
+          const c0 = spans[2 * (r - ra)], c1 = spans[2 * (r - ra) + 1];
+          if (c0 > c1) continue;
+          // Along from the strip's start and across from its line, of the first cell; steps per column.
+          const cy = y0 + (r + 0.5) * dy;
+          const ddx = x0 + (c0 + 0.5) * dx - inp.fx[j];
+          const ddy = cy - inp.fy[j];
+          if (kernel) {
+            kernel.rowCells[2 * nRows] = r * width + c0 - imagesAt;
+            kernel.rowCells[2 * nRows + 1] = r * width + c1 - imagesAt;
+            kernel.rowOffsets[2 * nRows] = ddx * ux + ddy * uy;
+            kernel.rowOffsets[2 * nRows + 1] = ddx * uy - ddy * ux;
+            nRows++;
+          } else {
+            countRow(
+              heights, inSite, images, imagesAt, pre,
+              r * width + c0, r * width + c1,
+              A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
+              inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
+            );
+          }
+        }
       }
-      if (hA < 0) continue;
-      const cy = y0 + (r + 0.5) * dy;
-      orientedRectColSpan(cy, px, py, ux, uy, hA, hC, x0, dx, width, span);
-      if (span[0] > span[1]) continue;
-      // Along from the strip's start and across from its line, of the first cell; steps per column.
-      const ddx = x0 + (span[0] + 0.5) * dx - inp.fx[j];
-      const ddy = cy - inp.fy[j];
-      if (kernel) {
-        kernel.row(
-          r * width + span[0] - imagesAt, r * width + span[1] - imagesAt, inp.preAt[j],
-          A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
-          inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
-        );
-      } else {
-        countRow(
-          heights, inSite, images, imagesAt, pre,
-          r * width + span[0], r * width + span[1],
-          A, ddx * ux + ddy * uy, ddx * uy - ddy * ux, dx * ux, dx * uy,
-          inp.s0[j], triggerM, inp.n[j], kAlong, kAcross,
-        );
-      }
+      ra = rb + 1;
     }
+    if (kernel && nRows > 0) kernel.rows(nRows, inp.preAt[j], A, dx * ux, dx * uy, inp.s0[j], triggerM, inp.n[j], kAlong, kAcross);
   }
 }
 

@@ -101,6 +101,28 @@ export function row(i0: i32, i1: i32, preAt: i32, A: f64, a0: f64, q0: f64, da: 
   }
 }
 
+/** Where a strip's rows lie for `rows`: their first and last band cells (Int32 pairs) and first offsets along and across (Float64 pairs). */
+let RI: usize = 0;
+let RF: usize = 0;
+
+export function rowArrays(ints: usize, floats: usize): void {
+  RI = ints;
+  RF = floats;
+}
+
+/**
+ * `row` for n rows of one strip, in order: row k over band cells RI[2k]..RI[2k + 1] from the
+ * offsets RF[2k], RF[2k + 1] (one call a strip and band from JavaScript, not one a row: each
+ * call from the engine's lower tiers boxed its eight numbers).
+ */
+export function rows(n: i32, preAt: i32, A: f64, da: f64, dq: f64, s0: f64, t: f64, count: i32, kAlong: f64, kAcross: f64): void {
+  for (let k = 0; k < n; k++) {
+    const pi = RI + ((<usize>k) << 3);
+    const pf = RF + ((<usize>k) << 4);
+    row(load<i32>(pi), load<i32>(pi, 4), preAt, A, load<f64>(pf), load<f64>(pf, 8), da, dq, s0, t, count, kAlong, kAcross);
+  }
+}
+
 // The comparison's pass over a band's cells (plan/baseline.ts tallyRow, its twin): with the
 // band's counts made above, each site cell's GSD at the one altitude, flags, clearance
 // shortfall, image-count and flag histograms, the seen cells' bits and the first radix pass

@@ -14,6 +14,11 @@ export interface LatticeRows {
   images: Uint16Array;
   /** countRow over band cells i0..i1 (inclusive, indices in the band); preAt: the strip's first prefix count. */
   row(i0: number, i1: number, preAt: number, A: number, a0: number, q0: number, da: number, dq: number, s0: number, t: number, n: number, kAlong: number, kAcross: number): void;
+  /** A strip's rows for `rows`, room for the rows asked for at the start: first and last cells (pairs), first offsets along and across (pairs). */
+  rowCells: Int32Array;
+  rowOffsets: Float64Array;
+  /** `row` for the first `count` rows set in rowCells and rowOffsets, in order, all of one strip (lattice s0 + k t, k in 0..n). */
+  rows(count: number, preAt: number, A: number, da: number, dq: number, s0: number, t: number, n: number, kAlong: number, kAcross: number): void;
   /** The pass's tallies, when asked for at the start. */
   tallies?: KernelTallies;
 }
@@ -40,6 +45,8 @@ interface Exports {
   heapBase: () => number;
   arrays: (g: number, s: number, i: number, p: number) => void;
   row: LatticeRows["row"];
+  rowArrays: (ints: number, floats: number) => void;
+  rows: LatticeRows["rows"];
   tallies: (A: number, gsdPerM: number, lo: number, hi: number, clearanceM: number, minImages: number, byThreshold: number, breachGsd: number, ifov: number, takeoffLimitM: number,
     bins: number, radix: number, imageHist: number, flagHist: number, slots: number, edges: number, seenBits: number) => void;
   tallyBand: (from: number, end: number, cellAt: number) => void;
@@ -56,12 +63,12 @@ const FLAG_VALUES = 512;
 
 /**
  * A new kernel instance holding `pre` (every strip's prefix counts) and room for a band of
- * `cells` cells (and, with `tally`, the pass's tallies for a grid of `gridCells` cells and a
+ * `cells` cells, `rows` rows of a strip (`rows`) (and, with `tally`, the pass's tallies for a grid of `gridCells` cells and a
  * GSD tally of `bins` bins, 0: none), or undefined without the compiled kernel (see
  * wasmKernel): the comparison then counts with its JavaScript rows.
  * @example const k = latticeRows(pre, bandCells); if (k) { k.ground.set(heights.subarray(i, i + n)); ...; k.row(...) }
  */
-export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells: number; bins: number }): LatticeRows | undefined {
+export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells: number; bins: number }, rows = 0): LatticeRows | undefined {
   const k = kernelInstance<Exports>(LATTICE_ROWS_WASM);
   if (!k) return undefined;
   const { exports: x, base } = k;
@@ -72,8 +79,10 @@ export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells:
   const rg = place(4 * RADIX_BINS, tally), ih = place(8 * IMAGE_COUNTS, tally), fh = place(8 * FLAG_VALUES, tally);
   const ts = place(8 * (bins + 2), tally), te = place(8 * (bins + 1), tally);
   const sb = place(tally ? (tally.gridCells + 7) >> 3 : 0, tally);
+  const ri = place(8 * rows), rf = place(16 * rows);
   ensureMemory(x.memory, end());
   x.arrays(g, s, i, p);
+  x.rowArrays(ri, rf);
   const buf = x.memory.buffer;
   new Int32Array(buf, p, pre.length).set(pre);
   return {
@@ -81,6 +90,9 @@ export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells:
     inSite: new Uint8Array(buf, s, cells),
     images: new Uint16Array(buf, i, cells),
     row: x.row,
+    rowCells: new Int32Array(buf, ri, 2 * rows),
+    rowOffsets: new Float64Array(buf, rf, 2 * rows),
+    rows: x.rows,
     ...(tally ? {
       tallies: {
         seenGround: new Uint32Array(buf, rg, RADIX_BINS),
