@@ -90,7 +90,7 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
         if (m > best) best = m;
       }
       for (let j = rimAt[p]; j < rimAt[p + 1]; j++) edge[nEdge++] = base + rim[j];
-      out[i] = bad ? NaN : edgeMax(grid, pooled, kb, edge, nEdge, best, px, py, r2);
+      out[i] = bad ? NaN : rimMax(grid, pooled, kb, edge, nEdge, best, px, py, r2);
       continue;
     }
     const rowA = Math.max(0, Math.floor((pcy - radiusM / ady) / kb)), rowB = Math.min(ph - 1, Math.floor((pcy + radiusM / ady) / kb));
@@ -124,12 +124,13 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
       for (let bc = bcA; bc <= bcB; bc++) if (bc < iA || bc > iB) edge[nEdge++] = base + bc;
     }
     // A block wholly inside the disc holds nodata: so does the disc (extremaInRadius's NaN).
-    out[i] = bad ? NaN : edgeMax(grid, pooled, kb, edge, nEdge, best, px, py, r2);
+    out[i] = bad ? NaN : rimMax(grid, pooled, kb, edge, nEdge, best, px, py, r2);
   }
 }
 
 /**
- * The disc's maximum from its interior's (`best`) and its boundary blocks (edge[0 .. nEdge),
+ * The disc's maximum from its interior's (`best`, with the station (px, py) and the radius
+ * squared r2 in disc4: rimMax) and its boundary blocks (edge[0 .. nEdge),
  * pooled cells of `pooled`, kb cells a side): those that can still matter are those holding
  * nodata (the disc may reach it) and those whose maximum beats the interior's, scanned cell by
  * cell with extremaInRadius's own row chords, highest first, so the scan stops at the first
@@ -137,7 +138,9 @@ export function maxGroundInRadius(grid: DemGrid, xs: ArrayLike<number>, ys: Arra
  * from maxGroundInRadius: many stations need no such scan, and code first reached after the
  * engine compiled the stations' loop sent it back to the interpreter (node --trace-deopt).
  */
-function edgeMax(grid: DemGrid, pooled: DemGrid, kb: number, edge: Int32Array, nEdge: number, best: number, px: number, py: number, r2: number): number {
+function edgeMax(grid: DemGrid, pooled: DemGrid, kb: number, edge: Int32Array, nEdge: number): number {
+  let best = disc4[0];
+  const px = disc4[1], py = disc4[2], r2 = disc4[3];
   const pmax = pooled.heights;
   const pw = pooled.width;
   const { width: w, height: h, heights } = grid;
@@ -176,6 +179,18 @@ function edgeMax(grid: DemGrid, pooled: DemGrid, kb: number, edge: Int32Array, n
     }
   }
   return best;
+}
+
+/** edgeMax's numbers (best so far, the station, the radius squared): passed in a typed array, not as arguments, which a call the engine does not inline boxes (four numbers a station). */
+const disc4 = new Float64Array(4);
+
+/** edgeMax, its numbers handed over in disc4 (this small function is inlined where it is called). */
+function rimMax(grid: DemGrid, pooled: DemGrid, kb: number, edge: Int32Array, nEdge: number, best: number, px: number, py: number, r2: number): number {
+  disc4[0] = best;
+  disc4[1] = px;
+  disc4[2] = py;
+  disc4[3] = r2;
+  return edgeMax(grid, pooled, kb, edge, nEdge);
 }
 
 /** Sort order of boundary blocks: NaN (nodata) first, then by maximum, descending. */
