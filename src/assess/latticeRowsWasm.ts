@@ -12,12 +12,14 @@ export interface LatticeRows {
   ground: Float32Array;
   inSite: Uint8Array;
   images: Uint16Array;
-  /** countRow over band cells i0..i1 (inclusive, indices in the band); preAt: the strip's first prefix count. */
-  row(i0: number, i1: number, preAt: number, A: number, a0: number, q0: number, da: number, dq: number, s0: number, t: number, n: number, kAlong: number, kAcross: number): void;
   /** A strip's rows for `rows`, room for the rows asked for at the start: first and last cells (pairs), first offsets along and across (pairs). */
   rowCells: Int32Array;
   rowOffsets: Float64Array;
-  /** `row` for the first `count` rows set in rowCells and rowOffsets, in order, all of one strip (lattice s0 + k t, k in 0..n). */
+  /**
+   * latticeCoverage.ts countRow for the first `count` rows set in rowCells and rowOffsets, in
+   * order, all of one strip (its prefix counts from `preAt`, lattice s0 + k t for k in 0..n):
+   * row k over band cells rowCells[2k]..rowCells[2k + 1] (inclusive) from offsets rowOffsets[2k], rowOffsets[2k + 1].
+   */
   rows(count: number, preAt: number, A: number, da: number, dq: number, s0: number, t: number, n: number, kAlong: number, kAcross: number): void;
   /** The pass's tallies, when asked for at the start. */
   tallies?: KernelTallies;
@@ -44,7 +46,6 @@ interface Exports {
   memory: WasmMemory;
   heapBase: () => number;
   arrays: (g: number, s: number, i: number, p: number) => void;
-  row: LatticeRows["row"];
   rowArrays: (ints: number, floats: number) => void;
   rows: LatticeRows["rows"];
   tallies: (A: number, gsdPerM: number, lo: number, hi: number, clearanceM: number, minImages: number, byThreshold: number, breachGsd: number, ifov: number, takeoffLimitM: number,
@@ -66,7 +67,7 @@ const FLAG_VALUES = 512;
  * `cells` cells, `rows` rows of a strip (`rows`) (and, with `tally`, the pass's tallies for a grid of `gridCells` cells and a
  * GSD tally of `bins` bins, 0: none), or undefined without the compiled kernel (see
  * wasmKernel): the comparison then counts with its JavaScript rows.
- * @example const k = latticeRows(pre, bandCells); if (k) { k.ground.set(heights.subarray(i, i + n)); ...; k.row(...) }
+ * @example const k = latticeRows(pre, bandCells, undefined, rows); if (k) { k.ground.set(heights.subarray(i, i + n)); ...; k.rows(...) }
  */
 export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells: number; bins: number }, rows = 0): LatticeRows | undefined {
   const k = kernelInstance<Exports>(LATTICE_ROWS_WASM);
@@ -89,7 +90,6 @@ export function latticeRows(pre: Int32Array, cells: number, tally?: { gridCells:
     ground: new Float32Array(buf, g, cells),
     inSite: new Uint8Array(buf, s, cells),
     images: new Uint16Array(buf, i, cells),
-    row: x.row,
     rowCells: new Int32Array(buf, ri, 2 * rows),
     rowOffsets: new Float64Array(buf, rf, 2 * rows),
     rows: x.rows,
